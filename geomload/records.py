@@ -1,0 +1,255 @@
+"""The records passed between pipeline stages (geometry -> aero -> loads -> export).
+
+All are frozen dataclasses of numpy arrays, SI units, in the *wing frame* unless stated:
+x aft along the root chord, y along the span (starboard positive, y = 0 on the symmetry plane /
+root plane), z up. Stages are pure functions of these records; nothing here prints.
+
+This single module holds every contract so that each stage can be developed and tested
+against it independently (see docs/architecture.md).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import Callable, Optional
+
+import numpy as np
+
+# progress(stage_name, done, total) - the CLI fills it with a progress bar; library code calls it.
+Progress = Optional[Callable[[str, int, int], None]]
+
+
+def no_progress(stage: str, done: int, total: int) -> None:  # noqa: D401 - trivial
+    """A progress callback that does nothing."""
+
+
+# --------------------------------------------------------------------------------------- geometry
+@dataclass(frozen=True)
+class WingMesh:
+    """A triangle soup in metres, in the CAD frame (before any axis change).
+
+    triangles: (m, 3, 3) float64, metres. No vertex welding is required for cutting.
+    source: path of the file it came from.
+    units: the unit the file was read in ("m", "mm", ... or "file" when the file carried it).
+    notes: human-readable remarks (bodies left out, unit warnings...), for the CLI to print.
+    """
+
+    triangles: np.ndarray
+    source: str
+    units: str
+    notes: tuple = ()
+
+    @property
+    def n_triangles(self) -> int:
+        return int(self.triangles.shape[0])
+
+
+@dataclass(frozen=True)
+class WingFrame:
+    """The transform from the CAD frame to the wing frame: p_wing = rotation @ (p_cad - origin).
+
+    rotation: (3, 3) proper rotation (det +1); its rows are the wing x, y, z axes in CAD coords.
+    origin: (3,) CAD point that maps to the wing-frame origin (on the root / symmetry plane).
+    full_span: True when the mesh holds both sides of the symmetry plane.
+    span_axis, up_axis: labels of the CAD axes chosen, e.g. "+Y", "-Z" (for printing).
+    asymmetry: for a full wing, max |starboard - port| station difference / semi-span (0 for half).
+    notes: remarks on how the frame was chosen.
+    """
+
+    rotation: np.ndarray
+    origin: np.ndarray
+    full_span: bool
+    span_axis: str
+    up_axis: str
+    asymmetry: float = 0.0
+    notes: tuple = ()
+
+    def to_wing(self, p_cad: np.ndarray) -> np.ndarray:
+        return (np.asarray(p_cad, float) - self.origin) @ self.rotation.T
+
+    def to_cad(self, p_wing: np.ndarray) -> np.ndarray:
+        return np.asarray(p_wing, float) @ self.rotation + self.origin
+
+
+@dataclass(frozen=True)
+class Stations:
+    """Airfoil sections cut from the mesh along one semi-span (starboard, y >= 0), root to tip.
+
+    Arrays of length n (stations), wing frame, metres / degrees:
+    y, x_le, z_le, x_te, z_te, chord, twist_deg (chord-line angle, nose-up positive: LE above TE
+    gives positive twist), thickness_ratio (t/c), x_thickness (x/c of max t), camber_ratio (f/c),
+    x_camber (x/c of max camber), dihedral_deg (local slope of the quarter-chord line in y-z).
+    camber_x: (k,) chordwise stations 0..1 shared by all sections; camber_z: (n, k) mean camber
+    line height / chord, measured normal to the local chord line (positive up), 0 at both ends.
+    semispan: the tip y (m) of the geometry itself (stations are inset slightly from the tip cap).
+    notes: skipped stations, stray loops ignored, etc.
+    """
+
+    y: np.ndarray
+    x_le: np.ndarray
+    z_le: np.ndarray
+    x_te: np.ndarray
+    z_te: np.ndarray
+    chord: np.ndarray
+    twist_deg: np.ndarray
+    thickness_ratio: np.ndarray
+    x_thickness: np.ndarray
+    camber_ratio: np.ndarray
+    x_camber: np.ndarray
+    dihedral_deg: np.ndarray
+    camber_x: np.ndarray
+    camber_z: np.ndarray
+    semispan: float
+    notes: tuple = ()
+
+    @property
+    def n(self) -> int:
+        return int(self.y.size)
+
+    @property
+    def x_qc(self) -> np.ndarray:
+        return self.x_le + 0.25 * (self.x_te - self.x_le)
+
+    @property
+    def z_qc(self) -> np.ndarray:
+        return self.z_le + 0.25 * (self.z_te - self.z_le)
+
+
+@dataclass(frozen=True)
+class Planform:
+    """Planform summary of the whole wing (both sides), metres / degrees.
+
+    area: projected area S on the x-y plane (both sides); span: b (tip to tip);
+    aspect_ratio b^2/S; taper: c_tip / c_root; mac: mean aerodynamic chord length;
+    x_mac_le, y_mac: leading-edge x and spanwise position of the MAC; x_mac_qc = x_mac_le + mac/4;
+    sweep_le_deg, sweep_qc_deg: from a least-squares line through the LE / c/4 points;
+    dihedral_deg: from a least-squares line through the c/4 points in y-z;
+    washout_deg: root twist minus tip twist (positive = tip nose-down).
+    """
+
+    area: float
+    span: float
+    aspect_ratio: float
+    taper: float
+    root_chord: float
+    tip_chord: float
+    mac: float
+    x_mac_le: float
+    y_mac: float
+    sweep_le_deg: float
+    sweep_qc_deg: float
+    dihedral_deg: float
+    washout_deg: float
+
+    @property
+    def x_mac_qc(self) -> float:
+        return self.x_mac_le + 0.25 * self.mac
+
+
+# ------------------------------------------------------------------------------------------- aero
+@dataclass(frozen=True)
+class Lattice:
+    """A vortex lattice on the mean surface, wing frame.
+
+    corners: (ns + 1, nc + 1, 3) panel corner grid; index 0 spanwise = root (or port tip for a
+    full-span lattice), index 0 chordwise = leading edge.
+    bound_a, bound_b: (N, 3) ends of each bound vortex (panel quarter chord), N = ns * nc, ordered
+    strip-major (panel k = strip k // nc, chordwise k % nc).
+    colloc: (N, 3) collocation points (panel three-quarter chord); normal: (N, 3) unit normals.
+    area: (N,) panel areas; mirrored: True when images in y = 0 are implied (half wing).
+    strip_y, strip_chord: (ns,) strip centre y and chord; strip_width: (ns,) strip width along y.
+    s_ref, c_ref, b_ref: reference area (both sides), chord (MAC) and span.
+    x_ref: (3,) moment reference point (default MAC quarter chord).
+    """
+
+    corners: np.ndarray
+    bound_a: np.ndarray
+    bound_b: np.ndarray
+    colloc: np.ndarray
+    normal: np.ndarray
+    area: np.ndarray
+    n_span: int
+    n_chord: int
+    mirrored: bool
+    strip_y: np.ndarray
+    strip_chord: np.ndarray
+    strip_width: np.ndarray
+    s_ref: float
+    c_ref: float
+    b_ref: float
+    x_ref: np.ndarray
+
+
+@dataclass(frozen=True)
+class AeroSolution:
+    """Vortex-lattice result at one angle of attack and Mach, per unit dynamic pressure where noted.
+
+    alpha_deg, mach; gamma: (N,) circulation per unit free-stream speed (m);
+    strip arrays (ns,): y, chord, cl (section lift coefficient), cl_c (m), cm_c4 (section moment
+    about its own quarter chord, nose-up positive), cdi (section induced drag coefficient),
+    lift_per_q (N/m per Pa: lift per span / q), drag_per_q, moment_per_q (N m / m per Pa, about
+    the strip quarter chord, nose-up positive), x_cp (m, chordwise centre of pressure x);
+    panel dcp: (N,) pressure-coefficient jump (lower minus upper).
+    totals: CL, CDi (Trefftz plane), e, Cm (about lattice.x_ref), CL_alpha_per_rad,
+    alpha_zero_lift_deg, x_ac_m.
+    """
+
+    alpha_deg: float
+    mach: float
+    gamma: np.ndarray
+    y: np.ndarray
+    chord: np.ndarray
+    cl: np.ndarray
+    cl_c: np.ndarray
+    cm_c4: np.ndarray
+    cdi: np.ndarray
+    lift_per_q: np.ndarray
+    drag_per_q: np.ndarray
+    moment_per_q: np.ndarray
+    x_cp: np.ndarray
+    dcp: np.ndarray
+    CL: float
+    CDi: float
+    e: float
+    Cm: float
+    CL_alpha_per_rad: float
+    alpha_zero_lift_deg: float
+    x_ac_m: float
+
+
+# ------------------------------------------------------------------------------------------ loads
+@dataclass(frozen=True)
+class PointMass:
+    """A concentrated mass (kg) at a wing-frame position (m), on the starboard side (y >= 0)."""
+
+    name: str
+    mass: float
+    position: np.ndarray
+
+
+@dataclass(frozen=True)
+class SpanLoads:
+    """Loads along one semi-span for one flight case, limit values, root to tip (wing frame).
+
+    y: (n,) stations (m); lift_N_per_m, drag_N_per_m, pitch_Nm_per_m (about the spar axis,
+    nose-up positive); inertia_N_per_m (downward weight relief n*g*m'(y), positive down);
+    shear_N, bending_Nm, torsion_Nm (out-of-plane, local spar frame; signs: shear positive up,
+    bending positive tip-up, torsion nose-up); inplane_shear_N, inplane_bending_Nm (chordwise);
+    schrenk_lift_N_per_m: Schrenk distribution of the same total lift (cross-check).
+    ultimate_factor: multiply limit values by it for ultimate loads.
+    """
+
+    case: str
+    y: np.ndarray
+    lift_N_per_m: np.ndarray
+    drag_N_per_m: np.ndarray
+    pitch_Nm_per_m: np.ndarray
+    inertia_N_per_m: np.ndarray
+    shear_N: np.ndarray
+    bending_Nm: np.ndarray
+    torsion_Nm: np.ndarray
+    inplane_shear_N: np.ndarray
+    inplane_bending_Nm: np.ndarray
+    schrenk_lift_N_per_m: np.ndarray
+    ultimate_factor: float = 1.5
+    extras: dict = field(default_factory=dict)
