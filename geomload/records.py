@@ -253,3 +253,57 @@ class SpanLoads:
     schrenk_lift_N_per_m: np.ndarray
     ultimate_factor: float = 1.5
     extras: dict = field(default_factory=dict)
+
+
+# ------------------------------------------------------------------------------------------- run
+@dataclass(frozen=True)
+class CaseResult:
+    """One flight case through the pipeline.
+
+    name; v_eas, v_tas (m/s), altitude_m, mach, q_pa (dynamic pressure), load_factor, mass_kg
+    (aircraft mass of the case), lift_share; aero: AeroSolution at the trimmed alpha;
+    loads: SpanLoads; stall_warning: '' or a one-line warning; residual: equilibrium residual
+    (relative) of the beam integration.
+    """
+
+    name: str
+    v_eas: float
+    v_tas: float
+    altitude_m: float
+    mach: float
+    q_pa: float
+    load_factor: float
+    mass_kg: float
+    lift_share: float
+    aero: AeroSolution
+    loads: SpanLoads
+    stall_warning: str = ""
+    residual: float = 0.0
+
+
+@dataclass(frozen=True)
+class RunResult:
+    """Everything `geomload run` computed, handed to the exporters.
+
+    case_path: the case file; case_text: its text (echoed in the report); case: the parsed Case
+    (geomload.case.Case); mesh, frame, stations, planform, lattice; cases: list of CaseResult;
+    envelope: geomload.loads.envelope.Envelope or None; vn: geomload.loads.envelope.VnDiagram or
+    None; alpha_sweep: list of (alpha_deg, CL) from the lattice at the first case's Mach;
+    warnings: list of one-line warnings; timings: dict step -> seconds; versions: dict pkg -> str.
+    """
+
+    case_path: str
+    case_text: str
+    case: object
+    mesh: WingMesh
+    frame: WingFrame
+    stations: Stations
+    planform: Planform
+    lattice: Lattice
+    cases: list
+    envelope: object = None
+    vn: object = None
+    alpha_sweep: list = field(default_factory=list)
+    warnings: list = field(default_factory=list)
+    timings: dict = field(default_factory=dict)
+    versions: dict = field(default_factory=dict)
