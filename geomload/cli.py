@@ -60,9 +60,9 @@ def _debug_requested() -> bool:
 
 
 def _progress():
-    from geomload.progress import terminal_progress
+    from geomload.progress import make_progress
 
-    return terminal_progress()
+    return make_progress()
 
 
 def import_options(fn):

@@ -1,0 +1,126 @@
+"""International Standard Atmosphere (= U.S. Standard Atmosphere 1976) from -0.5 km to 20 km.
+
+Altitudes are **geopotential** metres (H) unless stated: the 1976 standard defines its layers
+in geopotential altitude, so the tables read directly in H. `geopotential_from_geometric` and
+`geometric_from_geopotential` convert (effective Earth radius r0 = 6 356 766 m, U.S. Standard
+Atmosphere 1976, eq. 18). Below 20 km the two differ by at most 63 m.
+
+Layers used (U.S. Standard Atmosphere 1976, table 4): troposphere 0-11 km with lapse rate
+-6.5 K/km from 288.15 K / 101 325 Pa; isothermal 216.65 K from 11 km to 20 km.
+Viscosity by Sutherland's law with the 1976 constants (beta = 1.458e-6 kg/(m s K^0.5),
+S = 110.4 K).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+
+from geomload.errors import InputError
+
+G0 = 9.80665  # m/s^2, standard gravity
+R_AIR = 287.05287  # J/(kg K), R* / M0 of the 1976 standard
+GAMMA = 1.4
+T0 = 288.15  # K
+P0 = 101325.0  # Pa
+RHO0 = P0 / (R_AIR * T0)  # 1.2250 kg/m^3
+LAPSE = -0.0065  # K/m, 0..11 km geopotential
+H_TROPOPAUSE = 11000.0  # m geopotential
+T_TROPOPAUSE = T0 + LAPSE * H_TROPOPAUSE  # 216.65 K
+P_TROPOPAUSE = P0 * (T_TROPOPAUSE / T0) ** (-G0 / (R_AIR * LAPSE))  # 22 632 Pa
+H_MIN, H_MAX = -500.0, 20000.0  # m geopotential, range of validity of this model
+R_EARTH = 6356766.0  # m, effective Earth radius for geopotential altitude (1976)
+
+
+@dataclass(frozen=True)
+class Atmosphere:
+    """Atmospheric state: T (K), p (Pa), rho (kg/m^3), a (speed of sound, m/s),
+    mu (dynamic viscosity, Pa s), h (geopotential altitude, m)."""
+
+    T: float
+    p: float
+    rho: float
+    a: float
+    mu: float
+    h: float
+
+
+def geopotential_from_geometric(z_m: float) -> float:
+    """Geopotential altitude H = r0 z / (r0 + z) (m) from geometric altitude z (m)."""
+    return R_EARTH * z_m / (R_EARTH + z_m)
+
+
+def geometric_from_geopotential(h_m: float) -> float:
+    """Geometric altitude z = r0 H / (r0 - H) (m) from geopotential altitude H (m)."""
+    return R_EARTH * h_m / (R_EARTH - h_m)
+
+
+def _check_altitude(h_m) -> float:
+    try:
+        h = float(h_m)
+    except (TypeError, ValueError):
+        raise InputError(f"altitude: expected a number of metres, got {h_m!r}") from None
+    if not math.isfinite(h) or h < H_MIN or h > H_MAX:
+        raise InputError(
+            f"altitude: {h_m!r} m is outside the ISA model range {H_MIN:g} m to {H_MAX:g} m"
+        )
+    return h
+
+
+def isa(h_m: float) -> Atmosphere:
+    """ISA state at geopotential altitude `h_m` (m), -500 m <= h <= 20 000 m.
+
+    Troposphere: T = T0 + L h, p = p0 (T/T0)^(-g0/(R L)); stratosphere (isothermal):
+    p = p11 exp(-g0 (h - 11 km) / (R T11)). rho = p/(R T), a = sqrt(gamma R T).
+    Source: U.S. Standard Atmosphere 1976 (NOAA/NASA/USAF), eqs. 23, 33a, 33b, 42, 50, 51.
+
+    Raises InputError naming the altitude when it is outside the range.
+    """
+    h = _check_altitude(h_m)
+    if h <= H_TROPOPAUSE:
+        T = T0 + LAPSE * h
+        p = P0 * (T / T0) ** (-G0 / (R_AIR * LAPSE))
+    else:
+        T = T_TROPOPAUSE
+        p = P_TROPOPAUSE * math.exp(-G0 * (h - H_TROPOPAUSE) / (R_AIR * T))
+    rho = p / (R_AIR * T)
+    a = math.sqrt(GAMMA * R_AIR * T)
+    mu = 1.458e-6 * T**1.5 / (T + 110.4)
+    return Atmosphere(T=T, p=p, rho=rho, a=a, mu=mu, h=h)
+
+
+def _speed(v, name: str) -> float:
+    try:
+        v = float(v)
+    except (TypeError, ValueError):
+        raise InputError(f"{name}: expected a speed in m/s, got {v!r}") from None
+    if not math.isfinite(v) or v < 0.0:
+        raise InputError(f"{name}: speed must be finite and >= 0 m/s, got {v!r}")
+    return v
+
+
+def tas_from_eas(v_eas: float, h_m: float) -> float:
+    """True airspeed (m/s) from equivalent airspeed (m/s): V = V_e sqrt(rho0 / rho)."""
+    return _speed(v_eas, "EAS") * math.sqrt(RHO0 / isa(h_m).rho)
+
+
+def eas_from_tas(v_tas: float, h_m: float) -> float:
+    """Equivalent airspeed (m/s) from true airspeed (m/s): V_e = V sqrt(rho / rho0)."""
+    return _speed(v_tas, "TAS") * math.sqrt(isa(h_m).rho / RHO0)
+
+
+def mach(v_tas: float, h_m: float) -> float:
+    """Mach number V / a at geopotential altitude h (m)."""
+    return _speed(v_tas, "TAS") / isa(h_m).a
+
+
+def dynamic_pressure(v_tas: float, h_m: float) -> float:
+    """Dynamic pressure q = rho V^2 / 2 (Pa) from true airspeed (m/s)."""
+    return 0.5 * isa(h_m).rho * _speed(v_tas, "TAS") ** 2
+
+
+__all__ = [
+    "Atmosphere", "isa", "tas_from_eas", "eas_from_tas", "mach", "dynamic_pressure",
+    "geopotential_from_geometric", "geometric_from_geopotential", "RHO0", "G0",
+]

@@ -1,0 +1,364 @@
+"""Vortex-lattice solution: influence matrix, one LU factorisation per Mach, loads, Trefftz plane.
+
+Method (Katz & Plotkin, Low-Speed Aerodynamics, 2nd ed., ch. 12; Bertin & Cummings, ch. 7):
+horseshoe vortices (see `vortex`), flow tangency at the collocation points,
+A gamma = -V_inf . n. Free stream V = (cos a, 0, sin a) per unit speed, so
+gamma(a) = cos a gamma_x + sin a gamma_z: two basis solutions give every angle.
+
+Compressibility (Prandtl-Glauert / Goethert rule; Katz & Plotkin, compressibility corrections in ch. 12;
+Bertin & Cummings ch. 9): with x' = x / beta the linearised potential equation
+beta^2 phi_xx + phi_yy + phi_zz = 0 becomes Laplace's. The incompressible influence of the
+x-stretched lattice is used, with the physical perturbation velocity (u'/beta, v, w) in the
+tangency condition on the physical normals; circulation (the potential jump) is the same in
+both spaces, so forces follow from Kutta-Joukowski on the physical geometry
+(dcp = 2 gamma / (V dx) on the physical chord). For 2-D this gives cl_alpha = 2 pi / beta.
+
+Forces: Kutta-Joukowski on each bound segment, F = rho Gamma (V_inf + v_ind) x l, with v_ind
+the velocity induced at the segment midpoint by all horseshoes (a segment does not act on
+itself). The local-velocity force is normal to the local flow and, like every discrete-vortex
+near-field force, carries no leading-edge suction: at angle a the wing lift of a flat wing is
+about CL_lin cos^2 a. CL_alpha and the aerodynamic centre are therefore taken at zero lift,
+where they equal the linear-theory values. Induced drag from the Trefftz plane (Katz & Plotkin sec. 8.3, 12.2):
+D = -(rho/2) sum G_k w_n,k ds_k with the trailing vortices as 2-D point vortices at the
+trailing-edge strip edges.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from geomload.errors import AeroError
+from geomload.records import AeroSolution, Lattice, Stations
+from geomload.aero import vortex
+
+MACH_WARN = 0.7
+DEFAULT_CL_MAX = 1.4  # common practice for a plain section at low speed, no source
+
+
+def _alpha_rad(alpha_deg) -> float:
+    try:
+        a = float(alpha_deg)
+    except (TypeError, ValueError):
+        raise AeroError(f"alpha: expected degrees, got {alpha_deg!r}") from None
+    if not math.isfinite(a):
+        raise AeroError(f"alpha: angle of attack must be finite, got {alpha_deg!r}")
+    return math.radians(a)
+
+
+class AeroModel:
+    """Vortex-lattice model of `lattice` at Mach `mach`, assembled and factorised once.
+
+    Parameters
+    ----------
+    lattice : Lattice from `build_lattice` (half wing with images, or full span).
+    mach : free-stream Mach number, 0 <= M < 1. From M = 0.7 a warning is added to
+        `self.warnings` (linear theory leaves its range); M >= 1 raises AeroError.
+
+    Attributes: lattice, mach, beta, warnings (list of str).
+    """
+
+    def __init__(self, lattice: Lattice, mach: float = 0.0):
+        from scipy.linalg import lu_factor, lu_solve
+
+        try:
+            m = float(mach)
+        except (TypeError, ValueError):
+            raise AeroError(f"mach: expected a number, got {mach!r}") from None
+        if not math.isfinite(m) or m < 0.0:
+            raise AeroError(f"mach: Mach number must be finite and >= 0, got {mach!r}")
+        if m >= 1.0:
+            raise AeroError(f"mach: M = {m:g} >= 1; Prandtl-Glauert linear theory needs M < 1")
+        self.warnings: list[str] = []
+        if m >= MACH_WARN:
+            self.warnings.append(
+                f"mach: M = {m:g} >= {MACH_WARN}: linear (Prandtl-Glauert) theory is leaving its "
+                "range; transonic effects are not modelled")
+        self.lattice, self.mach = lattice, m
+        self.beta = beta = math.sqrt(1.0 - m * m)
+        self._lu_solve = lu_solve
+        lat = lattice
+        self._fac = 2.0 if lat.mirrored else 1.0
+        self._core = 1e-6 * lat.b_ref
+        stretch = np.array([1.0 / beta, 1.0, 1.0])
+        ns, nc = lat.n_span, lat.n_chord
+        nodes = np.concatenate([lat.bound_a.reshape(ns, nc, 3),
+                                lat.bound_b.reshape(ns, nc, 3)[-1:]]) * stretch
+        if not np.allclose(lat.bound_b.reshape(ns, nc, 3)[:-1] * stretch, nodes[1:-1]):
+            raise AeroError("lattice: bound vortices of neighbouring strips do not share ends")
+        hs = vortex.HorseshoeSet(nodes, self._core, x_scale=beta, mirror=lat.mirrored)
+        A = hs.normalwash(lat.colloc * stretch, lat.normal)
+        if not np.all(np.isfinite(A)):
+            raise AeroError("lattice: influence matrix is not finite (degenerate panels)")
+        self._lu = lu_factor(A, overwrite_a=True, check_finite=False)
+        if not np.all(np.isfinite(self._lu[0])) or np.min(np.abs(np.diag(self._lu[0]))) == 0.0:
+            raise AeroError("lattice: influence matrix is singular (degenerate panels)")
+        self._basis = self._solve_rhs(np.column_stack([-lat.normal[:, 0], -lat.normal[:, 2]]))
+        mid_s = 0.5 * (lat.bound_a + lat.bound_b) * stretch
+        self._vind = hs.velocity(mid_s, self._basis, self_panels=True)
+        self._prepare_geometry()
+
+    # --------------------------------------------------------------------------- internals
+    def _solve_rhs(self, rhs):
+        return self._lu_solve(self._lu, rhs, check_finite=False)
+
+    def _prepare_geometry(self):
+        lat = self.lattice
+        ns, nc = lat.n_span, lat.n_chord
+        c = lat.corners
+        le = 0.5 * (c[:-1, 0] + c[1:, 0])
+        te = 0.5 * (c[:-1, -1] + c[1:, -1])
+        self._qc = le + 0.25 * (te - le)  # (ns, 3) strip quarter-chord points
+        self._l = lat.bound_b - lat.bound_a
+        mid = 0.5 * (lat.bound_a + lat.bound_b)
+        self._arm_strip = (mid.reshape(ns, nc, 3) - self._qc[:, None, :]).reshape(-1, 3)
+        self._arm_ref = mid - lat.x_ref
+        # force / q per panel as a quadratic form in (cos a, sin a): F = sum_k w_k(a) Fq[k]
+        gx, gz = self._basis[:, 0:1], self._basis[:, 1:2]
+        ux = self._vind[:, :, 0].copy()
+        uz = self._vind[:, :, 1].copy()
+        ux[:, 0] += 1.0
+        uz[:, 2] += 1.0
+        cx, cz = np.cross(ux, self._l), np.cross(uz, self._l)
+        self._Fq = 2.0 * np.stack([gx * cx, gx * cz + gz * cx, gz * cz])
+        Fs = self._Fq.reshape(3, ns, nc, 3)
+        self._Fq_strip = Fs.sum(axis=2)
+        self._Fq_tot = self._Fq.sum(axis=1)
+        self._My_strip = self._moment(self._Fq, self._arm_strip).reshape(3, ns, nc).sum(axis=2)
+        self._My_ref = self._moment(self._Fq, self._arm_ref).sum(axis=1)
+        # Trefftz plane: nodes at the trailing-edge strip edges; wash at strip midpoints
+        ny, nz = c[:, -1, 1], c[:, -1, 2]
+        dy, dz = np.diff(ny), np.diff(nz)
+        ds = np.hypot(dy, dz)
+        ym, zm = 0.5 * (ny[:-1] + ny[1:]), 0.5 * (nz[:-1] + nz[1:])
+        D = np.zeros((ns + 1, ns))
+        D[1:] += np.eye(ns)
+        D[:-1] -= np.eye(ns)  # node strength = G_(e-1) - G_e, positive along +x
+        W = vortex.trefftz_wash_matrix(ny, nz, ym, zm, -dz / ds, dy / ds) @ D
+        if lat.mirrored:
+            W -= vortex.trefftz_wash_matrix(-ny, nz, ym, zm, -dz / ds, dy / ds) @ D
+        self._W_trefftz, self._ds = W, ds
+        self._lin = None
+
+    @staticmethod
+    def _moment(F, arm):
+        """Nose-up pitching moment (y component of arm x F), last axis xyz."""
+        return arm[..., 2] * F[..., 0] - arm[..., 0] * F[..., 2]
+
+    @staticmethod
+    def _w(alpha):
+        ca, sa = math.cos(alpha), math.sin(alpha)
+        return np.array([ca * ca, ca * sa, sa * sa]), ca, sa
+
+    def _cl_cm(self, alpha: float):
+        w, ca, sa = self._w(alpha)
+        T = w @ self._Fq_tot
+        lift = -sa * T[0] + ca * T[2]
+        S = self.lattice.s_ref
+        return (self._fac * lift / S, self._fac * (w @ self._My_ref) / (S * self.lattice.c_ref))
+
+    def _zero_lift(self, alpha: float, cla: float) -> float:
+        a = alpha
+        for _ in range(6):
+            a -= self._cl_cm(a)[0] / cla
+        return a
+
+    def _derivatives(self, alpha: float):
+        h = math.radians(0.5)
+        cl_p, cm_p = self._cl_cm(alpha + h)
+        cl_m, cm_m = self._cl_cm(alpha - h)
+        cla = (cl_p - cl_m) / (2 * h)
+        if not abs(cla) > 1e-12:
+            raise AeroError("lattice: lift slope is zero; the wing produces no lift")
+        return cla, (cm_p - cm_m) / (cl_p - cl_m)
+
+    def _linear(self):
+        """(alpha_zero_lift rad, CL_alpha /rad, dCm/dCL) at zero lift, computed once."""
+        if self._lin is None:
+            a0 = self._zero_lift(0.0, self._derivatives(0.0)[0])
+            a0 = self._zero_lift(a0, self._derivatives(a0)[0])
+            self._lin = (a0,) + self._derivatives(a0)
+        return self._lin
+
+    def _rhs(self, alphas):
+        n = self.lattice.normal
+        a = np.asarray(alphas, float)
+        return -(np.cos(a)[None, :] * n[:, 0:1] + np.sin(a)[None, :] * n[:, 2:3])
+
+    # ------------------------------------------------------------------------------ public
+    def solve(self, alpha_deg: float) -> AeroSolution:
+        """Loads at angle of attack `alpha_deg` (deg), per unit dynamic pressure q where the
+        field says so (see records.AeroSolution); circulation per unit free-stream speed."""
+        alpha = _alpha_rad(alpha_deg)
+        gamma = self._solve_rhs(self._rhs([alpha]))[:, 0]
+        return self._solution(float(alpha_deg), alpha, gamma)
+
+    def solve_many(self, alphas_deg) -> list:
+        """`solve` at each angle (deg); one factorisation and one multi-RHS back-substitution."""
+        degs = [float(a) for a in np.atleast_1d(alphas_deg)]
+        rads = [_alpha_rad(a) for a in degs]
+        G = self._solve_rhs(self._rhs(rads))
+        return [self._solution(d, r, G[:, k]) for k, (d, r) in enumerate(zip(degs, rads))]
+
+    def _solution(self, alpha_deg: float, alpha: float, g) -> AeroSolution:
+        lat = self.lattice
+        ns, nc = lat.n_span, lat.n_chord
+        ca, sa = math.cos(alpha), math.sin(alpha)
+        vt = self._vind @ np.array([ca, sa])
+        vt[:, 0] += ca
+        vt[:, 2] += sa
+        F = 2.0 * g[:, None] * np.cross(vt, self._l)  # force / q per panel (m^2)
+        lift = F @ np.array([-sa, 0.0, ca])
+        lift_s = lift.reshape(ns, nc).sum(axis=1)
+        my_s = self._moment(F, self._arm_strip).reshape(ns, nc).sum(axis=1)
+        G = g.reshape(ns, nc).sum(axis=1)
+        drag_s = -G * (self._W_trefftz @ G) * self._ds
+        S, fac = lat.s_ref, self._fac
+        CL = fac * lift_s.sum() / S
+        CDi = fac * drag_s.sum() / S
+        Cm = fac * self._moment(F, self._arm_ref).sum() / (S * lat.c_ref)
+        a0, cla, dcm_dcl = self._linear()
+        w, c = lat.strip_width, lat.strip_chord
+        lift_pq, mom_pq = lift_s / w, my_s / w
+        with np.errstate(divide="ignore", invalid="ignore"):
+            cl = np.where(c > 0, lift_pq / c, 0.0)
+            cm = np.where(c > 0, mom_pq / c**2, 0.0)
+            cdi = np.where(c > 0, drag_s / w / c, 0.0)
+            small = np.abs(lift_pq) <= 1e-12 * max(1e-300, np.abs(lift_pq).max())
+            x_cp = np.where(small, self._qc[:, 0], self._qc[:, 0] - mom_pq / lift_pq)
+        dcp = (F * lat.normal).sum(axis=1) / lat.area
+        A = lat.b_ref**2 / lat.s_ref
+        e = CL * CL / (math.pi * A * CDi) if CDi > 1e-14 else float("nan")
+        return AeroSolution(
+            alpha_deg=alpha_deg, mach=self.mach, gamma=g, y=lat.strip_y.copy(),
+            chord=c.copy(), cl=cl, cl_c=lift_pq, cm_c4=cm, cdi=cdi, lift_per_q=lift_pq,
+            drag_per_q=drag_s / w, moment_per_q=mom_pq, x_cp=x_cp, dcp=dcp,
+            CL=float(CL), CDi=float(CDi), e=float(e), Cm=float(Cm),
+            CL_alpha_per_rad=float(cla), alpha_zero_lift_deg=math.degrees(a0),
+            x_ac_m=float(lat.x_ref[0] - lat.c_ref * dcm_dcl),
+        )
+
+    def strip_cl(self, alpha_deg: float) -> np.ndarray:
+        """Section cl of every strip at `alpha_deg` (deg), by superposition (cheap)."""
+        return self._strip_cl(_alpha_rad(alpha_deg))
+
+    def _strip_cl(self, alpha):
+        w, ca, sa = self._w(alpha)
+        T = np.tensordot(w, self._Fq_strip, axes=1)
+        lat = self.lattice
+        with np.errstate(divide="ignore", invalid="ignore"):
+            return (-sa * T[:, 0] + ca * T[:, 2]) / lat.strip_width / lat.strip_chord
+
+    def alpha_for_cl(self, CL: float) -> float:
+        """Angle of attack (deg) at which the wing CL equals `CL` (superposition of the two basis
+        solutions, Newton iteration on the exact CL(alpha))."""
+        try:
+            target = float(CL)
+        except (TypeError, ValueError):
+            raise AeroError(f"CL: expected a number, got {CL!r}") from None
+        if not math.isfinite(target):
+            raise AeroError(f"CL: target lift coefficient must be finite, got {CL!r}")
+        a0, cla, _ = self._linear()
+        a = a0 + target / cla
+        for _ in range(20):
+            cl = self._cl_cm(a)[0]
+            if abs(cl - target) <= 1e-12 * max(1.0, abs(target)):
+                break
+            a -= (cl - target) / self._derivatives(a)[0]
+        if abs(a) > math.radians(60.0):
+            raise AeroError(f"CL: {target:g} needs |alpha| > 60 deg; outside linear theory")
+        return math.degrees(a)
+
+    def stall(self, cl_max=None) -> dict:
+        """Stall onset: the first strip whose section cl reaches `cl_max` as alpha rises.
+
+        cl_max: scalar or per-strip array; None uses DEFAULT_CL_MAX (1.4, common practice,
+        no source) and says so in the returned `warnings`. Returns dict(first_station_y (m),
+        CL_at_onset, alpha_at_onset (deg), warnings).
+        """
+        lat = self.lattice
+        warnings = []
+        if cl_max is None:
+            cl_max = DEFAULT_CL_MAX
+            warnings.append(f"cl_max: not given; using the default section cl_max {cl_max}")
+        try:
+            clm = np.broadcast_to(np.asarray(cl_max, float), lat.strip_y.shape)
+        except ValueError:
+            raise AeroError(f"cl_max: expected a number or one value per strip "
+                            f"({lat.n_span}), got shape {np.shape(cl_max)}") from None
+        if not np.all(np.isfinite(clm)) or np.any(clm <= 0):
+            raise AeroError(f"cl_max: section cl_max must be finite and > 0, got {cl_max!r}")
+        c = lat.strip_chord
+        ok = c > 1e-6 * lat.c_ref
+
+        def excess(a):
+            return np.max(self._strip_cl(a)[ok] - clm[ok])
+
+        a0 = self._linear()[0]
+        lo, step = a0, math.radians(0.25)
+        hi = lo + step
+        while excess(hi) < 0.0:
+            lo, hi = hi, hi + step
+            if hi > a0 + math.radians(45.0):
+                warnings.append("stall: cl_max not reached within 45 deg of zero lift")
+                nan = float("nan")
+                return dict(first_station_y=nan, CL_at_onset=nan, alpha_at_onset=nan,
+                            warnings=warnings)
+        for _ in range(60):
+            mid = 0.5 * (lo + hi)
+            lo, hi = (mid, hi) if excess(mid) < 0.0 else (lo, mid)
+        cl = np.full(c.shape, -np.inf)
+        cl[ok] = self._strip_cl(hi)[ok] - clm[ok]
+        cand = np.nonzero(cl >= cl.max() - 1e-9)[0]
+        k = cand[np.argmax(lat.strip_y[cand])]
+        CL_on = self._cl_cm(hi)[0]
+        return dict(first_station_y=float(lat.strip_y[k]), CL_at_onset=float(CL_on),
+                    alpha_at_onset=math.degrees(hi), warnings=warnings)
+
+
+def root_bending_coefficient(sol: AeroSolution, lattice: Lattice) -> float:
+    """Root bending coefficient C_B = int_0^s cl c y dy / (S/2 * s) (starboard strips).
+
+    For an elliptic load C_B = CL * 4 / (3 pi) (centroid 4s/(3 pi); beam statics)."""
+    right = sol.y > 0
+    m = np.sum(sol.cl_c[right] * sol.y[right] * lattice.strip_width[right])
+    return float(m / (0.25 * lattice.s_ref * lattice.b_ref))
+
+
+def _richardson(f, r: float) -> dict:
+    f1, f2, f3 = (float(v) for v in f)
+    d12, d23 = f1 - f2, f2 - f3
+    order, ext = float("nan"), f3
+    if d12 * d23 > 0 and abs(d23) < abs(d12):
+        order = math.log(abs(d12) / abs(d23)) / math.log(r)
+        ext = f3 - d23 / (r**order - 1.0)
+        err = abs(ext - f3)
+    else:
+        err = max(abs(d12), abs(d23))
+    return dict(values=[f1, f2, f3], extrapolated=ext, order=order, error=err)
+
+
+def check_convergence(stations: Stations, alpha_deg: float, mach: float = 0.0,
+                      n_span: int = 12, n_chord: int = 4, ratio: int = 2) -> dict:
+    """Discretisation error by solving at three lattice densities (n_span, n_chord) * ratio^k.
+
+    Richardson extrapolation (L. F. Richardson, Phil. Trans. R. Soc. A 210, 1911; observed order
+    p = ln((f1 - f2)/(f2 - f3)) / ln r, f_ext = f3 - (f2 - f3)/(r^p - 1)) of CL, e and the root
+    bending coefficient (see root_bending_coefficient). When the three values do not converge
+    monotonically the order is nan, f_ext is the finest value and the error the largest change.
+    """
+    from geomload.aero.lattice import build_lattice
+
+    _alpha_rad(alpha_deg)
+    if isinstance(ratio, bool) or not isinstance(ratio, int) or ratio < 2:
+        raise AeroError(f"ratio: refinement ratio must be an integer >= 2, got {ratio!r}")
+    levels, cl, e, cb = [], [], [], []
+    for k in range(3):
+        ns, nc = n_span * ratio**k, n_chord * ratio**k
+        lat = build_lattice(stations, n_span=ns, n_chord=nc)
+        sol = AeroModel(lat, mach).solve(alpha_deg)
+        levels.append(dict(n_span=ns, n_chord=nc, panels=ns * nc))
+        cl.append(sol.CL), e.append(sol.e), cb.append(root_bending_coefficient(sol, lat))
+    return dict(levels=levels, ratio=ratio, CL=_richardson(cl, ratio), e=_richardson(e, ratio),
+                root_bending=_richardson(cb, ratio))

@@ -1,0 +1,275 @@
+"""Biot-Savart kernels for horseshoe vortices, vectorised with numpy and evaluated in chunks.
+
+A horseshoe vortex of unit circulation runs from +infinity (downstream) along +x to its bound
+end A, along the bound segment A -> B, and back to +infinity along +x from B. The trailing legs
+are parallel to the body x axis (not to the free stream): the influence matrix is then
+independent of the angle of attack and is factorised once (Katz & Plotkin, Low-Speed
+Aerodynamics, 2nd ed., sec. 12.1 and 10.4.5; Bertin & Cummings, Aerodynamics for Engineers,
+ch. 7, "vortex lattice method").
+
+Straight segment A -> B of circulation G at point P (Katz & Plotkin eq. 2.68 / 10.115):
+    V = G/(4 pi) (r1 x r2)/|r1 x r2|^2 [r0 . (r1/|r1| - r2/|r2|)],  r1 = P-A, r2 = P-B, r0 = B-A.
+With r2 = r1 - r0 we use r1 x r2 = r0 x r1 and |r0 x r1|^2 = |r0|^2 |r1|^2 - (r0 . r1)^2.
+Semi-infinite leg from A to +infinity along +x (the limit B = A + L e_x, L -> infinity):
+    V = G/(4 pi) (0, -dz, dy) (1 + dx/|r|)/(dy^2 + dz^2),  (dx, dy, dz) = P - A.
+Points closer than `core` (m) to a vortex line get no velocity from it (cut-off core).
+"""
+
+from __future__ import annotations
+
+import os
+from concurrent.futures import ThreadPoolExecutor
+
+import numpy as np
+
+FOUR_PI = 4.0 * np.pi
+
+
+def _split(points):
+    p = np.asarray(points, dtype=float)
+    return p[:, 0:1], p[:, 1:2], p[:, 2:3]
+
+
+def horseshoe_velocity_block(points, bound_a, bound_b, core):
+    """Velocities (u, v, w), each (m, n), induced at `points` (m, 3) by n unit horseshoes.
+
+    bound_a, bound_b: (n, 3) bound-vortex ends (m); core: cut-off radius (m).
+    Returns three (m, n) arrays in m/s per unit circulation (1/m).
+    """
+    px, py, pz = _split(points)
+    a = np.asarray(bound_a, float)
+    b = np.asarray(bound_b, float)
+    ax, ay, az = a[:, 0], a[:, 1], a[:, 2]
+    r0 = b - a
+    r0x, r0y, r0z = r0[:, 0], r0[:, 1], r0[:, 2]
+    r0sq = np.einsum("ij,ij->i", r0, r0)
+    # bound segment A -> B
+    r1x = px - ax
+    r1y = py - ay
+    r1z = pz - az
+    t = r1x * r0x + r1y * r0y + r1z * r0z
+    r1sq = r1x * r1x + r1y * r1y + r1z * r1z
+    r2sq = r1sq - 2.0 * t + r0sq
+    c2 = r0sq * r1sq - t * t
+    with np.errstate(divide="ignore", invalid="ignore"):
+        k = (t / np.sqrt(r1sq) - (t - r0sq) / np.sqrt(r2sq)) / (FOUR_PI * c2)
+    k[c2 <= core * core * r0sq] = 0.0
+    u = k * (r0y * r1z - r0z * r1y)
+    v = k * (r0z * r1x - r0x * r1z)
+    w = k * (r0x * r1y - r0y * r1x)
+    # leg from B to +infinity (+G) and leg from +infinity to A (-G)
+    for ex, ey, ez, sign in ((b[:, 0], b[:, 1], b[:, 2], 1.0), (ax, ay, az, -1.0)):
+        dx = px - ex
+        dy = py - ey
+        dz = pz - ez
+        rho2 = dy * dy + dz * dz
+        with np.errstate(divide="ignore", invalid="ignore"):
+            f = (1.0 + dx / np.sqrt(dx * dx + rho2)) / (FOUR_PI * rho2)
+        f[rho2 <= core * core] = 0.0
+        f *= sign
+        v -= f * dz
+        w += f * dy
+    return u, v, w
+
+
+def _mirror(p):
+    q = np.array(p, dtype=float)
+    q[:, 1] *= -1.0
+    return q
+
+
+def _chunk_rows(m: int, n: int, budget: int) -> int:
+    return max(1, min(m, budget // max(n, 1)))
+
+
+def _workers() -> int:
+    return max(1, min(4, os.cpu_count() or 1))
+
+
+class HorseshoeSet:
+    """Horseshoes of a strip-structured lattice, prepared for fast chunked evaluation.
+
+    nodes: (ns + 1, nc, 3) bound-vortex end points; horseshoe (s, j) (index s * nc + j) runs
+    from +inf to nodes[s, j], to nodes[s + 1, j], back to +inf, so each trailing leg is shared
+    by the two neighbouring strips. x_scale divides the induced x velocity (Prandtl-Glauert);
+    mirror adds the images in y = 0; core (m) is the vortex core radius: distances d enter as
+    d^2 + core^2 (the velocity differs from the singular one by a relative core^2 / d^2).
+
+    The pair terms are written as small matrix products (r0 . (P - A) = P . r0 - A . r0,
+    |P - A|^2 = |P|^2 - 2 P . A + |A|^2, (r0 x (P - A)) . n = r0 . (P x n) - n . (r0 x A))
+    after shifting the origin to the lattice centre; rows are done in chunks on a few threads.
+    """
+
+    def __init__(self, nodes, core, x_scale=1.0, mirror=False, budget=1 << 14):
+        nodes = np.asarray(nodes, float)
+        self.centre = 0.5 * (nodes.reshape(-1, 3).min(0) + nodes.reshape(-1, 3).max(0))
+        q = nodes - self.centre
+        self.ns, self.nc = q.shape[0] - 1, q.shape[1]
+        a = q[:-1].reshape(-1, 3)
+        b = q[1:].reshape(-1, 3)
+        r0 = b - a
+        r0sq = np.einsum("ij,ij->i", r0, r0)
+        self.r0sq, self.core2 = r0sq, float(core) ** 2
+        self.r0sq_core = r0sq * self.core2
+        qf = q.reshape(-1, 3)
+        self.q = qf
+        # [P, 1] @ t_op -> r0 . (P - A);  [P, |P|^2, 1] @ d_op -> |P - Q|^2 to every node Q
+        self.t_op = np.vstack([r0.T, -np.einsum("ij,ij->i", r0, a)])
+        self.d_op = np.vstack([-2 * qf.T, np.ones(len(qf)), np.einsum("ij,ij->i", qf, qf)])
+        # [P x n, -n] @ cn_op -> (r0 x (P - A)) . n / (4 pi)
+        self.cn_op = np.vstack([r0.T, np.cross(r0, a).T]) / FOUR_PI
+        self.r0, self.r0xa = r0, np.cross(r0, a)
+        # [Py, Pz, Py^2 + Pz^2 + core^2, 1] @ rho_op -> dy^2 + dz^2 + core^2 to every node
+        self.rho_op = np.vstack([-2 * qf[:, 1], -2 * qf[:, 2], np.ones(len(qf)),
+                                 qf[:, 1] ** 2 + qf[:, 2] ** 2])
+        self.x_scale, self.mirror, self.budget = float(x_scale), bool(mirror), budget
+        self._vel_ops = np.zeros((3, 4, len(r0sq)))
+        for c, (i1, i2) in enumerate(((1, 2), (2, 0), (0, 1))):
+            # (r0 x (P - A))_c = r0_i1 P_i2 - r0_i2 P_i1 - (r0 x A)_c
+            self._vel_ops[c, i2] = r0[:, i1]
+            self._vel_ops[c, i1] = -r0[:, i2]
+            self._vel_ops[c, 3] = -self.r0xa[:, c]
+        self._proj_op = np.vstack([np.ones(len(qf)), qf[:, 2], qf[:, 1]]) / FOUR_PI
+
+    @property
+    def n(self) -> int:
+        return self.ns * self.nc
+
+    def _common(self, p):
+        """Per-chunk pair quantities for centred points p (m, 3): bound factor k (m, n) with
+        V_bound = k (r0 x r1), and leg factor f (m, nodes) with V_leg = f (0, -dz, dy).
+        Distances to the nodes serve both the bound segments (|r1|, |r2|) and the legs."""
+        m = p.shape[0]
+        one = np.ones((m, 1))
+        psq = np.einsum("ij,ij->i", p, p)[:, None]
+        dsq = np.hstack([p, psq, one]) @ self.d_op  # |P - Q|^2, (m, nodes)
+        r = np.sqrt(dsq)
+        shape = (m, self.ns + 1, self.nc)
+        r3, d3 = r.reshape(shape), dsq.reshape(shape)
+        t = (np.hstack([p, one]) @ self.t_op).reshape(m, self.ns, self.nc)
+        r0sq = self.r0sq.reshape(self.ns, self.nc)
+        c2 = d3[:, :-1] * r0sq
+        c2 -= t * t
+        c2 += self.r0sq_core.reshape(self.ns, self.nc)
+        k = t / r3[:, :-1]
+        t -= r0sq
+        t /= r3[:, 1:]
+        k -= t
+        k /= c2
+        yz = np.hstack([p[:, 1:2], p[:, 2:3], p[:, 1:2] ** 2 + p[:, 2:3] ** 2 + self.core2, one])
+        rho2 = yz @ self.rho_op
+        f = p[:, 0:1] - self.q[:, 0]
+        f /= r
+        f += 1.0
+        f /= rho2
+        return k.reshape(m, -1), f
+
+    def _legs_to_panels(self, leg, out):
+        """out (m, n) += leg(B) - leg(A) for node values leg (m, nodes)."""
+        m = leg.shape[0]
+        lg = leg.reshape(m, self.ns + 1, self.nc)
+        o = out.reshape(m, self.ns, self.nc)
+        o += lg[:, 1:]
+        o -= lg[:, :-1]
+
+    def _wash_chunk(self, p, nrm):
+        ns_ = nrm * np.array([1.0 / self.x_scale, 1.0, 1.0])
+        k, f = self._common(p)
+        k *= np.hstack([np.cross(p, ns_), -ns_]) @ self.cn_op
+        proj = np.hstack([(-p[:, 2] * ns_[:, 1] + p[:, 1] * ns_[:, 2])[:, None],
+                          ns_[:, 1:2], -ns_[:, 2:3]]) @ self._proj_op
+        f *= proj
+        self._legs_to_panels(f, k)
+        return k
+
+    def _rows(self, m, fn):
+        step = _chunk_rows(m, self.n, self.budget)
+        chunks = [(i, min(m, i + step)) for i in range(0, m, step)]
+        w = _workers()
+        if w == 1 or len(chunks) == 1:
+            for c in chunks:
+                fn(*c)
+            return
+        with ThreadPoolExecutor(max_workers=w) as ex:
+            list(ex.map(lambda c: fn(*c), chunks))
+
+    def normalwash(self, points, normals):
+        """Influence matrix (m, n): normal velocity at points (m, 3) with unit normals (m, 3)
+        per unit circulation of each horseshoe (images included when mirror)."""
+        pts = np.asarray(points, float) - self.centre
+        nrm = np.asarray(normals, float)
+        m = pts.shape[0]
+        A = np.empty((m, self.n))
+
+        def job(i0, i1):
+            A[i0:i1] = self._wash_chunk(pts[i0:i1], nrm[i0:i1])
+            if self.mirror:
+                A[i0:i1] += self._wash_chunk(_mirror(pts[i0:i1] + self.centre) - self.centre,
+                                             _mirror(nrm[i0:i1]))
+
+        self._rows(m, job)
+        return A
+
+    def _vel_chunk(self, p, g, gnode, exclude):
+        k, f = self._common(p)
+        k *= 1.0 / FOUR_PI
+        f *= 1.0 / FOUR_PI
+        if exclude is not None:
+            k[exclude[0], exclude[1]] = 0.0
+        m = p.shape[0]
+        aug = np.hstack([p, np.ones((m, 1))])
+        out = np.empty((m, 3, g.shape[1]))
+        for c in range(3):
+            out[:, c] = ((aug @ self._vel_ops[c]) * k) @ g
+        dz = p[:, 2:3] - self.q[:, 2]
+        dy = p[:, 1:2] - self.q[:, 1]
+        out[:, 1] -= (f * dz) @ gnode
+        out[:, 2] += (f * dy) @ gnode
+        out[:, 0] /= self.x_scale
+        return out
+
+    def velocity(self, points, gammas, self_panels=False):
+        """Velocity (m, 3, k) at points (m, 3) from circulations gammas (n, k) (matrix-free).
+        self_panels: the points are the bound midpoints, point i on segment i (whose own
+        bound contribution is dropped)."""
+        pts = np.asarray(points, float) - self.centre
+        g = np.asarray(gammas, float)
+        g = g[:, None] if g.ndim == 1 else g
+        gs = g.reshape(self.ns, self.nc, -1)
+        gnode = np.zeros((self.ns + 1, self.nc, g.shape[1]))
+        gnode[1:] += gs
+        gnode[:-1] -= gs
+        gnode = gnode.reshape(-1, g.shape[1])
+        m = pts.shape[0]
+        out = np.empty((m, 3, g.shape[1]))
+
+        def job(i0, i1):
+            ex = None
+            if self_panels:
+                r = np.arange(i1 - i0)
+                ex = (r, r + i0)
+            out[i0:i1] = self._vel_chunk(pts[i0:i1], g, gnode, ex)
+            if self.mirror:
+                mp = _mirror(pts[i0:i1] + self.centre) - self.centre
+                v = self._vel_chunk(mp, g, gnode, None)
+                v[:, 1] *= -1.0
+                out[i0:i1] += v
+
+        self._rows(m, job)
+        return out
+
+
+def trefftz_wash_matrix(y_nodes, z_nodes, y_eval, z_eval, ny_eval, nz_eval):
+    """Normal wash (m, q) in the Trefftz plane per unit strength of 2-D point vortices.
+
+    Trailing vortices far downstream act as 2-D point vortices (strength positive along +x) at
+    (y_nodes, z_nodes); the velocity at (y, z) is g/(2 pi r^2) (-(z - z_n), y - y_n); the
+    returned entry is v ny + w nz with the unit normal (ny, nz) at each evaluation point
+    (Katz & Plotkin, Low-Speed Aerodynamics, Trefftz-plane induced drag, ch. 8 and 12).
+    """
+    dy = np.asarray(y_eval)[:, None] - np.asarray(y_nodes)[None, :]
+    dz = np.asarray(z_eval)[:, None] - np.asarray(z_nodes)[None, :]
+    r2 = dy * dy + dz * dz
+    with np.errstate(divide="ignore", invalid="ignore"):
+        f = np.where(r2 > 0.0, 1.0 / (2.0 * np.pi * r2), 0.0)
+    return f * (-dz * np.asarray(ny_eval)[:, None] + dy * np.asarray(nz_eval)[:, None])

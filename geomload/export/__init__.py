@@ -1,0 +1,87 @@
+"""Export stage: CSV/JSON tables, VTK files, plots, 3-D renders and the HTML report.
+
+Heavy libraries (matplotlib, pyvista, scipy) are imported inside the functions that need them.
+
+Run folder layout written by `write_all`::
+
+    stations.csv  summary.json  envelope.csv  vn.csv  loads/<case>.csv
+    lattice.vtp  load_axis.vtp  surface.vtp  report.html
+    plots/planform.png spanwise.png cl_alpha.png loads.png vn.png vn.svg
+          surface_dcp.png lattice_overlay.png spar_bending.png
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+
+def write_all(run, folder, inputs=(), render=True, progress=None, options=None,
+              run_time_s=None) -> dict:
+    """Write every output of `run` into `folder` (e.g. ``OutputDir(...).staging``).
+
+    Parameters
+    ----------
+    run : records.RunResult.
+    folder : the (staging) run folder; created if missing.
+    inputs : paths no output may overwrite (the case file and the CAD file are always added).
+    render : False skips the 3-D pictures (the report then says they were not requested).
+    progress : records.Progress callback, called as progress("export", done, total).
+    options : dict of extra options echoed in the report's inputs section.
+    run_time_s : total run time shown in the report (default: the sum of run.timings).
+
+    Returns
+    -------
+    dict, every path relative to folder (so it stays valid once a staging folder is moved):
+    "files" (list of paths written), "images" (name -> PNG path, or the Exception that stopped
+    that picture), "loads" (case name -> CSV path).
+    """
+    from geomload.export import plots, report, tables, vtk
+    from geomload.export.atomic import safe_name
+
+    f = Path(folder)
+    f.mkdir(parents=True, exist_ok=True)
+    inputs = [*inputs, run.case_path, run.mesh.source]
+    files, loads = [], {}
+    has_env, has_vn = run.envelope is not None, run.vn is not None
+    total = 3 + len(run.cases) + has_env + has_vn + 3 + 1 + (1 if render else 0) + 1
+    step = [0]
+
+    def tick():
+        step[0] += 1
+        if progress is not None:
+            progress("export", step[0], total)
+
+    def rec(p):
+        files.append(Path(p).relative_to(f) if Path(p).is_absolute() else Path(p))
+        tick()
+
+    rec(tables.write_stations_csv(f / "stations.csv", run.stations, run.frame, run.mesh.source,
+                                  run.mesh.units, inputs))
+    taken: set = set()
+    for cr in run.cases:
+        rel = Path("loads") / f"{safe_name(cr.name, taken)}.csv"
+        rec(tables.write_loads_csv(f / rel, cr, frame=run.frame, inputs=inputs))
+        loads[cr.name] = rel
+    if has_env:
+        rec(tables.write_envelope_csv(f / "envelope.csv", run.envelope, inputs))
+    if has_vn:
+        rec(tables.write_vn_csv(f / "vn.csv", run.vn, inputs))
+    rec(tables.write_summary_json(f / "summary.json", run, inputs))
+    for p in vtk.write_all_vtk(f, run, inputs):
+        rec(p)
+    images = plots.make_plots(run, f / "plots", inputs)
+    tick()
+    if render:
+        from geomload.export import render as rnd
+
+        images.update(rnd.render_all(run, f / "plots", inputs))
+        tick()
+    for v in images.values():
+        if isinstance(v, Path):
+            files.append(v.relative_to(f))
+    if has_vn and isinstance(images.get("vn"), Path):
+        files.append(images["vn"].with_suffix(".svg").relative_to(f))
+    rec(report.write_report(f / "report.html", run, images, options, run_time_s, inputs))
+    tick()
+    images = {k: (v.relative_to(f) if isinstance(v, Path) else v) for k, v in images.items()}
+    return {"files": files, "images": images, "loads": loads}

@@ -1,0 +1,237 @@
+"""The report's 2-D plots (matplotlib, Agg canvas, imported lazily; no pyplot global state).
+
+Each `plot_*` returns a matplotlib Figure with units on every axis; `save_figure` writes it
+atomically as PNG (and SVG if asked); `make_plots` writes them all into a folder.
+Elliptic shape: l(y) = l0 sqrt(1 - (2y/b)^2) with l0 = 4 L / (pi b) (Prandtl lifting-line).
+Schrenk shape: the mean of the planform-shaped and elliptic loads of the same lift (NACA TM 948).
+"""
+
+from __future__ import annotations
+
+import io
+from pathlib import Path
+
+import numpy as np
+
+from geomload.export import envelope_access as ea
+from geomload.export.atomic import write_bytes_atomic
+
+MAX_CASE_LINES = 8  # beyond this, cases are drawn as thin grey lines (the envelope tells the story)
+
+
+def _figure(nrows=1, ncols=1, size=(7.5, 4.5), margins=(0.11, 0.97, 0.11, 0.91), **kw):
+    """A Figure with fixed margins (left, right, bottom, top): a layout engine and legends
+    placed "best" cost seconds on plots with many cases, fixed placement costs nothing."""
+    from matplotlib.figure import Figure
+
+    fig = Figure(figsize=size, dpi=100)
+    axes = fig.subplots(nrows, ncols, squeeze=False, **kw)
+    l, r, b, t = margins
+    fig.subplots_adjust(left=l, right=r, bottom=b, top=t, wspace=0.28, hspace=0.12)
+    return fig, axes.ravel()
+
+
+def figure_bytes(fig, fmt="png", dpi=100) -> bytes:
+    buf = io.BytesIO()
+    fig.savefig(buf, format=fmt, dpi=dpi)
+    return buf.getvalue()
+
+
+def save_figure(fig, path, formats=("png",), inputs=()) -> list:
+    """Write `fig` as path with each suffix in `formats`; returns the written paths."""
+    out = []
+    for fmt in formats:
+        p = Path(path).with_suffix("." + fmt)
+        write_bytes_atomic(p, figure_bytes(fig, fmt), inputs)
+        out.append(p)
+    return out
+
+
+def plot_planform(stations, planform, lattice=None):
+    """Top view of the semi-span: LE/TE, quarter-chord line, the cut stations and the MAC."""
+    s, p = stations, planform
+    fig, (ax,) = _figure(size=(7.5, 4.0))
+    if lattice is not None:
+        c = np.asarray(lattice.corners)
+        for k in range(c.shape[0]):
+            ax.plot(c[k, :, 1], c[k, :, 0], color="0.85", lw=0.5)
+        for k in range(c.shape[1]):
+            ax.plot(c[:, k, 1], c[:, k, 0], color="0.85", lw=0.5)
+    ax.plot(s.y, s.x_le, "k-", lw=1.5, label="leading edge")
+    ax.plot(s.y, s.x_te, "k-", lw=1.0, label="trailing edge")
+    ax.plot(s.y, s.x_qc, "b--", lw=1.0, label="quarter-chord line")
+    for i in range(s.n):
+        ax.plot([s.y[i], s.y[i]], [s.x_le[i], s.x_te[i]], color="tab:orange", lw=0.9,
+                label="cut stations" if i == 0 else None)
+    ax.plot([p.y_mac, p.y_mac], [p.x_mac_le, p.x_mac_le + p.mac], color="tab:red", lw=2.5,
+            label=f"MAC {p.mac:.3f} m")
+    ax.set_xlabel("y, spanwise (m)")
+    ax.set_ylabel("x, aft (m)")
+    ax.invert_yaxis()
+    ax.set_aspect("equal", adjustable="datalim")
+    ax.set_title(f"Planform (semi-span): S = {p.area:.3f} m², b = {p.span:.3f} m, AR = {p.aspect_ratio:.2f}")
+    ax.legend(fontsize=8, loc="lower right")
+    ax.grid(alpha=0.3)
+    return fig
+
+
+def _chord_at(stations, y):
+    return np.interp(np.abs(y), stations.y, stations.chord)
+
+
+def spanload_shapes(run, case_result):
+    """cl*c/c_ref (-) along y for the case and for the elliptic and Schrenk loads of the same CL."""
+    a, lat = case_result.aero, run.lattice
+    y = np.asarray(a.y, float)
+    b, S, cref = float(lat.b_ref), float(lat.s_ref), float(lat.c_ref)
+    semi = 0.5 * b
+    yy = np.linspace(0.0, semi, 101)
+    ell = 4 * a.CL * S / (np.pi * b) * np.sqrt(np.clip(1 - (yy / semi) ** 2, 0, None))
+    plan = a.CL * S / _planform_area(run.stations, semi) * _chord_at(run.stations, yy)
+    return {"y": y, "case": np.asarray(a.cl_c) / cref, "y_ref": yy, "elliptic": ell / cref,
+            "schrenk": 0.5 * (plan + ell) / cref}
+
+
+def _planform_area(stations, semi):
+    """Both-sides area of the chord distribution extended flat to the tip (m^2)."""
+    y = np.append(stations.y, semi) if stations.y[-1] < semi else stations.y
+    c = np.interp(y, stations.y, stations.chord)
+    return 2 * float(np.sum(0.5 * (c[1:] + c[:-1]) * np.diff(y)))
+
+
+def plot_spanwise(run, case_result=None):
+    """Section cl per case, and cl*c/c_ref of one case beside the elliptic and Schrenk shapes."""
+    cr = case_result or ea.critical_case(run)
+    fig, (a1, a2) = _figure(1, 2, size=(10, 4.0), margins=(0.07, 0.98, 0.12, 0.92))
+    shown = [cr] + [c for c in run.cases if c is not cr][:MAX_CASE_LINES - 1]
+    for c in shown:
+        a1.plot(c.aero.y, c.aero.cl, lw=1.2, label=c.name)
+    a1.set_xlabel("y, spanwise (m)")
+    a1.set_ylabel("section lift coefficient cl (-)")
+    more = f" ({len(shown)} of {len(run.cases)} cases)" if len(shown) < len(run.cases) else ""
+    a1.set_title("Spanwise cl" + more)
+    a1.legend(fontsize=7, loc="lower left")
+    sh = spanload_shapes(run, cr)
+    a2.plot(sh["y"], sh["case"], "k-", marker=".", lw=1.5, label=f"lattice: {cr.name}")
+    a2.plot(sh["y_ref"], sh["elliptic"], "b--", lw=1.0, label="elliptic, same CL")
+    a2.plot(sh["y_ref"], sh["schrenk"], "g-.", lw=1.0, label="Schrenk, same CL")
+    a2.set_xlabel("y, spanwise (m)")
+    a2.set_ylabel("cl·c / c_ref (-)")
+    a2.set_title(f"Span loading, CL = {cr.aero.CL:.3f}")
+    a2.legend(fontsize=7, loc="lower left")
+    for ax in (a1, a2):
+        ax.grid(alpha=0.3)
+        ax.axhline(0, color="0.5", lw=0.5)
+    return fig
+
+
+def plot_cl_alpha(run):
+    """CL against alpha from the lattice sweep, with the trimmed cases marked."""
+    fig, (ax,) = _figure(size=(6.5, 4.2))
+    if run.alpha_sweep:
+        al, cl = np.asarray(run.alpha_sweep, float).T
+        ax.plot(al, cl, "k-", marker="o", ms=3, label="vortex lattice")
+    for c in run.cases[:MAX_CASE_LINES]:
+        ax.plot(c.aero.alpha_deg, c.aero.CL, "s", ms=6, label=f"{c.name} (trim)")
+    a0 = run.cases[0].aero if run.cases else None
+    if a0 is not None:
+        ax.set_title(f"CL against alpha: CL_alpha = {a0.CL_alpha_per_rad:.3f} /rad, "
+                     f"alpha_0L = {a0.alpha_zero_lift_deg:.2f}°")
+    ax.set_xlabel("angle of attack alpha (deg)")
+    ax.set_ylabel("wing lift coefficient CL (-)")
+    ax.axhline(0, color="0.5", lw=0.5)
+    ax.grid(alpha=0.3)
+    ax.legend(fontsize=7, loc="upper left")
+    return fig
+
+
+LOADS = (("shear_N", "shear", "shear V (N)"), ("bending_Nm", "bending", "bending M (N·m)"),
+         ("torsion_Nm", "torsion", "torsion T (N·m)"))
+
+
+def plot_loads(run):
+    """V, M, T against span: each case (limit), the envelope limit (solid) and ultimate (dashed)."""
+    fig, axes = _figure(3, 1, size=(8, 9), margins=(0.11, 0.97, 0.06, 0.95), sharex=True)
+    many = len(run.cases) > MAX_CASE_LINES
+    env = ea.table(run.envelope) if run.envelope is not None else None
+    for ax, (attr, q, label) in zip(axes, LOADS):
+        for c in run.cases:
+            kw = dict(color="0.7", lw=0.6) if many else dict(lw=1.2, label=c.name)
+            ax.plot(c.loads.y, getattr(c.loads, attr), **kw)
+        if env is not None:
+            for side in ("max", "min"):
+                ax.plot(env["y"], env[f"{q}_{side}"], "r-", lw=2.0,
+                        label="envelope, limit" if side == "max" else None)
+                ax.plot(env["y"], env[f"{q}_{side}_ult"], "r--", lw=1.2,
+                        label="envelope, ultimate" if side == "max" else None)
+        ax.set_ylabel(label)
+        ax.axhline(0, color="0.5", lw=0.5)
+        ax.grid(alpha=0.3)
+    axes[0].legend(fontsize=7, ncol=2, loc="upper right")
+    axes[0].set_title("Spanwise loads (limit unless marked); shear +up, bending +tip-up, torsion +nose-up")
+    axes[-1].set_xlabel("y, spanwise (m)")
+    for ax in axes[:-1]:
+        ax.set_xlabel("y, spanwise (m)")
+        ax.xaxis.label.set_visible(False)
+    return fig
+
+
+def plot_vn(vn):
+    """The V-n diagram(s): boundary curves and the labelled design points (one colour set and
+    line style per diagram when several masses / altitudes are given)."""
+    from matplotlib.lines import Line2D
+
+    fig, (ax,) = _figure(size=(9, 5.5), margins=(0.08, 0.74, 0.1, 0.93))
+    diagrams = ea.vn_diagrams(vn)
+    styles = ("-", "--", ":", "-.")
+    colours, vmax = {}, 0.0
+    for k, d in enumerate(diagrams):
+        for name, (v, n) in ea.vn_curves(d).items():
+            col = colours.setdefault(name, f"C{len(colours)}")
+            ax.plot(v, n, lw=1.4, ls=styles[k % 4], color=col)
+            vmax = max(vmax, float(np.max(v)) if np.size(v) else 0.0)
+        for j, p in enumerate(ea.vn_points(d)):
+            ax.plot(p["v_eas"], p["n"], "ko", ms=4)
+            if k == 0:  # label the first diagram's points; alternate sides against overlap
+                ax.annotate(p["label"], (p["v_eas"], p["n"]), textcoords="offset points",
+                            xytext=(5, 5 if j % 2 == 0 else -11), fontsize=7)
+    handles = [Line2D([], [], color=c, lw=1.4, label=n) for n, c in colours.items()]
+    if len(diagrams) > 1:
+        handles += [Line2D([], [], color="k", ls=styles[k % 4], label=ea.vn_title(d, k))
+                    for k, d in enumerate(diagrams)]
+    ax.legend(handles=handles, fontsize=7, loc="upper left", bbox_to_anchor=(1.01, 1.0))
+    ax.set_xlim(0, 1.18 * vmax if vmax > 0 else None)
+    ax.axhline(0, color="0.5", lw=0.5)
+    ax.set_xlabel("equivalent airspeed V_EAS (m/s)")
+    ax.set_ylabel("load factor n (-)")
+    ax.set_title("V-n diagram (limit load factors)")
+    ax.grid(alpha=0.3)
+    return fig
+
+
+def build_figures(run) -> dict:
+    """name -> Figure (or the Exception that stopped it, so the report can say so)."""
+    makers = {"planform": lambda: plot_planform(run.stations, run.planform, run.lattice),
+              "spanwise": lambda: plot_spanwise(run), "cl_alpha": lambda: plot_cl_alpha(run),
+              "loads": lambda: plot_loads(run)}
+    if run.vn is not None:
+        makers["vn"] = lambda: plot_vn(run.vn)
+    out = {}
+    for name, make in makers.items():
+        try:
+            out[name] = make()
+        except Exception as exc:  # one bad plot must not lose the run's other outputs
+            out[name] = exc
+    return out
+
+
+def make_plots(run, folder, inputs=()) -> dict:
+    """Write every plot as folder/<name>.png (vn also .svg); returns name -> PNG path or Exception."""
+    out = {}
+    for name, fig in build_figures(run).items():
+        if isinstance(fig, Exception):
+            out[name] = fig
+            continue
+        fmts = ("png", "svg") if name == "vn" else ("png",)
+        out[name] = save_figure(fig, Path(folder) / name, fmts, inputs)[0]
+    return out

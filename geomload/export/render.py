@@ -1,0 +1,212 @@
+"""3-D pictures with pyvista (imported lazily): offscreen PNGs for the report and `view`.
+
+Views are in the wing frame (x aft, y starboard, z up), seen from ahead, above and to port.
+`render_all` never raises for a rendering failure: it returns the exception in place of the
+picture so the report can say "3D render unavailable: <reason>".
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import numpy as np
+
+from geomload.errors import InputError, OutputError
+from geomload.export import envelope_access as ea
+from geomload.export import vtk as gvtk
+from geomload.export.atomic import atomic_path
+
+WINDOW = (900, 600)
+
+
+def _plotter(off_screen=True, size=WINDOW):
+    import pyvista as pv
+
+    p = pv.Plotter(off_screen=off_screen, window_size=list(size))
+    p.set_background("white")
+    return p
+
+
+def _camera(p, bounds):
+    b = np.asarray(bounds, float).reshape(3, 2)
+    c = b.mean(axis=1)
+    L = float(np.max(b[:, 1] - b[:, 0])) or 1.0
+    p.camera_position = [(c[0] - 0.9 * L, c[1] - 0.9 * L, c[2] + 0.8 * L), tuple(c), (0, 0, 1)]
+    p.reset_camera()
+    p.camera.zoom(1.5)
+
+
+def _shoot(p, path, inputs=()):
+    with atomic_path(path, inputs) as tmp:
+        p.screenshot(str(tmp))
+    p.close()
+    return Path(path)
+
+
+def _bar(title):
+    return {"title": title, "color": "black", "title_font_size": 14, "label_font_size": 12,
+            "n_labels": 5, "fmt": "%.3g", "vertical": True, "position_x": 0.86, "position_y": 0.1}
+
+
+def render_surface_dcp(run, path, case=None, inputs=(), surface=None):
+    """The CAD surface coloured by delta-Cp (lower - upper, dimensionless) of one case.
+
+    case: a case name; None -> the critical case (largest root |bending|).
+    surface: a prebuilt vtk.surface_polydata(run) (saves rebuilding it per picture).
+    """
+    cr = ea.find_case(run, case)
+    surf = (surface if surface is not None else gvtk.surface_polydata(run)).copy()
+    near = surf.cell_data["panel"]
+    surf.cell_data["dcp"] = np.asarray(cr.aero.dcp, float)[near]
+    p = _plotter()
+    p.add_mesh(surf, scalars="dcp", cmap="coolwarm", scalar_bar_args=_bar("delta-Cp (-)\nlower - upper"))
+    p.add_text(f"delta-Cp, case: {cr.name}  (x q = {cr.q_pa:.0f} Pa gives the pressure jump in Pa)",
+               font_size=9, color="black")
+    _camera(p, surf.bounds)
+    return _shoot(p, path, inputs)
+
+
+def render_lattice_overlay(run, path, inputs=(), surface=None):
+    """The CAD surface (grey, translucent) with the vortex-lattice panels drawn over it."""
+    surf = surface if surface is not None else gvtk.surface_polydata(run)
+    lat = gvtk.lattice_polydata(run)
+    p = _plotter()
+    p.add_mesh(surf, color="lightgrey", opacity=0.55)
+    p.add_mesh(lat, style="wireframe", color="navy", line_width=1.5)
+    p.add_text(f"CAD surface with the vortex lattice ({run.lattice.n_span} x {run.lattice.n_chord} "
+               f"panels per side), wing frame, m", font_size=9, color="black")
+    p.show_axes()
+    _camera(p, surf.bounds)
+    return _shoot(p, path, inputs)
+
+
+def render_spar_bending(run, path, case=None, inputs=(), surface=None):
+    """The spar line as a tube coloured by the bending moment (N m), over the faint surface."""
+    cr = ea.find_case(run, case)
+    line = gvtk.spar_line(run, cr)
+    import pyvista as pv
+
+    poly = pv.lines_from_points(line)
+    poly.point_data["bending_Nm"] = np.asarray(cr.loads.bending_Nm, float)
+    span = float(np.ptp(line[:, 1])) or 1.0
+    tube = poly.tube(radius=0.012 * span)
+    surf = surface if surface is not None else gvtk.surface_polydata(run)
+    p = _plotter()
+    p.add_mesh(surf, color="lightgrey", opacity=0.3)
+    p.add_mesh(tube, scalars="bending_Nm", cmap="viridis",
+               scalar_bar_args=_bar("bending M (N m)\nlimit, +tip-up"))
+    # the bending curve drawn above the spar (height proportional to M) for a quick read
+    m = np.asarray(cr.loads.bending_Nm, float)
+    scale = 0.25 * span / (np.max(np.abs(m)) or 1.0)
+    curve = line + np.column_stack([np.zeros_like(m), np.zeros_like(m), scale * m])
+    p.add_mesh(pv.lines_from_points(curve), color="darkred", line_width=3)
+    drops = pv.PolyData(np.vstack([line, curve]))
+    n = line.shape[0]
+    drops.lines = np.column_stack([np.full(n, 2), np.arange(n), np.arange(n) + n]).ravel()
+    p.add_mesh(drops, color="darkred", line_width=1)
+    p.add_text(f"bending moment along the spar, case: {cr.name}; red line: M to scale",
+               font_size=9, color="black")
+    _camera(p, surf.bounds)
+    return _shoot(p, path, inputs)
+
+
+def render_stations_png(mesh, frame, stations, path, inputs=()):
+    """The CAD mesh in the wing frame with each cut station's chord and camber line drawn."""
+    import pyvista as pv
+
+    pts, tri = gvtk.surface_points_faces(mesh, frame)
+    surf = pv.PolyData(pts, np.hstack([np.full((tri.shape[0], 1), 3), tri]).ravel())
+    p = _plotter()
+    p.add_mesh(surf, color="lightgrey", opacity=0.5)
+    s = stations
+    cx = np.asarray(s.camber_x, float)
+    for i in range(s.n):
+        le = np.array([s.x_le[i], s.y[i], s.z_le[i]])
+        te = np.array([s.x_te[i], s.y[i], s.z_te[i]])
+        chordv = te - le
+        nrm = np.array([-chordv[2], 0.0, chordv[0]])
+        nrm /= np.linalg.norm(nrm) or 1.0
+        cam = le + cx[:, None] * chordv + (s.chord[i] * np.asarray(s.camber_z[i]))[:, None] * nrm
+        p.add_mesh(pv.lines_from_points(np.vstack([le, te])), color="darkorange", line_width=3)
+        p.add_mesh(pv.lines_from_points(cam), color="navy", line_width=2)
+    p.add_text(f"{s.n} stations: chord (orange) and camber line (blue), wing frame", font_size=9,
+               color="black")
+    p.show_axes()
+    _camera(p, surf.bounds)
+    return _shoot(p, path, inputs)
+
+
+RENDERS = {"surface_dcp": render_surface_dcp, "lattice_overlay": render_lattice_overlay,
+           "spar_bending": render_spar_bending}
+
+
+def render_all(run, folder, inputs=()) -> dict:
+    """folder/<name>.png for each of RENDERS; name -> Path, or the Exception if it failed."""
+    out, surf = {}, None
+    try:
+        surf = gvtk.surface_polydata(run)
+    except Exception:  # each picture below then reports its own failure
+        pass
+    for name, fn in RENDERS.items():
+        try:
+            out[name] = fn(run, Path(folder) / f"{name}.png", inputs=inputs, surface=surf)
+        except Exception as exc:  # no OpenGL, no display, ... -> the report says so
+            out[name] = exc
+    return out
+
+
+def _case_key(mesh, case):
+    names = [str(n) for n in np.atleast_1d(mesh.field_data.get("case_names", []))]
+    keys = [str(k) for k in np.atleast_1d(mesh.field_data.get("case_keys", []))]
+    if case is None:
+        crit = np.atleast_1d(mesh.field_data.get("critical_case", [names[0] if names else ""]))
+        case = str(crit[0])
+    if case not in names:
+        raise InputError(f"--case {case!r}: not in this run (cases: {', '.join(names)})")
+    return keys[names.index(case)], case
+
+
+def view(run_dir, case=None, screenshot=None):
+    """Show a run's surface (delta-Cp), lattice and load axis (bending) in a window.
+
+    Check boxes at the bottom left switch each layer on and off. With `screenshot` (a PNG path)
+    the scene is rendered offscreen into that file instead, and its path is returned.
+    """
+    import pyvista as pv
+
+    d = Path(run_dir)
+    files = {k: d / f"{k}.vtp" for k in ("surface", "lattice", "load_axis")}
+    missing = [str(f) for f in files.values() if not f.is_file()]
+    if missing:
+        raise InputError(f"{d}: not a geomload run folder (missing {', '.join(missing)})")
+    try:
+        data = {k: pv.read(str(f)) for k, f in files.items()}
+    except Exception as exc:
+        raise InputError(f"{d}: cannot read the VTK files ({exc})") from None
+    key, name = _case_key(data["lattice"], case)
+    off = screenshot is not None
+    p = _plotter(off_screen=off, size=(1100, 750))
+    surf = data["surface"]
+    sc = f"dcp_{key}" if f"dcp_{key}" in surf.cell_data else "dcp_critical"
+    actors = [p.add_mesh(surf, scalars=sc, cmap="coolwarm",
+                         scalar_bar_args=_bar("delta-Cp (-)\nlower - upper"))]
+    actors.append(p.add_mesh(data["lattice"], style="wireframe", color="navy", line_width=1))
+    ax = data["load_axis"]
+    span = float(np.ptp(ax.points[:, 1])) or 1.0
+    bk = f"bending_Nm_{key}"
+    actors.append(p.add_mesh(ax.tube(radius=0.01 * span), scalars=bk if bk in ax.point_data else None,
+                             cmap="viridis", scalar_bar_args=_bar("bending M (N m)")))
+    p.add_text(f"case: {name}" + ("" if sc.endswith(key) else " (surface: critical case)"),
+               font_size=10, color="black")
+    _camera(p, surf.bounds)
+    if off:
+        try:
+            return _shoot(p, screenshot)
+        except OSError as exc:
+            raise OutputError(f"{screenshot}: cannot write the screenshot ({exc})") from None
+    for i, (a, label) in enumerate(zip(actors, ("surface", "lattice", "load axis"))):
+        p.add_checkbox_button_widget(a.SetVisibility, value=True, position=(10, 10 + 45 * i),
+                                     size=35, color_on="steelblue")
+        p.add_text(label, position=(52, 18 + 45 * i), font_size=9, color="black")
+    p.show(title=f"geomload view: {d.name}")
+    return None

@@ -1,0 +1,221 @@
+"""The self-contained HTML report of a run (images embedded as base64; no external files).
+
+Every string that comes from the user (case names, paths, the case file, notes) passes through
+html.escape. Pictures are given as a dict name -> PNG bytes, a path to a PNG, or the Exception
+that prevented them (shown as "3D render unavailable: <reason>" / "plot unavailable: <reason>").
+"""
+
+from __future__ import annotations
+
+import base64
+import dataclasses
+import datetime as _dt
+import html
+from pathlib import Path
+
+import numpy as np
+
+from geomload import CAUTION, __version__
+from geomload.export import envelope_access as ea
+from geomload.export.atomic import write_text_atomic
+
+SECTIONS = (("job", "The job"), ("geometry", "Geometry check"), ("aerodynamics", "Aerodynamics"),
+            ("loads", "Spanwise loads"), ("vn", "V-n diagram"),
+            ("critical", "Critical cases and root loads"), ("inputs", "Inputs"),
+            ("versions", "Versions and run time"))
+RENDER_KEYS = ("lattice_overlay", "surface_dcp", "spar_bending", "stations")
+CAPTIONS = {
+    "planform": "Planform of the semi-span with the cut stations, lattice and MAC.",
+    "lattice_overlay": "CAD surface in the wing frame with the vortex lattice overlaid.",
+    "stations": "Cut stations on the CAD surface.",
+    "spanwise": "Spanwise cl per case; cl·c/c_ref beside the elliptic and Schrenk loads of the same CL.",
+    "cl_alpha": "Wing CL against angle of attack (lattice) with the trimmed cases.",
+    "loads": "Shear, bending and torsion along the span: cases (limit) and the envelope, limit and ultimate.",
+    "surface_dcp": "CAD surface coloured by delta-Cp (lower minus upper) of the critical case.",
+    "spar_bending": "Bending moment along the spar line (critical case).",
+    "vn": "V-n diagram with the design points labelled.",
+}
+SECTION_IMAGES = {"geometry": ("planform", "lattice_overlay", "stations"),
+                  "aerodynamics": ("spanwise", "cl_alpha"),
+                  "loads": ("loads", "surface_dcp", "spar_bending"), "vn": ("vn",)}
+
+CSS = """body{font-family:sans-serif;max-width:1100px;margin:1em auto;padding:0 1em;color:#222}
+h1{font-size:1.5em}h2{border-bottom:2px solid #446;padding-bottom:.2em;margin-top:1.6em}
+.caution{background:#fff3cd;border:1px solid #e0b000;padding:.6em;font-weight:bold}
+.warn{color:#8a4b00}table{border-collapse:collapse;margin:.6em 0;font-size:.9em}
+td,th{border:1px solid #bbb;padding:.2em .5em;text-align:right}th{background:#eef}
+td.t,th.t{text-align:left}figure{margin:1em 0}img{max-width:100%;border:1px solid #ddd}
+figcaption{font-size:.85em;color:#555}pre{background:#f6f6f6;padding:.6em;overflow-x:auto}
+.na{background:#fbe9e9;border:1px dashed #c66;padding:.8em}"""
+
+
+def esc(s) -> str:
+    return html.escape(str(s), quote=True)
+
+
+def _fmt(v, nd=4) -> str:
+    if isinstance(v, (float, np.floating)):
+        return f"{float(v):.{nd}g}"
+    return esc(v)
+
+
+def _table(header, rows, text_cols=(0,)) -> str:
+    th = "".join(f'<th class="{"t" if i in text_cols else ""}">{esc(h)}</th>' for i, h in enumerate(header))
+    body = "".join("<tr>" + "".join(f'<td class="{"t" if i in text_cols else ""}">{_fmt(v)}</td>'
+                                    for i, v in enumerate(r)) + "</tr>" for r in rows)
+    return f"<table><tr>{th}</tr>{body}</table>"
+
+
+def image_bytes(value) -> bytes:
+    if isinstance(value, (bytes, bytearray)):
+        return bytes(value)
+    return Path(value).read_bytes()
+
+
+def _figure(name, value) -> str:
+    cap = CAPTIONS.get(name, name)
+    if value is None:
+        return ""
+    if isinstance(value, BaseException):
+        kind = "3D render" if name in RENDER_KEYS else "plot"
+        reason = " ".join(str(value).split()) or type(value).__name__
+        return f'<div class="na" id="img-{esc(name)}">{kind} unavailable: {esc(reason)}</div>'
+    try:
+        data = base64.b64encode(image_bytes(value)).decode("ascii")
+    except OSError as exc:
+        return f'<div class="na" id="img-{esc(name)}">picture unavailable: {esc(exc)}</div>'
+    return (f'<figure id="img-{esc(name)}"><img alt="{esc(cap)}" src="data:image/png;base64,{data}">'
+            f"<figcaption>{esc(cap)}</figcaption></figure>")
+
+
+def _images(images, names) -> str:
+    return "".join(_figure(n, images.get(n)) for n in names if n in images)
+
+
+def _job(run) -> str:
+    c0 = getattr(run.case, "title", "") or Path(run.case_path).stem
+    out = [f"<p>Case file <code>{esc(run.case_path)}</code>; geometry <code>{esc(run.mesh.source)}</code> "
+           f"({run.mesh.n_triangles} triangles, read in {esc(run.mesh.units)}); {run.stations.n} stations; "
+           f"{len(run.cases)} flight case(s). Job: <b>{esc(c0)}</b>.</p>",
+           f'<p class="caution">{esc(CAUTION)}</p>']
+    warns = list(run.warnings) + [f"{c.name}: {c.stall_warning}" for c in run.cases if c.stall_warning]
+    if warns:
+        out.append("<ul>" + "".join(f'<li class="warn">{esc(w)}</li>' for w in warns) + "</ul>")
+    return "".join(out)
+
+
+def _planform_table(p) -> str:
+    rows = [("area S (both sides)", p.area, "m²"), ("span b", p.span, "m"),
+            ("aspect ratio", p.aspect_ratio, "-"), ("taper c_tip/c_root", p.taper, "-"),
+            ("root chord", p.root_chord, "m"), ("tip chord", p.tip_chord, "m"),
+            ("MAC", p.mac, "m"), ("MAC leading edge x", p.x_mac_le, "m"), ("MAC y", p.y_mac, "m"),
+            ("MAC quarter chord x", p.x_mac_qc, "m"), ("LE sweep", p.sweep_le_deg, "deg"),
+            ("c/4 sweep", p.sweep_qc_deg, "deg"), ("dihedral", p.dihedral_deg, "deg"),
+            ("washout (root - tip twist)", p.washout_deg, "deg")]
+    return _table(("quantity", "value", "unit"), rows, text_cols=(0, 2))
+
+
+def _aero_table(run) -> str:
+    rows = [(c.name, c.aero.alpha_deg, c.aero.CL, c.aero.CDi, c.aero.e, c.aero.Cm, c.mach,
+             c.aero.CL_alpha_per_rad) for c in run.cases]
+    return _table(("case", "alpha (deg)", "CL", "CDi", "e", "Cm", "Mach", "CL_alpha (1/rad)"), rows)
+
+
+def _root_table(run) -> str:
+    rows = []
+    for c in run.cases:
+        L, uf = c.loads, float(c.loads.ultimate_factor)
+        rows.append((c.name, c.v_eas, c.altitude_m, c.load_factor, c.aero.alpha_deg, c.aero.CL,
+                     L.shear_N[0], L.bending_Nm[0], L.torsion_Nm[0], uf * L.shear_N[0],
+                     uf * L.bending_Nm[0], uf * L.torsion_Nm[0], c.residual))
+    return _table(("case", "V_EAS (m/s)", "altitude (m)", "n", "alpha (deg)", "CL",
+                   "root V (N)", "root M (N m)", "root T (N m)", "ult. V (N)", "ult. M (N m)",
+                   "ult. T (N m)", "residual"), rows)
+
+
+def _critical(run) -> str:
+    out = ["<h3>Root loads per case (limit and ultimate)</h3>", _root_table(run)]
+    if run.envelope is not None:
+        rows = [(r["quantity"], r["unit"], r["root_limit"], r["root_ultimate"], r["root_case"],
+                 r["peak_limit"], r["peak_y_m"], r["peak_case"]) for r in ea.critical_table(run.envelope)]
+        out += ["<h3>Envelope: governing cases</h3>",
+                _table(("quantity", "unit", "root limit", "root ultimate", "root case",
+                        "peak limit", "peak at y (m)", "peak case"), rows, text_cols=(0, 1, 4, 7))]
+    else:
+        out.append("<p>No envelope was defined; the cases above are the only ones run.</p>")
+    crit = ea.critical_case(run)
+    out.append(f"<p>Critical case (largest root bending magnitude): <b>{esc(crit.name)}</b>.</p>")
+    return "".join(out)
+
+
+def _obj_rows(obj) -> list:
+    if obj is None:
+        return []
+    if dataclasses.is_dataclass(obj):
+        items = dataclasses.asdict(obj).items()
+    elif isinstance(obj, dict):
+        items = obj.items()
+    else:
+        items = getattr(obj, "__dict__", {}).items()
+    return [(k, v) for k, v in items if not str(k).startswith("_")]
+
+
+def _inputs(run, options) -> str:
+    f = run.frame
+    frame_rows = [("span axis (CAD)", f.span_axis), ("up axis (CAD)", f.up_axis),
+                  ("full span in the file", f.full_span), ("asymmetry / semi-span", f.asymmetry),
+                  ("origin (CAD, m)", np.round(f.origin, 6).tolist()),
+                  ("rotation rows (wing x, y, z in CAD)", np.round(f.rotation, 6).tolist())]
+    frame_rows += [("note", n) for n in f.notes]
+    imp = [("geometry file", run.mesh.source), ("units", run.mesh.units)]
+    imp += [(f"case: {k}", v) for k, v in _obj_rows(getattr(run.case, "geometry", None))]
+    imp += [(k, v) for k, v in (options or {}).items()]
+    imp += [("mesh note", n) for n in run.mesh.notes] + [("station note", n) for n in run.stations.notes]
+    return ("<h3>Case file</h3>" + f"<pre>{esc(run.case_text)}</pre>"
+            + "<h3>Import options</h3>" + _table(("option", "value"), imp, text_cols=(0, 1))
+            + "<h3>Detected wing frame</h3>" + _table(("item", "value"), frame_rows, text_cols=(0, 1)))
+
+
+def _versions(run, run_time_s) -> str:
+    vers = dict(run.versions) or {"geomload": __version__}
+    t = dict(run.timings)
+    total = run_time_s if run_time_s is not None else sum(float(v) for v in t.values())
+    rows = [(k, f"{float(v):.3f}") for k, v in t.items()] + [("total", f"{float(total):.3f}")]
+    stamp = _dt.datetime.now().astimezone().isoformat(timespec="seconds")
+    return (_table(("package", "version"), list(vers.items()), text_cols=(0, 1))
+            + _table(("step", "time (s)"), rows, text_cols=(0,))
+            + f"<p>Report written {esc(stamp)} by geomload {esc(__version__)}.</p>")
+
+
+def render_html(run, images: dict, options=None, run_time_s=None) -> str:
+    """The report as one HTML string (see module docstring)."""
+    images = dict(images or {})
+    body = {"job": _job(run),
+            "geometry": _images(images, SECTION_IMAGES["geometry"]) + "<h3>Planform summary</h3>"
+            + _planform_table(run.planform),
+            "aerodynamics": _images(images, SECTION_IMAGES["aerodynamics"]) + _aero_table(run),
+            "loads": _images(images, SECTION_IMAGES["loads"])
+            + "<p>Signs: shear positive up, bending positive tip-up, torsion positive nose-up about "
+              "the spar axis. Ultimate = limit x ultimate factor (1.5 unless set).</p>",
+            "vn": (_images(images, ("vn",)) if run.vn is not None and "vn" in images
+                   else "<p>No V-n diagram: the case file defines no envelope.</p>"),
+            "critical": _critical(run), "inputs": _inputs(run, options),
+            "versions": _versions(run, run_time_s)}
+    known = {n for names in SECTION_IMAGES.values() for n in names}
+    extra = [n for n in images if n not in known]
+    if extra:
+        body["loads"] += _images(images, extra)
+    title = esc(getattr(run.case, "title", "") or Path(run.case_path).stem)
+    nav = " · ".join(f'<a href="#{k}">{esc(t)}</a>' for k, t in SECTIONS)
+    parts = [f"<!DOCTYPE html><html lang='en'><head><meta charset='utf-8'>",
+             f"<title>geomload report: {title}</title><style>{CSS}</style></head><body>",
+             f"<h1>geomload report: {title}</h1><nav>{nav}</nav>"]
+    for key, t in SECTIONS:
+        parts.append(f'<section id="{key}"><h2>{esc(t)}</h2>{body[key]}</section>')
+    parts.append("</body></html>\n")
+    return "\n".join(parts)
+
+
+def write_report(path, run_result, images: dict, options=None, run_time_s=None, inputs=()):
+    """Write report.html atomically; returns its path."""
+    return write_text_atomic(path, render_html(run_result, images, options, run_time_s), inputs)

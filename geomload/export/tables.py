@@ -1,0 +1,234 @@
+"""CSV and JSON tables of a run, written atomically.
+
+Every CSV starts with one row of unit-carrying column names, then '#' comment lines (units, sign
+convention, frame, case, the caution), then the data. The names row comes first because
+``numpy.genfromtxt(path, comments='#', names=True, delimiter=',')`` takes its names from the first
+line even when it is a comment; so does ``pandas.read_csv(path, comment='#')``, and a spreadsheet
+shows the names on top. Text cells never hold ',', '"' or '#' (replaced), so no quoting is needed.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+
+import numpy as np
+
+from geomload import CAUTION, __version__
+from geomload.export import envelope_access as ea
+from geomload.export.atomic import write_text_atomic
+
+SIGNS = ("sign convention: shear positive up (net upward load outboard of the station); "
+         "bending positive tip-up (upper skin in compression); torsion positive nose-up about "
+         "the spar axis")
+FRAME = ("wing frame: x aft along the root chord, y along the span (starboard positive, "
+         "y = 0 on the symmetry plane), z up; metres")
+
+
+def _clean(s) -> str:
+    """One line of text safe inside a '#' comment line."""
+    return " ".join(str(s).split())
+
+
+def _csv(header_lines, columns: dict) -> str:
+    """The names row, the comment lines, then the rows (floats to 10 significant digits)."""
+    names = list(columns)
+    cols = [np.asarray(columns[k]) for k in names]
+    n = max((c.size for c in cols), default=0)
+    out = [",".join(names)] + [f"# {_clean(h)}" for h in header_lines]
+    for i in range(n):
+        row = []
+        for c in cols:
+            v = c[i] if i < c.size else float("nan")
+            if isinstance(v, (str, np.str_)) or c.dtype == object:
+                row.append(_cell_text(v))
+            else:
+                row.append(f"{float(v):.10g}")
+        out.append(",".join(row))
+    return "\n".join(out) + "\n"
+
+
+def _cell_text(v) -> str:
+    return _clean(v).replace(",", ";").replace('"', "'").replace("#", "_") or "-"
+
+
+def frame_lines(frame) -> list:
+    lines = [FRAME]
+    if frame is not None:
+        r = np.asarray(frame.rotation)
+        lines.append(f"CAD axes: span {frame.span_axis}, up {frame.up_axis}; full span "
+                     f"{bool(frame.full_span)}; p_wing = R (p_cad - origin), origin "
+                     f"{np.round(frame.origin, 6).tolist()} m, R rows {np.round(r, 6).tolist()}")
+    return lines
+
+
+def write_stations_csv(path, stations, frame=None, source="", units="", inputs=()):
+    """Write the cut stations (wing frame, one semi-span, root to tip).
+
+    Columns: y_m, x_le_m, z_le_m, x_te_m, z_te_m, chord_m, twist_deg (nose-up positive),
+    thickness_ratio, x_thickness_c, camber_ratio, x_camber_c, dihedral_deg, x_qc_m, z_qc_m.
+    """
+    s = stations
+    head = [f"geomload {__version__} stations", CAUTION, f"source: {source} (read in {units})",
+            *frame_lines(frame), f"semispan_m: {s.semispan:.10g}",
+            "units: metres and degrees; ratios are fractions of the local chord"]
+    head += [f"note: {n}" for n in s.notes]
+    cols = {"y_m": s.y, "x_le_m": s.x_le, "z_le_m": s.z_le, "x_te_m": s.x_te, "z_te_m": s.z_te,
+            "chord_m": s.chord, "twist_deg": s.twist_deg, "thickness_ratio": s.thickness_ratio,
+            "x_thickness_c": s.x_thickness, "camber_ratio": s.camber_ratio,
+            "x_camber_c": s.x_camber, "dihedral_deg": s.dihedral_deg, "x_qc_m": s.x_qc,
+            "z_qc_m": s.z_qc}
+    return write_text_atomic(path, _csv(head, cols), inputs)
+
+
+def case_line(cr) -> str:
+    a = cr.aero
+    return (f"case: {cr.name}; v_eas {cr.v_eas:.4g} m/s; v_tas {cr.v_tas:.4g} m/s; altitude "
+            f"{cr.altitude_m:.6g} m; Mach {cr.mach:.4g}; q {cr.q_pa:.6g} Pa; n {cr.load_factor:.4g}; "
+            f"mass {cr.mass_kg:.6g} kg; lift share {cr.lift_share:.4g}; alpha {a.alpha_deg:.4f} deg; "
+            f"CL {a.CL:.5f}")
+
+
+def write_loads_csv(path, case_result, caution=CAUTION, frame=None, inputs=()):
+    """Write the spanwise limit and ultimate loads of one case (one semi-span, root to tip).
+
+    Units: N/m for distributed loads, N m/m for distributed moments, N for shear, N m for
+    bending and torsion. Ultimate = limit x ultimate_factor (1.5, 14 CFR 23.303).
+    """
+    L, cr = case_result.loads, case_result
+    uf = float(L.ultimate_factor)
+    head = [f"geomload {__version__} spanwise loads (limit; *_ult_* = ultimate)", caution,
+            case_line(cr), f"ultimate factor: {uf:g} (ultimate = factor x limit)", SIGNS,
+            *frame_lines(frame),
+            "units: y m; distributed loads N/m; distributed moments N m/m; shear N; moments N m",
+            "inertia_N_per_m: n g m'(y), positive down (weight relief); pitch about the spar axis"]
+    if cr.stall_warning:
+        head.append(f"warning: {cr.stall_warning}")
+    head.append(f"equilibrium residual (relative): {cr.residual:.3g}")
+    cols = {"y_m": L.y, "lift_N_per_m": L.lift_N_per_m, "drag_N_per_m": L.drag_N_per_m,
+            "pitch_Nm_per_m": L.pitch_Nm_per_m, "inertia_N_per_m": L.inertia_N_per_m,
+            "schrenk_lift_N_per_m": L.schrenk_lift_N_per_m, "shear_N": L.shear_N,
+            "bending_Nm": L.bending_Nm, "torsion_Nm": L.torsion_Nm,
+            "inplane_shear_N": L.inplane_shear_N, "inplane_bending_Nm": L.inplane_bending_Nm,
+            "shear_ult_N": uf * np.asarray(L.shear_N), "bending_ult_Nm": uf * np.asarray(L.bending_Nm),
+            "torsion_ult_Nm": uf * np.asarray(L.torsion_Nm),
+            "inplane_shear_ult_N": uf * np.asarray(L.inplane_shear_N),
+            "inplane_bending_ult_Nm": uf * np.asarray(L.inplane_bending_Nm)}
+    return write_text_atomic(path, _csv(head, cols), inputs)
+
+
+def write_envelope_csv(path, envelope, inputs=()):
+    """Per station: max/min shear, bending, torsion (limit and ultimate) and the governing case."""
+    e = ea.table(envelope)
+    head = [f"geomload {__version__} envelope of loads over all cases (one semi-span)", CAUTION,
+            SIGNS, FRAME, "limit loads; *_ult_* = ultimate (each case's ultimate factor x limit, "
+            "1.5 by 14 CFR 23.303 unless set); units: y m, shear N, moments N m",
+            "*_case columns: the case that governs the value before it"]
+    cols = {"y_m": e["y"]}
+    for q, u in e["quantities"]:
+        for side in ("max", "min"):
+            cols[f"{q}_{side}_{u}"] = e[f"{q}_{side}"]
+            cols[f"{q}_{side}_case"] = np.array(e[f"{q}_{side}_case"], dtype=object)
+            cols[f"{q}_{side}_ult_{u}"] = e[f"{q}_{side}_ult"]
+            cols[f"{q}_{side}_ult_case"] = np.array(e[f"{q}_{side}_ult_case"], dtype=object)
+    return write_text_atomic(path, _csv(head, cols), inputs)
+
+
+def write_vn_csv(path, vn, inputs=()):
+    """The V-n diagram(s): every curve as (curve, v_eas_m_s, n) rows, then the named points."""
+    diag, kind, name, v, n = [], [], [], [], []
+    for k, d in enumerate(ea.vn_diagrams(vn)):
+        title = ea.vn_title(d, k)
+        for cname, (vv, nn) in ea.vn_curves(d).items():
+            for a, b in zip(np.ravel(vv), np.ravel(nn)):
+                diag.append(title), kind.append("curve"), name.append(cname), v.append(a), n.append(b)
+        for p in ea.vn_points(d):
+            diag.append(title), kind.append("point"), name.append(p["name"])
+            v.append(p["v_eas"]), n.append(p["n"])
+    head = [f"geomload {__version__} V-n diagram (limit load factors)", CAUTION,
+            "units: v_eas_m_s equivalent airspeed m/s; n load factor (-)",
+            "kind: 'curve' rows trace a boundary line, 'point' rows are the named design points",
+            "diagram: the flying mass and altitude of the diagram"]
+    cols = {"diagram": np.array(diag, dtype=object), "kind": np.array(kind, dtype=object), "name": np.array(name, dtype=object),
+            "v_eas_m_s": np.array(v, float), "n": np.array(n, float)}
+    return write_text_atomic(path, _csv(head, cols), inputs)
+
+
+def _num(x):
+    x = float(x)
+    return x if math.isfinite(x) else None
+
+
+def summary(run) -> dict:
+    """The run summary as plain JSON-able data (SI units; key names carry them)."""
+    p = run.planform
+    cases = []
+    for cr in run.cases:
+        a, L = cr.aero, cr.loads
+        y = np.asarray(L.y)
+        total = float(np.sum(0.5 * (L.lift_N_per_m[1:] + L.lift_N_per_m[:-1]) * np.diff(y)))
+        uf = float(L.ultimate_factor)
+        cases.append({
+            "name": cr.name, "v_eas_m_s": _num(cr.v_eas), "v_tas_m_s": _num(cr.v_tas),
+            "altitude_m": _num(cr.altitude_m), "mach": _num(cr.mach), "q_pa": _num(cr.q_pa),
+            "load_factor": _num(cr.load_factor), "mass_kg": _num(cr.mass_kg),
+            "lift_share": _num(cr.lift_share), "alpha_deg": _num(a.alpha_deg), "CL": _num(a.CL),
+            "CDi": _num(a.CDi), "e": _num(a.e), "Cm": _num(a.Cm),
+            "semispan_lift_N": _num(total), "total_lift_N": _num(2 * total),
+            "root_shear_N": _num(L.shear_N[0]), "root_bending_Nm": _num(L.bending_Nm[0]),
+            "root_torsion_Nm": _num(L.torsion_Nm[0]), "ultimate_factor": uf,
+            "root_shear_ult_N": _num(uf * L.shear_N[0]),
+            "root_bending_ult_Nm": _num(uf * L.bending_Nm[0]),
+            "root_torsion_ult_Nm": _num(uf * L.torsion_Nm[0]),
+            "equilibrium_residual": _num(cr.residual), "stall_warning": cr.stall_warning})
+    out = {"caution": CAUTION, "geomload_version": __version__, "case_file": run.case_path,
+           "title": str(getattr(run.case, "title", "") or ""),
+           "geometry": {"source": run.mesh.source, "units": run.mesh.units,
+                        "triangles": run.mesh.n_triangles, "stations": run.stations.n,
+                        "span_axis": run.frame.span_axis, "up_axis": run.frame.up_axis,
+                        "full_span": bool(run.frame.full_span),
+                        "asymmetry": _num(run.frame.asymmetry)},
+           "planform": {k: _num(getattr(p, k)) for k in (
+               "area", "span", "aspect_ratio", "taper", "root_chord", "tip_chord", "mac",
+               "x_mac_le", "y_mac", "x_mac_qc", "sweep_le_deg", "sweep_qc_deg", "dihedral_deg",
+               "washout_deg")},
+           "planform_units": "m, m^2, deg", "cases": cases, "envelope": None,
+           "warnings": list(run.warnings), "timings_s": dict(run.timings),
+           "versions": dict(run.versions)}
+    if run.envelope is not None:
+        e = ea.table(run.envelope)
+        env = {"y_m": e["y"].tolist()}
+        for q, u in e["quantities"]:
+            for side in ("max", "min"):
+                env[f"{q}_{side}_{u}"] = [_num(v) for v in e[f"{q}_{side}"]]
+                env[f"{q}_{side}_case"] = [str(c) for c in e[f"{q}_{side}_case"]]
+                env[f"{q}_{side}_ult_{u}"] = [_num(v) for v in e[f"{q}_{side}_ult"]]
+                env[f"{q}_{side}_ult_case"] = [str(c) for c in e[f"{q}_{side}_ult_case"]]
+        env["critical"] = ea.critical_table(run.envelope)
+        out["envelope"] = env
+    return out
+
+
+def write_summary_json(path, run_result, inputs=()):
+    """Write summary.json (see `summary`)."""
+    return write_text_atomic(path, json.dumps(summary(run_result), indent=1) + "\n", inputs)
+
+
+def write_aero_csv(path, solution, source="", inputs=()):
+    """Write the spanwise vortex-lattice result of one solve (per unit dynamic pressure).
+
+    Columns: y_m, chord_m, cl, cl_c_m, cm_c4, cdi, lift_per_q_m (N/m per Pa), drag_per_q_m,
+    moment_per_q_m2 (N m/m per Pa, about the strip quarter chord, nose-up), x_cp_m.
+    """
+    s = solution
+    head = [f"geomload {__version__} vortex-lattice spanwise result", CAUTION,
+            f"source: {source}", FRAME,
+            f"alpha {s.alpha_deg:.4f} deg; Mach {s.mach:.4g}; CL {s.CL:.5f}; CDi {s.CDi:.6f}; "
+            f"e {s.e:.4f}; Cm {s.Cm:.5f}; CL_alpha {s.CL_alpha_per_rad:.4f} /rad; "
+            f"alpha_0L {s.alpha_zero_lift_deg:.3f} deg",
+            "per unit dynamic pressure: multiply *_per_q_* by q (Pa) for N/m and N m/m; "
+            "cm_c4 and moment nose-up positive"]
+    cols = {"y_m": s.y, "chord_m": s.chord, "cl": s.cl, "cl_c_m": s.cl_c, "cm_c4": s.cm_c4,
+            "cdi": s.cdi, "lift_per_q_m": s.lift_per_q, "drag_per_q_m": s.drag_per_q,
+            "moment_per_q_m2": s.moment_per_q, "x_cp_m": s.x_cp}
+    return write_text_atomic(path, _csv(head, cols), inputs)

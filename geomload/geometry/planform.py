@@ -1,0 +1,65 @@
+"""Planform summary of the whole wing from one semi-span of stations (`Planform`).
+
+Definitions (e.g. Raymer, *Aircraft Design: A Conceptual Approach*, ch. 4; Anderson,
+*Fundamentals of Aerodynamics*, ch. 5): S = 2 int_0^s c dy (projected on x-y), b = 2 s,
+AR = b^2 / S, taper = c_tip / c_root, MAC = (2/S) int_0^s c^2 dy, y_MAC = (2/S) int c y dy,
+x_LE,MAC = (2/S) int c x_LE dy. Chord, LE and twist are taken piecewise linear between
+stations and extrapolated linearly to the root plane (y = 0) and to the geometric tip (y = s);
+products of two piecewise-linear functions are integrated exactly. Sweep and dihedral are the
+slopes of least-squares lines through the LE / quarter-chord points.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from ..errors import GeometryError
+from ..records import Planform, Stations
+
+
+def _extend(y, f, y0, y1):
+    """Values of f on [y0] + y + [y1], extrapolating linearly from the end pairs."""
+    a = f[0] + (f[1] - f[0]) * (y0 - y[0]) / (y[1] - y[0])
+    b = f[-1] + (f[-1] - f[-2]) * (y1 - y[-1]) / (y[-1] - y[-2])
+    return np.concatenate([[a], f, [b]])
+
+
+def _int_prod(y, f, g):
+    """Exact integral of the product of two piecewise-linear functions sampled at y."""
+    h = np.diff(y)
+    return float(np.sum(h / 6.0 * (2 * f[:-1] * g[:-1] + f[:-1] * g[1:] + f[1:] * g[:-1] + 2 * f[1:] * g[1:])))
+
+
+def _slope_deg(y, v):
+    return float(np.degrees(np.arctan(np.polyfit(y, v, 1)[0])))
+
+
+def summarize(stations: Stations) -> Planform:
+    """Planform of the whole wing (both sides by symmetry) from the starboard `Stations`.
+
+    Lengths m, area m^2, angles deg. Raises GeometryError with fewer than 3 stations.
+    """
+    st = stations
+    if st.n < 3:
+        raise GeometryError(f"planform needs at least 3 stations (got {st.n})")
+    y = np.asarray(st.y, float)
+    s = float(st.semispan)
+    y0 = 0.0 if y[0] > 0 else y[0]
+    y1 = s if s > y[-1] else y[-1]
+    ye = np.concatenate([[y0], y, [y1]])
+    c = np.maximum(_extend(y, st.chord, y0, y1), 0.0)
+    xle = _extend(y, st.x_le, y0, y1)
+    tw = _extend(y, st.twist_deg, y0, y1)
+    one = np.ones_like(ye)
+    half_area = _int_prod(ye, c, one)
+    area = 2.0 * half_area
+    if not area > 0:
+        raise GeometryError("planform area is zero")
+    span = 2.0 * s
+    mac = 2.0 / area * _int_prod(ye, c, c)
+    y_mac = 2.0 / area * _int_prod(ye, c, ye)
+    x_mac_le = 2.0 / area * _int_prod(ye, c, xle)
+    return Planform(area=area, span=span, aspect_ratio=span**2 / area, taper=float(c[-1] / c[0]),
+                    root_chord=float(c[0]), tip_chord=float(c[-1]), mac=mac, x_mac_le=x_mac_le,
+                    y_mac=y_mac, sweep_le_deg=_slope_deg(y, st.x_le), sweep_qc_deg=_slope_deg(y, st.x_qc),
+                    dihedral_deg=_slope_deg(y, st.z_qc), washout_deg=float(tw[0] - tw[-1]))

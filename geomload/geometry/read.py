@@ -1,0 +1,202 @@
+"""Read a CAD file into a triangle soup in metres (`WingMesh`).
+
+Binary STL has a fast path: one structured `numpy.fromfile` read (50-byte records: normal,
+three vertices, attribute), no vertex welding, since plane cutting works on the soup directly.
+ASCII STL is parsed here too, so a malformed line can be named. Every other mesh format (OBJ,
+PLY, OFF, GLB/glTF, 3MF) goes through trimesh; STEP/IGES through cascadio (OpenCASCADE), whose
+GLB output is in metres whatever unit the STEP file declares. trimesh is imported lazily.
+"""
+
+from __future__ import annotations
+
+import io
+import os
+import re
+
+import numpy as np
+
+from ..errors import GeometryError, InputError
+from ..records import WingMesh, no_progress
+
+UNITS = {"m": 1.0, "cm": 0.01, "mm": 0.001, "in": 0.0254, "ft": 0.3048}
+MESH_FORMATS = {".obj": "obj", ".ply": "ply", ".off": "off", ".glb": "glb", ".gltf": "gltf", ".3mf": "3mf"}
+BREP_FORMATS = {".step": "step", ".stp": "step", ".iges": "iges", ".igs": "iges"}
+STL_RECORD = np.dtype([("n", "<f4", (3,)), ("v", "<f4", (3, 3)), ("attr", "<u2")])
+SPAN_TOO_BIG_M, SPAN_TOO_SMALL_M = 200.0, 0.05
+_TRIMESH_UNITS = {"meters": 1.0, "m": 1.0, "millimeters": 1e-3, "mm": 1e-3, "centimeters": 1e-2,
+                  "cm": 1e-2, "inches": 0.0254, "in": 0.0254, "feet": 0.3048, "ft": 0.3048}
+
+
+def read_mesh(path, units=None, body=None, progress=None) -> WingMesh:
+    """Read a CAD/mesh file into a `WingMesh` (triangles (m, 3, 3) float64, metres, CAD frame).
+
+    Parameters
+    ----------
+    path : str or Path
+    units : {"m", "cm", "mm", "in", "ft"} or None
+        Length unit of a unit-less format (STL, OBJ, PLY, OFF); default metres. STEP/IGES and
+        glTF carry their unit, which is honoured (the option is then ignored, with a note).
+    body : int or None
+        1-based body to keep when the file holds several; default the one of largest area.
+    progress : callable(stage, done, total) or None
+
+    Raises
+    ------
+    InputError, GeometryError
+        One-line message naming the file: missing, directory, unreadable, empty, truncated or
+        malformed STL, unknown extension, NaN/inf coordinates, no triangles, zero area.
+    """
+    progress = progress or no_progress
+    path = os.fspath(path)
+    if units is not None and units not in UNITS:
+        raise InputError(f"units {units!r} not one of {', '.join(UNITS)}")
+    if not os.path.exists(path):
+        raise InputError(f"{path}: file not found")
+    if os.path.isdir(path):
+        raise InputError(f"{path}: is a directory, not a geometry file")
+    if not os.access(path, os.R_OK):
+        raise InputError(f"{path}: cannot be read (permission denied)")
+    size = os.path.getsize(path)
+    if size == 0:
+        raise InputError(f"{path}: file is empty")
+    ext = os.path.splitext(path)[1].lower()
+    notes = []
+    progress("read", 0, 1)
+    try:
+        if ext == ".stl":
+            bodies, unit_label = [_read_stl(path, size)], units or "m"
+            scale = UNITS[unit_label]
+        elif ext in MESH_FORMATS or ext in BREP_FORMATS:
+            bodies, file_scale = _read_trimesh(path, ext)
+            if file_scale is not None:
+                unit_label, scale = "file", file_scale
+                if units is not None:
+                    notes.append(f"--units {units} ignored: {os.path.basename(path)} carries its own unit")
+            else:
+                unit_label = units or "m"
+                scale = UNITS[unit_label]
+        else:
+            known = ", ".join(sorted({".stl", *MESH_FORMATS, *BREP_FORMATS}))
+            raise InputError(f"{path}: unknown geometry extension {ext or '(none)'!r} (known: {known})")
+    except OSError as exc:
+        raise InputError(f"{path}: cannot be read ({exc.strerror or exc})") from None
+    progress("read", 1, 1)
+
+    bodies = [b for b in bodies if b.shape[0] > 0]
+    if not bodies:
+        raise GeometryError(f"{path}: contains no triangles")
+    tris = _choose_body(path, bodies, body, notes)
+    if not np.isfinite(tris).all():
+        raise GeometryError(f"{path}: contains NaN or infinite coordinates")
+    tris = tris.astype(np.float64, copy=False) * scale if scale != 1.0 else tris.astype(np.float64, copy=False)
+    extent = float((tris.reshape(-1, 3).max(0) - tris.reshape(-1, 3).min(0)).max())
+    area = triangle_areas(tris).sum()
+    if not area > 1e-12 * max(extent, 1e-300) ** 2:
+        raise GeometryError(f"{path}: zero-area mesh (all triangles are degenerate)")
+    if extent > SPAN_TOO_BIG_M or extent < SPAN_TOO_SMALL_M:
+        notes.append(f"largest extent is {extent:.4g} m after reading in {unit_label}: "
+                     f"wrong unit? (give --units m|cm|mm|in|ft)")
+    return WingMesh(triangles=tris, source=path, units=unit_label, notes=tuple(notes))
+
+
+def triangle_areas(tris: np.ndarray) -> np.ndarray:
+    """Areas of an (m, 3, 3) triangle array (units of the coordinates squared)."""
+    return 0.5 * np.linalg.norm(np.cross(tris[:, 1] - tris[:, 0], tris[:, 2] - tris[:, 0]), axis=1)
+
+
+def _choose_body(path, bodies, body, notes):
+    if len(bodies) == 1 and body in (None, 1):
+        return bodies[0]
+    areas = [float(triangle_areas(b.astype(float)).sum()) for b in bodies]
+    if body is None:
+        k = int(np.argmax(areas))
+        how = "the largest surface area"
+    else:
+        if not 1 <= int(body) <= len(bodies):
+            raise InputError(f"{path}: --body {body} out of range (the file has {len(bodies)} bodies)")
+        k, how = int(body) - 1, f"--body {body}"
+    left = [f"body {i + 1} ({bodies[i].shape[0]} triangles, area {areas[i]:.4g})"
+            for i in range(len(bodies)) if i != k]
+    notes.append(f"{len(bodies)} bodies in {os.path.basename(path)}: kept body {k + 1} ({how}); "
+                 f"left out: {'; '.join(left)}")
+    return bodies[k]
+
+
+def _read_stl(path, size):
+    with open(path, "rb") as f:
+        head = f.read(84)
+    if len(head) >= 84:
+        count = int(np.frombuffer(head[80:84], "<u4")[0])
+        if size == 84 + 50 * count:
+            return np.fromfile(path, dtype=STL_RECORD, count=count, offset=84)["v"]
+    if head.lstrip()[:5].lower() == b"solid":
+        return _read_ascii_stl(path)
+    if len(head) < 84:
+        raise GeometryError(f"{path}: truncated binary STL ({size} bytes, shorter than the 84-byte header)")
+    raise GeometryError(f"{path}: truncated binary STL: triangle count {count} does not match "
+                        f"file size {size} bytes (expected {84 + 50 * count})")
+
+
+_KEYWORDS = {"solid", "facet", "outer", "vertex", "endloop", "endfacet", "endsolid"}
+
+
+def _read_ascii_stl(path):
+    with open(path, "rb") as f:
+        text = f.read().decode("ascii", errors="replace")
+    lines = text.splitlines()
+    verts = []
+    for no, line in enumerate(lines, 1):
+        words = line.split()
+        if not words:
+            continue
+        key = words[0].lower()
+        if key not in _KEYWORDS:
+            raise GeometryError(f"{path}: not a valid ASCII STL (line {no}: unexpected {words[0][:20]!r})")
+        if key == "vertex":
+            try:
+                if len(words) != 4:
+                    raise ValueError
+                verts.append((float(words[1]), float(words[2]), float(words[3])))
+            except ValueError:
+                raise GeometryError(f"{path}: not a valid ASCII STL (line {no}: bad vertex "
+                                    f"{line.strip()[:40]!r})") from None
+    if len(verts) % 3:
+        raise GeometryError(f"{path}: not a valid ASCII STL ({len(verts)} vertices, not a multiple of 3)")
+    return np.asarray(verts, float).reshape(-1, 3, 3)
+
+
+def _read_trimesh(path, ext):
+    """Bodies (list of (m, 3, 3) arrays) and the file's scale to metres (None if unit-less)."""
+    import trimesh  # lazy: heavy import
+
+    file_scale = None
+    try:
+        if ext in BREP_FORMATS:
+            import cascadio
+
+            with open(path, "rb") as f:
+                data = f.read()
+            glb = cascadio.load(data, file_type=BREP_FORMATS[ext], tol_linear=1e-3, tol_angular=0.2,
+                                tol_relative=True)
+            if not glb:
+                raise ValueError("the CAD kernel could not translate it")
+            scene = trimesh.load(io.BytesIO(glb), file_type="glb", force="scene")
+            file_scale = 1.0  # glTF is metres by definition; the kernel applied the STEP unit
+        else:
+            scene = trimesh.load(path, file_type=MESH_FORMATS[ext], force="scene")
+            if ext in (".glb", ".gltf"):
+                file_scale = 1.0
+            elif getattr(scene, "units", None):
+                file_scale = _TRIMESH_UNITS.get(str(scene.units).lower())
+    except OSError:
+        raise
+    except Exception as exc:  # the readers raise many types; one line for the user
+        msg = str(exc).splitlines()[0][:120] if str(exc) else type(exc).__name__
+        raise InputError(f"{path}: cannot read as {ext[1:].upper()} ({msg})") from None
+    bodies = []
+    for geom in scene.dump() if hasattr(scene, "dump") else [scene]:
+        faces = getattr(geom, "faces", None)
+        if faces is None or len(faces) == 0:
+            continue
+        bodies.append(np.asarray(geom.vertices, float)[np.asarray(faces)])
+    return bodies, file_scale

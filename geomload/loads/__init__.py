@@ -1,0 +1,1 @@
+"""Loads stage: mass distributions, tip-to-root beam statics, the flight envelope."""

@@ -1,0 +1,222 @@
+"""Shear, bending and torsion along the load (spar) axis of one semi-span, and Schrenk's load.
+
+Method (docs/methods_loads.md): cantilever statics from tip to root. At station y_i the loads
+outboard of it reduce to a force F_i and a moment M_i about the spar point P_i = (x_s, y_i, z_s).
+Distributed loads are taken piecewise linear in y between stations, their application lines
+too, so per segment the force integrand is linear (trapezoid exact) and the moment integrand
+(r - P_i) x f is quadratic (Simpson exact). Point loads add a jump at their y: a load at exactly
+y_i counts as outboard of y_i (the value just inboard of the load). Loads outboard of the last
+station are not seen: append a tip station (zero lift) when the stations stop short of the tip.
+
+Local spar frame at each station: s = spar tangent (outboard), b = the x axis made normal to s
+(in the wing plane, aft), n = b x s (normal to the wing plane, up). Then
+    shear V = F.n (positive up), bending = M.b (positive tip-up), torsion = M.s (nose-up),
+    in-plane shear = F.b (positive aft), in-plane bending = -M.n (positive tip-aft).
+For an unswept, flat wing these are F_z, M_x, M_y, F_x and -M_z of the wing frame.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from ..errors import InputError
+from ..records import SpanLoads
+
+SIGN_CONVENTION = (
+    "shear positive up (net upward load outboard of the station); bending positive tip-up; "
+    "torsion positive nose-up about the spar axis; in-plane shear positive aft; in-plane "
+    "bending positive tip-aft; local spar frame (s along the spar outboard, b chordwise aft "
+    "normal to s, n = b x s up); limit loads unless marked ultimate"
+)
+
+
+@dataclass(frozen=True)
+class PointLoad:
+    """A concentrated force on the semi-span. position (3,) m, force (3,) N, wing frame."""
+
+    name: str
+    position: np.ndarray
+    force: np.ndarray
+
+
+def _col(a, n, name, default=0.0):
+    if a is None:
+        return np.full(n, float(default))
+    a = np.asarray(a, dtype=float)
+    if a.ndim == 0:
+        return np.full(n, float(a))
+    if a.shape != (n,) or not np.all(np.isfinite(a)):
+        raise InputError(f"integrate_loads: {name} must be {n} finite values, got shape {a.shape}")
+    return a
+
+
+def spar_frame(y, spar_x, spar_z):
+    """Unit vectors (s, b, n), each (n, 3), of the local spar frame at each station."""
+    p = np.column_stack([spar_x, y, spar_z])
+    s = np.gradient(p, y, axis=0) if len(y) > 1 else np.array([[0.0, 1.0, 0.0]])
+    s /= np.linalg.norm(s, axis=1)[:, None]
+    b = np.array([1.0, 0.0, 0.0]) - s[:, :1] * s
+    b /= np.linalg.norm(b, axis=1)[:, None]
+    return s, b, np.cross(b, s)
+
+
+def spar_line(y, x_le, x_te, z_le, z_te, chord_fraction=0.25, line=()):
+    """Spar axis (x, z) in metres at stations y: the chord fraction point of every section, or
+    a polyline ((y, x, z), ...) interpolated linearly (extrapolated along its end segments)."""
+    y = np.asarray(y, float)
+    if not line:
+        f = float(chord_fraction)
+        return (np.asarray(x_le) + f * (np.asarray(x_te) - x_le),
+                np.asarray(z_le) + f * (np.asarray(z_te) - z_le))
+    pts = np.asarray(line, float)
+    out = []
+    for k in (1, 2):
+        v = np.interp(y, pts[:, 0], pts[:, k])
+        for mask, (i, j) in ((y < pts[0, 0], (0, 1)), (y > pts[-1, 0], (-2, -1))):
+            slope = (pts[j, k] - pts[i, k]) / (pts[j, 0] - pts[i, 0])
+            v = np.where(mask, pts[i, k] + slope * (y - pts[i, 0]), v)
+        out.append(v)
+    return out[0], out[1]
+
+
+def _segment_moments(y, p, r, f):
+    """Per segment j: force integral (3,) and moment integral about p[j] of the linear load
+    f(eta) applied on the linear line r(eta); Simpson's rule, exact for these quadratics."""
+    h = np.diff(y)[:, None]
+    fa, fb = f[:-1], f[1:]
+    ra, rb = r[:-1] - p[:-1], r[1:] - p[:-1]
+    force = 0.5 * h * (fa + fb)
+    mom = h / 6.0 * (np.cross(ra, fa) + np.cross(ra + rb, fa + fb) + np.cross(rb, fb))
+    return force, mom
+
+
+def integrate_loads(y, spar_x, spar_z, lift_N_per_m, *, drag_N_per_m=None, pitch_Nm_per_m=None,
+                    load_x=None, load_z=None, inertia_N_per_m=None, inertia_x=None,
+                    inertia_z=None, point_loads=(), case="", ultimate_factor=1.5,
+                    schrenk_lift_N_per_m=None) -> SpanLoads:
+    """Integrate the loads of one semi-span from tip to root (limit loads, SI).
+
+    Parameters
+    ----------
+    y : (n,) station positions, strictly increasing root to tip (m).
+    spar_x, spar_z : (n,) load-axis position at each station (m, wing frame).
+    lift_N_per_m : (n,) aerodynamic force per metre of y along +z (N/m).
+    drag_N_per_m : (n,) aerodynamic force per metre of y along +x, aft (N/m); default 0.
+    pitch_Nm_per_m : (n,) section pitching moment per metre about the load line, nose-up
+        (N m/m), e.g. cm_c4 q c^2 with the load line at the quarter chord; default 0.
+    load_x, load_z : (n,) line where lift and drag act (m); default the spar line.
+    inertia_N_per_m : (n,) n g m'(y), acting along -z (positive down, N/m); default 0.
+    inertia_x, inertia_z : (n,) line of the distributed mass (m); default the spar line.
+    point_loads : sequence of :class:`PointLoad` (force vectors in N, wing frame).
+    case : case name stored in the result; ultimate_factor : ultimate / limit (14 CFR 23.303).
+    schrenk_lift_N_per_m : (n,) cross-check series stored as is (NaN when not given).
+
+    Returns
+    -------
+    SpanLoads with the sign convention of :data:`SIGN_CONVENTION`; ``pitch_Nm_per_m`` is the
+    aerodynamic moment per span about the spar axis. extras: ``force_N`` and ``moment_Nm``
+    ((n, 3), outboard resultant about the spar point, wing frame), ``axis_s``, ``axis_b``,
+    ``axis_n`` ((n, 3) local frame), ``spar_points_m`` ((n, 3)), ``point_loads`` (the tuple
+    given), ``sign_convention``.
+    """
+    y = np.asarray(y, dtype=float)
+    n = y.size
+    if n < 2 or not np.all(np.isfinite(y)) or np.any(np.diff(y) <= 0):
+        raise InputError("integrate_loads: y must hold >= 2 finite stations increasing root to tip")
+    sx, sz = _col(spar_x, n, "spar_x"), _col(spar_z, n, "spar_z")
+    lift = _col(lift_N_per_m, n, "lift_N_per_m")
+    drag = _col(drag_N_per_m, n, "drag_N_per_m")
+    pitch = _col(pitch_Nm_per_m, n, "pitch_Nm_per_m")
+    ax = sx if load_x is None else _col(load_x, n, "load_x")
+    az = sz if load_z is None else _col(load_z, n, "load_z")
+    q = _col(inertia_N_per_m, n, "inertia_N_per_m")
+    ix = sx if inertia_x is None else _col(inertia_x, n, "inertia_x")
+    iz = sz if inertia_z is None else _col(inertia_z, n, "inertia_z")
+    zero = np.zeros(n)
+    p = np.column_stack([sx, y, sz])
+
+    fa, ma = _segment_moments(y, p, np.column_stack([ax, y, az]), np.column_stack([drag, zero, lift]))
+    fi, mi = _segment_moments(y, p, np.column_stack([ix, y, iz]), np.column_stack([zero, zero, -q]))
+    couple = np.zeros((n - 1, 3))
+    couple[:, 1] = 0.5 * np.diff(y) * (pitch[:-1] + pitch[1:])  # about axes parallel to y
+    seg_f = fa + fi
+    seg_m = ma + mi + couple
+    # tip to root: M_i = sum_{j>=i} [m_j + (P_j - P_i) x f_j], evaluated relative to P_i
+    force = np.zeros((n, 3))
+    moment = np.zeros((n, 3))
+    for i in range(n - 2, -1, -1):
+        force[i] = force[i + 1] + seg_f[i]
+        moment[i] = moment[i + 1] + np.cross(p[i + 1] - p[i], force[i + 1]) + seg_m[i]
+    tol = 1e-12 * max(1.0, float(y[-1] - y[0]))
+    for pl in point_loads:
+        r, fv = np.asarray(pl.position, float), np.asarray(pl.force, float)
+        on = y <= r[1] + tol
+        force[on] += fv
+        moment[on] += np.cross(r[None, :] - p[on], fv[None, :])
+
+    s, b, nrm = spar_frame(y, sx, sz)
+    dot = lambda a, e: np.einsum("ij,ij->i", a, e)  # noqa: E731
+    pitch_spar = pitch + (az - sz) * drag - (ax - sx) * lift
+    return SpanLoads(
+        case=case, y=y, lift_N_per_m=lift, drag_N_per_m=drag, pitch_Nm_per_m=pitch_spar,
+        inertia_N_per_m=q, shear_N=dot(force, nrm), bending_Nm=dot(moment, b),
+        torsion_Nm=dot(moment, s), inplane_shear_N=dot(force, b),
+        inplane_bending_Nm=-dot(moment, nrm),
+        schrenk_lift_N_per_m=(np.full(n, np.nan) if schrenk_lift_N_per_m is None
+                              else _col(schrenk_lift_N_per_m, n, "schrenk_lift_N_per_m")),
+        ultimate_factor=float(ultimate_factor),
+        extras={"force_N": force, "moment_Nm": moment, "axis_s": s, "axis_b": b, "axis_n": nrm,
+                "point_loads": tuple(point_loads), "spar_points_m": p,
+                "sign_convention": SIGN_CONVENTION},
+    )
+
+
+def ultimate(loads: SpanLoads) -> dict:
+    """Ultimate shear, bending, torsion and in-plane values: ultimate_factor x limit."""
+    k = loads.ultimate_factor
+    return {name: k * getattr(loads, name) for name in
+            ("shear_N", "bending_Nm", "torsion_Nm", "inplane_shear_N", "inplane_bending_Nm")}
+
+
+def equilibrium_residual(loads: SpanLoads) -> dict:
+    """Root equilibrium check, computed independently of the tip-to-root recursion.
+
+    Total vertical load = integral of (lift - inertia) (trapezoid, exact for linear loads) plus
+    the z forces of the point loads; first moment about the root = integral of (y - y0) times
+    the same (closed form for linear loads) plus the point-load moments. Compared with the
+    root resultant force z component and moment x component (wing frame).
+
+    Returns dict: total_vertical_N, first_moment_Nm, shear_residual_rel, bending_residual_rel.
+    """
+    y, g = loads.y, loads.lift_N_per_m - loads.inertia_N_per_m
+    a, b, ga, gb = y[:-1] - y[0], y[1:] - y[0], g[:-1], g[1:]
+    total = float(np.sum(0.5 * (b - a) * (ga + gb)))
+    first = float(np.sum((b - a) / 6.0 * (2 * a * ga + a * gb + b * ga + 2 * b * gb)))
+    p0 = loads.extras["spar_points_m"][0]
+    for pl in loads.extras.get("point_loads", ()):
+        r, fv = np.asarray(pl.position, float), np.asarray(pl.force, float)
+        if r[1] >= y[0] - 1e-12 * max(1.0, float(y[-1] - y[0])):
+            total += float(fv[2])
+            first += float((r[1] - p0[1]) * fv[2] - (r[2] - p0[2]) * fv[1])
+    f0, m0 = loads.extras["force_N"][0], loads.extras["moment_Nm"][0]
+    return {"total_vertical_N": total, "first_moment_Nm": first,
+            "shear_residual_rel": abs(f0[2] - total) / max(abs(total), 1e-300),
+            "bending_residual_rel": abs(m0[0] - first) / max(abs(first), 1e-300)}
+
+
+def schrenk(y, chord, semispan, total_lift_half):
+    """Schrenk's approximate spanwise lift (NACA TM 948): the mean of a distribution shaped
+    like the chord and an elliptic one, each carrying total_lift_half (N) on the semi-span.
+
+    y, chord : (n,) stations (m) covering root to tip; the chord integral uses the trapezoid
+    rule on them. semispan : tip y (m). Returns lift per span (N/m) at y.
+    """
+    y, c = np.asarray(y, float), np.asarray(chord, float)
+    area = float(np.sum(0.5 * (c[1:] + c[:-1]) * np.diff(y)))
+    if area <= 0 or semispan <= 0:
+        raise InputError("schrenk: chord and semispan must be positive")
+    planform = total_lift_half * c / area
+    ellipse = 4.0 * total_lift_half / (np.pi * semispan) * np.sqrt(np.clip(1 - (y / semispan) ** 2, 0, None))
+    return 0.5 * (planform + ellipse)

@@ -1,0 +1,297 @@
+"""The whole job of `geomload run`: case file -> geometry -> lattice -> trimmed cases -> loads ->
+envelope -> every output, written atomically.
+
+Decisions (docs/methods_loads.md, "Pipeline decisions"):
+- Trim: lift (normal to the free stream) of the wing = lift_share x n x W. The lattice is linear,
+  so each Mach needs one factorisation; cases are grouped into Mach bins of MACH_BIN width and
+  solved on the lattice at the bin's upper Mach (Prandtl-Glauert changes CL_alpha by under 0.2 %
+  across a bin at the low Mach of small aircraft; the upper edge is the conservative side).
+- Out-of-plane loads: the lift is applied normal to the wing plane (conservative: the true normal
+  force L cos(alpha) + D sin(alpha) is smaller at positive alpha), the inertia n g m'(y) opposes
+  it. The chordwise (in-plane) force is D cos(alpha) - L sin(alpha): forward at high alpha.
+- Load grid: the lattice's strip edges from root to tip. Strip lift per span is interpolated to
+  the edges (zero at the tip) and scaled so its integral equals the lattice's total exactly.
+"""
+
+from __future__ import annotations
+
+import math
+import time
+from pathlib import Path
+
+import numpy as np
+
+from geomload.errors import AeroError, CaseError, GeomloadError
+from geomload.records import CaseResult, RunResult, no_progress
+
+G0 = 9.80665  # m/s^2 standard gravity (CGPM 1901)
+MACH_BIN = 0.05
+
+
+def _mach_bin(m: float) -> float:
+    if m <= 1e-9:
+        return 0.0
+    return min(math.ceil(m / MACH_BIN - 1e-9) * MACH_BIN, m if m >= 0.95 else 0.95)
+
+
+class _Models:
+    """One factorised AeroModel per Mach bin, built on first use."""
+
+    def __init__(self, lattice):
+        self.lattice, self.models, self._cla, self._stall = lattice, {}, {}, {}
+
+    def get(self, mach: float):
+        from geomload.aero.solve import AeroModel
+
+        key = round(_mach_bin(mach), 6)
+        if key not in self.models:
+            self.models[key] = AeroModel(self.lattice, mach=key)
+        return self.models[key]
+
+    def lift_slope(self, mach: float) -> float:
+        key = round(_mach_bin(mach), 6)
+        if key not in self._cla:
+            self._cla[key] = float(self.get(mach).solve(0.0).CL_alpha_per_rad)
+        return self._cla[key]
+
+    def stall_cl(self, mach: float, cl_max: float):
+        key = (round(_mach_bin(mach), 6), float(cl_max))
+        if key not in self._stall:
+            self._stall[key] = self.get(mach).stall(cl_max)
+        return self._stall[key]
+
+    @property
+    def warnings(self):
+        out = []
+        for m in self.models.values():
+            out.extend(getattr(m, "warnings", []))
+        return out
+
+
+def _edges_geometry(lattice):
+    """Root-to-tip load grid (lattice strip edges) with LE/TE points there (m)."""
+    c = lattice.corners
+    le, te = c[:, 0, :], c[:, -1, :]
+    y = le[:, 1]
+    if y[0] > y[-1]:
+        le, te, y = le[::-1], te[::-1], y[::-1]
+    keep = y >= -1e-12  # a full-span lattice: the starboard half
+    le, te, y = le[keep], te[keep], np.clip(y[keep], 0.0, None)
+    chord = np.hypot(te[:, 0] - le[:, 0], te[:, 2] - le[:, 2])
+    return y, le, te, chord
+
+
+def _to_edges(y_edges, y_strip, values, width, total=None, tip_zero=True):
+    """Strip-centre values -> edge values, piecewise linear, integral scaled to the strip total."""
+    v = np.interp(y_edges, y_strip, values)
+    if y_strip.size >= 2 and y_edges[0] < y_strip[0]:
+        slope = (values[1] - values[0]) / (y_strip[1] - y_strip[0])
+        v[0] = values[0] + slope * (y_edges[0] - y_strip[0])
+    if tip_zero:
+        v[-1] = 0.0
+    strip_total = float(np.sum(values * width)) if total is None else float(total)
+    grid_total = float(np.sum(0.5 * (v[1:] + v[:-1]) * np.diff(y_edges)))
+    if abs(grid_total) > 1e-300 and abs(strip_total) > 1e-300:
+        v = v * (strip_total / grid_total)
+    return v
+
+
+def _starboard_strips(sol, lattice):
+    y = np.asarray(sol.y)
+    keep = y >= 0
+    return keep
+
+
+def solve_case(lc, case, lattice, models, stations, grid, masses_cache, atmosphere):
+    """Trim one LoadCase and integrate its loads. Returns a CaseResult."""
+    from geomload.case import airspeeds
+    from geomload.loads.beam import equilibrium_residual, integrate_loads, schrenk, spar_line
+    from geomload.loads.masses import inertia_loads, mass_distribution
+
+    atm = atmosphere(lc.altitude_m)
+    v_eas, v_tas = airspeeds(lc)
+    mach = v_tas / atm.a
+    if not math.isfinite(mach) or mach >= 1.0:
+        raise AeroError(f"{case.path}: load_case '{lc.name}': Mach {mach:.3f} >= 1 "
+                        "(speed too high for linear subsonic theory)")
+    if v_tas <= 0:
+        raise CaseError(f"{case.path}: load_case '{lc.name}': speed must be > 0")
+    q = 0.5 * atm.rho * v_tas ** 2
+    mass = case.aircraft.gross_mass_kg if lc.mass_kg is None else lc.mass_kg
+    lift_req = lc.lift_share * lc.load_factor * mass * G0
+    CL_req = lift_req / (q * lattice.s_ref)
+    model = models.get(mach)
+    alpha = model.alpha_for_cl(CL_req)
+    sol = model.solve(alpha)
+
+    warn = ""
+    cl_max = lc.cl_max if lc.cl_max is not None else case.aircraft.cl_max
+    if cl_max is not None and CL_req > 0:
+        st = models.stall_cl(mach, cl_max)
+        if math.isfinite(st["CL_at_onset"]) and CL_req > st["CL_at_onset"] * (1 + 1e-6):
+            warn = (f"required CL {CL_req:.3f} is beyond the stall-onset estimate "
+                    f"CL {st['CL_at_onset']:.3f} (section cl_max {cl_max:g} first reached at "
+                    f"y = {st['first_station_y']:.2f} m): the case is not attainable, it lies on "
+                    "the stall line")
+
+    y, le, te, chord = grid
+    keep = np.asarray(sol.y) >= 0
+    ys, ws = np.asarray(sol.y)[keep], lattice.strip_width[keep] if lattice.strip_width.size == \
+        keep.size else lattice.strip_width
+    order = np.argsort(ys)
+    ys, ws = ys[order], ws[order]
+    pick = lambda a: np.asarray(a)[keep][order]  # noqa: E731
+    lift_s = pick(sol.lift_per_q) * q
+    cd0 = lc.cd0 if lc.cd0 is not None else case.aircraft.cd0
+    drag_s = pick(sol.drag_per_q) * q + (cd0 or 0.0) * q * pick(sol.chord)
+    pitch_s = pick(sol.moment_per_q) * q
+    lift = _to_edges(y, ys, lift_s, ws)
+    drag = _to_edges(y, ys, drag_s, ws)
+    pitch = _to_edges(y, ys, pitch_s, ws)
+    a = math.radians(alpha)
+    chordwise = drag * math.cos(a) - lift * math.sin(a)
+
+    spar = case.spar
+    sx, sz = spar_line(y, le[:, 0], te[:, 0], le[:, 2], te[:, 2],
+                       spar.chord_fraction if spar.chord_fraction is not None else 0.25, spar.line)
+    load_x = le[:, 0] + 0.25 * (te[:, 0] - le[:, 0])
+    load_z = le[:, 2] + 0.25 * (te[:, 2] - le[:, 2])
+    key = float(lc.fuel_fraction)
+    if key not in masses_cache:
+        masses_cache[key] = mass_distribution(y, chord, le[:, 0], te[:, 0], sx, sz,
+                                              case.wing_mass, case.fuel_tanks, key)
+    dist = masses_cache[key]
+    inertia, point_loads = inertia_loads(dist, lc.load_factor, case.point_masses)
+    half_lift = float(np.sum(0.5 * (lift[1:] + lift[:-1]) * np.diff(y)))
+    loads = integrate_loads(
+        y, sx, sz, lift, drag_N_per_m=chordwise, pitch_Nm_per_m=pitch, load_x=load_x,
+        load_z=load_z, inertia_N_per_m=inertia, inertia_x=dist.x_m, inertia_z=dist.z_m,
+        point_loads=point_loads, case=lc.name, ultimate_factor=case.ultimate_factor,
+        schrenk_lift_N_per_m=schrenk(y, chord, stations.semispan, half_lift))
+    res = equilibrium_residual(loads)
+    loads.extras.update({"alpha_deg": alpha, "CL_required": CL_req, "q_pa": q,
+                         "aero_drag_N_per_m": drag, "chord_m": chord,
+                         "lift_total_N": 2.0 * half_lift, "mach_lattice": _mach_bin(mach),
+                         "equilibrium": res})
+    return CaseResult(name=lc.name, v_eas=v_eas, v_tas=v_tas, altitude_m=lc.altitude_m,
+                      mach=mach, q_pa=q, load_factor=lc.load_factor, mass_kg=mass,
+                      lift_share=lc.lift_share, aero=sol, loads=loads, stall_warning=warn,
+                      residual=max(res["shear_residual_rel"], res["bending_residual_rel"]))
+
+
+def compute(case, progress=None):
+    """Run every case of a parsed Case in memory. Returns a RunResult (nothing is written)."""
+    from geomload.aero.atmosphere import isa
+    from geomload.aero.lattice import build_lattice
+    from geomload.case import check_against_span
+    from geomload.geometry import load_wing
+
+    progress = progress or no_progress
+    timings, warnings = {}, []
+    t0 = time.perf_counter()
+    g = case.geometry
+    mesh, frame, stations, planform = load_wing(g.file, units=g.units, body=g.body,
+                                                span_axis=g.span_axis, up_axis=g.up_axis,
+                                                n_stations=g.n_stations, spacing=g.spacing,
+                                                progress=progress)
+    timings["geometry"] = time.perf_counter() - t0
+    check_against_span(case, stations.semispan)
+    t1 = time.perf_counter()
+    lat = case.lattice
+    lattice = build_lattice(stations, n_span=lat.n_span, n_chord=lat.n_chord,
+                            spacing=lat.spacing, x_ref=case.moment_reference)
+    models = _Models(lattice)
+    load_cases = list(case.load_cases)
+    vn = None
+    if case.envelope is not None:
+        from geomload.loads.envelope import critical_points, points_to_load_cases, vn_diagram
+
+        spec = case.envelope
+        mean_chord = lattice.s_ref / lattice.b_ref
+        atm = lambda h: (isa(h).rho, isa(h).a)  # noqa: E731
+        pts = critical_points(spec, case.aircraft.gross_mass_kg, lattice.s_ref, mean_chord,
+                              models.lift_slope, case.fuel_mass_kg, atm)
+        load_cases += list(points_to_load_cases(pts, spec.lift_share, case.aircraft.cl_max,
+                                                case.aircraft.cd0))
+        masses = [case.aircraft.gross_mass_kg] + (
+            [spec.min_mass_kg] if spec.min_mass_kg not in (None, case.aircraft.gross_mass_kg) else [])
+        vn = [vn_diagram(spec, case.aircraft.gross_mass_kg, lattice.s_ref, mean_chord,
+                         models.lift_slope, m, h, atm)
+              for m in masses for h in spec.altitudes_m]
+        for d in vn:
+            warnings.extend(d.notes)
+        warnings.extend(d for d in ())
+    if not load_cases:
+        raise CaseError(f"{case.path}: no load_case and no [envelope]: nothing to run")
+    names = [lc.name for lc in load_cases]
+    dup = sorted({n for n in names if names.count(n) > 1})
+    if dup:
+        raise CaseError(f"{case.path}: load_case.name: duplicate case name(s) {', '.join(dup)}")
+    grid = _edges_geometry(lattice)
+    masses_cache, results = {}, []
+    for i, lc in enumerate(load_cases):
+        results.append(solve_case(lc, case, lattice, models, stations, grid, masses_cache, isa))
+        progress("cases", i + 1, len(load_cases))
+    timings["aero and loads"] = time.perf_counter() - t1
+    envelope = None
+    from geomload.loads.envelope import envelope_of
+
+    envelope = envelope_of([r.loads for r in results])
+    first = models.get(results[0].mach)
+    sweep = [(float(a), float(s.CL)) for a, s in
+             zip(np.arange(-6.0, 16.01, 1.0), first.solve_many(np.arange(-6.0, 16.01, 1.0)))]
+    warnings.extend(models.warnings)
+    warnings.extend(f"{r.name}: {r.stall_warning}" for r in results if r.stall_warning)
+    for note in list(mesh.notes) + list(frame.notes) + list(stations.notes):
+        warnings.append(note)
+    return RunResult(case_path=case.path, case_text=Path(case.path).read_text(errors="replace"),
+                     case=case, mesh=mesh, frame=frame, stations=stations, planform=planform,
+                     lattice=lattice, cases=results, envelope=envelope, vn=vn, alpha_sweep=sweep,
+                     warnings=warnings, timings=timings, versions=_versions())
+
+
+def _versions() -> dict:
+    import importlib.metadata as md
+    import platform
+
+    out = {"python": platform.python_version()}
+    for pkg in ("geomload", "numpy", "scipy", "trimesh", "meshio", "pyvista", "matplotlib",
+                "click"):
+        try:
+            out[pkg] = md.version(pkg)
+        except md.PackageNotFoundError:
+            out[pkg] = "not installed"
+    return out
+
+
+def run_case_file(case_path, out_dir, force=False, render=True, progress=None):
+    """Parse, compute and write a run. Returns (RunResult, list of files written)."""
+    from geomload.case import load_case
+    from geomload.export import write_all
+    from geomload.export.atomic import OutputDir
+
+    progress = progress or no_progress
+    t0 = time.perf_counter()
+    case = load_case(case_path)
+    inputs = [case.path, case.geometry.file]
+    od = OutputDir(out_dir, force=force, inputs=inputs)
+    od.open()  # refuse a bad output folder before the heavy work
+    try:
+        result = compute(case, progress)
+        t_exp = time.perf_counter()
+        written = write_all(result, od.staging, inputs=inputs, render=render, progress=progress,
+                            options={"render": render, "force": force},
+                            run_time_s=time.perf_counter() - t0)
+        result.timings["export"] = time.perf_counter() - t_exp
+        od.commit()
+    except BaseException:
+        od.abort()
+        raise
+    finally:
+        close = getattr(progress, "close", None)
+        if callable(close):
+            close()
+    return result, written["files"]
+
+
+__all__ = ["compute", "run_case_file", "solve_case", "GeomloadError"]

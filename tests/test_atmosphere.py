@@ -1,0 +1,73 @@
+"""ISA checks against the U.S. Standard Atmosphere 1976 tables and the `ambiance` package."""
+
+import math
+
+import numpy as np
+import pytest
+
+from geomload.aero import atmosphere as atm
+from geomload.errors import InputError
+
+
+@pytest.mark.parametrize("h, T, p, rho", [
+    # U.S. Standard Atmosphere 1976, table I (geopotential altitude); VALIDATION.md item 6
+    (0.0, 288.15, 101325.0, 1.2250),
+    (11000.0, 216.65, 22632.0, 0.36392),
+    # 20 km geopotential: table I lists 216.65 K, 5474.9 Pa, 0.088035 kg/m^3 (from memory)
+    (20000.0, 216.65, 5474.9, 0.088035),
+])
+def test_isa_matches_1976_tables(h, T, p, rho):
+    s = atm.isa(h)
+    assert s.T == pytest.approx(T, abs=0.01)
+    assert s.p == pytest.approx(p, rel=2e-4)
+    assert s.rho == pytest.approx(rho, rel=2e-4)
+
+
+def test_sea_level_speed_of_sound_and_viscosity():
+    # 1976 table: a0 = 340.294 m/s, mu0 = 1.7894e-5 Pa s (from memory)
+    s = atm.isa(0.0)
+    assert s.a == pytest.approx(340.294, abs=0.01)
+    assert s.mu == pytest.approx(1.7894e-5, rel=1e-3)
+
+
+@pytest.mark.parametrize("h", [-500.0, 0.0, 1234.0, 6000.0, 10999.0, 11000.0, 15500.0, 20000.0])
+def test_isa_matches_ambiance(h):
+    # second reference: the registry package `ambiance` (takes geometric altitude)
+    Atmosphere = pytest.importorskip("ambiance").Atmosphere
+    ref = Atmosphere(atm.geometric_from_geopotential(h))
+    s = atm.isa(h)
+    assert s.T == pytest.approx(float(ref.temperature[0]), rel=1e-6)
+    assert s.p == pytest.approx(float(ref.pressure[0]), rel=1e-5)
+    assert s.rho == pytest.approx(float(ref.density[0]), rel=1e-5)
+    assert s.a == pytest.approx(float(ref.speed_of_sound[0]), rel=1e-6)
+    assert s.mu == pytest.approx(float(ref.dynamic_viscosity[0]), rel=1e-4)
+
+
+def test_geopotential_conversion_round_trip():
+    # H = r0 z / (r0 + z): 20 km geometric is 19 937 m geopotential (1976 standard)
+    assert atm.geopotential_from_geometric(20000.0) == pytest.approx(19937.3, abs=0.5)
+    z = atm.geometric_from_geopotential(12345.0)
+    assert atm.geopotential_from_geometric(z) == pytest.approx(12345.0, abs=1e-6)
+
+
+def test_speeds_and_dynamic_pressure():
+    h = 3000.0
+    s = atm.isa(h)
+    v = atm.tas_from_eas(50.0, h)
+    # definition of EAS: 0.5 rho V^2 = 0.5 rho0 Ve^2
+    assert atm.dynamic_pressure(v, h) == pytest.approx(0.5 * 1.225 * 50.0**2, rel=1e-4)
+    assert atm.eas_from_tas(v, h) == pytest.approx(50.0, rel=1e-12)
+    assert atm.mach(v, h) == pytest.approx(v / math.sqrt(1.4 * 287.05287 * s.T), rel=1e-9)
+    assert v > 50.0  # air is thinner aloft
+
+
+@pytest.mark.parametrize("h", [20000.1, -501.0, float("nan"), float("inf"), "high"])
+def test_altitude_out_of_range(h):
+    with pytest.raises(InputError, match="altitude"):
+        atm.isa(h)
+
+
+def test_negative_speed_rejected():
+    with pytest.raises(InputError, match="TAS"):
+        atm.mach(-1.0, 0.0)
+    assert np.isfinite(atm.mach(np.float64(30.0), 100.0))

@@ -1,0 +1,60 @@
+"""Offscreen 3-D pictures (small meshes) and the screenshot form of `view`."""
+
+import numpy as np
+import pytest
+
+from geomload.errors import InputError
+from geomload.export import render, vtk
+
+import fakerun
+
+pv = pytest.importorskip("pyvista")
+Image = pytest.importorskip("PIL.Image")
+
+
+def _pixels(path):
+    return np.asarray(Image.open(path).convert("RGB"), float)
+
+
+@pytest.fixture(scope="module")
+def run():
+    return fakerun.make_run()
+
+
+def test_render_all_and_stations(tmp_path, run):
+    out = render.render_all(run, tmp_path)
+    assert set(out) == set(render.RENDERS)
+    for name, p in out.items():
+        assert not isinstance(p, Exception), (name, p)
+        px = _pixels(p)
+        assert px.shape == (render.WINDOW[1], render.WINDOW[0], 3) and px.var() > 0
+    p = render.render_stations_png(run.mesh, run.frame, run.stations, tmp_path / "st.png")
+    px = _pixels(p)
+    # the orange chord lines (R high, B low) are drawn
+    orange = (px[..., 0] > 200) & (px[..., 1] > 80) & (px[..., 1] < 190) & (px[..., 2] < 80)
+    assert orange.sum() > 50
+
+
+def test_dcp_colours_differ_between_cases(tmp_path, run):
+    a = _pixels(render.render_surface_dcp(run, tmp_path / "a.png", case=run.cases[0].name))
+    b = _pixels(render.render_surface_dcp(run, tmp_path / "b.png", case=run.cases[2].name))
+    assert np.abs(a - b).mean() > 1.0   # negative vs positive lift paint differently
+
+
+def test_render_failure_is_returned_not_raised(tmp_path, run, monkeypatch):
+    def boom(*a, **k):
+        raise RuntimeError("no OpenGL context")  # what a machine without OpenGL would raise
+
+    monkeypatch.setitem(render.RENDERS, "surface_dcp", boom)
+    out = render.render_all(run, tmp_path)
+    assert isinstance(out["surface_dcp"], RuntimeError)
+
+
+def test_view_screenshot_and_bad_case(tmp_path, run):
+    vtk.write_all_vtk(tmp_path, run)
+    p = render.view(tmp_path, case=run.cases[0].name, screenshot=tmp_path / "v.png")
+    assert _pixels(p).var() > 0
+    with pytest.raises(InputError, match="not in this run"):
+        render.view(tmp_path, case="no such case", screenshot=tmp_path / "x.png")
+    with pytest.raises(InputError, match="not a geomload run folder"):
+        render.view(tmp_path / "missing", screenshot=tmp_path / "y.png")

@@ -1,0 +1,105 @@
+"""The HTML report: every section and picture, pictures decode and are not blank, user text escaped."""
+
+import base64
+import io
+import json
+import os
+import re
+import subprocess
+
+import numpy as np
+import pytest
+
+from geomload import CAUTION
+from geomload.export import report, write_all
+from geomload.export.atomic import OutputDir
+
+import fakerun
+
+EVIL = "<script>alert(1)</script>"
+
+
+@pytest.fixture(scope="module")
+def rundir(tmp_path_factory):
+    run = fakerun.make_run(("cruise 1g", EVIL, "push -1.5g"))
+    out = tmp_path_factory.mktemp("r") / "run"
+    with OutputDir(out, inputs=[run.case_path]) as od:
+        res = write_all(run, od.staging, options={"--n-stations": 12})
+    return run, out, res
+
+
+def _images(html):
+    return re.findall(r'<img alt="([^"]*)" src="data:image/png;base64,([A-Za-z0-9+/=]+)"', html)
+
+
+def test_all_outputs_present(rundir):
+    run, out, res = rundir
+    for rel in res["files"]:
+        assert (out / rel).is_file(), rel
+    for name in ("stations.csv", "summary.json", "envelope.csv", "vn.csv", "lattice.vtp",
+                 "load_axis.vtp", "surface.vtp", "report.html", "plots/vn.svg", "plots/loads.png"):
+        assert (out / name).is_file(), name
+    assert len(list((out / "loads").glob("*.csv"))) == 3
+    assert json.loads((out / "summary.json").read_text())["caution"] == CAUTION
+
+
+def test_report_sections_and_images(rundir):
+    run, out, res = rundir
+    html = (out / "report.html").read_text()
+    for key, title in report.SECTIONS:
+        assert f'<section id="{key}"><h2>{title}</h2>' in html
+    # the job and the caution come first
+    assert html.index(CAUTION) < html.index('<section id="geometry"')
+    imgs = _images(html)
+    expected = {n for n in res["images"]}
+    assert len(imgs) == len(expected) == 8
+    for name in expected:
+        assert f'id="img-{name}"' in html
+    from PIL import Image
+    for alt, data in imgs:
+        px = np.asarray(Image.open(io.BytesIO(base64.b64decode(data))).convert("RGB"), float)
+        assert px.var() > 0, alt            # not blank
+        assert min(px.shape[:2]) > 100
+    assert "src=\"http" not in html and "<link" not in html   # self-contained
+
+
+def test_user_strings_escaped(rundir):
+    run, out, _ = rundir
+    html = (out / "report.html").read_text()
+    assert EVIL not in html
+    assert "&lt;script&gt;alert(1)&lt;/script&gt;" in html
+    assert "<script" not in html.lower()
+    assert "--n-stations" in html and "pellin_wing.stl" in html  # inputs echoed
+
+
+def test_render_failure_message(rundir):
+    run, out, res = rundir
+    imgs = {k: out / v for k, v in res["images"].items()}
+    imgs["surface_dcp"] = RuntimeError("no OpenGL context\nsecond line")
+    html = report.render_html(run, imgs)
+    assert "3D render unavailable: no OpenGL context second line" in html
+    assert len(_images(html)) == 7
+
+
+def test_report_without_envelope(rundir):
+    run, _, res = rundir
+    import dataclasses
+    bare = dataclasses.replace(run, envelope=None, vn=None)
+    _, out, _ = rundir
+    html = report.render_html(bare, {k: out / v for k, v in res["images"].items() if k != "vn"})
+    assert "No envelope was defined" in html and "No V-n diagram" in html
+
+
+CHROMIUM = next((p for p in ("/usr/bin/chromium", "/usr/bin/chromium-browser") if os.path.exists(p)), None)
+
+
+@pytest.mark.skipif(CHROMIUM is None, reason="no headless Chromium installed")
+def test_chromium_screenshot(rundir, tmp_path):
+    _, out, _ = rundir
+    shot = tmp_path / "shot.png"
+    subprocess.run([CHROMIUM, "--headless", "--no-sandbox", "--disable-gpu",
+                    f"--screenshot={shot}", "--window-size=1200,2000",
+                    (out / "report.html").as_uri()], check=True, timeout=60, capture_output=True)
+    from PIL import Image
+    px = np.asarray(Image.open(shot).convert("RGB"), float)
+    assert px.var() > 0

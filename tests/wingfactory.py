@@ -1,0 +1,108 @@
+"""Wings built in memory from the NACA 4-digit equations, with their exact design values.
+
+Other stages' tests may use `naca_wing_mesh(...)` for a `WingMesh` whose geometry is known
+exactly (NACA Report 824 sections on a straight-tapered planform).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from geomload.geometry.airfoil import farthest_point_chord, loft_wing
+from geomload.records import WingMesh
+
+
+def design(semispan=1.8, root_chord=0.36, taper=0.5, sweep_le_deg=4.0, dihedral_deg=3.0,
+           washout_deg=3.0, t_root=0.12, t_tip=0.10, code="2412"):
+    """The design as a dict of parameters and exact functions of y (m, deg)."""
+    s = semispan
+    d = dict(semispan=s, root_chord=root_chord, taper=taper, sweep_le_deg=sweep_le_deg,
+             dihedral_deg=dihedral_deg, washout_deg=washout_deg, t_root=t_root, t_tip=t_tip, code=code)
+    f = lambda y: np.abs(np.asarray(y, float)) / s  # noqa: E731
+    d["chord"] = lambda y: root_chord * (1 - (1 - taper) * f(y))
+    d["x_le"] = lambda y: np.abs(y) * np.tan(np.radians(sweep_le_deg))
+    d["z_le"] = lambda y: np.abs(y) * np.tan(np.radians(dihedral_deg))
+    d["twist"] = lambda y: -washout_deg * f(y)
+    d["t"] = lambda y: t_root + (t_tip - t_root) * f(y)
+    ct = root_chord * taper
+    # straight-tapered wing formulas (e.g. Raymer, Aircraft Design, ch. 4)
+    d["area"] = s * (root_chord + ct)
+    d["span"] = 2 * s
+    d["aspect_ratio"] = (2 * s) ** 2 / d["area"]
+    d["mac"] = 2.0 / 3.0 * root_chord * (1 + taper + taper**2) / (1 + taper)
+    d["y_mac"] = s / 3.0 * (1 + 2 * taper) / (1 + taper)
+    return d
+
+
+def measured_definition(d, y, blunt_te=True):
+    """Exact chord, LE (x, z) and twist by the farthest-point chord-line rule at stations y.
+
+    The LE of a cambered section found as the point farthest from the TE sits slightly above
+    the nominal NACA LE (see airfoil.farthest_point_chord); this evaluates that rule on the
+    exact equations so tests can compare like with like.
+    """
+    y = np.asarray(y, float)
+    out = {k: np.zeros(y.size) for k in ("chord", "x_le", "z_le", "twist")}
+    for i, yi in enumerate(y):
+        le, cl, ang = farthest_point_chord(d["code"], blunt_te, float(d["t"](yi)))
+        c, a = float(d["chord"](yi)), np.radians(float(d["twist"](yi)))
+        out["x_le"][i] = d["x_le"](yi) + c * (le[0] * np.cos(a) + le[1] * np.sin(a))
+        out["z_le"][i] = d["z_le"](yi) + c * (-le[0] * np.sin(a) + le[1] * np.cos(a))
+        out["chord"][i] = c * cl
+        out["twist"][i] = d["twist"](yi) + ang
+    return out
+
+
+def wing_triangles(d, n_chord=80, n_span=40, blunt_te=True, full_span=False):
+    """(m, 3, 3) triangle soup of design d, sections parallel to x-z, wing frame (m)."""
+    s = d["semispan"]
+    ys = s * np.sin(np.linspace(0, np.pi / 2, n_span))  # denser towards the tip
+    if full_span:
+        ys = np.concatenate([-ys[:0:-1], ys])
+    return loft_wing(ys, d["chord"](ys), d["x_le"](ys), d["z_le"](ys), d["twist"](ys), d["t"](ys),
+                     d["code"], n_chord, blunt_te)
+
+
+def naca_wing_mesh(n_chord=80, n_span=40, blunt_te=True, full_span=False, rotation=None,
+                   translation=None, scale=1.0, source="<naca wing>", **design_kw):
+    """A `WingMesh` of a NACA wing, optionally moved: p = scale * rotation @ p_wing + translation.
+
+    Returns (mesh, design dict).
+    """
+    d = design(**design_kw)
+    t = wing_triangles(d, n_chord, n_span, blunt_te, full_span)
+    if rotation is not None:
+        t = t @ np.asarray(rotation, float).T
+    t = t * scale
+    if translation is not None:
+        t = t + np.asarray(translation, float)
+    return WingMesh(triangles=t, source=source, units="m"), d
+
+
+def random_rotation(seed):
+    """A proper rotation matrix from a seeded QR decomposition."""
+    q, r = np.linalg.qr(np.random.default_rng(seed).normal(size=(3, 3)))
+    q = q * np.sign(np.diag(r))
+    if np.linalg.det(q) < 0:
+        q[:, 0] = -q[:, 0]
+    return q
+
+
+def expected_stations(d, y, blunt_te=True):
+    """Exact station values in the wing frame geomload defines (x along the root chord line,
+    origin at the root LE), by the farthest-point chord-line rule; y (m) starboard stations.
+
+    Returns dict: chord, x_le, z_le, twist (deg), x_qc, z_qc.
+    """
+    ex = measured_definition(d, y, blunt_te)
+    r = measured_definition(d, [0.0], blunt_te)
+    le0 = np.array([r["x_le"][0], r["z_le"][0]])
+    a = np.radians(r["twist"][0])  # the root chord line is nose-up by a in the design frame
+    dx = np.array([np.cos(a), -np.sin(a)])
+    nz = np.array([np.sin(a), np.cos(a)])
+    p = np.column_stack([ex["x_le"], ex["z_le"]]) - le0
+    out = dict(chord=ex["chord"], x_le=p @ dx, z_le=p @ nz, twist=ex["twist"] - r["twist"][0])
+    tw = np.radians(out["twist"])
+    out["x_qc"] = out["x_le"] + 0.25 * out["chord"] * np.cos(tw)
+    out["z_qc"] = out["z_le"] - 0.25 * out["chord"] * np.sin(tw)
+    return out
