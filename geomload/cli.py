@@ -236,10 +236,9 @@ def run(case_file, out_dir, force, no_render):
     result, written = run_case_file(case_file, out_dir, force=force, render=not no_render,
                                     progress=_progress())
     for w in result.warnings:
-        _echo_err(f"geomload: warning: {w}")
+        _echo_err(f"geomload: {w}" if w.startswith("note: ") else f"geomload: warning: {w}")
     click.echo(run_table(result))
     click.echo(f"Wrote {len(written)} files to {out_dir}")
-    click.echo(CAUTION)
 
 
 # ------------------------------------------------------------------------------------------- view

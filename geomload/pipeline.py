@@ -68,8 +68,12 @@ class _Models:
         return out
 
 
-def _edges_geometry(lattice):
-    """Root-to-tip load grid (lattice strip edges) with LE/TE points there (m)."""
+def _edges_geometry(lattice, jumps=()):
+    """Root-to-tip load grid (lattice strip edges) with LE/TE points there (m).
+
+    jumps: spanwise positions of point loads; each adds two grid points (at the load and just
+    outboard of it) so the shear step shows as a step in every table and plot.
+    """
     c = lattice.corners
     le, te = c[:, 0, :], c[:, -1, :]
     y = le[:, 1]
@@ -77,6 +81,19 @@ def _edges_geometry(lattice):
         le, te, y = le[::-1], te[::-1], y[::-1]
     keep = y >= -1e-12  # a full-span lattice: the starboard half
     le, te, y = le[keep], te[keep], np.clip(y[keep], 0.0, None)
+    tip = float(y[-1])
+    eps = 1e-6 * tip
+    extra = []
+    for yj in jumps:
+        if 0.0 < yj < tip - 2 * eps:
+            extra += [yj, yj + eps]
+    if extra:
+        yn = np.unique(np.concatenate([y, extra]))
+        yn = yn[np.concatenate([[True], np.diff(yn) > 0.5 * eps])]
+        le = np.column_stack([np.interp(yn, y, le[:, k]) for k in range(3)])
+        te = np.column_stack([np.interp(yn, y, te[:, k]) for k in range(3)])
+        le[:, 1] = te[:, 1] = yn
+        y = yn
     chord = np.hypot(te[:, 0] - le[:, 0], te[:, 2] - le[:, 2])
     return y, le, te, chord
 
@@ -102,6 +119,36 @@ def _starboard_strips(sol, lattice):
     return keep
 
 
+def _stall_warning(lc, case, models, mach, CL_req) -> str:
+    """'' or a one-line warning when the required CL lies beyond the stall estimate.
+
+    The estimate is the wing CLmax of [envelope] (cl_max_pos / cl_max_neg) when given; otherwise
+    the wing CL at which the first strip reaches the section cl_max (load case or [aircraft]).
+    A 0.5 % margin keeps the stall-corner points, which sit on the line by construction, quiet.
+    """
+    env = case.envelope
+    cl_sec = lc.cl_max if lc.cl_max is not None else case.aircraft.cl_max
+    if CL_req >= 0:
+        if env is not None:
+            limit, what = env.cl_max_pos, "the wing CLmax of [envelope]"
+        elif cl_sec is not None:
+            st = models.stall_cl(mach, cl_sec)
+            if not math.isfinite(st["CL_at_onset"]):
+                return ""
+            limit = st["CL_at_onset"]
+            what = (f"the stall-onset estimate (section cl_max {cl_sec:g} first reached at "
+                    f"y = {st['first_station_y']:.2f} m)")
+        else:
+            return ""
+        if CL_req > limit * 1.005:
+            return (f"required CL {CL_req:.3f} is beyond {what}, CL {limit:.3f}: the case is not "
+                    "attainable; it lies beyond the stall line")
+    elif env is not None and -CL_req > env.cl_max_neg * 1.005:
+        return (f"required CL {CL_req:.3f} is beyond the negative wing CLmax of [envelope], "
+                f"-{env.cl_max_neg:.3f}: the case is not attainable; it lies beyond the stall line")
+    return ""
+
+
 def solve_case(lc, case, lattice, models, stations, grid, masses_cache, atmosphere):
     """Trim one LoadCase and integrate its loads. Returns a CaseResult."""
     from geomload.case import airspeeds
@@ -124,15 +171,7 @@ def solve_case(lc, case, lattice, models, stations, grid, masses_cache, atmosphe
     alpha = model.alpha_for_cl(CL_req)
     sol = model.solve(alpha)
 
-    warn = ""
-    cl_max = lc.cl_max if lc.cl_max is not None else case.aircraft.cl_max
-    if cl_max is not None and CL_req > 0:
-        st = models.stall_cl(mach, cl_max)
-        if math.isfinite(st["CL_at_onset"]) and CL_req > st["CL_at_onset"] * (1 + 1e-6):
-            warn = (f"required CL {CL_req:.3f} is beyond the stall-onset estimate "
-                    f"CL {st['CL_at_onset']:.3f} (section cl_max {cl_max:g} first reached at "
-                    f"y = {st['first_station_y']:.2f} m): the case is not attainable, it lies on "
-                    "the stall line")
+    warn = _stall_warning(lc, case, models, mach, CL_req)
 
     y, le, te, chord = grid
     keep = np.asarray(sol.y) >= 0
@@ -227,7 +266,7 @@ def compute(case, progress=None):
     dup = sorted({n for n in names if names.count(n) > 1})
     if dup:
         raise CaseError(f"{case.path}: load_case.name: duplicate case name(s) {', '.join(dup)}")
-    grid = _edges_geometry(lattice)
+    grid = _edges_geometry(lattice, [float(p.position[1]) for p in case.point_masses])
     masses_cache, results = {}, []
     for i, lc in enumerate(load_cases):
         results.append(solve_case(lc, case, lattice, models, stations, grid, masses_cache, isa))
@@ -243,7 +282,14 @@ def compute(case, progress=None):
     warnings.extend(models.warnings)
     warnings.extend(f"{r.name}: {r.stall_warning}" for r in results if r.stall_warning)
     for note in list(mesh.notes) + list(frame.notes) + list(stations.notes):
-        warnings.append(note)
+        warnings.append(f"note: {note}")
+    cl_sec = case.aircraft.cl_max
+    if cl_sec is not None:
+        st = models.stall_cl(results[0].mach, cl_sec)
+        if math.isfinite(st["CL_at_onset"]):
+            warnings.append(f"note: stall onset: section cl_max {cl_sec:g} is first reached at y = "
+                            f"{st['first_station_y']:.2f} m at wing CL {st['CL_at_onset']:.3f} "
+                            f"(alpha {st['alpha_at_onset']:.1f} deg)")
     return RunResult(case_path=case.path, case_text=Path(case.path).read_text(errors="replace"),
                      case=case, mesh=mesh, frame=frame, stations=stations, planform=planform,
                      lattice=lattice, cases=results, envelope=envelope, vn=vn, alpha_sweep=sweep,

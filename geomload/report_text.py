@@ -151,22 +151,28 @@ def aero_text(sol, stall, conv, lattice) -> str:
 
 
 def run_table(result) -> str:
-    head = (f"{'case':<28} {'alpha_deg':>9} {'CL':>7} {'root_shear_N':>13} "
+    head = (f"{'case':<32} {'alpha_deg':>9} {'CL':>7} {'root_shear_N':>13} "
             f"{'root_bending_Nm':>16} {'root_torsion_Nm':>16}")
     lines = ["Limit loads at the wing root (one semi-span)", head, "-" * len(head)]
     for c in result.cases:
         ld = c.loads
-        lines.append(f"{c.name[:28]:<28} {c.aero.alpha_deg:9.3f} {c.aero.CL:7.4f} "
+        lines.append(f"{c.name[:32]:<32} {c.aero.alpha_deg:9.3f} {c.aero.CL:7.4f} "
                      f"{ld.shear_N[0]:13.1f} {ld.bending_Nm[0]:16.1f} {ld.torsion_Nm[0]:16.2f}")
-    env = result.envelope
-    if env is not None and hasattr(env, "critical_table"):
+    if result.envelope is not None:
+        from geomload.export.envelope_access import critical_table
+
         lines.append("")
-        lines.append("Critical cases (envelope of loads at the root)")
-        for row in env.critical_table():
-            lines.append("  " + row)
-    for c in result.cases:
-        if c.stall_warning:
-            lines.append(f"warning: {c.name}: {c.stall_warning}")
+        lines.append("Critical cases (envelope of limit loads at the root; ultimate = "
+                     f"{result.case.ultimate_factor:g} x limit)")
+        lines.append(f"  {'quantity':<14} {'root limit':>12} {'root ultimate':>14}  case")
+        for r in critical_table(result.envelope):
+            unit = r["unit"]
+            lines.append(f"  {r['quantity']:<14} {r['root_limit']:12.1f} {r['root_ultimate']:14.1f}"
+                         f"  {r['root_case']}  ({unit})")
+    n_beyond = sum(1 for c in result.cases if c.stall_warning)
+    if n_beyond:
+        lines.append(f"{n_beyond} case(s) lie beyond the stall line (see the warnings above); "
+                     "their loads are kept in the envelope, which is conservative")
     lines.append("")
     lines.append(CAUTION)
     return "\n".join(lines)

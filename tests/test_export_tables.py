@@ -17,7 +17,11 @@ def run():
 
 
 def _read(path):
-    return np.genfromtxt(path, comments="#", names=True, delimiter=",", dtype=None, encoding="utf-8")
+    # '#' lines sit above the names row (spreadsheet-friendly); skip them, then read the names
+    from geomload.export.tables import comment_lines
+
+    return np.genfromtxt(path, skip_header=comment_lines(path), names=True, delimiter=",",
+                         dtype=None, encoding="utf-8")
 
 
 def _comments(path):

@@ -100,7 +100,7 @@ class HorseshoeSet:
     after shifting the origin to the lattice centre; rows are done in chunks on a few threads.
     """
 
-    def __init__(self, nodes, core, x_scale=1.0, mirror=False, budget=1 << 14):
+    def __init__(self, nodes, core, x_scale=1.0, mirror=False, budget=1 << 16):
         nodes = np.asarray(nodes, float)
         self.centre = 0.5 * (nodes.reshape(-1, 3).min(0) + nodes.reshape(-1, 3).max(0))
         q = nodes - self.centre
@@ -210,21 +210,22 @@ class HorseshoeSet:
         self._rows(m, job)
         return A
 
-    def _vel_chunk(self, p, g, gnode, exclude):
+    def _vel_chunk(self, p, ops, exclude):
+        """Velocity (m, 3, kg) at centred points p. With (r0 x (P - A))_c = [P, 1] . op_c,j the
+        sums over horseshoes j become one matrix product k @ (op * g) per chunk, and the legs
+        f @ [g, g Qz, g Qy] (V_leg = f (0, -(Pz - Qz), Py - Qy))."""
+        bound_op, leg_op, kg = ops
         k, f = self._common(p)
-        k *= 1.0 / FOUR_PI
-        f *= 1.0 / FOUR_PI
         if exclude is not None:
             k[exclude[0], exclude[1]] = 0.0
         m = p.shape[0]
         aug = np.hstack([p, np.ones((m, 1))])
-        out = np.empty((m, 3, g.shape[1]))
-        for c in range(3):
-            out[:, c] = ((aug @ self._vel_ops[c]) * k) @ g
-        dz = p[:, 2:3] - self.q[:, 2]
-        dy = p[:, 1:2] - self.q[:, 1]
-        out[:, 1] -= (f * dz) @ gnode
-        out[:, 2] += (f * dy) @ gnode
+        rb = (k @ bound_op).reshape(m, 3, 4, kg)
+        out = np.einsum("md,mcdk->mck", aug, rb)
+        rl = (f @ leg_op).reshape(m, 3, kg)
+        out[:, 1] -= p[:, 2:3] * rl[:, 0] - rl[:, 1]
+        out[:, 2] += p[:, 1:2] * rl[:, 0] - rl[:, 2]
+        out *= 1.0 / FOUR_PI
         out[:, 0] /= self.x_scale
         return out
 
@@ -240,18 +241,25 @@ class HorseshoeSet:
         gnode[1:] += gs
         gnode[:-1] -= gs
         gnode = gnode.reshape(-1, g.shape[1])
+        kg = g.shape[1]
+        bound_op = (self._vel_ops.transpose(2, 0, 1)[:, :, :, None] * g[:, None, None, :])
+        bound_op = bound_op.reshape(self.n, -1)
+        q = self.q
+        leg_op = np.stack([gnode, gnode * q[:, 2:3], gnode * q[:, 1:2]], axis=1).reshape(
+            len(q), -1)
+        ops = (bound_op, leg_op, kg)
         m = pts.shape[0]
-        out = np.empty((m, 3, g.shape[1]))
+        out = np.empty((m, 3, kg))
 
         def job(i0, i1):
             ex = None
             if self_panels:
                 r = np.arange(i1 - i0)
                 ex = (r, r + i0)
-            out[i0:i1] = self._vel_chunk(pts[i0:i1], g, gnode, ex)
+            out[i0:i1] = self._vel_chunk(pts[i0:i1], ops, ex)
             if self.mirror:
                 mp = _mirror(pts[i0:i1] + self.centre) - self.centre
-                v = self._vel_chunk(mp, g, gnode, None)
+                v = self._vel_chunk(mp, ops, None)
                 v[:, 1] *= -1.0
                 out[i0:i1] += v
 

@@ -19,9 +19,22 @@ from geomload.export.atomic import atomic_path
 WINDOW = (900, 600)
 
 
+def _quiet_vtk() -> None:
+    """Keep VTK's own log lines (e.g. 'bad X server connection' on a headless machine, where it
+    falls back to offscreen rendering) off the user's terminal; errors still raise."""
+    try:
+        from vtkmodules.vtkCommonCore import vtkLogger, vtkObject
+
+        vtkLogger.SetStderrVerbosity(vtkLogger.VERBOSITY_OFF)
+        vtkObject.GlobalWarningDisplayOff()
+    except Exception:  # noqa: BLE001 - cosmetic only
+        pass
+
+
 def _plotter(off_screen=True, size=WINDOW):
     import pyvista as pv
 
+    _quiet_vtk()
     p = pv.Plotter(off_screen=off_screen, window_size=list(size))
     p.set_background("white")
     return p

@@ -1,10 +1,10 @@
 """CSV and JSON tables of a run, written atomically.
 
-Every CSV starts with one row of unit-carrying column names, then '#' comment lines (units, sign
-convention, frame, case, the caution), then the data. The names row comes first because
-``numpy.genfromtxt(path, comments='#', names=True, delimiter=',')`` takes its names from the first
-line even when it is a comment; so does ``pandas.read_csv(path, comment='#')``, and a spreadsheet
-shows the names on top. Text cells never hold ',', '"' or '#' (replaced), so no quoting is needed.
+Every CSV starts with '#' comment lines (units, sign convention, frame, source, case, the
+caution), then one row of unit-carrying column names, then the data: the caution is the first
+thing a reader sees. Read back with `read_csv_table`, pandas.read_csv(path, comment="#"), or
+numpy.genfromtxt(path, delimiter=",", names=True, skip_header=comment_lines(path)). Text cells
+never hold ',', '"' or '#' (replaced), so no quoting is needed.
 """
 
 from __future__ import annotations
@@ -31,11 +31,13 @@ def _clean(s) -> str:
 
 
 def _csv(header_lines, columns: dict) -> str:
-    """The names row, the comment lines, then the rows (floats to 10 significant digits)."""
+    """The '#' comment lines (units, frame, source, caution), then the column-names row, then the
+    rows (floats to 10 significant digits). Read back with `read_csv_table`, or e.g.
+    numpy.genfromtxt(path, delimiter=",", names=True, skip_header=<number of # lines>)."""
     names = list(columns)
     cols = [np.asarray(columns[k]) for k in names]
     n = max((c.size for c in cols), default=0)
-    out = [",".join(names)] + [f"# {_clean(h)}" for h in header_lines]
+    out = [f"# {_clean(h)}" for h in header_lines] + [",".join(names)]
     for i in range(n):
         row = []
         for c in cols:
@@ -232,3 +234,31 @@ def write_aero_csv(path, solution, source="", inputs=()):
             "cdi": s.cdi, "lift_per_q_m": s.lift_per_q, "drag_per_q_m": s.drag_per_q,
             "moment_per_q_m2": s.moment_per_q, "x_cp_m": s.x_cp}
     return write_text_atomic(path, _csv(head, cols), inputs)
+
+
+def comment_lines(path) -> int:
+    """Number of leading '#' lines of a geomload CSV."""
+    n = 0
+    with open(path, encoding="utf-8") as fh:
+        for line in fh:
+            if not line.startswith("#"):
+                break
+            n += 1
+    return n
+
+
+def read_csv_table(path) -> dict:
+    """A geomload CSV as {column: numpy array} (numbers as float, text as str)."""
+    import csv
+
+    with open(path, encoding="utf-8", newline="") as fh:
+        rows = [r for r in csv.reader(line for line in fh if not line.startswith("#"))]
+    names, data = rows[0], rows[1:]
+    out = {}
+    for j, name in enumerate(names):
+        col = [r[j] for r in data]
+        try:
+            out[name] = np.array([float(v) for v in col])
+        except ValueError:
+            out[name] = np.array(col, dtype=str)
+    return out
