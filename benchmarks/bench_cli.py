@@ -31,13 +31,20 @@ def _geomload():
     return [sys.executable, "-m", "geomload.cli"]
 
 
-def _single_case_file(tmp: pathlib.Path, n_cases: int | None) -> pathlib.Path:
+def _single_case_file(tmp: pathlib.Path, n_cases: int) -> pathlib.Path:
     """A copy of the sample case with its envelope off and n explicit cases at one Mach."""
-    from geomload.case import bench_variant
-
-    text = bench_variant(SAMPLE, n_cases=n_cases)
+    text = SAMPLE.read_text()
+    head = text[:text.index("[[load_case]]")]
+    tail = text[text.index("[lattice]"):]
+    head = head.replace('file = "pellin_half_wing_mm.stl"',
+                        f'file = "{(SAMPLE.parent / "pellin_half_wing_mm.stl").as_posix()}"')
+    blocks = []
+    for i in range(n_cases):
+        n = -1.5 + 5.0 * i / max(n_cases - 1, 1)  # load factors from -1.5 to 3.5 at 34 m/s EAS
+        blocks.append(f'[[load_case]]\nname = "case {i + 1}"\nspeed = 34.0\nspeed_unit = "m/s"\n'
+                      f'speed_type = "EAS"\naltitude = 0.0\nload_factor = {n:.4f}\n')
     path = tmp / f"bench_{n_cases}.toml"
-    path.write_text(text)
+    path.write_text(head + "\n".join(blocks) + "\n" + tail)
     return path
 
 

@@ -1,0 +1,75 @@
+"""Benchmark: read a 2-million-triangle binary STL wing and cut it at 60 stations.
+
+Targets (issue 2): read + frame + 60 cuts in <= 2.0 s on a 2-core machine, and <= 10x a bare
+`numpy.fromfile` of the same file in the same run. The wing is generated in a temporary folder
+from the NACA equations. Run: python benchmarks/bench_import.py
+"""
+
+from __future__ import annotations
+
+import os
+import sys
+import tempfile
+import time
+
+import numpy as np
+
+sys.path.insert(0, os.path.dirname(os.path.dirname(os.path.abspath(__file__))))
+
+from geomload.geometry.airfoil import loft_wing  # noqa: E402
+from geomload.geometry.frame import detect_frame  # noqa: E402
+from geomload.geometry.read import STL_RECORD, read_mesh  # noqa: E402
+from geomload.geometry.sections import cut_stations  # noqa: E402
+
+TARGET_S, TARGET_RATIO, N_TRI, N_STATIONS = 2.0, 10.0, 2_000_000, 60
+
+
+def make_stl(path, n_tri=N_TRI):
+    """Write a tapered NACA 2412 half wing with about n_tri triangles (mm)."""
+    n_chord = 1000
+    n_span = int(round(n_tri / (2 * (2 * n_chord - 1)))) + 1
+    y = np.linspace(0, 1.8, n_span)
+    tris = loft_wing(y, 0.36 - 0.1 * y, 0.07 * y, 0.05 * y, -1.6 * y, 0.12 - 0.011 * y, "2412", n_chord)
+    rec = np.zeros(tris.shape[0], STL_RECORD)
+    rec["v"] = tris * 1000.0
+    with open(path, "wb") as f:
+        f.write(b"geomload benchmark wing".ljust(80))
+        f.write(np.uint32(tris.shape[0]).tobytes())
+        rec.tofile(f)
+    return tris.shape[0]
+
+
+def main():
+    """Run the benchmark; return {figure: (target, measured, ratio measured/target)}."""
+    with tempfile.TemporaryDirectory() as tmp:
+        path = os.path.join(tmp, "wing_2M.stl")
+        n = make_stl(path)
+        np.fromfile(path, np.uint8)  # warm the page cache for both timings
+        t0 = time.perf_counter()
+        raw = np.fromfile(path, np.uint8)
+        t_raw = time.perf_counter() - t0
+        del raw
+        best = None
+        for _ in range(2):
+            t0 = time.perf_counter()
+            mesh = read_mesh(path, units="mm")
+            t1 = time.perf_counter()
+            frame = detect_frame(mesh)
+            t2 = time.perf_counter()
+            st = cut_stations(mesh, frame, n=N_STATIONS)
+            t3 = time.perf_counter()
+            if best is None or t3 - t0 < best[0]:
+                best = (t3 - t0, t1 - t0, t2 - t1, t3 - t2)
+            del mesh
+    total, t_read, t_frame, t_cut = best
+    ratio = total / t_raw
+    print(f"binary STL, {n} triangles, {st.n} stations")
+    print(f"  read {t_read:.3f} s, frame {t_frame:.3f} s, cut {t_cut:.3f} s")
+    print(f"  total {total:.3f} s (target <= {TARGET_S} s)")
+    print(f"  bare numpy.fromfile {t_raw:.3f} s; ratio {ratio:.1f}x (target <= {TARGET_RATIO}x)")
+    return {"import_2M_total_s": (TARGET_S, total, total / TARGET_S),
+            "import_vs_fromfile_ratio": (TARGET_RATIO, ratio, ratio / TARGET_RATIO)}
+
+
+if __name__ == "__main__":
+    main()
