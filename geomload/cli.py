@@ -193,7 +193,8 @@ def aero(geometry, units, span_axis, up_axis, n_stations, spacing, body, alpha, 
     if cl_max is None:
         cl_max = 1.4
         warnings.append("section cl_max not given; stall onset uses a default cl_max = 1.4")
-    stall = model.stall(cl_max)
+    stall = dict(model.stall(cl_max), cl_max=cl_max)
+    warnings.extend(stall.pop("warnings", []))
     conv = _conv(stations, alpha, mach, n_span=panels_span, n_chord=panels_chord) \
         if check_convergence else None
     if as_json:

@@ -134,14 +134,23 @@ def aero_text(sol, stall, conv, lattice) -> str:
     if stall:
         y0, cl0 = stall.get("first_station_y"), stall.get("CL_at_onset")
         if y0 is not None and cl0 is not None:
-            lines.append(f"Stall onset (section cl_max {stall.get('cl_max', float('nan')):.2f}): "
-                         f"first at y = {y0:.3f} m, wing CL = {cl0:.4f}")
+            if math.isfinite(y0) and math.isfinite(cl0):
+                lines.append(f"Stall onset (section cl_max {stall.get('cl_max', float('nan')):.2f}):"
+                             f" first at y = {y0:.3f} m, wing CL = {cl0:.4f}, alpha = "
+                             f"{stall.get('alpha_at_onset', float('nan')):.2f} deg")
+            else:
+                lines.append("Stall onset: section cl_max not reached within 45 deg of zero lift")
     if conv:
-        lines.append("Convergence (Richardson extrapolation over three lattice densities):")
+        levels = conv.get("levels")
+        lines.append("Convergence (Richardson extrapolation over three lattice densities"
+                     + (": " + ", ".join(f"{lv['n_span']}x{lv['n_chord']}" for lv in levels)
+                        if levels else "") + " panels):")
         for key, val in conv.items():
             if isinstance(val, dict) and "extrapolated" in val:
-                lines.append(f"  {key}: extrapolated {val['extrapolated']:.6g}, "
-                             f"error estimate {val.get('error_estimate', float('nan')):.3g}")
+                vals = ", ".join(f"{v:.6g}" for v in np.atleast_1d(val.get("values", [])))
+                lines.append(f"  {key}: values {vals} -> extrapolated {val['extrapolated']:.6g}, "
+                             f"error estimate {val.get('error', float('nan')):.2g}, observed "
+                             f"order {val.get('order', float('nan')):.2f}")
     lines.append("")
     lines.append(f"{'y_m':>8} {'chord_m':>8} {'cl':>8} {'cl_c_m':>9} {'cdi':>9}")
     for i in range(sol.y.size):

@@ -107,7 +107,8 @@ def detect_frame(mesh, span_axis=None, up_axis=None) -> WingFrame:
 
     # profile of cuts along the provisional span axis
     R0 = _basis(e_span, e_chord)
-    lo, hi = float(np.min(tris.reshape(-1, 3) @ e_span)), float(np.max(tris.reshape(-1, 3) @ e_span))
+    sproj = tris @ e_span  # (m, 3) CAD coordinate along the span axis
+    lo, hi = float(sproj.min()), float(sproj.max())
     o0 = e_span * lo
     cuts = slice_loops(tris, R0, o0, (hi - lo) * _PROFILE)
     prof = np.full((_PROFILE.size, 4), np.nan)
@@ -125,8 +126,7 @@ def detect_frame(mesh, span_axis=None, up_axis=None) -> WingFrame:
     tapered_both = max(c_first, c_last) < 0.9 * c_mid and abs(c_first - c_last) < 0.1 * c_mid
     full = resid < 0.05 or tapered_both
     if full and resid < 0.05 and abs(c_mid - max(c_first, c_last)) < 0.02 * cmax and snapped:
-        cad = tris.reshape(-1, 3) @ e_span  # constant chord: ambiguous; use the CAD origin
-        if cad.min() >= -0.01 * (hi - lo) or cad.max() <= 0.01 * (hi - lo):
+        if lo >= -0.01 * (hi - lo) or hi <= 0.01 * (hi - lo):  # constant chord: use the CAD origin
             full = False
             notes.append("constant-chord mirror-symmetric mesh on one side of the CAD origin: taken as a half wing")
     if full:
@@ -138,8 +138,7 @@ def detect_frame(mesh, span_axis=None, up_axis=None) -> WingFrame:
         root_at_lo = c_first >= c_last
         if abs(c_first - c_last) < 0.02 * cmax:
             if snapped:
-                cad = tris.reshape(-1, 3) @ e_span
-                root_at_lo = abs(cad.min()) <= abs(cad.max())
+                root_at_lo = abs(lo) <= abs(hi)
                 notes.append("root and tip chords are alike: root taken at the end nearer the CAD origin")
             else:
                 notes.append("root and tip chords are alike: root end chosen arbitrarily")
@@ -147,13 +146,16 @@ def detect_frame(mesh, span_axis=None, up_axis=None) -> WingFrame:
             root_at_lo = s_given > 0
         y_hat = e_span if root_at_lo else -e_span
         if s_given is None:
-            cap = _root_cap_normal(tris, y_hat)
+            end = (sproj.min(1) if root_at_lo else sproj.max(1))
+            near = np.abs(end - (lo if root_at_lo else hi)) < 0.004 * (hi - lo)
+            cap = _root_cap_normal(tris[near], y_hat, 0.002 * (hi - lo))
             if cap is not None:
                 y_hat = _snap(cap, 0.2)[0]
                 notes.append("root plane from the flat root cap")
         notes.append("half wing (root at the larger-chord end)" if abs(c_first - c_last) >= 0.02 * cmax
                      else "half wing")
-    yv = tris.reshape(-1, 3) @ y_hat
+    par = float(y_hat @ e_span)
+    yv = sproj * np.sign(par) if abs(par) == 1.0 else tris @ y_hat
     y_root = 0.5 * (yv.min() + yv.max()) if full else float(yv.min())
     semispan = float(yv.max() - y_root)
     root_level = 0.0 if full else INSET * semispan
@@ -181,7 +183,7 @@ def detect_frame(mesh, span_axis=None, up_axis=None) -> WingFrame:
         origin = le3 + (le3 - le3b) * 0.5
     # up direction
     if full:
-        flip, why = _full_wing_up(tris, R, origin, semispan, u_given, snapped)
+        flip, why = _full_wing_up(tris, R, origin, semispan, u_given, sp["camber_ratio"])
         if flip:
             R = np.vstack([R[0], -R[1], -R[2]])
         notes.append(f"z up from {why}")
@@ -189,7 +191,7 @@ def detect_frame(mesh, span_axis=None, up_axis=None) -> WingFrame:
         if u_given is not None and R[2] @ u_given < 0:
             raise GeometryError(f"{src}: with up axis {up_axis!r} this half wing is a port (left) wing; "
                                 f"mirror it to starboard")
-        camber = _camber_sign(tris, R, origin, semispan)
+        camber = 0.5 * (sps[0]["camber_ratio"] + sps[1]["camber_ratio"])  # same in R1 and R
         if camber < -0.002:
             notes.append("sections show negative camber in the detected frame: a port (left) or "
                          "upside-down half wing? (give --up-axis)")
@@ -198,12 +200,16 @@ def detect_frame(mesh, span_axis=None, up_axis=None) -> WingFrame:
                      up_axis=axis_label(R[2]), asymmetry=asym, notes=tuple(notes))
 
 
-def _root_cap_normal(tris, y_hat):
-    """Area-weighted normal (oriented root -> tip) of the flat cap at the root end, or None."""
+def _root_cap_normal(tris, y_hat, tol):
+    """Area-weighted normal (oriented root -> tip) of the flat cap at the root end, or None.
+
+    tris: triangles near the root end; the cap is made of those within tol of the root plane.
+    """
+    if tris.shape[0] == 0:
+        return None
     yv = tris @ y_hat  # (m, 3)
     level = float(yv.min())
-    span = float(yv.max() - level)
-    near = np.nonzero(np.abs(yv - level).max(1) < 0.002 * span)[0]
+    near = np.nonzero(np.abs(yv - level).max(1) < tol)[0]
     if near.size == 0:
         return None
     t = tris[near]
@@ -216,17 +222,10 @@ def _root_cap_normal(tris, y_hat):
     return _unit(n[good].sum(0))
 
 
-def _camber_sign(tris, R, origin, semispan):
-    cuts = slice_loops(tris, R, origin, semispan * np.array([0.1, 0.4, 0.7]))
-    cam = [section_properties(c[0])["camber_ratio"] for c in cuts if c[0] is not None]
-    return float(np.mean(cam)) if cam else 0.0
-
-
-def _full_wing_up(tris, R, origin, semispan, u_given, snapped):
+def _full_wing_up(tris, R, origin, semispan, u_given, cam):
     """Should y and z be flipped so that z is up? Returns (flip, reason)."""
     if u_given is not None:
         return bool(R[2] @ u_given < 0), "the given up axis"
-    cam = _camber_sign(tris, R, origin, semispan)
     if abs(cam) > 0.002:
         return cam < 0, "positive camber"
     cuts = slice_loops(tris, R, origin, semispan * np.array([0.0, 0.9]))

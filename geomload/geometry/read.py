@@ -86,13 +86,17 @@ def read_mesh(path, units=None, body=None, progress=None) -> WingMesh:
     if not bodies:
         raise GeometryError(f"{path}: contains no triangles")
     tris = _choose_body(path, bodies, body, notes)
-    if not np.isfinite(tris).all():
+    out = np.empty(tris.shape, np.float64)
+    np.multiply(tris, scale, out=out)  # one pass: cast to float64 and scale to metres
+    tris = out
+    if not np.isfinite(tris.sum()) and not np.isfinite(tris).all():
         raise GeometryError(f"{path}: contains NaN or infinite coordinates")
-    tris = tris.astype(np.float64, copy=False) * scale if scale != 1.0 else tris.astype(np.float64, copy=False)
-    extent = float((tris.reshape(-1, 3).max(0) - tris.reshape(-1, 3).min(0)).max())
-    area = triangle_areas(tris).sum()
-    if not area > 1e-12 * max(extent, 1e-300) ** 2:
-        raise GeometryError(f"{path}: zero-area mesh (all triangles are degenerate)")
+    sub = tris[:: max(1, tris.shape[0] // 200_000)]  # enough for extent and area checks
+    extent = float(np.ptp(sub.reshape(-1, 3), axis=0).max())
+    if not triangle_areas(sub).sum() > 1e-12 * max(extent, 1e-300) ** 2:
+        extent = float(np.ptp(tris.reshape(-1, 3), axis=0).max())
+        if not triangle_areas(tris).sum() > 1e-12 * max(extent, 1e-300) ** 2:
+            raise GeometryError(f"{path}: zero-area mesh (all triangles are degenerate)")
     if extent > SPAN_TOO_BIG_M or extent < SPAN_TOO_SMALL_M:
         notes.append(f"largest extent is {extent:.4g} m after reading in {unit_label}: "
                      f"wrong unit? (give --units m|cm|mm|in|ft)")

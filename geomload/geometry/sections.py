@@ -31,6 +31,14 @@ def frame_coords(p: np.ndarray, rotation: np.ndarray, origin: np.ndarray, rows=(
     return [rotation[r, 0] * q[0] + rotation[r, 1] * q[1] + rotation[r, 2] * q[2] for r in rows]
 
 
+def _min3(a):
+    return np.minimum(np.minimum(a[:, 0], a[:, 1]), a[:, 2])
+
+
+def _max3(a):
+    return np.maximum(np.maximum(a[:, 0], a[:, 1]), a[:, 2])
+
+
 def slice_loops(tris, rotation, origin, levels, tol=None):
     """Cut the soup by the planes y_frame = level; per level return (loop, n_stray, open).
 
@@ -41,21 +49,24 @@ def slice_loops(tris, rotation, origin, levels, tol=None):
     levels = np.asarray(levels, float)
     order = np.argsort(levels)
     lv = levels[order].copy()
-    (yc,) = frame_coords(tris, rotation, origin, rows=(1,))  # (m, 3)
-    lo, hi = yc.min(1), yc.max(1)
+    rotation = np.asarray(rotation, float)
+    origin = np.asarray(origin, float)
+    yfast = tris @ rotation[1] - rotation[1] @ origin  # (m, 3), for selection only
+    lo, hi = _min3(yfast), _max3(yfast)
     scale = max(float(hi.max() - lo.min()), 1e-300)
     eps = 1e-9 * scale
     tol = 1e-7 * scale if tol is None else tol
     for _ in range(8):  # move a plane off any vertex lying on it, then cut
-        k0 = np.searchsorted(lv, lo, "left")
-        k1 = np.searchsorted(lv, hi, "right")
+        k0 = np.searchsorted(lv, lo - 4 * eps, "left")
+        k1 = np.searchsorted(lv, hi + 4 * eps, "right")
         cnt = k1 - k0
         sel = np.nonzero(cnt > 0)[0]
         c = cnt[sel]
         tri = np.repeat(sel, c)
         start = np.repeat(np.cumsum(c) - c, c)
         pl = np.repeat(k0[sel], c) + (np.arange(tri.size) - start)
-        d = yc[tri] - lv[pl][:, None]
+        (yc,) = frame_coords(tris[tri], rotation, origin, rows=(1,))  # bit-reproducible per vertex
+        d = yc - lv[pl][:, None]
         on = np.abs(d) < eps
         if not on.any():
             break
@@ -64,34 +75,77 @@ def slice_loops(tris, rotation, origin, levels, tol=None):
     keep = above.any(1) & ~above.all(1)
     tri, pl, d, above = tri[keep], pl[keep], d[keep], above[keep]
     xz = np.stack(frame_coords(tris[tri], rotation, origin, rows=(0, 2)), -1)  # (P, 3, 2)
-    ends = []
+    r = np.arange(d.shape[0])
+    pts, ups = [], []
     for a, b in ((0, 1), (1, 2), (2, 0)):
-        cross = above[:, a] != above[:, b]
         lo_v = np.where(above[:, a], b, a)  # canonical order: lower vertex first
         hi_v = np.where(above[:, a], a, b)
-        r = np.arange(d.shape[0])
         dl, dh = d[r, lo_v], d[r, hi_v]
         pl_, ph = xz[r, lo_v], xz[r, hi_v]
-        with np.errstate(divide="ignore", invalid="ignore"):
-            t = (dl / (dl - dh))[:, None]
-        ends.append((cross, pl_ + (ph - pl_) * t))
-    crosses = np.stack([e[0] for e in ends], 1)  # (P, 3), two True per row
-    pts = np.stack([e[1] for e in ends], 1)  # (P, 3, 2)
-    first = np.argmax(crosses, 1)
-    second = 2 - np.argmax(crosses[:, ::-1], 1)
-    r = np.arange(pts.shape[0])
-    seg = np.stack([pts[r, first], pts[r, second]], 1)  # (P, 2, 2)
+        with np.errstate(divide="ignore", invalid="ignore"):  # non-crossing edges are dropped
+            pts.append(pl_ + (ph - pl_) * (dl / (dl - dh))[:, None])
+        cross = above[:, a] != above[:, b]
+        ups.append(np.where(cross, np.where(above[:, b], 1, -1), 0))  # +1 up-crossing a -> b
+    pts = np.stack(pts, 1)
+    ups = np.stack(ups, 1)
+    # orient each segment from its up-crossing to its down-crossing edge: with a consistently
+    # wound surface the segments then chain head to tail
+    seg = np.stack([pts[r, np.argmax(ups == 1, 1)], pts[r, np.argmax(ups == -1, 1)]], 1)
+    srt = np.argsort(pl, kind="stable")
+    pl, seg = pl[srt], seg[srt]
+    bounds = np.searchsorted(pl, np.arange(lv.size + 1))
+    res = _chain_oriented(seg, pl, lv.size)
     out = [None] * levels.size
-    inv = np.empty_like(order)
-    inv[order] = np.arange(order.size)
-    bounds = np.searchsorted(pl, np.arange(lv.size + 1)) if np.all(np.diff(pl) >= 0) else None
-    if bounds is None:
-        srt = np.argsort(pl, kind="stable")
-        pl, seg = pl[srt], seg[srt]
-        bounds = np.searchsorted(pl, np.arange(lv.size + 1))
     for k in range(lv.size):
-        out[order[k]] = _chain(seg[bounds[k]:bounds[k + 1]], tol)
+        out[order[k]] = res[k] if res[k] is not None else _chain(seg[bounds[k]:bounds[k + 1]], tol)
     return out
+
+
+def _chain_oriented(seg, pl, n_levels):
+    """Vectorised chaining of head-to-tail segments; None for levels that need `_chain`."""
+    S = seg.shape[0]
+    res = [(None, 0, False)] * n_levels
+    if S == 0:
+        return res
+    os_ = np.lexsort((seg[:, 0, 1], seg[:, 0, 0], pl))
+    oe = np.lexsort((seg[:, 1, 1], seg[:, 1, 0], pl))
+    match = (seg[os_, 0] == seg[oe, 1]).all(1)
+    bad = np.unique(pl[os_][~match])
+    nxt = np.empty(S, np.int64)
+    nxt[oe] = os_  # the segment that starts where segment oe[i] ends
+    badseg = np.isin(pl, bad)
+    nxt[badseg] = np.nonzero(badseg)[0]
+    lab = np.arange(S)
+    p = nxt.copy()
+    for _ in range(int(np.ceil(np.log2(S + 1))) + 1):  # cycle label = smallest index in the cycle
+        lab = np.minimum(lab, lab[p])
+        p = p[p]
+    term = lab == np.arange(S)
+    succ = np.where(term, np.arange(S), nxt)
+    w = (~term).astype(np.int64)
+    for _ in range(int(np.ceil(np.log2(S + 1))) + 1):  # list ranking: steps to the label
+        w, succ = w + w[succ], succ[succ]
+    order = np.lexsort((-w, lab))
+    lab_o = lab[order]
+    starts = np.concatenate([[0], np.nonzero(np.diff(lab_o))[0] + 1])
+    p0 = seg[order, 0]
+    ext = np.maximum(np.maximum.reduceat(p0[:, 0], starts) - np.minimum.reduceat(p0[:, 0], starts),
+                     np.maximum.reduceat(p0[:, 1], starts) - np.minimum.reduceat(p0[:, 1], starts))
+    size = np.diff(np.concatenate([starts, [S]]))
+    cyc_pl = pl[lab_o[starts]]
+    for k in range(n_levels):
+        if k in bad:
+            res[k] = None
+            continue
+        idx = np.nonzero(cyc_pl == k)[0]
+        if idx.size == 0:
+            continue
+        best = idx[np.argmax(ext[idx])]
+        if size[best] < 3:
+            res[k] = (None, idx.size - 1, True)
+        else:
+            res[k] = (p0[starts[best]:starts[best] + size[best]], idx.size - 1, False)
+    return res
 
 
 def _chain(seg, tol):
@@ -286,8 +340,7 @@ def cut_stations(mesh, frame, n=20, spacing="cosine", progress=None) -> Stations
     progress = progress or no_progress
     if int(n) < 3:
         raise GeometryError(f"{mesh.source}: at least 3 stations are needed (got {n})")
-    (yc,) = frame_coords(mesh.triangles, frame.rotation, frame.origin, rows=(1,))
-    semispan = float(yc.max())
+    semispan = float((mesh.triangles @ frame.rotation[1]).max() - frame.rotation[1] @ frame.origin)
     if semispan <= 0:
         raise GeometryError(f"{mesh.source}: no geometry on the starboard side of the root plane")
     y0 = 0.0 if frame.full_span else INSET * semispan
