@@ -201,9 +201,12 @@ def solve_case(lc, case, lattice, models, stations, grid, masses_cache, atmosphe
                                               case.wing_mass, case.fuel_tanks, key)
     dist = masses_cache[key]
     inertia, point_loads = inertia_loads(dist, lc.load_factor, case.point_masses)
+    # the lattice force is normal to the local (dihedral) surface: its y component per span is
+    # -lift dz/dy of the lift line, so the shear normal to a dihedral spar is lift / cos(dihedral)
+    side = -lift * np.gradient(load_z, y)
     half_lift = float(np.sum(0.5 * (lift[1:] + lift[:-1]) * np.diff(y)))
     loads = integrate_loads(
-        y, sx, sz, lift, drag_N_per_m=chordwise, pitch_Nm_per_m=pitch, load_x=load_x,
+        y, sx, sz, lift, drag_N_per_m=chordwise, side_N_per_m=side, pitch_Nm_per_m=pitch, load_x=load_x,
         load_z=load_z, inertia_N_per_m=inertia, inertia_x=dist.x_m, inertia_z=dist.z_m,
         point_loads=point_loads, case=lc.name, ultimate_factor=case.ultimate_factor,
         schrenk_lift_N_per_m=schrenk(y, chord, stations.semispan, half_lift))

@@ -6,6 +6,9 @@ import pytest
 from aero_wings import elliptic, make_stations, trapezoid
 from geomload.aero.lattice import build_lattice
 from geomload.errors import AeroError
+from validation import check
+
+RAYMER = "Raymer, Aircraft Design, ch. 7, trapezoid planform"
 
 
 def test_trapezoid_reference_values():
@@ -15,13 +18,13 @@ def test_trapezoid_reference_values():
     st = trapezoid(A, lam, sweep, semispan=s)
     lat = build_lattice(st, n_span=8, n_chord=3)
     cr = st.chord[0]
-    assert lat.s_ref == pytest.approx((1 + lam) * cr * s, rel=1e-12)
+    check(RAYMER, "reference area S, both sides (m^2)", (1 + lam) * cr * s, lat.s_ref, rel=1e-12)
     mac = 2 / 3 * cr * (1 + lam + lam**2) / (1 + lam)
-    assert lat.c_ref == pytest.approx(mac, rel=1e-12)
+    check(RAYMER, "mean aerodynamic chord (m)", mac, lat.c_ref, rel=1e-12)
     y_mac = (2 * s / 6) * (1 + 2 * lam) / (1 + lam)
     x_qc = cr / 4 + np.tan(np.radians(sweep)) * y_mac  # quarter-chord line at y_mac
-    assert lat.x_ref[0] == pytest.approx(x_qc, rel=1e-12)
-    assert lat.b_ref == 2 * s
+    check(RAYMER, "x of the quarter chord at y_mac (m)", x_qc, lat.x_ref[0], rel=1e-12)
+    check(RAYMER, "reference span b (m)", 2 * s, lat.b_ref)  # exact
     # panel areas add up to the planform area of one side
     assert lat.area.sum() == pytest.approx(lat.s_ref / 2, rel=1e-9)
 
@@ -35,7 +38,8 @@ def test_cosine_spacing_and_extension_to_root_and_tip():
     w = np.diff(ye)
     assert w[-1] < w[0] / 10  # half-cosine: refined at the tip
     # the elliptic area pi c0 s / 2 is recovered (linear chord between 30 stations)
-    assert lat.s_ref == pytest.approx(np.pi * st.chord[0] * 4.0 / 2, rel=2e-3)
+    check("ellipse area pi a b", "area of an elliptic planform, 30 stations (m^2)",
+          np.pi * st.chord[0] * 4.0 / 2, lat.s_ref, rel=2e-3)
     full = build_lattice(st, n_span=20, n_chord=2, full_span=True)
     assert full.n_span == 40 and not full.mirrored
     np.testing.assert_allclose(full.corners[20:, :, 1], lat.corners[:, :, 1], atol=1e-12)
@@ -66,6 +70,8 @@ def test_camber_normals_match_mean_line_slope():
     xc = (lat.colloc[:10, 0] - st.x_le[0]) / st.chord[0]
     slope = np.where(xc < 0.4, 2 * 0.02 / 0.16 * (0.4 - xc), 2 * 0.02 / 0.36 * (0.4 - xc))
     np.testing.assert_allclose(-lat.normal[:10, 0] / lat.normal[:10, 2], slope, atol=2e-4)
+    check("NACA Report 824 mean line (VALIDATION.md 5)", "NACA 2412 slope dz/dx, first panel (-)",
+          slope[0], -lat.normal[0, 0] / lat.normal[0, 2], rel=1e-7, abs=2e-4)  # one row of the above
 
 
 @pytest.mark.parametrize("kw", [dict(n_span=0), dict(n_span=-3), dict(n_chord=0),

@@ -11,6 +11,9 @@ from aero_wings import datcom_lift_slope, elliptic, helmbold, make_stations, nac
 from geomload.aero.lattice import build_lattice
 from geomload.aero.solve import AeroModel, check_convergence, root_bending_coefficient
 from geomload.errors import AeroError
+from validation import check
+
+LIFTING_LINE = "lifting-line theory (VALIDATION.md 1)"
 
 
 @pytest.fixture(scope="module")
@@ -24,26 +27,32 @@ def test_elliptic_wing_is_elliptically_loaded(elliptic_model):
     # elliptic planform, untwisted -> elliptic load, e = 1, CDi = CL^2/(pi A)
     sol = elliptic_model.solve(4.0)
     A = 8.0
-    assert sol.e == pytest.approx(1.0, abs=0.01)
-    assert sol.CDi == pytest.approx(sol.CL**2 / (math.pi * A), rel=0.02)
+    check(LIFTING_LINE, "span efficiency e, elliptic wing A = 8 (-)", 1.0, sol.e, abs=0.01)
+    check(LIFTING_LINE, "CDi = CL^2/(pi A), elliptic wing A = 8 (-)", sol.CL**2 / (math.pi * A),
+          sol.CDi, rel=0.02)
     # the load is elliptic: cl c = l0 sqrt(1 - (y/s)^2) with l0 from the same total
     # (a lifting surface departs slightly from lifting line; 2.5 % of l0 allowed)
     ell = np.sqrt(1 - (sol.y / 5.0) ** 2)
     w = elliptic_model.lattice.strip_width
     l0 = np.sum(sol.cl_c * w) / np.sum(ell * w)
-    assert np.max(np.abs(sol.cl_c / l0 - ell)) < 0.025
+    check(LIFTING_LINE, "max abs(cl c / l0 - sqrt(1 - (y/s)^2)), elliptic wing (-)", 0.0,
+          np.max(np.abs(sol.cl_c / l0 - ell)), abs=math.nextafter(0.025, 0))  # strictly < 0.025
     # root bending of an elliptic load: C_B = CL 4/(3 pi) (beam statics, VALIDATION.md 8)
     cb = root_bending_coefficient(sol, elliptic_model.lattice)
-    assert cb == pytest.approx(sol.CL * 4 / (3 * math.pi), rel=0.01)
+    check("beam statics, elliptic load (VALIDATION.md 8)", "root bending coefficient C_B (-)",
+          sol.CL * 4 / (3 * math.pi), cb, rel=0.01)
 
 
 def test_elliptic_lift_slope_helmbold(elliptic_model):
     # Helmbold's equation, VALIDATION.md 2: lifting-surface results agree to a few percent
     sol = elliptic_model.solve(2.0)
-    assert sol.CL_alpha_per_rad == pytest.approx(helmbold(8.0), rel=0.03)
+    check("Helmbold (VALIDATION.md 2)", "CL_alpha, elliptic wing A = 8 (1/rad)", helmbold(8.0),
+          sol.CL_alpha_per_rad, rel=0.03)
     # lifting-line a = a0/(1 + a0/(pi A)) is an upper bound for a lifting surface
     assert sol.CL_alpha_per_rad < 2 * math.pi / (1 + 2 / 8.0)
-    assert abs(sol.alpha_zero_lift_deg) < 1e-8  # flat wing: no lift at zero incidence
+    # flat wing: no lift at zero incidence (strictly below 1e-8 deg)
+    check("thin-airfoil theory, flat plate (VALIDATION.md 4)", "alpha_L0, flat wing (deg)", 0.0,
+          sol.alpha_zero_lift_deg, abs=math.nextafter(1e-8, 0))
 
 
 def thin_airfoil_alpha_l0(code):
@@ -60,13 +69,16 @@ def test_naca2412_zero_lift_angle():
     # thin-airfoil theory for the NACA 2412 mean line: alpha_L0 = -2.08 deg (VALIDATION.md 4);
     # an untwisted wing of one section has the section's alpha_L0 in linear theory
     ref = thin_airfoil_alpha_l0("2412")
-    assert ref == pytest.approx(-2.08, abs=0.01)
+    check("thin-airfoil theory (VALIDATION.md 4)", "alpha_L0 of NACA 2412 mean line, quadrature (deg)",
+          -2.08, ref, abs=0.01)
     st = trapezoid(12.0, 1.0, 0.0, camber="2412")
     sol = AeroModel(build_lattice(st, n_span=20, n_chord=10)).solve(0.0)
-    assert sol.alpha_zero_lift_deg == pytest.approx(ref, abs=0.2)
+    check("thin-airfoil theory (VALIDATION.md 4)", "alpha_L0, untwisted NACA 2412 wing (deg)", ref,
+          sol.alpha_zero_lift_deg, abs=0.2)
     assert sol.CL > 0.1  # positive camber lifts at zero incidence
     # section moment about c/4 of a 2412 mean line: cm = -0.053 thin-airfoil (from memory)
-    assert np.median(sol.cm_c4) == pytest.approx(-0.053, abs=0.008)
+    check("thin-airfoil theory, NACA 2412, from memory", "section cm about c/4, median strip (-)",
+          -0.053, np.median(sol.cm_c4), abs=0.008)
 
 
 def test_swept_tapered_wing_datcom():
@@ -79,7 +91,8 @@ def test_swept_tapered_wing_datcom():
     t_le = math.tan(math.radians(sweep_qc)) + (1 - lam) / (A * (1 + lam))
     t_30 = t_le - 4 * 0.3 * (1 - lam) / (A * (1 + lam))  # sweep of the 30 % chord line
     ref = datcom_lift_slope(A, math.degrees(math.atan(t_30)))
-    assert sol.CL_alpha_per_rad == pytest.approx(ref, rel=0.04)
+    check("USAF DATCOM (VALIDATION.md 3)", "CL_alpha, A = 6, taper 0.5, 30 deg sweep (1/rad)", ref,
+          sol.CL_alpha_per_rad, rel=0.04)
     assert sol.x_ac_m > st.x_le[0] + 0.25 * st.chord[0]  # sweep moves the a.c. aft
 
 
@@ -97,13 +110,15 @@ def test_prandtl_glauert_scaling():
         A * (1 + lam))
     sw30 = math.degrees(math.atan(t))
     ratio = datcom_lift_slope(A, sw30, mach=0.5) / datcom_lift_slope(A, sw30)
-    assert a5 / a0 == pytest.approx(ratio, rel=0.015)
+    check("Prandtl-Glauert with DATCOM (VALIDATION.md 7)",
+          "CL_alpha(M 0.5) / CL_alpha(M 0), A = 6, 30 deg sweep (-)", ratio, a5 / a0, rel=0.015)
     assert m.warnings == []
     # high aspect ratio, unswept: section lift slope scales as 1/beta (2-D rule)
     st = trapezoid(40.0, 1.0, 0.0)
     lat = build_lattice(st, n_span=16, n_chord=4)
     r = AeroModel(lat, mach=0.5).solve(1.0).cl[0] / AeroModel(lat).solve(1.0).cl[0]
-    assert r == pytest.approx(1 / math.sqrt(0.75), rel=0.02)
+    check("Prandtl-Glauert 2-D rule (VALIDATION.md 7)", "root cl(M 0.5) / cl(M 0), A = 40 (-)",
+          1 / math.sqrt(0.75), r, rel=0.02)
     assert AeroModel(lat, mach=0.75).warnings  # warn from M 0.7
 
 

@@ -8,6 +8,9 @@ import pytest
 from aero_wings import trapezoid
 from geomload.aero import vortex
 from geomload.aero.lattice import build_lattice
+from validation import check
+
+KATZ = "Katz & Plotkin, Low-Speed Aerodynamics, ch. 2"
 
 
 def test_long_bound_segment_is_a_2d_vortex():
@@ -17,8 +20,11 @@ def test_long_bound_segment_is_a_2d_vortex():
     a, b = np.array([[0.0, -L, 0.0]]), np.array([[0.0, L, 0.0]])
     u, v, w = vortex.horseshoe_velocity_block(np.array([[-d, 0.0, 0.0]]), a, b, 1e-9)
     # the two trailing legs (from y = +-L) add about 2/(4 pi L), 3e-5 of the total
-    assert w[0, 0] == pytest.approx(1 / (2 * math.pi * d), rel=1e-4)  # upwash ahead
-    assert abs(u[0, 0]) < 1e-9 and abs(v[0, 0]) < 1e-9
+    check(KATZ, "upwash of a 2-D vortex, G = 1, d = 0.3 m (m/s)", 1 / (2 * math.pi * d), w[0, 0],
+          rel=1e-4)  # upwash ahead
+    tiny = math.nextafter(1e-9, 0)  # strictly below 1e-9
+    check(KATZ, "u of a 2-D vortex in its normal plane (m/s)", 0.0, u[0, 0], abs=tiny)
+    check(KATZ, "v of a 2-D vortex in its normal plane (m/s)", 0.0, v[0, 0], abs=tiny)
 
 
 def test_semi_infinite_leg_is_half_a_line_at_its_start():
@@ -29,7 +35,8 @@ def test_semi_infinite_leg_is_half_a_line_at_its_start():
     p = np.array([[0.0, -0.5, 0.0]])
     u, v, w = vortex.horseshoe_velocity_block(p, a, b, 1e-9)
     # leg from +inf to A (sense -x) seen from y < 0: w = +1/(4 pi 0.5) minus tiny bound term
-    assert w[0, 0] == pytest.approx(1 / (4 * math.pi * 0.5), rel=1e-5)
+    check(KATZ, "w at the start plane of a semi-infinite vortex, r = 0.5 m (m/s)",
+          1 / (4 * math.pi * 0.5), w[0, 0], rel=1e-5)
 
 
 @pytest.mark.parametrize("mirror, beta", [(False, 1.0), (True, 0.6)])
@@ -66,4 +73,5 @@ def test_trefftz_wash_of_a_vortex_pair():
     # 2 * G / (2 pi * 1) downward for positive lift circulation
     W = vortex.trefftz_wash_matrix(np.array([-1.0, 1.0]), np.zeros(2), np.array([0.0]),
                                    np.zeros(1), np.zeros(1), np.ones(1))
-    assert (W @ np.array([-1.0, 1.0]))[0] == pytest.approx(-1 / math.pi, rel=1e-12)
+    check(KATZ, "Trefftz-plane wash midway between a vortex pair, G = 1 (m/s)", -1 / math.pi,
+          (W @ np.array([-1.0, 1.0]))[0], rel=1e-12)

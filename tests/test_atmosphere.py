@@ -7,6 +7,7 @@ import pytest
 
 from geomload.aero import atmosphere as atm
 from geomload.errors import InputError
+from validation import check
 
 
 @pytest.mark.parametrize("h, T, p, rho", [
@@ -18,16 +19,18 @@ from geomload.errors import InputError
 ])
 def test_isa_matches_1976_tables(h, T, p, rho):
     s = atm.isa(h)
-    assert s.T == pytest.approx(T, abs=0.01)
-    assert s.p == pytest.approx(p, rel=2e-4)
-    assert s.rho == pytest.approx(rho, rel=2e-4)
+    src = "U.S. Standard Atmosphere 1976, table I" + (", from memory" if h == 20000.0 else "")
+    check(src, f"temperature at H = {h:g} m (K)", T, s.T, abs=0.01)
+    check(src, f"pressure at H = {h:g} m (Pa)", p, s.p, rel=2e-4)
+    check(src, f"density at H = {h:g} m (kg/m^3)", rho, s.rho, rel=2e-4)
 
 
 def test_sea_level_speed_of_sound_and_viscosity():
     # 1976 table: a0 = 340.294 m/s, mu0 = 1.7894e-5 Pa s (from memory)
     s = atm.isa(0.0)
-    assert s.a == pytest.approx(340.294, abs=0.01)
-    assert s.mu == pytest.approx(1.7894e-5, rel=1e-3)
+    src = "U.S. Standard Atmosphere 1976, from memory"
+    check(src, "sea-level speed of sound (m/s)", 340.294, s.a, abs=0.01)
+    check(src, "sea-level dynamic viscosity (Pa s)", 1.7894e-5, s.mu, rel=1e-3)
 
 
 @pytest.mark.parametrize("h", [-500.0, 0.0, 1234.0, 6000.0, 10999.0, 11000.0, 15500.0, 20000.0])
@@ -36,16 +39,20 @@ def test_isa_matches_ambiance(h):
     Atmosphere = pytest.importorskip("ambiance").Atmosphere
     ref = Atmosphere(atm.geometric_from_geopotential(h))
     s = atm.isa(h)
-    assert s.T == pytest.approx(float(ref.temperature[0]), rel=1e-6)
-    assert s.p == pytest.approx(float(ref.pressure[0]), rel=1e-5)
-    assert s.rho == pytest.approx(float(ref.density[0]), rel=1e-5)
-    assert s.a == pytest.approx(float(ref.speed_of_sound[0]), rel=1e-6)
-    assert s.mu == pytest.approx(float(ref.dynamic_viscosity[0]), rel=1e-4)
+    src = "ambiance package (U.S. Standard Atmosphere 1976)"
+    check(src, f"temperature at H = {h:g} m (K)", float(ref.temperature[0]), s.T, rel=1e-6)
+    check(src, f"pressure at H = {h:g} m (Pa)", float(ref.pressure[0]), s.p, rel=1e-5)
+    check(src, f"density at H = {h:g} m (kg/m^3)", float(ref.density[0]), s.rho, rel=1e-5)
+    check(src, f"speed of sound at H = {h:g} m (m/s)", float(ref.speed_of_sound[0]), s.a, rel=1e-6)
+    check(src, f"dynamic viscosity at H = {h:g} m (Pa s)", float(ref.dynamic_viscosity[0]), s.mu,
+          rel=1e-4)
 
 
 def test_geopotential_conversion_round_trip():
     # H = r0 z / (r0 + z): 20 km geometric is 19 937 m geopotential (1976 standard)
-    assert atm.geopotential_from_geometric(20000.0) == pytest.approx(19937.3, abs=0.5)
+    check("U.S. Standard Atmosphere 1976, H = r0 z / (r0 + z)",
+          "geopotential altitude of z = 20 km geometric (m)", 19937.3,
+          atm.geopotential_from_geometric(20000.0), abs=0.5)
     z = atm.geometric_from_geopotential(12345.0)
     assert atm.geopotential_from_geometric(z) == pytest.approx(12345.0, abs=1e-6)
 
@@ -55,9 +62,12 @@ def test_speeds_and_dynamic_pressure():
     s = atm.isa(h)
     v = atm.tas_from_eas(50.0, h)
     # definition of EAS: 0.5 rho V^2 = 0.5 rho0 Ve^2
-    assert atm.dynamic_pressure(v, h) == pytest.approx(0.5 * 1.225 * 50.0**2, rel=1e-4)
+    check("definition of EAS, 0.5 rho V^2 = 0.5 rho0 Ve^2", "dynamic pressure at EAS 50 m/s (Pa)",
+          0.5 * 1.225 * 50.0**2, atm.dynamic_pressure(v, h), rel=1e-4)
     assert atm.eas_from_tas(v, h) == pytest.approx(50.0, rel=1e-12)
-    assert atm.mach(v, h) == pytest.approx(v / math.sqrt(1.4 * 287.05287 * s.T), rel=1e-9)
+    check("a = sqrt(gamma R T), U.S. Standard Atmosphere 1976 constants",
+          "Mach number at 3000 m, EAS 50 m/s (-)", v / math.sqrt(1.4 * 287.05287 * s.T),
+          atm.mach(v, h), rel=1e-9)
     assert v > 50.0  # air is thinner aloft
 
 

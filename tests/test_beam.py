@@ -13,6 +13,10 @@ import pytest
 from geomload.errors import InputError
 from geomload.loads.beam import (PointLoad, equilibrium_residual, integrate_loads, schrenk,
                                  spar_frame, spar_line, ultimate)
+from validation import check
+
+UNIFORM = "beam statics, uniform load (VALIDATION.md 8)"
+STATICS = "cantilever statics"
 
 
 def _flat(y):
@@ -24,12 +28,13 @@ def test_uniform_load_root_shear_and_moment_on_a_coarse_grid():
     L, w = 2.5, 120.0
     y = np.array([0.0, 0.7, L])
     r = integrate_loads(y, *_flat(y), np.full(3, w))
-    assert r.shear_N[0] == pytest.approx(w * L, rel=1e-13)
-    assert r.bending_Nm[0] == pytest.approx(w * L**2 / 2, rel=1e-13)
-    assert r.torsion_Nm[0] == pytest.approx(0.0, abs=1e-12)
+    check(UNIFORM, "root shear wL, w = 120 N/m, L = 2.5 m (N)", w * L, r.shear_N[0], rel=1e-13)
+    check(UNIFORM, "root bending wL^2/2 (N m)", w * L**2 / 2, r.bending_Nm[0], rel=1e-13)
+    check(UNIFORM, "root torsion, load on the spar (N m)", 0.0, r.torsion_Nm[0], abs=1e-12)
     # mid-station: V(y) = w (L - y), M(y) = w (L - y)^2 / 2
-    assert r.shear_N[1] == pytest.approx(w * (L - 0.7), rel=1e-13)
-    assert r.bending_Nm[1] == pytest.approx(w * (L - 0.7) ** 2 / 2, rel=1e-13)
+    check(UNIFORM, "shear w (L - y) at y = 0.7 m (N)", w * (L - 0.7), r.shear_N[1], rel=1e-13)
+    check(UNIFORM, "bending w (L - y)^2 / 2 at y = 0.7 m (N m)", w * (L - 0.7) ** 2 / 2,
+          r.bending_Nm[1], rel=1e-13)
 
 
 def test_linear_load_is_exact_on_any_grid():
@@ -40,6 +45,11 @@ def test_linear_load_is_exact_on_any_grid():
     r = integrate_loads(y, *_flat(y), w0 * (1 - y / L))
     np.testing.assert_allclose(r.shear_N, w0 * (L - y) ** 2 / (2 * L), rtol=1e-12, atol=1e-9)
     np.testing.assert_allclose(r.bending_Nm, w0 * (L - y) ** 3 / (6 * L), rtol=1e-12, atol=1e-9)
+    # the root rows of the two array checks above, for the validation table
+    check(STATICS, "root shear w0 L / 2, triangular load (N)", w0 * L / 2, r.shear_N[0], rel=1e-12,
+          abs=1e-9)
+    check(STATICS, "root bending w0 L^2 / 6, triangular load (N m)", w0 * L**2 / 6, r.bending_Nm[0],
+          rel=1e-12, abs=1e-9)
 
 
 def test_elliptic_load_total_and_root_moment_on_a_fine_grid():
@@ -47,10 +57,13 @@ def test_elliptic_load_total_and_root_moment_on_a_fine_grid():
     s, l0 = 4.0, 300.0
     y = s * np.sin(np.linspace(0, np.pi / 2, 401))  # clustered at the tip, where sqrt is singular
     r = integrate_loads(y, *_flat(y), l0 * np.sqrt(np.clip(1 - (y / s) ** 2, 0, None)))
-    assert r.shear_N[0] == pytest.approx(np.pi * l0 * s / 4, rel=2e-5)
-    assert r.bending_Nm[0] == pytest.approx(l0 * s**2 / 3, rel=2e-5)
+    src = "beam statics, elliptic load (VALIDATION.md 8)"
+    check(src, "root shear pi l0 s / 4, l0 = 300 N/m, s = 4 m (N)", np.pi * l0 * s / 4, r.shear_N[0],
+          rel=2e-5)
+    check(src, "root bending l0 s^2 / 3 (N m)", l0 * s**2 / 3, r.bending_Nm[0], rel=2e-5)
     # centroid 4 s / (3 pi)
-    assert r.bending_Nm[0] / r.shear_N[0] == pytest.approx(4 * s / (3 * np.pi), rel=2e-5)
+    check(src, "load centroid 4 s / (3 pi) (m)", 4 * s / (3 * np.pi), r.bending_Nm[0] / r.shear_N[0],
+          rel=2e-5)
 
 
 def test_point_load_makes_a_shear_jump_and_a_moment_kink():
@@ -61,11 +74,15 @@ def test_point_load_makes_a_shear_jump_and_a_moment_kink():
                                                                             np.array([0.0, 0.0, P]))])
     np.testing.assert_allclose(r.shear_N, [P, P, P, 0.0, 0.0], atol=1e-12)
     np.testing.assert_allclose(r.bending_Nm, [P * yp, P * (yp - 0.6), P * eps, 0.0, 0.0], atol=1e-9)
+    # the root rows of the two array checks above (default rtol 1e-7), for the validation table
+    check(STATICS, "root shear of a point force P = -500 N (N)", P, r.shear_N[0], rel=1e-7, abs=1e-12)
+    check(STATICS, "root bending P y_p of a point force at 1.2 m (N m)", P * yp, r.bending_Nm[0],
+          rel=1e-7, abs=1e-9)
     # a load exactly on a station counts as outboard of it (value just inboard of the load)
     y2 = np.array([0.0, yp, 2.0])
     r2 = integrate_loads(y2, *_flat(y2), np.zeros(3), point_loads=[PointLoad("pod", np.array([0.0, yp, 0.0]),
                                                                                np.array([0.0, 0.0, P]))])
-    assert r2.shear_N[1] == P
+    check(STATICS, "shear just inboard of a point force on a station (N)", P, r2.shear_N[1])  # exact
 
 
 def test_swept_spar_resolution():
@@ -79,12 +96,16 @@ def test_swept_spar_resolution():
     y = np.linspace(0, l, 7)
     sx = y * math.tan(lam)
     on = integrate_loads(y, sx, np.zeros_like(y), np.full(7, w))
-    assert on.bending_Nm[0] == pytest.approx(w * l**2 / (2 * math.cos(lam)), rel=1e-12)
-    assert on.torsion_Nm[0] == pytest.approx(0.0, abs=1e-9)
-    assert on.shear_N[0] == pytest.approx(w * l, rel=1e-12)
+    src = "cantilever statics, 30 deg swept spar"
+    check(src, "root bending w l^2 / (2 cos L), load on the spar (N m)",
+          w * l**2 / (2 * math.cos(lam)), on.bending_Nm[0], rel=1e-12)
+    check(src, "root torsion, load on the spar (N m)", 0.0, on.torsion_Nm[0], abs=1e-9)
+    check(src, "root shear w l (N)", w * l, on.shear_N[0], rel=1e-12)
     off = integrate_loads(y, sx, np.zeros_like(y), np.full(7, w), load_x=np.zeros(7))
-    assert off.bending_Nm[0] == pytest.approx(w * l**2 / 2 * math.cos(lam), rel=1e-12)
-    assert off.torsion_Nm[0] == pytest.approx(w * l**2 / 2 * math.sin(lam), rel=1e-12)
+    check(src, "root bending (w l^2 / 2) cos L, load on x = 0 (N m)", w * l**2 / 2 * math.cos(lam),
+          off.bending_Nm[0], rel=1e-12)
+    check(src, "root torsion (w l^2 / 2) sin L, load on x = 0 (N m)", w * l**2 / 2 * math.sin(lam),
+          off.torsion_Nm[0], rel=1e-12)
     s, b, n = spar_frame(y, sx, np.zeros_like(y))
     np.testing.assert_allclose(s[3], [math.sin(lam), math.cos(lam), 0], atol=1e-12)
     np.testing.assert_allclose(b[3], [math.cos(lam), -math.sin(lam), 0], atol=1e-12)
@@ -97,9 +118,27 @@ def test_dihedral_spar_resolution():
     g, l, w = math.radians(8.0), 1.5, 60.0
     y = np.linspace(0, l, 4)
     r = integrate_loads(y, np.zeros(4), y * math.tan(g), np.full(4, w))
-    assert r.shear_N[0] == pytest.approx(w * l * math.cos(g), rel=1e-12)
-    assert r.bending_Nm[0] == pytest.approx(w * l**2 / 2, rel=1e-12)
-    assert r.torsion_Nm[0] == pytest.approx(0.0, abs=1e-9)
+    src = "cantilever statics, 8 deg dihedral spar"
+    check(src, "root shear w l cos G (N)", w * l * math.cos(g), r.shear_N[0], rel=1e-12)
+    check(src, "root bending w l^2 / 2 (N m)", w * l**2 / 2, r.bending_Nm[0], rel=1e-12)
+    check(src, "root torsion (N m)", 0.0, r.torsion_Nm[0], abs=1e-9)
+
+
+def test_force_normal_to_a_dihedral_surface():
+    # Force normal to a dihedral surface: per unit y it is w (0, -tanG, 1), i.e. w / cosG along
+    # n = (0, -sinG, cosG). Root shear = w l / cosG; the moment about the root spar point is
+    # int (0, y, y tanG) x (0, -w tanG, w) dy = (w l^2/2 (1 + tan^2 G), 0, 0), so bending =
+    # w l^2 / (2 cos^2 G) (cantilever statics, derived here).
+    g, l, w = math.radians(8.0), 1.5, 60.0
+    y = np.linspace(0, l, 5)
+    z = y * math.tan(g)
+    r = integrate_loads(y, np.zeros(5), z, np.full(5, w), side_N_per_m=np.full(5, -w * math.tan(g)))
+    src = "cantilever statics, force normal to an 8 deg dihedral surface"
+    check(src, "root shear w l / cos G (N)", w * l / math.cos(g), r.shear_N[0], rel=1e-12)
+    check(src, "root bending w l^2 / (2 cos^2 G) (N m)", w * l**2 / (2 * math.cos(g) ** 2),
+          r.bending_Nm[0], rel=1e-12)
+    res = equilibrium_residual(r)
+    assert res["shear_residual_rel"] < 1e-12 and res["bending_residual_rel"] < 1e-12
 
 
 def test_torsion_from_lift_offset_and_section_moment():
@@ -109,7 +148,8 @@ def test_torsion_from_lift_offset_and_section_moment():
     y = np.linspace(0, l, 5)
     r = integrate_loads(y, np.zeros(5), np.zeros(5), np.full(5, w), load_x=np.full(5, e),
                         pitch_Nm_per_m=np.full(5, m))
-    assert r.torsion_Nm[0] == pytest.approx((m - w * e) * l, rel=1e-12)
+    check(STATICS, "root torsion (m - w e) l, lift aft of the spar (N m)", (m - w * e) * l,
+          r.torsion_Nm[0], rel=1e-12)
     np.testing.assert_allclose(r.pitch_Nm_per_m, m - w * e, rtol=1e-12)
 
 
@@ -118,8 +158,9 @@ def test_inplane_shear_and_bending_from_drag():
     l, d = 2.0, 7.0
     y = np.linspace(0, l, 3)
     r = integrate_loads(y, np.zeros(3), np.zeros(3), np.zeros(3), drag_N_per_m=np.full(3, d))
-    assert r.inplane_shear_N[0] == pytest.approx(d * l, rel=1e-12)
-    assert r.inplane_bending_Nm[0] == pytest.approx(d * l**2 / 2, rel=1e-12)
+    check(STATICS, "root in-plane shear d l, uniform drag (N)", d * l, r.inplane_shear_N[0], rel=1e-12)
+    check(STATICS, "root in-plane bending d l^2 / 2, uniform drag (N m)", d * l**2 / 2,
+          r.inplane_bending_Nm[0], rel=1e-12)
 
 
 def test_inertia_relief_cancels_equal_lift():
@@ -156,8 +197,9 @@ def test_ultimate_is_factor_times_limit():
     y = np.linspace(0, 1, 3)
     r = integrate_loads(y, np.zeros(3), np.zeros(3), np.full(3, 10.0))
     u = ultimate(r)
-    assert r.ultimate_factor == 1.5
-    assert u["bending_Nm"][0] == pytest.approx(1.5 * 5.0)
+    check("14 CFR 23.303, from memory", "factor of safety (-)", 1.5, r.ultimate_factor)  # exact
+    check("14 CFR 23.303 with beam statics", "ultimate root bending 1.5 w l^2 / 2 (N m)", 1.5 * 5.0,
+          u["bending_Nm"][0], rel=1e-6)
 
 
 def test_schrenk_rectangular_and_elliptic():
@@ -166,12 +208,17 @@ def test_schrenk_rectangular_and_elliptic():
     y = s * np.sin(np.linspace(0, np.pi / 2, 2001))
     rect = schrenk(y, np.full(y.size, 0.3), s, L)
     # rectangular: root = (L/s + 4L/(pi s)) / 2, tip = L / (2 s)
-    assert rect[0] == pytest.approx(0.5 * (L / s + 4 * L / (np.pi * s)), rel=1e-12)
-    assert rect[-1] == pytest.approx(0.5 * L / s, rel=1e-9)
-    assert np.sum(0.5 * (rect[1:] + rect[:-1]) * np.diff(y)) == pytest.approx(L, rel=1e-5)
+    src = "Schrenk, NACA TM 948 (VALIDATION.md 9)"
+    check(src, "root load, rectangular wing, L = 400 N, s = 2 m (N/m)",
+          0.5 * (L / s + 4 * L / (np.pi * s)), rect[0], rel=1e-12)
+    check(src, "tip load, rectangular wing (N/m)", 0.5 * L / s, rect[-1], rel=1e-9)
+    check(src, "integral of the load over the semi-span (N)", L,
+          np.sum(0.5 * (rect[1:] + rect[:-1]) * np.diff(y)), rel=1e-5)
     # elliptic planform: both parts are the same ellipse, so Schrenk returns it unchanged
     ell = schrenk(y, 0.4 * np.sqrt(1 - (y / s) ** 2), s, L)
     np.testing.assert_allclose(ell, 4 * L / (np.pi * s) * np.sqrt(1 - (y / s) ** 2), rtol=2e-5, atol=1e-6)
+    check(src, "root load 4 L / (pi s), elliptic wing (N/m)", 4 * L / (np.pi * s), ell[0], rel=2e-5,
+          abs=1e-6)  # the root row of the array check above
 
 
 def test_spar_line_fraction_and_polyline():

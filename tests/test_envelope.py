@@ -21,6 +21,7 @@ from geomload.loads.envelope import (FOOT, KNOT, LB, PSF, QUANTITIES, critical_p
                                      limit_load_factors, minimum_design_speeds, points_to_load_cases,
                                      rule_gust_velocities, stall_speed, vn_diagram)
 from geomload.records import SpanLoads
+from validation import check
 
 G = 9.80665
 
@@ -40,14 +41,19 @@ def atmosphere(h):
 def test_normal_category_positive_factor(w_lb, expected):
     # 23.337(a)(1): n = 2.1 + 24000/(W + 10000), W in lb, need not exceed 3.8
     n_pos, n_neg = limit_load_factors("normal", w_lb * LB)
-    assert n_pos == pytest.approx(expected, rel=1e-12)
-    assert n_neg == pytest.approx(-0.4 * expected, rel=1e-12)  # 23.337(b)(1)
+    check("14 CFR 23.337(a)(1), from memory", f"normal category n_pos, W = {w_lb:g} lb (-)", expected,
+          n_pos, rel=1e-12)
+    check("14 CFR 23.337(b)(1), from memory", f"normal category n_neg, W = {w_lb:g} lb (-)",
+          -0.4 * expected, n_neg, rel=1e-12)
 
 
 def test_utility_acrobatic_and_custom_factors():
     # 23.337(a)(2),(3) and (b): utility 4.4 / -1.76; acrobatic 6.0 / -3.0 (0.5 x positive)
-    assert limit_load_factors("utility", 1000.0) == pytest.approx((4.4, -1.76))
-    assert limit_load_factors("acrobatic", 1000.0) == pytest.approx((6.0, -3.0))
+    for cat, ref in (("utility", (4.4, -1.76)), ("acrobatic", (6.0, -3.0))):
+        got = limit_load_factors(cat, 1000.0)
+        assert len(got) == 2
+        for name, e, m in zip(("n_pos", "n_neg"), ref, got):
+            check("14 CFR 23.337(a),(b), from memory", f"{cat} category {name} (-)", e, m, rel=1e-6)
     assert limit_load_factors("custom", 30.0, 5.0, -2.5) == (5.0, -2.5)
     with pytest.raises(CaseError, match="envelope.category"):
         limit_load_factors("transport", 1000.0)
@@ -63,16 +69,18 @@ def test_utility_acrobatic_and_custom_factors():
 ])
 def test_minimum_design_speeds_from_wing_loading(category, vc_kt, vd_kt):
     vc, vd = minimum_design_speeds(category, 16.0 * PSF)
-    assert vc / KNOT == pytest.approx(vc_kt, rel=1e-12)
-    assert vd / KNOT == pytest.approx(vd_kt, rel=1e-12)
+    src = "14 CFR 23.335(a),(b), from memory"
+    check(src, f"{category} minimum V_C at W/S = 16 psf (kt)", vc_kt, vc / KNOT, rel=1e-12)
+    check(src, f"{category} minimum V_D at W/S = 16 psf (kt)", vd_kt, vd / KNOT, rel=1e-12)
 
 
 def test_minimum_speed_factor_reduces_above_20_psf():
     # 23.335(a)(2),(b)(3): factors fall linearly from 33 / 1.40 at 20 psf to 28.6 / 1.35 at
     # 100 psf (from memory). At 60 psf: 30.8 sqrt(60) kt and 1.375 x that.
     vc, vd = minimum_design_speeds("normal", 60.0 * PSF)
-    assert vc / KNOT == pytest.approx(30.8 * math.sqrt(60.0), rel=1e-12)
-    assert vd / vc == pytest.approx(1.375, rel=1e-12)
+    src = "14 CFR 23.335(a)(2),(b)(3), from memory"
+    check(src, "normal minimum V_C at W/S = 60 psf (kt)", 30.8 * math.sqrt(60.0), vc / KNOT, rel=1e-12)
+    check(src, "normal minimum V_D / V_C at W/S = 60 psf (-)", 1.375, vd / vc, rel=1e-12)
     assert minimum_design_speeds("custom", 100.0) == (None, None)
 
 
@@ -82,8 +90,10 @@ def test_derived_design_speeds_and_maneuver_speed():
     m, s = 1000.0, 15.0
     sp = design_speeds(spec, m, s)
     vs = math.sqrt(2 * m * G / (1.225 * s * 1.5))
-    assert stall_speed(m, s, 1.5) == pytest.approx(vs, rel=1e-12)
-    assert sp.v_maneuver == pytest.approx(min(vs * math.sqrt(4.4), sp.v_cruise), rel=1e-12)
+    check("W = 1/2 rho0 V^2 S CLmax", "stall speed, 1000 kg, 15 m^2, CLmax 1.5 (m/s EAS)", vs,
+          stall_speed(m, s, 1.5), rel=1e-12)
+    check("14 CFR 23.335(c), from memory", "V_A = V_S sqrt(n), utility, capped at V_C (m/s EAS)",
+          min(vs * math.sqrt(4.4), sp.v_cruise), sp.v_maneuver, rel=1e-12)
     assert sp.v_dive >= 1.25 * sp.v_cruise  # 23.335(b)(1)
 
 
@@ -100,26 +110,35 @@ def test_gust_formula_against_a_hand_worked_imperial_example():
     rho = 0.0023769 * 515.378818  # slug/ft^3 -> kg/m^3 (1 slug/ft^3 = 515.3788 kg/m^3)
     c, a = 5.0 * FOOT, 5.0
     kg, mu = gust_alleviation(ws, rho, c, a)
-    assert mu == pytest.approx(14.944, rel=1e-3)
-    assert kg == pytest.approx(0.6496, rel=1e-3)
+    src = "14 CFR 23.341, hand-worked imperial example"
+    check(src, "gust mass ratio mu, W/S = 14.29 psf (-)", 14.944, mu, rel=1e-3)
+    check(src, "gust alleviation factor Kg (-)", 0.6496, kg, rel=1e-3)
     n = gust_load_factor(140 * KNOT, 50 * FOOT, ws, rho, c, a)
-    assert n == pytest.approx(4.196, rel=1e-3)
+    check(src, "gust load factor at 140 kt, 50 ft/s (-)", 4.196, n, rel=1e-3)
     # the rule's 498 is 2 / (rho0 * 1.6878 ft/s per kt) = 498.5 rounded, so the SI increment
     # dn agrees with the imperial formula to 0.11 %
     for v_kt, u_fps in ((140.0, 50.0), (196.0, 25.0), (90.0, 50.0)):
         dn_imperial = kg * u_fps * v_kt * a / (498.0 * 14.2857142857)
         up = gust_load_factor(v_kt * KNOT, u_fps * FOOT, ws, rho, c, a)
         down = gust_load_factor(v_kt * KNOT, u_fps * FOOT, ws, rho, c, a, sign=-1)
-        assert up - 1 == pytest.approx(dn_imperial, rel=1.5e-3)
-        assert 1 - down == pytest.approx(dn_imperial, rel=1.5e-3)
-        assert (up - 1) * 498.53 / 498.0 == pytest.approx(dn_imperial, rel=1e-4)
+        at = f"{v_kt:g} kt, {u_fps:g} ft/s"
+        check("14 CFR 23.341 imperial formula", f"up-gust increment dn, {at} (-)", dn_imperial, up - 1,
+              rel=1.5e-3)
+        check("14 CFR 23.341 imperial formula", f"down-gust increment dn, {at} (-)", dn_imperial,
+              1 - down, rel=1.5e-3)
+        check("14 CFR 23.341 imperial formula, 498 -> 498.53",
+              f"up-gust increment x 498.53/498, {at} (-)", dn_imperial, (up - 1) * 498.53 / 498.0,
+              rel=1e-4)
 
 
 def test_rule_gust_velocities_with_altitude():
     # 23.333(c): 50 / 25 ft/s to 20,000 ft, linearly to 25 / 12.5 ft/s at 50,000 ft
-    assert rule_gust_velocities(0.0) == pytest.approx((50 * FOOT, 25 * FOOT))
-    assert rule_gust_velocities(20000 * FOOT) == pytest.approx((50 * FOOT, 25 * FOOT))
-    assert rule_gust_velocities(35000 * FOOT) == pytest.approx((37.5 * FOOT, 18.75 * FOOT))
+    for h_ft, ref in ((0.0, (50.0, 25.0)), (20000.0, (50.0, 25.0)), (35000.0, (37.5, 18.75))):
+        got = rule_gust_velocities(h_ft * FOOT)
+        assert len(got) == 2
+        for name, e, m in zip(("V_C", "V_D"), ref, got):
+            check("14 CFR 23.333(c), from memory", f"gust velocity at {name}, {h_ft:g} ft (ft/s)", e,
+                  m / FOOT, rel=1e-6)
 
 
 # ---------------------------------------------------------------------------- the diagram
@@ -130,17 +149,20 @@ def test_vn_diagram_corners_lie_on_the_stall_and_limit_lines():
     pts = {p.label: p for p in d.corners}
     q = 0.5 * 1.225 * pts["pos-stall-corner"].v_eas ** 2
     # the positive corner is where the stall curve q S CLmax / W reaches n_pos
-    assert q * s * 1.4 / (m * G) == pytest.approx(d.n_pos, rel=1e-12)
+    check("stall line n = q S CLmax / W", "n at the positive stall corner = n_pos (-)", d.n_pos,
+          q * s * 1.4 / (m * G), rel=1e-12)
     assert pts["pos-limit-dive"].v_eas == pytest.approx(d.speeds.v_dive)
     assert pts["neg-limit-cruise"].n == pytest.approx(d.n_neg)
-    assert pts["neg-limit-dive"].n == 0.0  # 23.333(b)(3), normal category
+    check("14 CFR 23.333(b)(3), from memory", "n at the negative V_D corner, normal category (-)", 0.0,
+          pts["neg-limit-dive"].n)  # exact
     vstall, nstall = d.curves["stall-neg"]
     np.testing.assert_allclose(nstall, -0.5 * 1.225 * vstall**2 * s * 0.8 / (m * G))
     # gust points use the density at altitude: thinner air -> larger mu -> larger Kg
     hi = vn_diagram(spec, m, s, c, 5.0, altitude_m=3000.0, atmosphere=atmosphere)
     assert hi.gust_cruise[1] > d.gust_cruise[1] and hi.gust_cruise[0] > d.gust_cruise[0]
     rho3000 = atmosphere(3000.0)[0]
-    assert hi.gust_cruise[1] == pytest.approx(2 * m * G / s / (rho3000 * c * 5.0 * G), rel=1e-12)
+    check("14 CFR 23.341 mass ratio, ambiance density", "gust mass ratio mu at 3000 m (-)",
+          2 * m * G / s / (rho3000 * c * 5.0 * G), hi.gust_cruise[1], rel=1e-12)
 
 
 def test_lift_slope_is_asked_at_the_gust_mach():

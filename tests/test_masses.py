@@ -6,13 +6,16 @@ convention of docs/methods_loads.md); inertia n g m'(y) with standard gravity 9.
 """
 
 import numpy as np
-import pytest
 
 from geomload.case import FuelTank, WingMassSpec
 from geomload.loads.beam import equilibrium_residual, integrate_loads
 from geomload.loads.masses import (G0, inertia_loads, mass_distribution, tank_mass_per_span,
                                    wing_mass_per_span)
 from geomload.records import PointMass
+from validation import check
+
+MASS = "conservation of mass, per-side convention"
+
 
 Y = np.linspace(0.0, 2.0, 11)
 CHORD = 0.5 - 0.1 * Y  # linear taper 0.5 -> 0.3 m
@@ -26,10 +29,10 @@ def _trapz(y, f):
 
 def test_chord_distribution_holds_half_the_wing_mass_and_follows_the_chord():
     m = wing_mass_per_span(Y, CHORD, WingMassSpec(6.0))
-    assert _trapz(Y, m) == pytest.approx(3.0, rel=1e-12)
+    check(MASS, "semi-span integral of m'(y), wing mass 6 kg (kg)", 3.0, _trapz(Y, m), rel=1e-12)
     np.testing.assert_allclose(m / CHORD, m[0] / CHORD[0], rtol=1e-12)
     # exact value for a linear taper: m' = (M/2) c / int c dy, int c dy = 0.8 m^2
-    assert m[0] == pytest.approx(3.0 * 0.5 / 0.8, rel=1e-12)
+    check(MASS, "root m' = (M/2) c / int c dy, linear taper (kg/m)", 3.0 * 0.5 / 0.8, m[0], rel=1e-12)
 
 
 def test_table_distribution_uses_per_side_values():
@@ -41,7 +44,8 @@ def test_table_distribution_uses_per_side_values():
 def test_fuel_tank_over_a_span_range():
     tank = FuelTank("inner", 4.0, 0.4, 1.2)
     m = tank_mass_per_span(Y, CHORD, tank, fraction=0.5)
-    assert _trapz(Y, m) == pytest.approx(0.5 * 0.5 * 4.0, rel=1e-12)
+    check(MASS, "semi-span integral of a 4 kg tank, half full (kg)", 0.5 * 0.5 * 4.0, _trapz(Y, m),
+          rel=1e-12)
     inside = (Y >= 0.4 - 1e-9) & (Y <= 1.2 + 1e-9)
     assert np.all(m[~inside] == 0.0)
     np.testing.assert_allclose(m[inside], m[inside][0])  # uniform per span
@@ -56,10 +60,14 @@ def test_mass_distribution_totals_cg_line_and_lumped_tanks():
                           WingMassSpec(6.0, cg_chord_fraction=0.4),
                           (FuelTank("inner", 4.0, 0.4, 1.2, cg_chord_fraction=0.4),
                            FuelTank("tiny", 1.0, 0.41, 0.5)), fuel_fraction=1.0)
-    assert d.semispan_mass_kg == pytest.approx(3.0 + 2.0 + 0.5, rel=1e-12)
+    check(MASS, "semi-span mass, wing 6 kg + tanks 4 kg and 1 kg (kg)", 3.0 + 2.0 + 0.5,
+          d.semispan_mass_kg, rel=1e-12)
     np.testing.assert_allclose(d.x_m, XLE + 0.4 * CHORD, rtol=1e-12)  # both items at 40 % chord
-    assert len(d.lumped) == 1 and d.lumped[0].mass == pytest.approx(0.5)
-    assert d.lumped[0].position[1] == pytest.approx(0.455)
+    assert len(d.lumped) == 1
+    check(MASS, "lumped mass of a 1 kg tank narrower than a station gap (kg)", 0.5, d.lumped[0].mass,
+          rel=1e-6)
+    check("centroid of a uniform span range", "y of the lumped tank, range 0.41-0.5 m (m)", 0.455,
+          d.lumped[0].position[1], rel=1e-6)
     empty = mass_distribution(Y, CHORD, XLE, XTE, XLE, np.zeros_like(Y), None,
                               (FuelTank("inner", 4.0, 0.4, 1.2),), fuel_fraction=0.0)
     assert empty.semispan_mass_kg == 0.0
@@ -72,16 +80,19 @@ def test_inertia_and_relief_through_the_beam():
     pm = PointMass("pod", 2.0, np.array([0.3, 1.5, -0.05]))
     q, pls = inertia_loads(d, n, [pm])
     np.testing.assert_allclose(q, n * G0 * d.kg_per_m)
-    assert pls[0].force[2] == pytest.approx(-n * G0 * 2.0)
+    check("inertia n g m, g = 9.80665 m/s^2 (CGPM 1901)", "inertia of a 2 kg pod at n = 3 (N)",
+          -n * G0 * 2.0, pls[0].force[2], rel=1e-6)
     lift = np.full(Y.size, 400.0)
     r = integrate_loads(Y, XLE + 0.25 * CHORD, np.zeros_like(Y), lift, inertia_N_per_m=q,
                         inertia_x=d.x_m, point_loads=pls)
     # statics: root shear = L - n g (M/2 + m_pod)
-    assert r.shear_N[0] == pytest.approx(400.0 * 2.0 - n * G0 * (3.0 + 2.0), rel=1e-12)
+    check("cantilever statics (VALIDATION.md 8)", "root shear L - n g (M/2 + m_pod) (N)",
+          400.0 * 2.0 - n * G0 * (3.0 + 2.0), r.shear_N[0], rel=1e-12)
     res = equilibrium_residual(r)
     assert res["shear_residual_rel"] < 1e-9 and res["bending_residual_rel"] < 1e-9
     # torsion of the pod weight W about the (straight, slightly swept) spar: x_s = 0.125 +
     # 0.025 y, s = (sin L, cos L, 0), tan L = 0.025. r - P0 = (0.175, 1.5, -0.05), F = (0, 0, -W):
     # M = (-1.5 W, 0.175 W, 0), torsion = M.s = W (0.175 cos L - 1.5 sin L) (nose-up, pod aft)
     W, lam = n * G0 * 2.0, np.arctan(0.025)
-    assert r.torsion_Nm[0] == pytest.approx(W * (0.175 * np.cos(lam) - 1.5 * np.sin(lam)), rel=1e-9)
+    check("cantilever statics, swept spar", "root torsion of the pod weight about the spar (N m)",
+          W * (0.175 * np.cos(lam) - 1.5 * np.sin(lam)), r.torsion_Nm[0], rel=1e-9)

@@ -99,6 +99,7 @@ def _job(run) -> str:
            f"{len(run.cases)} flight case(s). Job: <b>{esc(c0)}</b>.</p>",
            f'<p class="caution">{esc(CAUTION)}</p>']
     warns = list(run.warnings) + [f"{c.name}: {c.stall_warning}" for c in run.cases if c.stall_warning]
+    warns = list(dict.fromkeys(warns))  # the pipeline may already list the stall warnings
     if warns:
         out.append("<ul>" + "".join(f'<li class="warn">{esc(w)}</li>' for w in warns) + "</ul>")
     return "".join(out)

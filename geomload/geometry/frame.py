@@ -107,7 +107,7 @@ def detect_frame(mesh, span_axis=None, up_axis=None) -> WingFrame:
 
     # profile of cuts along the provisional span axis
     R0 = _basis(e_span, e_chord)
-    sproj = tris @ e_span  # (m, 3) CAD coordinate along the span axis
+    sproj = (tris.reshape(-1, 3) @ e_span).reshape(-1, 3)  # CAD coordinate along the span axis
     lo, hi = float(sproj.min()), float(sproj.max())
     o0 = e_span * lo
     cuts = slice_loops(tris, R0, o0, (hi - lo) * _PROFILE)
@@ -143,10 +143,11 @@ def detect_frame(mesh, span_axis=None, up_axis=None) -> WingFrame:
             else:
                 notes.append("root and tip chords are alike: root end chosen arbitrarily")
         if s_given is not None:
-            root_at_lo = s_given > 0
+            root_at_lo = True  # a signed span axis points root -> tip
         y_hat = e_span if root_at_lo else -e_span
         if s_given is None:
-            end = (sproj.min(1) if root_at_lo else sproj.max(1))
+            end = np.minimum(np.minimum(sproj[:, 0], sproj[:, 1]), sproj[:, 2]) if root_at_lo else \
+                np.maximum(np.maximum(sproj[:, 0], sproj[:, 1]), sproj[:, 2])
             near = np.abs(end - (lo if root_at_lo else hi)) < 0.004 * (hi - lo)
             cap = _root_cap_normal(tris[near], y_hat, 0.002 * (hi - lo))
             if cap is not None:

@@ -51,7 +51,7 @@ def slice_loops(tris, rotation, origin, levels, tol=None):
     lv = levels[order].copy()
     rotation = np.asarray(rotation, float)
     origin = np.asarray(origin, float)
-    yfast = tris @ rotation[1] - rotation[1] @ origin  # (m, 3), for selection only
+    yfast = (tris.reshape(-1, 3) @ rotation[1]).reshape(-1, 3) - rotation[1] @ origin  # selection only
     lo, hi = _min3(yfast), _max3(yfast)
     scale = max(float(hi.max() - lo.min()), 1e-300)
     eps = 1e-9 * scale
@@ -340,7 +340,8 @@ def cut_stations(mesh, frame, n=20, spacing="cosine", progress=None) -> Stations
     progress = progress or no_progress
     if int(n) < 3:
         raise GeometryError(f"{mesh.source}: at least 3 stations are needed (got {n})")
-    semispan = float((mesh.triangles @ frame.rotation[1]).max() - frame.rotation[1] @ frame.origin)
+    r1 = frame.rotation[1]
+    semispan = float((mesh.triangles.reshape(-1, 3) @ r1).max() - r1 @ frame.origin)
     if semispan <= 0:
         raise GeometryError(f"{mesh.source}: no geometry on the starboard side of the root plane")
     y0 = 0.0 if frame.full_span else INSET * semispan

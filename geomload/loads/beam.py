@@ -92,7 +92,8 @@ def _segment_moments(y, p, r, f):
     return force, mom
 
 
-def integrate_loads(y, spar_x, spar_z, lift_N_per_m, *, drag_N_per_m=None, pitch_Nm_per_m=None,
+def integrate_loads(y, spar_x, spar_z, lift_N_per_m, *, drag_N_per_m=None, side_N_per_m=None,
+                    pitch_Nm_per_m=None,
                     load_x=None, load_z=None, inertia_N_per_m=None, inertia_x=None,
                     inertia_z=None, point_loads=(), case="", ultimate_factor=1.5,
                     schrenk_lift_N_per_m=None) -> SpanLoads:
@@ -104,6 +105,8 @@ def integrate_loads(y, spar_x, spar_z, lift_N_per_m, *, drag_N_per_m=None, pitch
     spar_x, spar_z : (n,) load-axis position at each station (m, wing frame).
     lift_N_per_m : (n,) aerodynamic force per metre of y along +z (N/m).
     drag_N_per_m : (n,) aerodynamic force per metre of y along +x, aft (N/m); default 0.
+    side_N_per_m : (n,) aerodynamic force per metre of y along +y (N/m), e.g. the inboard tilt
+        -lift tan(dihedral) of a force normal to a dihedral surface; default 0.
     pitch_Nm_per_m : (n,) section pitching moment per metre about the load line, nose-up
         (N m/m), e.g. cm_c4 q c^2 with the load line at the quarter chord; default 0.
     load_x, load_z : (n,) line where lift and drag act (m); default the spar line.
@@ -128,6 +131,7 @@ def integrate_loads(y, spar_x, spar_z, lift_N_per_m, *, drag_N_per_m=None, pitch
     sx, sz = _col(spar_x, n, "spar_x"), _col(spar_z, n, "spar_z")
     lift = _col(lift_N_per_m, n, "lift_N_per_m")
     drag = _col(drag_N_per_m, n, "drag_N_per_m")
+    side = _col(side_N_per_m, n, "side_N_per_m")
     pitch = _col(pitch_Nm_per_m, n, "pitch_Nm_per_m")
     ax = sx if load_x is None else _col(load_x, n, "load_x")
     az = sz if load_z is None else _col(load_z, n, "load_z")
@@ -137,7 +141,7 @@ def integrate_loads(y, spar_x, spar_z, lift_N_per_m, *, drag_N_per_m=None, pitch
     zero = np.zeros(n)
     p = np.column_stack([sx, y, sz])
 
-    fa, ma = _segment_moments(y, p, np.column_stack([ax, y, az]), np.column_stack([drag, zero, lift]))
+    fa, ma = _segment_moments(y, p, np.column_stack([ax, y, az]), np.column_stack([drag, side, lift]))
     fi, mi = _segment_moments(y, p, np.column_stack([ix, y, iz]), np.column_stack([zero, zero, -q]))
     couple = np.zeros((n - 1, 3))
     couple[:, 1] = 0.5 * np.diff(y) * (pitch[:-1] + pitch[1:])  # about axes parallel to y
@@ -168,6 +172,7 @@ def integrate_loads(y, spar_x, spar_z, lift_N_per_m, *, drag_N_per_m=None, pitch
                               else _col(schrenk_lift_N_per_m, n, "schrenk_lift_N_per_m")),
         ultimate_factor=float(ultimate_factor),
         extras={"force_N": force, "moment_Nm": moment, "axis_s": s, "axis_b": b, "axis_n": nrm,
+                "side_N_per_m": side, "load_z_m": az,
                 "point_loads": tuple(point_loads), "spar_points_m": p,
                 "sign_convention": SIGN_CONVENTION},
     )
@@ -195,6 +200,14 @@ def equilibrium_residual(loads: SpanLoads) -> dict:
     total = float(np.sum(0.5 * (b - a) * (ga + gb)))
     first = float(np.sum((b - a) / 6.0 * (2 * a * ga + a * gb + b * ga + 2 * b * gb)))
     p0 = loads.extras["spar_points_m"][0]
+    side = loads.extras.get("side_N_per_m")
+    if side is not None and np.any(side):
+        # a side force f_y on the line z(y) adds -(z - z0) f_y to the moment about x; both are
+        # linear per segment, so the product integral is exact: h/6 (2 a0 b0 + a0 b1 + a1 b0 + 2 a1 b1)
+        za, fy = loads.extras["load_z_m"] - p0[2], side
+        hh = np.diff(y)
+        first -= float(np.sum(hh / 6.0 * (2 * za[:-1] * fy[:-1] + za[:-1] * fy[1:]
+                                          + za[1:] * fy[:-1] + 2 * za[1:] * fy[1:])))
     for pl in loads.extras.get("point_loads", ()):
         r, fv = np.asarray(pl.position, float), np.asarray(pl.force, float)
         if r[1] >= y[0] - 1e-12 * max(1.0, float(y[-1] - y[0])):
