@@ -47,7 +47,7 @@ class GeometrySpec:
     up_axis: Optional[str] = None
     n_stations: int = 20
     spacing: str = "cosine"
-    body: Optional[str] = None
+    body: Optional[int] = None  # 1-based body number in a multi-body file
 
 
 @dataclass(frozen=True)
@@ -248,10 +248,12 @@ def _geometry(t: _Table, base: Path) -> GeometrySpec:
         up_axis=t.get("up_axis", str),
         n_stations=t.get("stations", int, 20),
         spacing=t.choice("spacing", ("cosine", "uniform"), "cosine"),
-        body=t.get("body", str),
+        body=t.get("body", int),
     )
     if g.n_stations < 3:
         t.fail("stations", f"need at least 3, got {g.n_stations}")
+    if g.body is not None and g.body < 1:
+        t.fail("body", f"bodies are numbered from 1, got {g.body}")
     return g
 
 

@@ -80,7 +80,8 @@ def import_options(fn):
         click.option("--spacing", type=click.Choice(["cosine", "uniform"]), default="cosine",
                      show_default=True, help="Station spacing along the span."),
         click.option("--body", type=int, default=None, metavar="N",
-                     help="Which body of a multi-body file is the wing (0-based; default: largest)."),
+                     help="Which body of a multi-body file is the wing (numbered from 1; default: the "
+                          "largest by area)."),
     ]
     for opt in reversed(opts):
         fn = opt(fn)
@@ -216,8 +217,14 @@ def aero(geometry, units, span_axis, up_axis, n_stations, spacing, body, alpha, 
 @_guarded
 def new_case(geometry):
     """Print a commented case-file template for GEOMETRY (redirect it to a .toml file)."""
-    from geomload.case import template
+    import os
 
+    from geomload.case import template
+    from geomload.errors import InputError
+
+    if not os.path.isfile(geometry):
+        raise InputError(f"{geometry}: no such geometry file"
+                         + (" (it is a folder)" if os.path.isdir(geometry) else ""))
     click.echo(template(geometry), nl=False)
 
 

@@ -113,12 +113,6 @@ def _to_edges(y_edges, y_strip, values, width, total=None, tip_zero=True):
     return v
 
 
-def _starboard_strips(sol, lattice):
-    y = np.asarray(sol.y)
-    keep = y >= 0
-    return keep
-
-
 def _stall_warning(lc, case, models, mach, CL_req) -> str:
     """'' or a one-line warning when the required CL lies beyond the stall estimate.
 
@@ -174,9 +168,8 @@ def solve_case(lc, case, lattice, models, stations, grid, masses_cache, atmosphe
     warn = _stall_warning(lc, case, models, mach, CL_req)
 
     y, le, te, chord = grid
-    keep = np.asarray(sol.y) >= 0
-    ys, ws = np.asarray(sol.y)[keep], lattice.strip_width[keep] if lattice.strip_width.size == \
-        keep.size else lattice.strip_width
+    keep = np.asarray(sol.y) >= 0  # a full-span lattice: the starboard strips
+    ys, ws = np.asarray(sol.y)[keep], np.asarray(lattice.strip_width)[keep]
     order = np.argsort(ys)
     ys, ws = ys[order], ws[order]
     pick = lambda a: np.asarray(a)[keep][order]  # noqa: E731
@@ -260,9 +253,8 @@ def compute(case, progress=None):
         vn = [vn_diagram(spec, case.aircraft.gross_mass_kg, lattice.s_ref, mean_chord,
                          models.lift_slope, m, h, atm)
               for m in masses for h in spec.altitudes_m]
-        for d in vn:
-            warnings.extend(d.notes)
-        warnings.extend(d for d in ())
+        for note in dict.fromkeys(n for d in vn for n in d.notes):
+            warnings.append(note)
     if not load_cases:
         raise CaseError(f"{case.path}: no load_case and no [envelope]: nothing to run")
     names = [lc.name for lc in load_cases]
@@ -275,7 +267,6 @@ def compute(case, progress=None):
         results.append(solve_case(lc, case, lattice, models, stations, grid, masses_cache, isa))
         progress("cases", i + 1, len(load_cases))
     timings["aero and loads"] = time.perf_counter() - t1
-    envelope = None
     from geomload.loads.envelope import envelope_of
 
     envelope = envelope_of([r.loads for r in results])

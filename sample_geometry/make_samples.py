@@ -94,7 +94,9 @@ def write_obj(path, tris):
 
 def write_step(path, n_sections=7, n_chord=60):
     """Half wing as a loft through B-spline sections, written in millimetres."""
-    from OCP.BRepBuilderAPI import BRepBuilderAPI_MakeEdge, BRepBuilderAPI_MakeWire
+    from OCP.BRepBuilderAPI import (BRepBuilderAPI_MakeEdge, BRepBuilderAPI_MakeFace, BRepBuilderAPI_MakeSolid,
+                                    BRepBuilderAPI_MakeWire, BRepBuilderAPI_Sewing)
+    from OCP.TopoDS import TopoDS
     from OCP.BRepOffsetAPI import BRepOffsetAPI_ThruSections
     from OCP.GeomAPI import GeomAPI_PointsToBSpline
     from OCP.gp import gp_Pnt
@@ -104,7 +106,8 @@ def write_step(path, n_sections=7, n_chord=60):
     from OCP.collections import Array1_gp_Pnt
     from OCP.GeomAbs import GeomAbs_C2
 
-    loft = BRepOffsetAPI_ThruSections(True, True, 1e-6)  # solid, ruled between sections
+    loft = BRepOffsetAPI_ThruSections(False, True, 1e-6)  # skin, ruled between sections
+    wires = []
     for y in np.linspace(0.0, SEMISPAN, n_sections):
         c2 = naca4_surface(CODE, n_chord, True, float(thickness(y)))
         a = np.radians(twist(y))
@@ -119,11 +122,18 @@ def write_step(path, n_sections=7, n_chord=60):
                                        BRepBuilderAPI_MakeEdge(gp_Pnt(*map(float, pts[-1])),
                                                                gp_Pnt(*map(float, pts[0]))).Edge()).Wire()
         loft.AddWire(wire)
+        wires.append(wire)
     loft.Build()
+    sew = BRepBuilderAPI_Sewing(1e-3)  # mm
+    sew.Add(loft.Shape())
+    for wire in (wires[0], wires[-1]):  # flat root and tip caps
+        sew.Add(BRepBuilderAPI_MakeFace(wire, True).Face())
+    sew.Perform()
+    solid = BRepBuilderAPI_MakeSolid(TopoDS.Shell(sew.SewedShape())).Solid()
     Interface_Static.SetCVal_s("write.step.unit", "MM")
     Interface_Static.SetCVal_s("write.step.schema", "AP214")
     w = STEPControl_Writer()
-    w.Transfer(loft.Shape(), STEPControl_AsIs)
+    w.Transfer(solid, STEPControl_AsIs)
     if w.Write(path) != IFSelect_RetDone:
         raise RuntimeError(f"writing {path} failed")
 

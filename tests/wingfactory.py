@@ -106,3 +106,20 @@ def expected_stations(d, y, blunt_te=True):
     out["x_qc"] = out["x_le"] + 0.25 * out["chord"] * np.cos(tw)
     out["z_qc"] = out["z_le"] - 0.25 * out["chord"] * np.sin(tw)
     return out
+
+
+def expected_max_camber(code, t, blunt_te=True):
+    """(f/c, x/c) of the NACA mean line measured normal to the farthest-point chord line.
+
+    That chord line runs from a LE slightly above the nominal one, so f/c is a little below m.
+    """
+    from geomload.geometry.airfoil import naca4_camber
+
+    le, cl, _ = farthest_point_chord(code, blunt_te, t)
+    x = np.linspace(0, 1, 20001)
+    p = np.column_stack([x, naca4_camber(code, x)]) - le
+    u = (np.array([1.0, 0.0]) - le) / cl
+    n = np.array([-u[1], u[0]])
+    h = (p @ n) / cl
+    i = int(np.argmax(h))
+    return float(h[i]), float((p[i] @ u) / cl)

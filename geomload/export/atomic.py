@@ -134,6 +134,12 @@ class OutputDir:
         check_not_input(f, self.inputs)
         if f.is_dir() and any(f.iterdir()) and not self.force:
             raise OutputError(f"{f}: folder exists and is not empty (use --force to replace it)")
+        for anc in f.parents:
+            if anc.exists():
+                if not anc.is_dir():
+                    raise OutputError(f"{f}: cannot create output folder: {anc} is a file, "
+                                      "not a folder")
+                break
         try:
             f.parent.mkdir(parents=True, exist_ok=True)
             self.staging = Path(tempfile.mkdtemp(prefix=f".{f.name}.partial-", dir=f.parent))

@@ -23,7 +23,8 @@ import numpy as np
 from ..errors import GeometryError, InputError
 from ..records import WingFrame
 from .read import triangle_areas
-from .sections import INSET, section_properties, slice_loops
+from .sections import INSET, section_properties, slice_indexed
+from .spanindex import SpanIndex
 
 _AXES = {"x": 0, "y": 1, "z": 2}
 _PROFILE = np.linspace(0.04, 0.96, 9)
@@ -80,7 +81,7 @@ def detect_frame(mesh, span_axis=None, up_axis=None) -> WingFrame:
     stride = max(1, tris.shape[0] // 200_000)
     sub = tris[::stride]
     w = triangle_areas(sub)
-    cen = sub.mean(1)
+    cen = (sub[:, 0] + sub[:, 1] + sub[:, 2]) / 3  # triangle centroids
     mean = (w[:, None] * cen).sum(0) / w.sum()
     dev = cen - mean
     evals, evecs = np.linalg.eigh((dev.T * w) @ dev / w.sum())
@@ -107,10 +108,10 @@ def detect_frame(mesh, span_axis=None, up_axis=None) -> WingFrame:
 
     # profile of cuts along the provisional span axis
     R0 = _basis(e_span, e_chord)
-    sproj = (tris.reshape(-1, 3) @ e_span).reshape(-1, 3)  # CAD coordinate along the span axis
-    lo, hi = float(sproj.min()), float(sproj.max())
+    index = SpanIndex(tris, e_span)  # the one pass over all triangles; cuts touch only candidates
+    lo, hi = index.s_min, index.s_max  # CAD coordinate range along the span axis
     o0 = e_span * lo
-    cuts = slice_loops(tris, R0, o0, (hi - lo) * _PROFILE)
+    cuts = slice_indexed(index, R0, o0, (hi - lo) * _PROFILE)
     prof = np.full((_PROFILE.size, 4), np.nan)
     for k, (loop, _, _) in enumerate(cuts):
         if loop is not None:
@@ -146,9 +147,13 @@ def detect_frame(mesh, span_axis=None, up_axis=None) -> WingFrame:
             root_at_lo = True  # a signed span axis points root -> tip
         y_hat = e_span if root_at_lo else -e_span
         if s_given is None:
-            end = np.minimum(np.minimum(sproj[:, 0], sproj[:, 1]), sproj[:, 2]) if root_at_lo else \
-                np.maximum(np.maximum(sproj[:, 0], sproj[:, 1]), sproj[:, 2])
-            near = np.abs(end - (lo if root_at_lo else hi)) < 0.004 * (hi - lo)
+            band = 0.004 * (hi - lo)
+            if root_at_lo:
+                cand = index.query(lo, lo + band)
+                near = cand[index.lo[cand] - lo < band]
+            else:
+                cand = index.query(hi - band, hi)
+                near = cand[hi - index.hi[cand] < band]
             cap = _root_cap_normal(tris[near], y_hat, 0.002 * (hi - lo))
             if cap is not None:
                 y_hat = _snap(cap, 0.2)[0]
@@ -156,9 +161,12 @@ def detect_frame(mesh, span_axis=None, up_axis=None) -> WingFrame:
         notes.append("half wing (root at the larger-chord end)" if abs(c_first - c_last) >= 0.02 * cmax
                      else "half wing")
     par = float(y_hat @ e_span)
-    yv = sproj * np.sign(par) if abs(par) == 1.0 else tris @ y_hat
-    y_root = 0.5 * (yv.min() + yv.max()) if full else float(yv.min())
-    semispan = float(yv.max() - y_root)
+    if abs(par) == 1.0:
+        yv_min, yv_max = (lo, hi) if par > 0 else (-hi, -lo)
+    else:
+        yv_min, yv_max = index.extent(y_hat)
+    y_root = 0.5 * (yv_min + yv_max) if full else float(yv_min)
+    semispan = float(yv_max - y_root)
     root_level = 0.0 if full else INSET * semispan
 
     # chord direction from the root (or centre) section
@@ -166,7 +174,7 @@ def detect_frame(mesh, span_axis=None, up_axis=None) -> WingFrame:
     o1 = y_hat * y_root
     levels = [root_level] if full else [root_level, 3 * root_level]
     sps = []
-    for loop, _, _ in slice_loops(tris, R1, o1, levels):
+    for loop, _, _ in slice_indexed(index, R1, o1, levels):
         if loop is None:
             raise GeometryError(f"{src}: the root section is not a closed loop (hole in the mesh?)")
         sps.append(section_properties(loop))
@@ -184,7 +192,7 @@ def detect_frame(mesh, span_axis=None, up_axis=None) -> WingFrame:
         origin = le3 + (le3 - le3b) * 0.5
     # up direction
     if full:
-        flip, why = _full_wing_up(tris, R, origin, semispan, u_given, sp["camber_ratio"])
+        flip, why = _full_wing_up(index, R, origin, semispan, u_given, sp["camber_ratio"])
         if flip:
             R = np.vstack([R[0], -R[1], -R[2]])
         notes.append(f"z up from {why}")
@@ -196,7 +204,7 @@ def detect_frame(mesh, span_axis=None, up_axis=None) -> WingFrame:
         if camber < -0.002:
             notes.append("sections show negative camber in the detected frame: a port (left) or "
                          "upside-down half wing? (give --up-axis)")
-    asym = _asymmetry(tris, R, origin, semispan) if full else 0.0
+    asym = _asymmetry(index, R, origin, semispan) if full else 0.0
     return WingFrame(rotation=R, origin=origin, full_span=bool(full), span_axis=axis_label(R[1]),
                      up_axis=axis_label(R[2]), asymmetry=asym, notes=tuple(notes))
 
@@ -223,13 +231,13 @@ def _root_cap_normal(tris, y_hat, tol):
     return _unit(n[good].sum(0))
 
 
-def _full_wing_up(tris, R, origin, semispan, u_given, cam):
+def _full_wing_up(index, R, origin, semispan, u_given, cam):
     """Should y and z be flipped so that z is up? Returns (flip, reason)."""
     if u_given is not None:
         return bool(R[2] @ u_given < 0), "the given up axis"
     if abs(cam) > 0.002:
         return cam < 0, "positive camber"
-    cuts = slice_loops(tris, R, origin, semispan * np.array([0.0, 0.9]))
+    cuts = slice_indexed(index, R, origin, semispan * np.array([0.0, 0.9]))
     if cuts[0][0] is not None and cuts[1][0] is not None:
         dz = cuts[1][0][:, 1].mean() - cuts[0][0][:, 1].mean()
         if abs(dz) > np.tan(np.radians(0.5)) * 0.9 * semispan:
@@ -238,10 +246,10 @@ def _full_wing_up(tris, R, origin, semispan, u_given, cam):
     return bool(R[2][i] < 0), "the positive CAD axis (no camber or dihedral to tell)"
 
 
-def _asymmetry(tris, R, origin, semispan):
+def _asymmetry(index, R, origin, semispan):
     """Max |starboard - port| LE/TE position and chord difference over mirrored cuts / semispan."""
     f = np.array([0.2, 0.4, 0.6, 0.8, 0.95]) * semispan
-    cuts = slice_loops(tris, R, origin, np.concatenate([f, -f]))
+    cuts = slice_indexed(index, R, origin, np.concatenate([f, -f]))
     worst = 0.0
     for (a, _, _), (b, _, _) in zip(cuts[:f.size], cuts[f.size:]):
         if a is None or b is None:

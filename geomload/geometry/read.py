@@ -86,15 +86,12 @@ def read_mesh(path, units=None, body=None, progress=None) -> WingMesh:
     if not bodies:
         raise GeometryError(f"{path}: contains no triangles")
     tris = _choose_body(path, bodies, body, notes)
-    out = np.empty(tris.shape, np.float64)
-    np.multiply(tris, scale, out=out)  # one pass: cast to float64 and scale to metres
-    tris = out
-    if not np.isfinite(tris.sum()) and not np.isfinite(tris).all():
+    tris, bmin, bmax = _to_metres(tris, scale)
+    if not (np.isfinite(bmin).all() and np.isfinite(bmax).all()):  # min/max propagate NaN
         raise GeometryError(f"{path}: contains NaN or infinite coordinates")
-    sub = tris[:: max(1, tris.shape[0] // 200_000)]  # enough for extent and area checks
-    extent = float(np.ptp(sub.reshape(-1, 3), axis=0).max())
+    extent = float((bmax - bmin).max())
+    sub = tris[:: max(1, tris.shape[0] // 20_000)]  # enough for the zero-area check
     if not triangle_areas(sub).sum() > 1e-12 * max(extent, 1e-300) ** 2:
-        extent = float(np.ptp(tris.reshape(-1, 3), axis=0).max())
         if not triangle_areas(tris).sum() > 1e-12 * max(extent, 1e-300) ** 2:
             raise GeometryError(f"{path}: zero-area mesh (all triangles are degenerate)")
     if extent > SPAN_TOO_BIG_M or extent < SPAN_TOO_SMALL_M:
@@ -103,9 +100,31 @@ def read_mesh(path, units=None, body=None, progress=None) -> WingMesh:
     return WingMesh(triangles=tris, source=path, units=unit_label, notes=tuple(notes))
 
 
+def _to_metres(src, scale, chunk=1 << 15):
+    """float64 copy of src (m, 3, 3) times scale, and its per-axis (min, max), in one pass.
+
+    Blocks of `chunk` triangles are converted and their bounds taken while in cache; the
+    product is formed in float64 (a float32 STL value times the unit factor, rounded once).
+    """
+    m = src.shape[0]
+    out = np.empty(src.shape, np.float64)
+    bmin, bmax = np.full(3, np.inf), np.full(3, -np.inf)
+    for a in range(0, m, chunk):
+        blk = out[a:a + chunk]
+        np.multiply(src[a:a + chunk], scale, out=blk, dtype=np.float64)
+        for i in range(3):  # per axis: NaN propagates through min/max; inf shows in them
+            bmin[i] = np.minimum(bmin[i], blk[:, :, i].min())
+            bmax[i] = np.maximum(bmax[i], blk[:, :, i].max())
+    return out, bmin, bmax
+
+
 def triangle_areas(tris: np.ndarray) -> np.ndarray:
     """Areas of an (m, 3, 3) triangle array (units of the coordinates squared)."""
-    return 0.5 * np.linalg.norm(np.cross(tris[:, 1] - tris[:, 0], tris[:, 2] - tris[:, 0]), axis=1)
+    a, b = tris[:, 1] - tris[:, 0], tris[:, 2] - tris[:, 0]
+    cx = a[:, 1] * b[:, 2] - a[:, 2] * b[:, 1]  # the cross product, component by component
+    cy = a[:, 2] * b[:, 0] - a[:, 0] * b[:, 2]
+    cz = a[:, 0] * b[:, 1] - a[:, 1] * b[:, 0]
+    return 0.5 * np.sqrt(cx * cx + cy * cy + cz * cz)
 
 
 def _choose_body(path, bodies, body, notes):

@@ -19,6 +19,7 @@ import numpy as np
 from ..errors import GeometryError
 from ..records import Stations, no_progress
 from .airfoil import cosine_spacing
+from .spanindex import SpanIndex, coord
 
 INSET = 0.005  # stations inset from tip cap and root cap, fraction of the semi-span
 N_CAMBER = 41
@@ -46,26 +47,44 @@ def slice_loops(tris, rotation, origin, levels, tol=None):
     largest piece is an open chain or nothing was cut); n_stray: other pieces ignored;
     open: True when the largest piece is not closed (a hole in the mesh).
     """
+    return slice_indexed(SpanIndex(tris, np.asarray(rotation, float)[1]), rotation, origin, levels, tol)
+
+
+def slice_indexed(index, rotation, origin, levels, tol=None):
+    """`slice_loops` on the soup of a `SpanIndex` (whose axis may differ from the plane normal).
+
+    Only the triangles the index finds near the planes are touched; tolerances are relative to
+    the extent of the whole soup along the plane normal, as in `slice_loops`.
+    """
+    tris = index.tris
     levels = np.asarray(levels, float)
     order = np.argsort(levels)
     lv = levels[order].copy()
     rotation = np.asarray(rotation, float)
     origin = np.asarray(origin, float)
-    yfast = (tris.reshape(-1, 3) @ rotation[1]).reshape(-1, 3) - rotation[1] @ origin  # selection only
-    lo, hi = _min3(yfast), _max3(yfast)
-    scale = max(float(hi.max() - lo.min()), 1e-300)
+    c0 = float(rotation[1] @ origin)
+    s_lo, s_hi = index.extent(rotation[1])
+    scale = max(s_hi - s_lo, 1e-300)
     eps = 1e-9 * scale
     tol = 1e-7 * scale if tol is None else tol
+    cand = index.near_planes(rotation[1], lv + c0, 1e-6 * scale)  # in file order
+    cos = float(rotation[1] @ index.e)
+    if abs(cos) == 1.0 and not (rotation[1] - cos * index.e).any():  # normal along the index axis
+        lo, hi = (index.lo[cand], index.hi[cand]) if cos > 0 else (-index.hi[cand], -index.lo[cand])
+        lo, hi = lo - c0, hi - c0  # selection only
+    else:
+        yfast = coord(tris[cand], rotation[1]) - c0  # selection only
+        lo, hi = _min3(yfast), _max3(yfast)
     for _ in range(8):  # move a plane off any vertex lying on it, then cut
         k0 = np.searchsorted(lv, lo - 4 * eps, "left")
         k1 = np.searchsorted(lv, hi + 4 * eps, "right")
         cnt = k1 - k0
         sel = np.nonzero(cnt > 0)[0]
         c = cnt[sel]
-        tri = np.repeat(sel, c)
+        tri = np.repeat(cand[sel], c)
         start = np.repeat(np.cumsum(c) - c, c)
         pl = np.repeat(k0[sel], c) + (np.arange(tri.size) - start)
-        (yc,) = frame_coords(tris[tri], rotation, origin, rows=(1,))  # bit-reproducible per vertex
+        x, yc, z = frame_coords(tris[tri], rotation, origin)  # bit-reproducible per vertex
         d = yc - lv[pl][:, None]
         on = np.abs(d) < eps
         if not on.any():
@@ -73,24 +92,24 @@ def slice_loops(tris, rotation, origin, levels, tol=None):
         lv[np.unique(pl[on.any(1)])] += 7 * eps
     above = d >= 0
     keep = above.any(1) & ~above.all(1)
-    tri, pl, d, above = tri[keep], pl[keep], d[keep], above[keep]
-    xz = np.stack(frame_coords(tris[tri], rotation, origin, rows=(0, 2)), -1)  # (P, 3, 2)
+    pl, d, above = pl[keep], d[keep], above[keep]
+    xz = np.stack([x[keep], z[keep]], -1)  # (P, 3, 2)
     r = np.arange(d.shape[0])
-    pts, ups = [], []
-    for a, b in ((0, 1), (1, 2), (2, 0)):
-        lo_v = np.where(above[:, a], b, a)  # canonical order: lower vertex first
-        hi_v = np.where(above[:, a], a, b)
+    # each crossed triangle has one up-crossing edge a -> b (a below the plane, b above) and one
+    # down-crossing edge; orient its segment from the first to the second: with a consistently
+    # wound surface the segments then chain head to tail
+    ea, eb = np.array([0, 1, 2]), np.array([1, 2, 0])
+    up = ~above[:, ea] & above[:, eb]
+    down = above[:, ea] & ~above[:, eb]
+    ends = []
+    for e in (np.argmax(up, 1), np.argmax(down, 1)):
+        a, b = ea[e], eb[e]
+        lo_v = np.where(above[r, a], b, a)  # canonical order: lower vertex first, so both
+        hi_v = np.where(above[r, a], a, b)  # triangles of an edge give the same point
         dl, dh = d[r, lo_v], d[r, hi_v]
         pl_, ph = xz[r, lo_v], xz[r, hi_v]
-        with np.errstate(divide="ignore", invalid="ignore"):  # non-crossing edges are dropped
-            pts.append(pl_ + (ph - pl_) * (dl / (dl - dh))[:, None])
-        cross = above[:, a] != above[:, b]
-        ups.append(np.where(cross, np.where(above[:, b], 1, -1), 0))  # +1 up-crossing a -> b
-    pts = np.stack(pts, 1)
-    ups = np.stack(ups, 1)
-    # orient each segment from its up-crossing to its down-crossing edge: with a consistently
-    # wound surface the segments then chain head to tail
-    seg = np.stack([pts[r, np.argmax(ups == 1, 1)], pts[r, np.argmax(ups == -1, 1)]], 1)
+        ends.append(pl_ + (ph - pl_) * (dl / (dl - dh))[:, None])
+    seg = np.stack(ends, 1)
     srt = np.argsort(pl, kind="stable")
     pl, seg = pl[srt], seg[srt]
     bounds = np.searchsorted(pl, np.arange(lv.size + 1))
@@ -107,25 +126,30 @@ def _chain_oriented(seg, pl, n_levels):
     res = [(None, 0, False)] * n_levels
     if S == 0:
         return res
-    os_ = np.lexsort((seg[:, 0, 1], seg[:, 0, 0], pl))
-    oe = np.lexsort((seg[:, 1, 1], seg[:, 1, 0], pl))
+    os_, oe = _point_orders(seg, pl)
     match = (seg[os_, 0] == seg[oe, 1]).all(1)
     bad = np.unique(pl[os_][~match])
     nxt = np.empty(S, np.int64)
     nxt[oe] = os_  # the segment that starts where segment oe[i] ends
     badseg = np.isin(pl, bad)
     nxt[badseg] = np.nonzero(badseg)[0]
+    # a cycle is no longer than the segments of its level: that bounds the doubling steps
+    steps = int(np.ceil(np.log2(np.bincount(pl).max() + 1))) + 1
     lab = np.arange(S)
     p = nxt.copy()
-    for _ in range(int(np.ceil(np.log2(S + 1))) + 1):  # cycle label = smallest index in the cycle
+    for _ in range(steps):  # cycle label = smallest index in the cycle
         lab = np.minimum(lab, lab[p])
         p = p[p]
     term = lab == np.arange(S)
     succ = np.where(term, np.arange(S), nxt)
     w = (~term).astype(np.int64)
-    for _ in range(int(np.ceil(np.log2(S + 1))) + 1):  # list ranking: steps to the label
+    for _ in range(steps):  # list ranking: steps to the label
         w, succ = w + w[succ], succ[succ]
-    order = np.lexsort((-w, lab))
+    # cycles by label, each from the segment after its label round to the label (no sort)
+    count = np.bincount(lab, minlength=S)
+    first = np.cumsum(count) - count
+    order = np.empty(S, np.int64)
+    order[first[lab] + count[lab] - 1 - w] = np.arange(S)
     lab_o = lab[order]
     starts = np.concatenate([[0], np.nonzero(np.diff(lab_o))[0] + 1])
     p0 = seg[order, 0]
@@ -146,6 +170,19 @@ def _chain_oriented(seg, pl, n_levels):
         else:
             res[k] = (p0[starts[best]:starts[best] + size[best]], idx.size - 1, False)
     return res
+
+
+def _point_orders(seg, pl):
+    """Orders of the segment starts and of the ends by level, then position (stable).
+
+    One float sort each on a key that is a fixed function of (level, x, z), the same for starts
+    and ends, so the end and start of segments that meet get equal keys; distinct points that
+    share a key only send their level to the slower `_chain` (the match check fails there).
+    """
+    k = seg[:, :, 0] + 0.6180339887498949 * seg[:, :, 1]  # (S, 2)
+    lo, hi = float(k.min()), float(k.max())
+    key = (k - lo) + (pl * (2.0 * (hi - lo) + 1.0))[:, None]
+    return np.argsort(key[:, 0], kind="stable"), np.argsort(key[:, 1], kind="stable")
 
 
 def _chain(seg, tol):
@@ -340,14 +377,15 @@ def cut_stations(mesh, frame, n=20, spacing="cosine", progress=None) -> Stations
     progress = progress or no_progress
     if int(n) < 3:
         raise GeometryError(f"{mesh.source}: at least 3 stations are needed (got {n})")
-    r1 = frame.rotation[1]
-    semispan = float((mesh.triangles.reshape(-1, 3) @ r1).max() - r1 @ frame.origin)
+    r1 = np.asarray(frame.rotation, float)[1]
+    index = SpanIndex(mesh.triangles, r1)  # the one pass over all triangles
+    semispan = float(index.s_max - r1 @ frame.origin)
     if semispan <= 0:
         raise GeometryError(f"{mesh.source}: no geometry on the starboard side of the root plane")
     y0 = 0.0 if frame.full_span else INSET * semispan
     ys = station_levels(y0, semispan * (1 - INSET), int(n), spacing)
     progress("cut", 0, len(ys))
-    cuts = slice_loops(mesh.triangles, frame.rotation, frame.origin, ys)
+    cuts = slice_indexed(index, frame.rotation, frame.origin, ys)
     rows, notes, stray = [], [], 0
     for i, (y, (loop, n_stray, is_open)) in enumerate(zip(ys, cuts)):
         stray += n_stray
