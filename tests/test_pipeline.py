@@ -31,6 +31,7 @@ import pytest
 from geomload import CAUTION
 from geomload.case import load_case
 from geomload.pipeline import compute, run_case_file
+from validation import check
 
 HERE = Path(__file__).resolve().parent
 sys.path.insert(0, str(HERE / "bad_inputs"))
@@ -147,6 +148,9 @@ def test_root_shear_equals_lift_minus_inertia_minus_point_loads(sample_run):
         vertical = trapz(y, col["lift_N_per_m"]) - n * G0 * (wing_half + ff * fuel_half) - n * G0 * points
         # the wing-frame resultant, then the shear resolved normal to the spar
         f0 = cr.loads.extras["force_N"][0]
+        if cr is result.cases[0]:
+            check("cantilever statics: root force = sum of the outboard loads",
+                  f"sample root vertical force, {cr.name} (N)", vertical, f0[2], rel=REL)
         assert f0[2] == pytest.approx(vertical, rel=REL), cr.name
         v, f_y = root_shear(result, y, col["lift_N_per_m"], vertical)
         assert f0[1] == pytest.approx(f_y, rel=1e-6, abs=1e-9 * abs(vertical))
@@ -240,7 +244,8 @@ def test_flat_wing_root_bending_is_the_first_moment(tmp_path):
     # trim of the flat wing, share 1 (14 CFR 23.321: n = L / W)
     for cr in result.cases:
         lift = cr.aero.CL * cr.q_pa * result.lattice.s_ref
-        assert lift == pytest.approx(cr.load_factor * cr.mass_kg * G0, rel=1e-3)
+        check("trim definition n = L / W (14 CFR 23.321)", f"elliptic wing lift, {cr.name} (N)",
+              cr.load_factor * cr.mass_kg * G0, lift, rel=1e-3)
 
 
 # ---------------------------------------------------------------------------------- trim
@@ -254,6 +259,9 @@ def test_trim_wing_lift_equals_share_n_w(sample_run):
         if abs(target) < 1e-9:  # n = 0 (a negative-limit line at V_D may cross it)
             assert abs(cr.aero.CL) < 1e-6
             continue
+        if cr is result.cases[0] or cr.name.startswith("gust-up-cruise"):
+            check("trim definition L = share n W (14 CFR 23.321)", f"sample wing lift, {cr.name} (N)",
+                  target, cr.aero.CL * cr.q_pa * result.lattice.s_ref, rel=1e-3)
         assert cr.aero.CL * cr.q_pa * result.lattice.s_ref == pytest.approx(target, rel=1e-3)
         s = by_name[cr.name]
         assert s["CL"] * s["q_pa"] * area == pytest.approx(target, rel=1e-3)
@@ -264,7 +272,8 @@ def test_trim_wing_lift_equals_share_n_w(sample_run):
     pull = next(c for c in result.cases if c.name == "launch pull-up")
     assert pull.lift_share * pull.load_factor * pull.mass_kg == pytest.approx(1.05 * 2.5 * 22.0)
     # q = 1/2 rho0 V_EAS^2 with rho0 = 1.225 kg/m^3 (ISA sea level)
-    assert pull.q_pa == pytest.approx(0.5 * 1.225 * 30.0 ** 2, rel=1e-6)
+    check("ISA sea-level density 1.225 kg/m^3 (U.S. Standard Atmosphere 1976)",
+          "dynamic pressure at 30 m/s EAS (Pa)", 0.5 * 1.225 * 30.0 ** 2, pull.q_pa, rel=1e-6)
 
 
 # ------------------------------------------------------------------------------ envelope
@@ -379,7 +388,9 @@ def test_elliptic_wing_root_bending(tmp_path):
         half = trapz(L.y, L.lift_N_per_m)
         assert half == pytest.approx(0.5 * cr.load_factor * 20.0 * G0, rel=1e-3)
         expect = half * 4 * s / (3 * math.pi)
-        assert L.bending_Nm[0] == pytest.approx(expect, rel=0.015), cr.name
+        check("elliptic load centroid 4s/(3 pi) (VALIDATION.md 8), whole pipeline",
+              f"root bending of an elliptic wing, case {cr.name} (N m)", expect, L.bending_Nm[0],
+              rel=0.015)
         assert L.shear_N[0] == pytest.approx(half, rel=1e-9)  # no masses: shear = lift
         # the spanwise load itself is close to the ellipse (lifting-line theory)
         ell = 4 * half / (math.pi * s) * np.sqrt(np.clip(1 - (L.y / s) ** 2, 0, None))
