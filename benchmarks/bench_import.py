@@ -3,6 +3,15 @@
 Targets (issue 2): read + frame + 60 cuts in <= 2.0 s on a 2-core machine, and <= 10x a bare
 `numpy.fromfile` of the same file in the same run. The wing is generated in a temporary folder
 from the NACA equations. Run: python benchmarks/bench_import.py
+
+What the ratio measures. The floor is a bare, page-cached `numpy.fromfile` of the bytes: no
+parsing, no float64 and no geometry, so the ratio is not an overhead that can reach 1x. Part
+of it is irreducible for this design: `WingMesh.triangles` is float64 metres, so the float32
+records must be copied out, scaled and widened (printed as "float64 copy": fromfile + that copy,
+about 2-3x the floor alone); `detect_frame` and `cut_stations` are separate calls on that
+record, so each makes one pass over all 2 M triangles for their bounds along its axis (about
+2x the floor each). The rest is the work on the ~0.25 M triangles that cross a plane
+(interpolation, chaining into loops) and the 60 + 13 section measurements.
 """
 
 from __future__ import annotations
@@ -45,10 +54,17 @@ def main():
         path = os.path.join(tmp, "wing_2M.stl")
         n = make_stl(path)
         np.fromfile(path, np.uint8)  # warm the page cache for both timings
-        t0 = time.perf_counter()
-        raw = np.fromfile(path, np.uint8)
-        t_raw = time.perf_counter() - t0
-        del raw
+        t_raw = t_f64 = np.inf
+        for _ in range(3):
+            t0 = time.perf_counter()
+            raw = np.fromfile(path, np.uint8)
+            t_raw = min(t_raw, time.perf_counter() - t0)
+            del raw
+            t0 = time.perf_counter()
+            v = np.fromfile(path, STL_RECORD, offset=84)["v"]
+            tris = np.multiply(v, 1e-3, dtype=np.float64)
+            t_f64 = min(t_f64, time.perf_counter() - t0)
+            del v, tris
         best = None
         for _ in range(2):
             t0 = time.perf_counter()
@@ -63,10 +79,14 @@ def main():
             del mesh
     total, t_read, t_frame, t_cut = best
     ratio = total / t_raw
-    print(f"binary STL, {n} triangles, {st.n} stations")
-    print(f"  read {t_read:.3f} s, frame {t_frame:.3f} s, cut {t_cut:.3f} s")
+    print(f"binary STL, {n} triangles, {st.n} stations (best of 2 runs)")
+    print(f"  read  {t_read:.3f} s")
+    print(f"  frame {t_frame:.3f} s")
+    print(f"  cut   {t_cut:.3f} s")
     print(f"  total {total:.3f} s (target <= {TARGET_S} s)")
-    print(f"  bare numpy.fromfile {t_raw:.3f} s; ratio {ratio:.1f}x (target <= {TARGET_RATIO}x)")
+    print(f"  bare numpy.fromfile {t_raw:.3f} s (page-cached); ratio {ratio:.1f}x (target <= {TARGET_RATIO}x)")
+    print(f"  float64 copy (fromfile + scale to float64 metres) {t_f64:.3f} s = {t_f64 / t_raw:.1f}x "
+          f"of the floor, irreducible with a float64 record")
     return {"import_2M_total_s": (TARGET_S, total, total / TARGET_S),
             "import_vs_fromfile_ratio": (TARGET_RATIO, ratio, ratio / TARGET_RATIO)}
 

@@ -1,7 +1,9 @@
 """Run every benchmark of the project and print one table: figure, target, measured, ratio to floor.
 
-Each benchmarks/bench_*.py exposes main() -> {figure: (target, measured, ratio_to_floor)} and
-prints its own details. Run: python benchmarks/run_all.py   (see DEVELOPERS.md)
+Each benchmarks/bench_*.py exposes main() -> {figure: (target, measured, measured / target)} and
+prints its own details. Ratios to a floor measured in the same run (a bare numpy read, a bare
+LAPACK LU, a single-case run) are figures of their own, named *_ratio.
+Run: python benchmarks/run_all.py   (see DEVELOPERS.md)
 """
 
 from __future__ import annotations
@@ -34,15 +36,16 @@ def main() -> int:
         try:
             figures = _load(path).main() or {}
         except Exception as exc:  # a broken benchmark is reported, the others still run
-            rows.append((path.stem, "-", f"FAILED: {type(exc).__name__}: {exc}", "-"))
+            rows.append((path.stem, "-", f"FAILED: {type(exc).__name__}: {exc}", "-", "NO"))
             continue
         for name, (target, measured, ratio) in figures.items():
-            rows.append((name, _fmt(target), _fmt(measured), _fmt(ratio)))
+            met = "-" if target is None else ("yes" if measured <= target else "NO")
+            rows.append((name, _fmt(target), _fmt(measured), _fmt(ratio), met))
     w = max([len(r[0]) for r in rows] + [6])
     print()
-    print(f"{'figure':<{w}}  {'target':>12}  {'measured':>12}  {'ratio to floor':>14}")
-    for name, target, measured, ratio in rows:
-        print(f"{name:<{w}}  {target:>12}  {measured:>12}  {ratio:>14}")
+    print(f"{'figure':<{w}}  {'target':>10}  {'measured':>10}  {'measured/target':>15}  met")
+    for name, target, measured, ratio, met in rows:
+        print(f"{name:<{w}}  {target:>10}  {measured:>10}  {ratio:>15}  {met}")
     return 0
 
 

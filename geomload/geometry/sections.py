@@ -1,10 +1,11 @@
 """Plane cuts of the triangle soup and the airfoil quantities of each cut (`Stations`).
 
-The cut is vectorised numpy: per-triangle bounds along the cut direction are computed once, the
-planes each triangle crosses are found with `np.searchsorted`, and every (triangle, plane) edge
-crossing is interpolated at once. An edge is always interpolated from its lower to its upper
-vertex, so the two triangles sharing it give bit-identical points and segments chain into loops
-by exact key (with a small snapping fallback for unwelded meshes).
+The cut is vectorised numpy: one pass gives each triangle's bounds along the span axis and a
+bucket index (`spanindex.SpanIndex`), so each set of planes touches only the triangles near
+it; the planes each candidate crosses are found with `np.searchsorted`, and every (triangle,
+plane) edge crossing is interpolated at once. An edge is always interpolated from its lower to
+its upper vertex, so the two triangles sharing it give bit-identical points and segments chain
+into loops by exact key (with a small snapping fallback for unwelded meshes).
 
 Section definitions (common practice, no source): trailing edge = mid-point of a blunt TE face or
 the sharp TE vertex; leading edge = point of the contour farthest from the TE (refined between
@@ -93,8 +94,8 @@ def slice_indexed(index, rotation, origin, levels, tol=None):
     above = d >= 0
     keep = above.any(1) & ~above.all(1)
     pl, d, above = pl[keep], d[keep], above[keep]
-    xz = np.stack([x[keep], z[keep]], -1)  # (P, 3, 2)
-    r = np.arange(d.shape[0])
+    df, xf, zf = d.ravel(), x[keep].ravel(), z[keep].ravel()  # flat (P * 3,) for np.take
+    r3 = 3 * np.arange(d.shape[0])
     # each crossed triangle has one up-crossing edge a -> b (a below the plane, b above) and one
     # down-crossing edge; orient its segment from the first to the second: with a consistently
     # wound surface the segments then chain head to tail
@@ -104,11 +105,13 @@ def slice_indexed(index, rotation, origin, levels, tol=None):
     ends = []
     for e in (np.argmax(up, 1), np.argmax(down, 1)):
         a, b = ea[e], eb[e]
-        lo_v = np.where(above[r, a], b, a)  # canonical order: lower vertex first, so both
-        hi_v = np.where(above[r, a], a, b)  # triangles of an edge give the same point
-        dl, dh = d[r, lo_v], d[r, hi_v]
-        pl_, ph = xz[r, lo_v], xz[r, hi_v]
-        ends.append(pl_ + (ph - pl_) * (dl / (dl - dh))[:, None])
+        a_up = np.take(above.ravel(), r3 + a)
+        lo_v = r3 + np.where(a_up, b, a)  # canonical order: lower vertex first, so both
+        hi_v = r3 + np.where(a_up, a, b)  # triangles of an edge give the same point
+        dl, dh = np.take(df, lo_v), np.take(df, hi_v)
+        t = dl / (dl - dh)
+        xl, zl = np.take(xf, lo_v), np.take(zf, lo_v)
+        ends.append(np.stack([xl + (np.take(xf, hi_v) - xl) * t, zl + (np.take(zf, hi_v) - zl) * t], -1))
     seg = np.stack(ends, 1)
     srt = np.argsort(pl, kind="stable")
     pl, seg = pl[srt], seg[srt]

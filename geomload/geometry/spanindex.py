@@ -128,8 +128,10 @@ class SpanIndex:
 
     def extent(self, n):
         """Exact (min, max) of n . p over all vertices (elementwise products)."""
+        if self.lo.size == 0:
+            return 0.0, 0.0
         cos, t0, t1 = self._slab(n)
-        if abs(cos) < _MIN_COS or self.lo.size == 0:
+        if abs(cos) < _MIN_COS:
             v = coord(self.tris, np.asarray(n, float))
             return float(v.min()), float(v.max())
         w = (t1 - t0) / abs(cos) * (1 + 1e-9) + 1e-12 * (self.s_max - self.s_min + 1.0)
