@@ -37,15 +37,18 @@ def _mach_bin(m: float) -> float:
 class _Models:
     """One factorised AeroModel per Mach bin, built on first use."""
 
-    def __init__(self, lattice):
+    def __init__(self, lattice, progress=no_progress):
         self.lattice, self.models, self._cla, self._stall = lattice, {}, {}, {}
+        self.progress = progress
 
     def get(self, mach: float):
         from geomload.aero.solve import AeroModel
 
         key = round(_mach_bin(mach), 6)
         if key not in self.models:
+            self.progress(f"lattice M={key:.2f}", 0, 1)
             self.models[key] = AeroModel(self.lattice, mach=key)
+            self.progress(f"lattice M={key:.2f}", 1, 1)
         return self.models[key]
 
     def lift_slope(self, mach: float) -> float:
@@ -235,7 +238,7 @@ def compute(case, progress=None):
     lat = case.lattice
     lattice = build_lattice(stations, n_span=lat.n_span, n_chord=lat.n_chord,
                             spacing=lat.spacing, x_ref=case.moment_reference)
-    models = _Models(lattice)
+    models = _Models(lattice, progress)
     load_cases = list(case.load_cases)
     vn = None
     if case.envelope is not None:

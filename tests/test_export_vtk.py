@@ -65,3 +65,20 @@ def test_surface_vtp_in_wing_frame_with_nearest_panel_dcp(written):
     np.testing.assert_allclose(s.cell_data["dcp_critical"], crit.aero.dcp[near], rtol=1e-6)
     np.testing.assert_allclose(s.cell_data["pressure_jump_Pa_critical"],
                                crit.aero.dcp[near] * crit.q_pa, rtol=1e-6)
+
+
+def test_vtk_files_carry_the_way_back_to_the_cad_frame(tmp_path):
+    # p_cad = R^T p_wing + origin (rigid-body transform, common practice, no source): the 4x4
+    # matrix in the field data must map wing-frame points back onto the CAD mesh
+    import pyvista as pv
+
+    from geomload.export import vtk
+
+    run = fakerun.make_run(("cruise",))
+    path = tmp_path / "surface.vtp"
+    vtk.write_surface_vtp(path, run)
+    m = pv.read(path)
+    t = np.asarray(m.field_data["wing_to_cad_matrix_4x4"], float).reshape(4, 4)
+    p_wing = np.array([0.1, 0.5, 0.02])
+    p_cad = (t @ np.append(p_wing, 1.0))[:3]
+    assert np.allclose(p_cad, run.frame.to_cad(p_wing), atol=1e-12)

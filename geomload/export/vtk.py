@@ -39,6 +39,13 @@ def _field(mesh, run, critical):
     mesh.field_data["case_names"] = np.array([c.name for c in run.cases])
     mesh.field_data["case_keys"] = np.array(case_keys(run))
     mesh.field_data["critical_case"] = np.array([critical.name])
+    # the way back to the CAD frame: p_cad = p_wing @ R + origin (R rows = wing axes in CAD);
+    # in ParaView, a Transform filter with this matrix puts the data back on the CAD model
+    r = np.asarray(run.frame.rotation, float)
+    mesh.field_data["wing_to_cad_matrix_4x4"] = np.block(
+        [[r.T, np.asarray(run.frame.origin, float)[:, None]], [np.zeros((1, 3)), np.ones((1, 1))]]
+    ).ravel()
+    mesh.field_data["units"] = np.array(["m"])
 
 
 def panel_centres(lattice) -> np.ndarray:

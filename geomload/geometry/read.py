@@ -3,7 +3,8 @@
 Binary STL has a fast path: one structured `numpy.fromfile` read (50-byte records: normal,
 three vertices, attribute), no vertex welding, since plane cutting works on the soup directly.
 ASCII STL is parsed here too, so a malformed line can be named. Every other mesh format (OBJ,
-PLY, OFF, GLB/glTF, 3MF) goes through trimesh; STEP/IGES through cascadio (OpenCASCADE), whose
+PLY, OFF, GLB/glTF, 3MF) goes through trimesh; STEP/IGES through cascadio (OpenCASCADE), run in
+a child process (a corrupted file can crash the kernel, and it prints its own messages), whose
 GLB output is in metres whatever unit the STEP file declares. trimesh is imported lazily.
 """
 
@@ -85,15 +86,18 @@ def read_mesh(path, units=None, body=None, progress=None) -> WingMesh:
     bodies = [b for b in bodies if b.shape[0] > 0]
     if not bodies:
         raise GeometryError(f"{path}: contains no triangles")
-    tris = _choose_body(path, bodies, body, notes)
-    tris, bmin, bmax = _to_metres(tris, scale)
-    if not (np.isfinite(bmin).all() and np.isfinite(bmax).all()):  # min/max propagate NaN
-        raise GeometryError(f"{path}: contains NaN or infinite coordinates")
-    extent = float((bmax - bmin).max())
-    sub = tris[:: max(1, tris.shape[0] // 20_000)]  # enough for the zero-area check
-    if not triangle_areas(sub).sum() > 1e-12 * max(extent, 1e-300) ** 2:
-        if not triangle_areas(tris).sum() > 1e-12 * max(extent, 1e-300) ** 2:
-            raise GeometryError(f"{path}: zero-area mesh (all triangles are degenerate)")
+    # NaN (even a signalling NaN of a binary STL) or inf is reported below as one error line;
+    # numpy's floating-point warnings about them would only print stray lines on stderr
+    with np.errstate(all="ignore"):
+        tris = _choose_body(path, bodies, body, notes)
+        tris, bmin, bmax = _to_metres(tris, scale)
+        if not (np.isfinite(bmin).all() and np.isfinite(bmax).all()):  # min/max propagate NaN
+            raise GeometryError(f"{path}: contains NaN or infinite coordinates")
+        extent = float((bmax - bmin).max())
+        sub = tris[:: max(1, tris.shape[0] // 20_000)]  # enough for the zero-area check
+        if not triangle_areas(sub).sum() > 1e-12 * max(extent, 1e-300) ** 2:
+            if not triangle_areas(tris).sum() > 1e-12 * max(extent, 1e-300) ** 2:
+                raise GeometryError(f"{path}: zero-area mesh (all triangles are degenerate)")
     if extent > SPAN_TOO_BIG_M or extent < SPAN_TOO_SMALL_M:
         notes.append(f"largest extent is {extent:.4g} m after reading in {unit_label}: "
                      f"wrong unit? (give --units m|cm|mm|in|ft)")
@@ -189,20 +193,18 @@ def _read_ascii_stl(path):
 
 
 def _read_trimesh(path, ext):
-    """Bodies (list of (m, 3, 3) arrays) and the file's scale to metres (None if unit-less)."""
+    """Bodies (list of (m, 3, 3) arrays) and the file's scale to metres (None if unit-less).
+
+    Every trimesh call (load, dump, the face indexing) sits inside one guard: whatever a reader
+    raises on a malformed file becomes a one-line InputError naming the file.
+    """
     import trimesh  # lazy: heavy import
 
     file_scale = None
+    if ext in BREP_FORMATS:
+        glb = _brep_to_glb(path, ext)  # GeometryError on a crash, a timeout or no solid
     try:
         if ext in BREP_FORMATS:
-            import cascadio
-
-            with open(path, "rb") as f:
-                data = f.read()
-            glb = cascadio.load(data, file_type=BREP_FORMATS[ext], tol_linear=1e-3, tol_angular=0.2,
-                                tol_relative=True)
-            if not glb:
-                raise ValueError("the CAD kernel could not translate it")
             scene = trimesh.load(io.BytesIO(glb), file_type="glb", force="scene")
             file_scale = 1.0  # glTF is metres by definition; the kernel applied the STEP unit
         else:
@@ -211,15 +213,88 @@ def _read_trimesh(path, ext):
                 file_scale = 1.0
             elif getattr(scene, "units", None):
                 file_scale = _TRIMESH_UNITS.get(str(scene.units).lower())
+        bodies = []
+        for geom in scene.dump() if hasattr(scene, "dump") else [scene]:
+            faces = getattr(geom, "faces", None)
+            if faces is None or len(faces) == 0:
+                continue
+            verts, faces = np.asarray(geom.vertices, float), np.asarray(faces)
+            if verts.ndim != 2 or verts.shape[1] != 3 or faces.ndim != 2 or faces.shape[1] != 3:
+                raise ValueError(f"vertices of shape {verts.shape} and faces of shape "
+                                 f"{faces.shape}, expected (n, 3) and (m, 3)")
+            if faces.min() < 0 or faces.max() >= verts.shape[0]:
+                raise ValueError(f"a face refers to a vertex outside 1..{verts.shape[0]}")
+            bodies.append(verts[faces.astype(np.intp)])
     except OSError:
         raise
     except Exception as exc:  # the readers raise many types; one line for the user
-        msg = str(exc).splitlines()[0][:120] if str(exc) else type(exc).__name__
-        raise InputError(f"{path}: cannot read as {ext[1:].upper()} ({msg})") from None
-    bodies = []
-    for geom in scene.dump() if hasattr(scene, "dump") else [scene]:
-        faces = getattr(geom, "faces", None)
-        if faces is None or len(faces) == 0:
-            continue
-        bodies.append(np.asarray(geom.vertices, float)[np.asarray(faces)])
+        raise InputError(f"{path}: cannot read as {ext[1:].upper()} ({_one_line(exc)})") from None
     return bodies, file_scale
+
+
+def _one_line(exc):
+    text = str(exc).strip()
+    return text.splitlines()[0][:120] if text else type(exc).__name__
+
+
+# The CAD kernel runs in a child process: OpenCASCADE can crash (SIGSEGV) on a corrupted file
+# and prints its own parser messages on the process's stdout/stderr; both stay in the child.
+BREP_TIMEOUT_S = 300.0
+_BREP_CHILD = """
+import sys
+src, dst, kind = sys.argv[1:4]
+try:
+    import cascadio
+    with open(src, "rb") as f:
+        data = f.read()
+    glb = cascadio.load(data, file_type=kind, tol_linear=1e-3, tol_angular=0.2, tol_relative=True)
+except Exception as exc:
+    with open(dst + ".err", "w") as f:
+        f.write((str(exc).strip().splitlines() or [type(exc).__name__])[0][:120])
+    sys.exit(4)
+if not glb:
+    sys.exit(3)
+with open(dst, "wb") as f:
+    f.write(glb)
+"""
+
+
+def _brep_to_glb(path, ext):
+    """GLB bytes (metres) of a STEP/IGES file, translated by cascadio in a child process.
+
+    Raises GeometryError naming the file when the kernel crashes, times out, raises, or gives
+    no solid; the kernel's own messages are captured and dropped.
+    """
+    import subprocess
+    import sys
+    import tempfile
+
+    kind = BREP_FORMATS[ext]
+    what = f"{path}: cannot read as {kind.upper()}"
+    with tempfile.TemporaryDirectory(prefix="geomload-brep-") as tmp:
+        dst = os.path.join(tmp, "out.glb")
+        try:
+            p = subprocess.run([sys.executable, "-c", _BREP_CHILD, os.path.abspath(path), dst, kind],
+                               stdin=subprocess.DEVNULL, capture_output=True, timeout=BREP_TIMEOUT_S)
+        except subprocess.TimeoutExpired:
+            raise GeometryError(f"{what} (the CAD kernel did not finish within "
+                                f"{BREP_TIMEOUT_S:g} s)") from None
+        except OSError as exc:
+            raise GeometryError(f"{what} (the CAD kernel could not be started: "
+                                f"{exc.strerror or exc})") from None
+        if p.returncode == 3:
+            raise GeometryError(f"{what} (the CAD kernel could not translate it: no solid or "
+                                f"surface found)")
+        if p.returncode == 4:
+            with open(dst + ".err", encoding="utf-8", errors="replace") as f:
+                msg = f.read().strip() or "error"
+            raise GeometryError(f"{what} (the CAD kernel could not read it: {msg})")
+        if p.returncode != 0:
+            how = (f"crashed, signal {-p.returncode}" if p.returncode < 0
+                   else f"crashed, exit status {p.returncode}")
+            raise GeometryError(f"{what} (the CAD kernel could not read it ({how}))")
+        try:
+            with open(dst, "rb") as f:
+                return f.read()
+        except OSError:
+            raise GeometryError(f"{what} (the CAD kernel wrote no mesh)") from None
