@@ -142,7 +142,6 @@ def test_body_option_selects_the_other_body(corpus):
     assert res2.exit_code in (0, 1)
 
 
-@pytest.mark.xfail(strict=False, reason="BUG: the 0.1 m box body of two_bodies.glb is accepted as a wing")
 def test_body_option_on_the_box_is_refused(corpus):
     res = CliRunner().invoke(cli, ["inspect", str(corpus / "two_bodies.glb"), "--body", "1"])
     assert res.exit_code == 1 and "does not look like a wing" in res.stderr
@@ -153,8 +152,7 @@ REAL = ["truncated_binary_stl", "nan_vertex", "signalling_nan_vertex", "unknown_
         "out_exists_without_force"]
 
 
-KNOWN_REAL = {"signalling_nan_vertex": "BUG: numpy prints a RuntimeWarning (invalid value in "
-                                      "multiply, geometry/read.py) on stderr before the error line"}
+KNOWN_REAL: dict = {}  # case id -> "BUG: ..." reason, for a known bug (xfail)
 
 
 @pytest.mark.parametrize("cid", [pytest.param(c, marks=pytest.mark.xfail(strict=False, reason=KNOWN_REAL[c]))
@@ -173,8 +171,6 @@ def test_real_process(cid, corpus, tmp_path):
     assert _fill(case["fragment"], corpus, tmp_path) in p.stderr
 
 
-@pytest.mark.xfail(strict=False, reason="BUG: the STEP kernel (cascadio/OpenCASCADE) prints its own "
-                   "parser messages on the process stdout/stderr besides geomload's one line")
 @pytest.mark.parametrize("name", ["garbage.step", "no_solid.step"])
 def test_real_process_bad_step_prints_one_line(name, corpus):
     p = subprocess.run([sys.executable, "-m", "geomload.cli", "inspect", str(corpus / name)],

@@ -87,9 +87,7 @@ def test_random_bytes_into_the_mesh_readers(ext, tmp_path):
 
 @pytest.mark.parametrize("name,count", [
     ("pellin_half_wing_mm.stl", 16),
-    pytest.param("pellin_full_wing_yup.obj", 8, marks=pytest.mark.xfail(
-        strict=False, reason="BUG: a truncated OBJ whose last vertex has 2 coordinates makes "
-        "trimesh's scene.dump() raise ValueError outside the reader's try (internal error)"))])
+    ("pellin_full_wing_yup.obj", 8)])
 def test_mutated_samples_into_the_mesh_readers(name, count, tmp_path):
     raw = (SAMPLES / name).read_bytes()
     rng = np.random.default_rng(7)
@@ -178,8 +176,6 @@ def test_random_bytes_into_the_cad_kernel(tmp_path):
     assert all(v in ("ok", "clean") for v in out.values()), out
 
 
-@pytest.mark.xfail(strict=False, reason="BUG: corrupted STEP files crash the process (SIGSEGV in "
-                   "cascadio/OpenCASCADE) instead of a clean error; read STEP in a child process?")
 def test_mutated_step_sample_into_the_cad_kernel(tmp_path):
     raw = (SAMPLES / "pellin_half_wing.step").read_bytes()
     rng = np.random.default_rng(5)

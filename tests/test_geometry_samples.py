@@ -9,6 +9,7 @@ import numpy as np
 import pytest
 
 from geomload.geometry import load_wing
+from validation import check
 from wingfactory import expected_stations, naca_wing_mesh
 
 
@@ -23,16 +24,27 @@ def stl_wing(sample_dir):
     return load_wing(os.path.join(sample_dir, "pellin_half_wing_mm.stl"), units="mm", n_stations=15)
 
 
+DESIGN = "pellin_design.json (exact design of make_samples.py)"
+DESIGN_TAPER = DESIGN + ", straight-taper formulas (Raymer ch. 4)"
+
+
 def _planform_ok(pf, d, tol=0.005):
     # S, AR within 0.5 % (issue 2); straight-taper formulas (Raymer ch. 4) in the design file
-    assert abs(pf.area / d["area_m2"] - 1) < tol
-    assert abs(pf.aspect_ratio / d["aspect_ratio"] - 1) < tol
-    assert abs(pf.mac / d["mac_m"] - 1) < tol
-    assert abs(pf.taper / d["taper"] - 1) < 0.01
-    assert abs(pf.sweep_le_deg - d["sweep_le_deg"]) < 0.2
+    check(DESIGN_TAPER, "area S (m^2)", d["area_m2"], pf.area, rel=tol)
+    check(DESIGN_TAPER, "aspect ratio (-)", d["aspect_ratio"], pf.aspect_ratio, rel=tol)
+    check(DESIGN_TAPER, "MAC (m)", d["mac_m"], pf.mac, rel=tol)
+    check(DESIGN, "taper ratio (-)", d["taper"], pf.taper, rel=0.01)
+    check(DESIGN, "LE sweep (deg)", d["sweep_le_deg"], pf.sweep_le_deg, abs=0.2)
     # c/4 line of dihedral 3 deg LE line with washout about the LE stays within 0.2 deg (design)
-    assert abs(pf.dihedral_deg - d["dihedral_le_deg"]) < 0.2
-    assert abs(pf.washout_deg - d["washout_deg"]) < 0.1
+    check(DESIGN, "dihedral (deg)", d["dihedral_le_deg"], pf.dihedral_deg, abs=0.2)
+    check(DESIGN, "washout (deg)", d["washout_deg"], pf.washout_deg, abs=0.1)
+
+
+def check_worst(source, quantity, expected, measured, y, rel=0.0, abs=0.0):
+    """Record (and assert) the worst station of an array check as one validation row."""
+    e, m = np.broadcast_to(np.asarray(expected, float), np.shape(measured)), np.asarray(measured, float)
+    k = int(np.argmax(np.abs(m - e) / (rel * np.abs(e) + abs)))
+    check(source, f"{quantity}, worst station (y = {y[k]:.3f} m)", e[k], m[k], rel=rel, abs=abs)
 
 
 def test_mm_stl_half_wing(stl_wing, design):
@@ -40,7 +52,8 @@ def test_mm_stl_half_wing(stl_wing, design):
     assert mesh.units == "mm" and not frame.full_span
     assert frame.span_axis == "+Y" and frame.up_axis == "+Z"
     _planform_ok(pf, design)
-    assert abs(st.semispan - design["semispan_m"]) < 1e-6
+    check(DESIGN, "semi-span of the mm STL read with --units mm (m)", design["semispan_m"],
+          st.semispan, abs=1e-6)
 
 
 def test_mm_stl_equals_metre_model(stl_wing):
@@ -55,8 +68,11 @@ def test_mm_stl_equals_metre_model(stl_wing):
     assert np.allclose(st.chord, st_m.chord, rtol=1e-5)  # float32 mm storage
     assert np.allclose(st.twist_deg, st_m.twist_deg, atol=1e-3)
     ex = expected_stations(d, st.y)
+    naca = "NACA Report 824 equations (the sample's design), farthest-point chord line"
     assert np.max(np.abs(st.chord / ex["chord"] - 1)) < 0.005
+    check_worst(naca, "chord of the mm STL (m)", ex["chord"], st.chord, st.y, rel=0.005)
     assert np.max(np.abs(st.twist_deg - ex["twist"])) < 0.1
+    check_worst(naca, "twist of the mm STL (deg)", ex["twist"], st.twist_deg, st.y, abs=0.1)
 
 
 def test_full_span_yup_obj(sample_dir, design, stl_wing):

@@ -10,6 +10,7 @@ from geomload.geometry.frame import detect_frame
 from geomload.geometry.planform import summarize
 from geomload.geometry.sections import cut_stations
 from geomload.records import WingMesh
+from validation import check
 from wingfactory import expected_max_camber, expected_stations, naca_wing_mesh, random_rotation
 
 
@@ -19,36 +20,57 @@ def _run(mesh, n=15):
     return frame, st, summarize(st)
 
 
+NACA = "NACA Report 824 equations, farthest-point chord line"
+TAPER = "straight-taper formulas (Raymer ch. 4)"
+
+
+def check_worst(source, quantity, expected, measured, y, rel=0.0, abs=0.0):
+    """Record (and assert) the worst station of an array check as one validation row."""
+    e, m = np.broadcast_to(np.asarray(expected, float), np.shape(measured)), np.asarray(measured, float)
+    k = int(np.argmax(np.abs(m - e) / (rel * np.abs(e) + abs)))
+    check(source, f"{quantity}, worst station (y = {y[k]:.3f} m)", e[k], m[k], rel=rel, abs=abs)
+
+
 def _check_against_design(st, pf, d, blunt=True):
     ex = expected_stations(d, st.y, blunt)
     # chord within 0.5 %, twist within 0.1 deg, LE within 0.2 % chord (issue 2; truth = the
     # NACA equations, with the chord line by the farthest-point rule, see wingfactory)
     assert np.max(np.abs(st.chord / ex["chord"] - 1)) < 0.005
+    check_worst(NACA, "chord (m)", ex["chord"], st.chord, st.y, rel=0.005)
     assert np.max(np.abs(st.twist_deg - ex["twist"])) < 0.1
+    check_worst(NACA, "twist (deg)", ex["twist"], st.twist_deg, st.y, abs=0.1)
     le_err = np.hypot(st.x_le - ex["x_le"], st.z_le - ex["z_le"]) / ex["chord"]
     assert le_err.max() < 0.002
+    check_worst(NACA, "LE position error / chord (-)", 0.0, le_err, st.y, abs=0.002)
     # max thickness within 2 % of the design t/c (NACA Report 824 thickness form)
     assert np.max(np.abs(st.thickness_ratio / d["t"](st.y) - 1)) < 0.02
+    check_worst("NACA Report 824 thickness form", "max thickness t/c (-)", d["t"](st.y),
+                st.thickness_ratio, st.y, rel=0.02)
     # 4-digit mean line: max camber m = 2 % at p = 40 % chord (Abbott & von Doenhoff 6.4),
     # measured normal to the farthest-point chord line (expected_max_camber)
     f_ex = np.array([expected_max_camber(d["code"], float(d["t"](yi)), blunt) for yi in st.y])
+    mean_line = "NACA 4-digit mean line (Abbott & von Doenhoff 6.4)"
     assert np.max(np.abs(st.camber_ratio - f_ex[:, 0])) < 0.0005
+    check_worst(mean_line, "max camber f/c (-)", f_ex[:, 0], st.camber_ratio, st.y, abs=0.0005)
     assert np.max(np.abs(st.x_camber - f_ex[:, 1])) < 0.03
+    check_worst(mean_line, "position of max camber x/c (-)", f_ex[:, 1], st.x_camber, st.y, abs=0.03)
     # sweep and dihedral within 0.2 deg of least-squares lines through the exact points
     sweep_le = np.degrees(np.arctan(np.polyfit(st.y, ex["x_le"], 1)[0]))
     dih = np.degrees(np.arctan(np.polyfit(st.y, ex["z_qc"], 1)[0]))
-    assert abs(pf.sweep_le_deg - sweep_le) < 0.2 and abs(pf.sweep_le_deg - d["sweep_le_deg"]) < 0.2
-    assert abs(pf.dihedral_deg - dih) < 0.2
+    check(NACA + ", least-squares LE line", "LE sweep (deg)", sweep_le, pf.sweep_le_deg, abs=0.2)
+    check("design LE sweep", "LE sweep (deg)", d["sweep_le_deg"], pf.sweep_le_deg, abs=0.2)
+    check(NACA + ", least-squares c/4 line", "dihedral (deg)", dih, pf.dihedral_deg, abs=0.2)
     # S and AR within 0.5 % (straight taper: S = b (c_r + c_t) / 2, Raymer ch. 4)
-    assert abs(pf.area / d["area"] - 1) < 0.005
-    assert abs(pf.aspect_ratio / d["aspect_ratio"] - 1) < 0.005
-    assert abs(pf.span / d["span"] - 1) < 0.005
+    check(TAPER, "area S (m^2)", d["area"], pf.area, rel=0.005)
+    check(TAPER, "aspect ratio b^2/S (-)", d["aspect_ratio"], pf.aspect_ratio, rel=0.005)
+    check(TAPER, "span b (m)", d["span"], pf.span, rel=0.005)
     # MAC = 2/3 c_r (1 + l + l^2) / (1 + l), y_MAC = b/6 (1 + 2 l) / (1 + l) (Raymer ch. 4)
-    assert abs(pf.mac / d["mac"] - 1) < 0.005
-    assert abs(pf.y_mac - d["y_mac"]) < 0.005 * d["semispan"]
-    assert abs(pf.taper - d["taper"]) < 0.005
+    check(TAPER, "MAC (m)", d["mac"], pf.mac, rel=0.005)
+    check(TAPER, "spanwise position of the MAC (m)", d["y_mac"], pf.y_mac, abs=0.005 * d["semispan"])
+    check(TAPER, "taper ratio c_t/c_r (-)", d["taper"], pf.taper, abs=0.005)
     ex_ends = expected_stations(d, [0.0, d["semispan"]], blunt)
-    assert abs(pf.washout_deg - (ex_ends["twist"][0] - ex_ends["twist"][1])) < 0.1
+    check(NACA, "washout, root minus tip twist (deg)", ex_ends["twist"][0] - ex_ends["twist"][1],
+          pf.washout_deg, abs=0.1)
 
 
 @pytest.mark.parametrize("blunt", [True, False])
@@ -80,7 +102,9 @@ def test_untapered_unswept_wing():
     _, st, pf = _run(mesh)
     # symmetric section: no camber (NACA 00xx mean line is the chord)
     assert np.max(np.abs(st.camber_ratio)) < 1e-3
-    assert abs(pf.area / d["area"] - 1) < 0.005
+    check_worst("NACA 00xx: the mean line is the chord (Report 824)", "max camber f/c (-)", 0.0,
+                st.camber_ratio, st.y, abs=1e-3)
+    check(TAPER, "area S of a rectangular wing (m^2)", d["area"], pf.area, rel=0.005)
 
 
 def test_invariance_rotation_translation_scale_permutation(naca_wing):

@@ -24,6 +24,13 @@ from .spanindex import SpanIndex, coord
 
 INSET = 0.005  # stations inset from tip cap and root cap, fraction of the semi-span
 N_CAMBER = 41
+# Not-a-wing limits (common practice, no source): no practical wing section is more than 35 %
+# thick (the thickest in service are about 25 %, from memory), and no station's chord line is
+# turned more than 45 deg from the root's (wing twist is a few degrees; a block or a blob cut
+# across gives chord lines that swing with the cut). Low aspect ratio alone is no test: AR 2-3
+# flying wings have a semi-span shorter than the root chord; only AR < 1 is refused.
+MAX_THICKNESS_RATIO = 0.35
+MAX_TWIST_DEG = 45.0
 _FINE = cosine_spacing(401)
 
 
@@ -374,7 +381,8 @@ def cut_stations(mesh, frame, n=20, spacing="cosine", progress=None) -> Stations
 
     Stations run from the root (inset 0.5 % of the semi-span from a root cap; y = 0 for a full
     wing) to 0.5 % inside the tip. Stations whose cut is not a closed loop are skipped with a
-    note; fewer than 3 good stations, or sections thicker than half their chord, raise
+    note; fewer than 3 good stations, a median section thicker than 35 % of its chord, a station
+    twisted more than 45 deg, or a semi-span under half the mean chord (AR < 1) raise
     GeometryError. Lengths m, angles deg, wing frame (see `records.Stations`).
     """
     progress = progress or no_progress
@@ -406,9 +414,16 @@ def cut_stations(mesh, frame, n=20, spacing="cosine", progress=None) -> Stations
     y = np.array([r[0] for r in rows])
     g = {k: np.array([r[1][k] for r in rows]) for k in rows[0][1]}
     tc = float(np.median(g["thickness_ratio"]))
-    if tc > 0.5:
-        raise GeometryError(f"{mesh.source}: does not look like a wing (sections are {100 * tc:.0f} % "
-                            f"as thick as they are long)")
+    if not tc <= MAX_THICKNESS_RATIO:
+        raise GeometryError(f"{mesh.source}: does not look like a wing (sections are {100 * tc:.1f} % "
+                            f"as thick as they are long; a wing section is at most "
+                            f"{100 * MAX_THICKNESS_RATIO:.0f} %)")
+    twist = np.abs(g["twist_deg"])
+    if not np.all(twist <= MAX_TWIST_DEG):
+        k = int(np.argmax(np.where(np.isfinite(twist), twist, np.inf)))
+        raise GeometryError(f"{mesh.source}: does not look like a wing (the chord line at y = "
+                            f"{y[k]:.4g} m is turned {g['twist_deg'][k]:+.0f} deg from the root's; "
+                            f"a wing's twist is under {MAX_TWIST_DEG:.0f} deg)")
     if semispan / float(np.mean(g["chord"])) < 0.5:
         raise GeometryError(f"{mesh.source}: does not look like a wing (semi-span "
                             f"{semispan:.3g} m is under half the mean chord)")
