@@ -148,9 +148,14 @@ def aero_text(sol, stall, conv, lattice) -> str:
         for key, val in conv.items():
             if isinstance(val, dict) and "extrapolated" in val:
                 vals = ", ".join(f"{v:.6g}" for v in np.atleast_1d(val.get("values", [])))
-                lines.append(f"  {key}: values {vals} -> extrapolated {val['extrapolated']:.6g}, "
-                             f"error estimate {val.get('error', float('nan')):.2g}, observed "
-                             f"order {val.get('order', float('nan')):.2f}")
+                order = val.get("order", float("nan"))
+                if math.isfinite(order):
+                    lines.append(f"  {key}: values {vals} -> extrapolated {val['extrapolated']:.6g}"
+                                 f", error estimate {val.get('error', float('nan')):.2g}, observed "
+                                 f"order {order:.2f}")
+                else:
+                    lines.append(f"  {key}: values {vals}: not converging monotonically; no "
+                                 f"extrapolation (largest change {val.get('error', float('nan')):.2g})")
     lines.append("")
     lines.append(f"{'y_m':>8} {'chord_m':>8} {'cl':>8} {'cl_c_m':>9} {'cdi':>9}")
     for i in range(sol.y.size):

@@ -98,8 +98,26 @@ class AeroModel:
         mid_s = 0.5 * (lat.bound_a + lat.bound_b) * stretch
         self._vind = hs.velocity(mid_s, self._basis, self_panels=True)
         self._prepare_geometry()
+        self._check_lift_slope()
 
     # --------------------------------------------------------------------------- internals
+    def _check_lift_slope(self):
+        """A lattice whose lift slope is not in (0, 2 pi / beta] (the 2-D thin-airfoil slope
+        with Prandtl-Glauert, the upper bound of any finite wing) is numerically broken: refuse it
+        rather than return loads from it."""
+        try:
+            cla = self._linear()[1]
+        except AeroError:
+            cla = float("nan")
+        bound = 1.05 * 2.0 * math.pi / self.beta
+        if not (0.0 < cla <= bound):
+            lat = self.lattice
+            raise AeroError(
+                f"lattice: {lat.n_span} x {lat.n_chord} panels give a lift slope of {cla:.4g} /rad, "
+                f"outside (0, {bound:.3g}]: the lattice is ill-conditioned; use fewer spanwise or "
+                "more chordwise panels (lattice.n_span / lattice.n_chord, --panels-span / "
+                "--panels-chord)")
+
     def _solve_rhs(self, rhs):
         return self._lu_solve(self._lu, rhs, check_finite=False)
 
