@@ -6,9 +6,9 @@ Decisions (docs/methods_loads.md, "Pipeline decisions"):
   so each Mach needs one factorisation; cases are grouped into Mach bins of MACH_BIN width and
   solved on the lattice at the bin's upper Mach (Prandtl-Glauert changes CL_alpha by under 0.2 %
   across a bin at the low Mach of small aircraft; the upper edge is the conservative side).
-- Out-of-plane loads: the lift is applied normal to the wing plane (conservative: the true normal
-  force L cos(alpha) + D sin(alpha) is smaller at positive alpha), the inertia n g m'(y) opposes
-  it. The chordwise (in-plane) force is D cos(alpha) - L sin(alpha): forward at high alpha.
+- Directions: lift normal to the free stream, drag along it, inertia n g m'(y) opposite to the
+  lift (the load factor is normal to the flight path); all resolved into the wing frame at the
+  trimmed alpha, so the chordwise force is (D - 0) cos(alpha) - (L - n g m') sin(alpha).
 - Load grid: the lattice's strip edges from root to tip. Strip lift per span is interpolated to
   the edges (zero at the tip) and scaled so its integral equals the lattice's total exactly.
 """
@@ -149,7 +149,8 @@ def _stall_warning(lc, case, models, mach, CL_req) -> str:
 def solve_case(lc, case, lattice, models, stations, grid, masses_cache, atmosphere):
     """Trim one LoadCase and integrate its loads. Returns a CaseResult."""
     from geomload.case import airspeeds
-    from geomload.loads.beam import equilibrium_residual, integrate_loads, schrenk, spar_line
+    from geomload.loads.beam import (PointLoad, equilibrium_residual, integrate_loads, schrenk,
+                                     spar_line)
     from geomload.loads.masses import inertia_loads, mass_distribution
 
     atm = atmosphere(lc.altitude_m)
@@ -183,8 +184,6 @@ def solve_case(lc, case, lattice, models, stations, grid, masses_cache, atmosphe
     lift = _to_edges(y, ys, lift_s, ws)
     drag = _to_edges(y, ys, drag_s, ws)
     pitch = _to_edges(y, ys, pitch_s, ws)
-    a = math.radians(alpha)
-    chordwise = drag * math.cos(a) - lift * math.sin(a)
 
     spar = case.spar
     sx, sz = spar_line(y, le[:, 0], te[:, 0], le[:, 2], te[:, 2],
@@ -197,12 +196,17 @@ def solve_case(lc, case, lattice, models, stations, grid, masses_cache, atmosphe
                                               case.wing_mass, case.fuel_tanks, key)
     dist = masses_cache[key]
     inertia, point_loads = inertia_loads(dist, lc.load_factor, case.point_masses)
+    # the load factor is normal to the flight path: point-mass inertia opposes the lift too
+    ca, sa = math.cos(math.radians(alpha)), math.sin(math.radians(alpha))
+    point_loads = tuple(PointLoad(p.name, p.position, np.array([-p.force[2] * sa, 0.0,
+                                                                 p.force[2] * ca]))
+                        for p in point_loads)
     # the lattice force is normal to the local (dihedral) surface: its y component per span is
     # -lift dz/dy of the lift line, so the shear normal to a dihedral spar is lift / cos(dihedral)
     side = -lift * np.gradient(load_z, y)
     half_lift = float(np.sum(0.5 * (lift[1:] + lift[:-1]) * np.diff(y)))
     loads = integrate_loads(
-        y, sx, sz, lift, drag_N_per_m=chordwise, side_N_per_m=side, pitch_Nm_per_m=pitch, load_x=load_x,
+        y, sx, sz, lift, drag_N_per_m=drag, side_N_per_m=side, pitch_Nm_per_m=pitch, alpha_deg=alpha, load_x=load_x,
         load_z=load_z, inertia_N_per_m=inertia, inertia_x=dist.x_m, inertia_z=dist.z_m,
         point_loads=point_loads, case=lc.name, ultimate_factor=case.ultimate_factor,
         schrenk_lift_N_per_m=schrenk(y, chord, stations.semispan, half_lift))

@@ -96,25 +96,30 @@ def integrate_loads(y, spar_x, spar_z, lift_N_per_m, *, drag_N_per_m=None, side_
                     pitch_Nm_per_m=None,
                     load_x=None, load_z=None, inertia_N_per_m=None, inertia_x=None,
                     inertia_z=None, point_loads=(), case="", ultimate_factor=1.5,
-                    schrenk_lift_N_per_m=None) -> SpanLoads:
+                    schrenk_lift_N_per_m=None, alpha_deg=0.0) -> SpanLoads:
     """Integrate the loads of one semi-span from tip to root (limit loads, SI).
 
     Parameters
     ----------
     y : (n,) station positions, strictly increasing root to tip (m).
     spar_x, spar_z : (n,) load-axis position at each station (m, wing frame).
-    lift_N_per_m : (n,) aerodynamic force per metre of y along +z (N/m).
-    drag_N_per_m : (n,) aerodynamic force per metre of y along +x, aft (N/m); default 0.
+    lift_N_per_m : (n,) lift per metre of y (N/m), normal to the free stream: along
+        (-sin a, 0, cos a) of the wing frame at angle of attack a = alpha_deg.
+    drag_N_per_m : (n,) drag per metre of y (N/m), along the free stream (cos a, 0, sin a);
+        default 0.
     side_N_per_m : (n,) aerodynamic force per metre of y along +y (N/m), e.g. the inboard tilt
         -lift tan(dihedral) of a force normal to a dihedral surface; default 0.
     pitch_Nm_per_m : (n,) section pitching moment per metre about the load line, nose-up
         (N m/m), e.g. cm_c4 q c^2 with the load line at the quarter chord; default 0.
     load_x, load_z : (n,) line where lift and drag act (m); default the spar line.
-    inertia_N_per_m : (n,) n g m'(y), acting along -z (positive down, N/m); default 0.
+    inertia_N_per_m : (n,) n g m'(y) (N/m), opposite to the lift: along (sin a, 0, -cos a),
+        i.e. the load factor n is normal to the flight path; default 0.
     inertia_x, inertia_z : (n,) line of the distributed mass (m); default the spar line.
     point_loads : sequence of :class:`PointLoad` (force vectors in N, wing frame).
     case : case name stored in the result; ultimate_factor : ultimate / limit (14 CFR 23.303).
     schrenk_lift_N_per_m : (n,) cross-check series stored as is (NaN when not given).
+    alpha_deg : angle of attack of the wing frame's x axis to the free stream (deg); 0 makes
+        lift and inertia act along +/-z and drag along +x. Point-load forces are taken as given.
 
     Returns
     -------
@@ -141,8 +146,12 @@ def integrate_loads(y, spar_x, spar_z, lift_N_per_m, *, drag_N_per_m=None, side_
     zero = np.zeros(n)
     p = np.column_stack([sx, y, sz])
 
-    fa, ma = _segment_moments(y, p, np.column_stack([ax, y, az]), np.column_stack([drag, side, lift]))
-    fi, mi = _segment_moments(y, p, np.column_stack([ix, y, iz]), np.column_stack([zero, zero, -q]))
+    ca, sa = np.cos(np.radians(float(alpha_deg))), np.sin(np.radians(float(alpha_deg)))
+    fx_aero, fz_aero = drag * ca - lift * sa, lift * ca + drag * sa
+    fa, ma = _segment_moments(y, p, np.column_stack([ax, y, az]),
+                              np.column_stack([fx_aero, side, fz_aero]))
+    fi, mi = _segment_moments(y, p, np.column_stack([ix, y, iz]),
+                              np.column_stack([q * sa, zero, -q * ca]))
     couple = np.zeros((n - 1, 3))
     couple[:, 1] = 0.5 * np.diff(y) * (pitch[:-1] + pitch[1:])  # about axes parallel to y
     seg_f = fa + fi
@@ -162,7 +171,7 @@ def integrate_loads(y, spar_x, spar_z, lift_N_per_m, *, drag_N_per_m=None, side_
 
     s, b, nrm = spar_frame(y, sx, sz)
     dot = lambda a, e: np.einsum("ij,ij->i", a, e)  # noqa: E731
-    pitch_spar = pitch + (az - sz) * drag - (ax - sx) * lift
+    pitch_spar = pitch + (az - sz) * fx_aero - (ax - sx) * fz_aero
     return SpanLoads(
         case=case, y=y, lift_N_per_m=lift, drag_N_per_m=drag, pitch_Nm_per_m=pitch_spar,
         inertia_N_per_m=q, shear_N=dot(force, nrm), bending_Nm=dot(moment, b),
@@ -172,7 +181,7 @@ def integrate_loads(y, spar_x, spar_z, lift_N_per_m, *, drag_N_per_m=None, side_
                               else _col(schrenk_lift_N_per_m, n, "schrenk_lift_N_per_m")),
         ultimate_factor=float(ultimate_factor),
         extras={"force_N": force, "moment_Nm": moment, "axis_s": s, "axis_b": b, "axis_n": nrm,
-                "side_N_per_m": side, "load_z_m": az,
+                "side_N_per_m": side, "load_z_m": az, "load_x_m": ax, "alpha_deg": float(alpha_deg),
                 "point_loads": tuple(point_loads), "spar_points_m": p,
                 "sign_convention": SIGN_CONVENTION},
     )
@@ -188,10 +197,11 @@ def ultimate(loads: SpanLoads) -> dict:
 def equilibrium_residual(loads: SpanLoads) -> dict:
     """Root equilibrium check, computed independently of the tip-to-root recursion.
 
-    Total vertical load = integral of (lift - inertia) (trapezoid, exact for linear loads) plus
-    the z forces of the point loads; first moment about the root = integral of (y - y0) times
-    the same (closed form for linear loads) plus the point-load moments. Compared with the
-    root resultant force z component and moment x component (wing frame).
+    In the wind axes of the case (normal n_w = (-sin a, 0, cos a), x_w = (cos a, 0, sin a)):
+    total normal load = integral of (lift - inertia) (trapezoid, exact for linear loads) plus the
+    point loads' F.n_w; first moment about x_w through the root spar point = integral of
+    (y - y0)(lift - inertia) (closed form for linear loads) plus the side-force and point-load
+    moments. Drag has no component along n_w. Compared with the root resultant F.n_w and M.x_w.
 
     Returns dict: total_vertical_N, first_moment_Nm, shear_residual_rel, bending_residual_rel.
     """
@@ -200,23 +210,38 @@ def equilibrium_residual(loads: SpanLoads) -> dict:
     total = float(np.sum(0.5 * (b - a) * (ga + gb)))
     first = float(np.sum((b - a) / 6.0 * (2 * a * ga + a * gb + b * ga + 2 * b * gb)))
     p0 = loads.extras["spar_points_m"][0]
+    al = np.radians(loads.extras.get("alpha_deg", 0.0))
+    ca, sa = float(np.cos(al)), float(np.sin(al))
+    n_w, x_w = np.array([-sa, 0.0, ca]), np.array([ca, 0.0, sa])
     side = loads.extras.get("side_N_per_m")
     if side is not None and np.any(side):
-        # a side force f_y on the line z(y) adds -(z - z0) f_y to the moment about x; both are
-        # linear per segment, so the product integral is exact: h/6 (2 a0 b0 + a0 b1 + a1 b0 + 2 a1 b1)
-        za, fy = loads.extras["load_z_m"] - p0[2], side
-        hh = np.diff(y)
-        first -= float(np.sum(hh / 6.0 * (2 * za[:-1] * fy[:-1] + za[:-1] * fy[1:]
-                                          + za[1:] * fy[:-1] + 2 * za[1:] * fy[1:])))
+        # a side force f_y on the line (x, z)(y) adds f_y (sin a (x - x0) - cos a (z - z0)) to
+        # the moment about x_w; both factors are linear per segment, so the product integral is
+        # exact: h/6 (2 a0 b0 + a0 b1 + a1 b0 + 2 a1 b1)
+        lever = (sa * (loads.extras["load_x_m"] - p0[0]) - ca * (loads.extras["load_z_m"] - p0[2]))
+        fy, hh = side, np.diff(y)
+        first += float(np.sum(hh / 6.0 * (2 * lever[:-1] * fy[:-1] + lever[:-1] * fy[1:]
+                                          + lever[1:] * fy[:-1] + 2 * lever[1:] * fy[1:])))
     for pl in loads.extras.get("point_loads", ()):
-        r, fv = np.asarray(pl.position, float), np.asarray(pl.force, float)
-        if r[1] >= y[0] - 1e-12 * max(1.0, float(y[-1] - y[0])):
-            total += float(fv[2])
-            first += float((r[1] - p0[1]) * fv[2] - (r[2] - p0[2]) * fv[1])
-    f0, m0 = loads.extras["force_N"][0], loads.extras["moment_Nm"][0]
+        r, fv = np.asarray(pl.position, float) - p0, np.asarray(pl.force, float)
+        if r[1] >= -1e-12 * max(1.0, float(y[-1] - y[0])):
+            fn = float(fv @ n_w)
+            total += fn
+            first += float(r[1] * fn + fv[1] * (sa * r[0] - ca * r[2]))
+    f0, m0 = loads.extras["force_N"][0] @ n_w, loads.extras["moment_Nm"][0] @ x_w
+    # relative to the loads' own size, so a case whose net load is about zero (n = 0) is judged
+    # against the lift and inertia it carries rather than against round-off
+    span = float(y[-1] - y[0]) or 1.0
+    gross = float(np.sum(0.5 * np.diff(y) * (np.abs(g[1:]) + np.abs(g[:-1]) +
+                                              np.abs(loads.drag_N_per_m[1:]) +
+                                              np.abs(loads.drag_N_per_m[:-1]))))
+    gross += sum(float(np.abs(np.asarray(pl.force, float)).sum())
+                 for pl in loads.extras.get("point_loads", ()))
+    f_ref = max(abs(total), gross, 1e-300)
+    m_ref = max(abs(first), gross * span, 1e-300)
     return {"total_vertical_N": total, "first_moment_Nm": first,
-            "shear_residual_rel": abs(f0[2] - total) / max(abs(total), 1e-300),
-            "bending_residual_rel": abs(m0[0] - first) / max(abs(first), 1e-300)}
+            "shear_residual_rel": abs(f0 - total) / f_ref,
+            "bending_residual_rel": abs(m0 - first) / m_ref}
 
 
 def schrenk(y, chord, semispan, total_lift_half):
