@@ -532,7 +532,7 @@ _TEMPLATE = """\
 title = "new wing"
 
 [geometry]
-file = {geometry}          # relative to this case file
+file = {geometry}          # absolute, or relative to this case file
 # units = "mm"             # file length unit when the file does not carry one: m, mm, cm, in, ft
 # span_axis = "+y"         # CAD axis along the span (default: detected)
 # up_axis = "+z"           # CAD axis pointing up (default: detected)

@@ -136,7 +136,7 @@ def inspect(geometry, units, span_axis, up_axis, n_stations, spacing, body, csv_
     else:
         click.echo(inspect_text(mesh, frame, stations, planform))
     for note in list(mesh.notes) + list(frame.notes) + list(stations.notes):
-        _echo_err(f"geomload: note: {note}")
+        _echo_err(f"geomload: {note}" if note.startswith("warning: ") else f"geomload: note: {note}")
     if csv_path:
         from geomload.export.tables import write_stations_csv
 
@@ -225,7 +225,33 @@ def new_case(geometry):
     if not os.path.isfile(geometry):
         raise InputError(f"{geometry}: no such geometry file"
                          + (" (it is a folder)" if os.path.isdir(geometry) else ""))
-    click.echo(template(geometry), nl=False)
+    text = template(geometry)
+    guess = _guess_units(geometry)
+    if guess:
+        text = text.replace('# units = "mm"  ', f'units = "{guess}"  ', 1)
+        _echo_err(f"geomload: note: units = \"{guess}\" guessed from the size of the mesh; check it")
+    click.echo(text, nl=False)
+
+
+def _guess_units(geometry):
+    """The length unit that makes a unit-less mesh a plausible wing (0.2 m to 100 m across), or
+    None when metres already are, or the file carries its own units, or it cannot be read."""
+    from geomload.geometry.read import read_mesh
+
+    try:
+        mesh = read_mesh(geometry)
+    except Exception:  # noqa: BLE001 - a guess only; `inspect`/`run` report the real problem
+        return None
+    if mesh.units not in ("m",):
+        return None
+    t = mesh.triangles.reshape(-1, 3)
+    extent = float((t.max(axis=0) - t.min(axis=0)).max())
+    if 0.2 <= extent <= 100.0:
+        return None
+    for unit, scale in (("mm", 1e-3), ("cm", 1e-2), ("in", 0.0254), ("ft", 0.3048)):
+        if 0.2 <= extent * scale <= 100.0:
+            return unit
+    return None
 
 
 # -------------------------------------------------------------------------------------------- run

@@ -237,6 +237,12 @@ def compute(case, progress=None):
                                                 n_stations=g.n_stations, spacing=g.spacing,
                                                 progress=progress)
     timings["geometry"] = time.perf_counter() - t0
+    from geomload.geometry.read import SPAN_TOO_BIG_M, SPAN_TOO_SMALL_M
+
+    if not SPAN_TOO_SMALL_M <= planform.span <= SPAN_TOO_BIG_M:
+        raise CaseError(f"{case.path}: geometry.units: the wing spans {planform.span:.4g} m when "
+                        f"read in {mesh.units}; give the file's unit (units = \"mm\", \"cm\", "
+                        "\"m\", \"in\" or \"ft\")")
     check_against_span(case, stations.semispan)
     t1 = time.perf_counter()
     lat = case.lattice
@@ -283,7 +289,7 @@ def compute(case, progress=None):
     warnings.extend(models.warnings)
     warnings.extend(f"{r.name}: {r.stall_warning}" for r in results if r.stall_warning)
     for note in list(mesh.notes) + list(frame.notes) + list(stations.notes):
-        warnings.append(f"note: {note}")
+        warnings.append(note[len("warning: "):] if note.startswith("warning: ") else f"note: {note}")
     cl_sec = case.aircraft.cl_max
     if cl_sec is not None:
         st = models.stall_cl(results[0].mach, cl_sec)

@@ -238,3 +238,21 @@ def test_help_is_fast():
                         "('trimesh', 'pyvista', 'matplotlib', 'scipy') if m in sys.modules))"],
                        capture_output=True, text=True, timeout=60)
     assert q.stdout.strip() == "[]"  # rules: heavy libraries imported lazily
+
+
+# ------------------------------------------------------------------------ units of a mesh
+SAMPLE_MM = Path(__file__).resolve().parent.parent / "sample_geometry" / "pellin_half_wing_mm.stl"
+
+
+def test_new_case_guesses_millimetres_and_run_refuses_a_3600_m_wing(tmp_path):
+    # the sample STL is in millimetres (pellin_design.json: 3.6 m span); read as metres it spans
+    # 3600 m, beyond the 200 m plausibility limit of issue 2
+    r = _run(["new-case", SAMPLE_MM])
+    assert r.exit_code == 0, r.output
+    assert '\nunits = "mm"' in r.stdout
+    text = r.stdout.replace('\nunits = "mm"', '\n# units = "mm"')
+    (tmp_path / "case.toml").write_text(text)
+    r = _run(["run", tmp_path / "case.toml", "--out", tmp_path / "out", "--no-render"])
+    assert r.exit_code == 1
+    assert "geometry.units" in r.stderr and "3600 m" in r.stderr
+    assert not (tmp_path / "out").exists()

@@ -99,7 +99,7 @@ def read_mesh(path, units=None, body=None, progress=None) -> WingMesh:
             if not triangle_areas(tris).sum() > 1e-12 * max(extent, 1e-300) ** 2:
                 raise GeometryError(f"{path}: zero-area mesh (all triangles are degenerate)")
     if extent > SPAN_TOO_BIG_M or extent < SPAN_TOO_SMALL_M:
-        notes.append(f"largest extent is {extent:.4g} m after reading in {unit_label}: "
+        notes.append(f"warning: largest extent is {extent:.4g} m after reading in {unit_label}: "
                      f"wrong unit? (give --units m|cm|mm|in|ft)")
     return WingMesh(triangles=tris, source=path, units=unit_label, notes=tuple(notes))
 
