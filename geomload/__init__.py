@@ -9,5 +9,6 @@ __version__ = "0.1.0"
 
 CAUTION = (
     "CAUTION: preliminary estimates only - not a substitute for certified structural analysis. "
-    "The applicable airworthiness rules and licensed/authorised engineers decide."
+    "The certification basis, the applicable airworthiness rules, the authority and "
+    "licensed/authorised engineers decide."
 )

@@ -332,7 +332,7 @@ def _load_case(t: _Table, i: int, gross: float) -> LoadCase:
     lc = LoadCase(
         name=name, speed_m_s=v, speed_type=kind, altitude_m=h,
         load_factor=t.get("load_factor", float, required=True),
-        lift_share=t.positive("lift_share", 1.0),
+        lift_share=t.positive("lift_share", 1.0, allow_zero=True),
         mass_kg=t.positive("mass_kg"),
         cl_max=t.positive("cl_max"),
         cd0=t.positive("cd0", allow_zero=True),
@@ -379,7 +379,7 @@ def _envelope(t: _Table, gross: float) -> EnvelopeSpec:
         min_mass_kg=t.positive("min_mass_kg"),
         gust_cruise_m_s=None if gusts["gust_cruise"] is None else gusts["gust_cruise"] * GUST_UNITS[gu],
         gust_dive_m_s=None if gusts["gust_dive"] is None else gusts["gust_dive"] * GUST_UNITS[gu],
-        lift_share=t.positive("lift_share", 1.0),
+        lift_share=t.positive("lift_share", 1.0, allow_zero=True),
         **speeds,
     )
     if spec.min_mass_kg is not None and spec.min_mass_kg > gross:

@@ -103,6 +103,7 @@ def aero_json(sol, stall, conv, lattice) -> dict:
     }
     if conv:
         out["convergence"] = _jsonable(conv)
+    out["caution"] = CAUTION
     return out
 
 
@@ -161,6 +162,8 @@ def aero_text(sol, stall, conv, lattice) -> str:
     for i in range(sol.y.size):
         lines.append(f"{sol.y[i]:8.4f} {sol.chord[i]:8.4f} {sol.cl[i]:8.4f} {sol.cl_c[i]:9.5f} "
                      f"{sol.cdi[i]:9.6f}")
+    lines.append("")
+    lines.append(CAUTION)
     return "\n".join(lines)
 
 

@@ -75,6 +75,10 @@ class AeroModel:
             self.warnings.append(
                 f"mach: M = {m:g} >= {MACH_WARN}: linear (Prandtl-Glauert) theory is leaving its "
                 "range; transonic effects are not modelled")
+        if lattice.n_chord < 4:
+            self.warnings.append(
+                f"lattice: {lattice.n_chord} chordwise panel(s): camber and section pitching "
+                "moments (torsion) are not resolved below 4; use 8 or more for loads")
         self.lattice, self.mach = lattice, m
         self.beta = beta = math.sqrt(1.0 - m * m)
         self._lu_solve = lu_solve

@@ -31,6 +31,12 @@ def _quiet_vtk() -> None:
         pass
 
 
+def _caution(p):
+    """The preliminary-estimate caution along the bottom of every 3-D picture of loads."""
+    p.add_text("Preliminary estimate - not a substitute for certified structural analysis",
+               position="lower_edge", font_size=8, color="dimgray")
+
+
 def _plotter(off_screen=True, size=WINDOW):
     import pyvista as pv
 
@@ -73,6 +79,7 @@ def render_surface_dcp(run, path, case=None, inputs=(), surface=None):
     surf.cell_data["dcp"] = np.asarray(cr.aero.dcp, float)[near]
     p = _plotter()
     p.add_mesh(surf, scalars="dcp", cmap="coolwarm", scalar_bar_args=_bar("delta-Cp (-)\nlower - upper"))
+    _caution(p)
     p.add_text(f"delta-Cp, case: {cr.name}  (x q = {cr.q_pa:.0f} Pa gives the pressure jump in Pa)",
                font_size=9, color="black")
     _camera(p, surf.bounds)
@@ -117,6 +124,7 @@ def render_spar_bending(run, path, case=None, inputs=(), surface=None):
     n = line.shape[0]
     drops.lines = np.column_stack([np.full(n, 2), np.arange(n), np.arange(n) + n]).ravel()
     p.add_mesh(drops, color="darkred", line_width=1)
+    _caution(p)
     p.add_text(f"bending moment along the spar, case: {cr.name}; red line: M to scale",
                font_size=9, color="black")
     _camera(p, surf.bounds)
@@ -207,10 +215,12 @@ def view(run_dir, case=None, screenshot=None):
     ax = data["load_axis"]
     span = float(np.ptp(ax.points[:, 1])) or 1.0
     bk = f"bending_Nm_{key}"
+    bar_m = dict(_bar("bending M (N m)"), position_x=0.72)  # beside the delta-Cp bar, not on it
     actors.append(p.add_mesh(ax.tube(radius=0.01 * span), scalars=bk if bk in ax.point_data else None,
-                             cmap="viridis", scalar_bar_args=_bar("bending M (N m)")))
+                             cmap="viridis", scalar_bar_args=bar_m))
     p.add_text(f"case: {name}" + ("" if sc.endswith(key) else " (surface: critical case)"),
                font_size=10, color="black")
+    _caution(p)
     _camera(p, surf.bounds)
     if off:
         try:

@@ -17,6 +17,8 @@ from __future__ import annotations
 
 import numpy as np
 
+from geomload import CAUTION
+
 from geomload.export import envelope_access as ea
 from geomload.export.atomic import atomic_path, safe_name
 
@@ -46,6 +48,7 @@ def _field(mesh, run, critical):
         [[r.T, np.asarray(run.frame.origin, float)[:, None]], [np.zeros((1, 3)), np.ones((1, 1))]]
     ).ravel()
     mesh.field_data["units"] = np.array(["m"])
+    mesh.field_data["caution"] = np.array([CAUTION])
 
 
 def panel_centres(lattice) -> np.ndarray:
