@@ -21,9 +21,12 @@ import numpy as np
 from geomload.records import (AeroSolution, CaseResult, Lattice, Planform, RunResult, SpanLoads,
                               Stations, WingFrame, WingMesh)
 
-G = 9.80665
+G = 9.80665  # standard gravity (CGPM 1901)
+# invented QM-36 Pellin planform and masses (synthetic test values, no source)
 SEMISPAN, C_ROOT, C_TIP = 1.8, 0.42, 0.21
 SWEEP_LE_DEG, DIHEDRAL_DEG, WASHOUT_DEG = 3.0, 3.0, 2.0
+# alpha_L0 of the NACA 2412 mean line by thin-airfoil theory (VALIDATION.md 4); its cm about
+# c/4 (thin-airfoil, from memory); span efficiency invented (synthetic)
 ALPHA0_DEG, CM_C4, E_SPAN = -2.08, -0.053, 0.97
 MASS_KG, WING_MASS_KG = 25.0, 3.0
 
@@ -183,6 +186,7 @@ def make_aero(alpha_deg, lattice, planform):
 
 
 def isa_rho(h):
+    """ISA troposphere density (kg/m^3), R = 287.053 J/(kg K) (U.S. Standard Atmosphere 1976)."""
     T = 288.15 - 0.0065 * h
     return 101325 * (T / 288.15) ** 5.2559 / (287.053 * T)
 
@@ -213,7 +217,8 @@ def make_case(name, v_eas, n, stations, lattice, planform, altitude=1000.0):
     resid = abs(shear[0] - total) / max(abs(total), 1e-12)
     warn = "required CL beyond the stall estimate" if CL > 1.4 else ""
     return CaseResult(name=name, v_eas=v_eas, v_tas=float(v_tas), altitude_m=altitude,
-                      mach=float(v_tas / 336.4), q_pa=q, load_factor=n, mass_kg=MASS_KG,
+                      mach=float(v_tas / 336.4),  # 336.4 m/s: ISA a at 1000 m, from memory
+                      q_pa=q, load_factor=n, mass_kg=MASS_KG,
                       lift_share=1.0, aero=aero, loads=loads, stall_warning=warn,
                       residual=float(resid))
 

@@ -31,6 +31,8 @@ def test_fine_span_coarse_chord_converges(n_span, n_chord):
     check(src, f"CL at {n_span}x{n_chord} panels vs 40x10 (-)", ref.CL, sol.CL, rel=0.01)
     check(src, f"span efficiency e at {n_span}x{n_chord} panels vs 40x10 (-)", ref.e, sol.e,
           rel=0.03)
+    # lifting-line bound: 0 < a < 2 pi / beta, beta = 1 here (Anderson, Fundamentals of
+    # Aerodynamics, ch. 5; VALIDATION.md 1)
     assert 0 < sol.CL_alpha_per_rad < 2 * math.pi
 
 

@@ -8,12 +8,12 @@ from geomload.aero.lattice import build_lattice
 from geomload.errors import AeroError
 from validation import check
 
-RAYMER = "Raymer, Aircraft Design, ch. 7, trapezoid planform"
+RAYMER = "Raymer, Aircraft Design, ch. 4, trapezoid planform"
 
 
 def test_trapezoid_reference_values():
     # straight-tapered wing: S = (1 + l) cr b / 2, MAC = (2/3) cr (1 + l + l^2)/(1 + l),
-    # y_mac = (b/6)(1 + 2 l)/(1 + l) (Raymer, Aircraft Design, ch. 7)
+    # y_mac = (b/6)(1 + 2 l)/(1 + l) (Raymer, Aircraft Design, ch. 4)
     A, lam, s, sweep = 6.0, 0.4, 5.0, 25.0
     st = trapezoid(A, lam, sweep, semispan=s)
     lat = build_lattice(st, n_span=8, n_chord=3)
@@ -25,7 +25,7 @@ def test_trapezoid_reference_values():
     x_qc = cr / 4 + np.tan(np.radians(sweep)) * y_mac  # quarter-chord line at y_mac
     check(RAYMER, "x of the quarter chord at y_mac (m)", x_qc, lat.x_ref[0], rel=1e-12)
     check(RAYMER, "reference span b (m)", 2 * s, lat.b_ref)  # exact
-    # panel areas add up to the planform area of one side
+    # internal consistency (no outside source): panel areas add up to one side's area
     assert lat.area.sum() == pytest.approx(lat.s_ref / 2, rel=1e-9)
 
 
@@ -33,13 +33,16 @@ def test_cosine_spacing_and_extension_to_root_and_tip():
     st = elliptic(8.0, semispan=4.0, n=30)
     lat = build_lattice(st, n_span=20, n_chord=2)
     ye = lat.corners[:, 0, 1]
+    # half-cosine spacing y_k = s sin(pi k / (2 n)), root to tip (common practice, no source)
     assert ye[0] == 0.0 and ye[-1] == pytest.approx(4.0)
     np.testing.assert_allclose(ye, 4.0 * np.sin(0.5 * np.pi * np.arange(21) / 20), atol=1e-12)
     w = np.diff(ye)
-    assert w[-1] < w[0] / 10  # half-cosine: refined at the tip
+    # that spacing: tip width / root width = 1 - cos(pi/40) over sin(pi/40) = 0.039 < 1/10
+    assert w[-1] < w[0] / 10
     # the elliptic area pi c0 s / 2 is recovered (linear chord between 30 stations)
     check("ellipse area pi a b", "area of an elliptic planform, 30 stations (m^2)",
           np.pi * st.chord[0] * 4.0 / 2, lat.s_ref, rel=2e-3)
+    # mirror image in y = 0 (geometric definition of the full span)
     full = build_lattice(st, n_span=20, n_chord=2, full_span=True)
     assert full.n_span == 40 and not full.mirrored
     np.testing.assert_allclose(full.corners[20:, :, 1], lat.corners[:, :, 1], atol=1e-12)

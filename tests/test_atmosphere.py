@@ -4,6 +4,7 @@ import math
 
 import numpy as np
 import pytest
+from ambiance import Atmosphere
 
 from geomload.aero import atmosphere as atm
 from geomload.errors import InputError
@@ -36,7 +37,6 @@ def test_sea_level_speed_of_sound_and_viscosity():
 @pytest.mark.parametrize("h", [-500.0, 0.0, 1234.0, 6000.0, 10999.0, 11000.0, 15500.0, 20000.0])
 def test_isa_matches_ambiance(h):
     # second reference: the registry package `ambiance` (takes geometric altitude)
-    Atmosphere = pytest.importorskip("ambiance").Atmosphere
     ref = Atmosphere(atm.geometric_from_geopotential(h))
     s = atm.isa(h)
     src = "ambiance package (U.S. Standard Atmosphere 1976)"
@@ -49,10 +49,13 @@ def test_isa_matches_ambiance(h):
 
 
 def test_geopotential_conversion_round_trip():
-    # H = r0 z / (r0 + z): 20 km geometric is 19 937 m geopotential (1976 standard)
-    check("U.S. Standard Atmosphere 1976, H = r0 z / (r0 + z)",
-          "geopotential altitude of z = 20 km geometric (m)", 19937.3,
+    # H = r0 z / (r0 + z), r0 = 6 356 766 m (1976 standard; r0 from memory): 20 km geometric
+    # is 19 937.3 m geopotential
+    r0 = 6356766.0
+    check("U.S. Standard Atmosphere 1976, H = r0 z / (r0 + z), r0 from memory",
+          "geopotential altitude of z = 20 km geometric (m)", r0 * 20000.0 / (r0 + 20000.0),
           atm.geopotential_from_geometric(20000.0), abs=0.5)
+    # internal consistency (no outside source): the two conversions are inverses
     z = atm.geometric_from_geopotential(12345.0)
     assert atm.geopotential_from_geometric(z) == pytest.approx(12345.0, abs=1e-6)
 
@@ -64,11 +67,12 @@ def test_speeds_and_dynamic_pressure():
     # definition of EAS: 0.5 rho V^2 = 0.5 rho0 Ve^2
     check("definition of EAS, 0.5 rho V^2 = 0.5 rho0 Ve^2", "dynamic pressure at EAS 50 m/s (Pa)",
           0.5 * 1.225 * 50.0**2, atm.dynamic_pressure(v, h), rel=1e-4)
-    assert atm.eas_from_tas(v, h) == pytest.approx(50.0, rel=1e-12)
+    assert atm.eas_from_tas(v, h) == pytest.approx(50.0, rel=1e-12)  # inverse (consistency)
     check("a = sqrt(gamma R T), U.S. Standard Atmosphere 1976 constants",
           "Mach number at 3000 m, EAS 50 m/s (-)", v / math.sqrt(1.4 * 287.05287 * s.T),
           atm.mach(v, h), rel=1e-9)
-    assert v > 50.0  # air is thinner aloft
+    # TAS = EAS sqrt(rho0 / rho) > EAS where rho < rho0 (definition of EAS)
+    assert v > 50.0
 
 
 @pytest.mark.parametrize("h", [20000.1, -501.0, float("nan"), float("inf"), "high"])

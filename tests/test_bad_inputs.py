@@ -61,7 +61,7 @@ def test_corpus_is_large_enough_and_ids_unique():
 
 
 @pytest.mark.parametrize("case", [
-    pytest.param(c, marks=pytest.mark.xfail(strict=False, reason=c["xfail"])) if c.get("xfail") else c
+    pytest.param(c, marks=pytest.mark.xfail(strict=True, reason=c["xfail"])) if c.get("xfail") else c
     for c in CASES], ids=[c["id"] for c in CASES])
 def test_bad_input_case(case, corpus, tmp_path):
     _setup(case.get("setup"), tmp_path)
@@ -152,7 +152,7 @@ REAL = ["truncated_binary_stl", "nan_vertex", "signalling_nan_vertex", "unknown_
 KNOWN_REAL: dict = {}  # case id -> "BUG: ..." reason, for a known bug (xfail)
 
 
-@pytest.mark.parametrize("cid", [pytest.param(c, marks=pytest.mark.xfail(strict=False, reason=KNOWN_REAL[c]))
+@pytest.mark.parametrize("cid", [pytest.param(c, marks=pytest.mark.xfail(strict=True, reason=KNOWN_REAL[c]))
                                  if c in KNOWN_REAL else c for c in REAL])
 def test_real_process(cid, corpus, tmp_path):
     case = next(c for c in CASES if c["id"] == cid)

@@ -137,6 +137,7 @@ def test_force_normal_to_a_dihedral_surface():
     check(src, "root shear w l / cos G (N)", w * l / math.cos(g), r.shear_N[0], rel=1e-12)
     check(src, "root bending w l^2 / (2 cos^2 G) (N m)", w * l**2 / (2 * math.cos(g) ** 2),
           r.bending_Nm[0], rel=1e-12)
+    # internal consistency (no outside source): the residual check agrees with the integration
     res = equilibrium_residual(r)
     assert res["shear_residual_rel"] < 1e-12 and res["bending_residual_rel"] < 1e-12
 
@@ -164,6 +165,8 @@ def test_inplane_shear_and_bending_from_drag():
 
 
 def test_inertia_relief_cancels_equal_lift():
+    # statics: lift and an equal inertia load on the same line cancel, so V = M = 0 everywhere
+    # (superposition of equal and opposite loads; VALIDATION.md 8)
     y = np.linspace(0, 2, 6)
     lift = 100 * (1 - y / 2)
     r = integrate_loads(y, np.zeros(6), np.zeros(6), lift, inertia_N_per_m=lift)
@@ -222,6 +225,9 @@ def test_schrenk_rectangular_and_elliptic():
 
 
 def test_spar_line_fraction_and_polyline():
+    # geometry, derived here: the chord-fraction spar is x_le + f c (f = 0.25 of chords 1.0,
+    # 0.8, 0.6); the polyline through (y, x, z) = (0.5, 0.1, 0) and (1.5, 0.3, 0.1) has slopes
+    # dx/dy = 0.2 and dz/dy = 0.1, so at y = 0, 1, 2: x = 0, 0.2, 0.4 and z = -0.05, 0.05, 0.15
     y = np.array([0.0, 1.0, 2.0])
     x, z = spar_line(y, np.zeros(3), np.array([1.0, 0.8, 0.6]), np.zeros(3), np.zeros(3), 0.25)
     np.testing.assert_allclose(x, [0.25, 0.2, 0.15])

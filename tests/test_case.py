@@ -69,6 +69,7 @@ def test_base_case_loads_in_si(tmp_path):
     assert lc.speed_type == "TAS" and lc.lift_share == 1.0
     assert c.geometry.file == str((tmp_path / "wing.stl").resolve())  # relative to the case file
     assert c.point_masses[0].position.tolist() == [0.1, 0.6, 0.0]
+    # default factor of safety 1.5 (14 CFR 23.303, from memory; VALIDATION.md 10)
     assert c.fuel_mass_kg == 3.0 and c.ultimate_factor == 1.5
 
 
@@ -76,7 +77,8 @@ def test_eas_and_tas_conversion(tmp_path):
     c = load_case(write(tmp_path, BASE))
     rho = float(Atmosphere(c.load_cases[0].altitude_m).density[0])
     v_eas, v_tas = airspeeds(c.load_cases[0], lambda h: (float(Atmosphere(h).density[0]), 340.0))
-    assert v_tas == c.load_cases[0].speed_m_s
+    assert v_tas == c.load_cases[0].speed_m_s  # the case gives TAS
+    # v_eas = v_tas sqrt(rho / rho0), rho0 = 1.225 kg/m^3 (definition of EAS; rho from ambiance)
     assert v_eas == pytest.approx(v_tas * math.sqrt(rho / 1.225), rel=1e-12)
 
 
@@ -177,8 +179,8 @@ altitude_unit = "ft"
 min_mass_kg = 30.0
 """
     c = load_case(write(tmp_path, BASE + env))
-    assert c.envelope.v_dive == pytest.approx(75 * 1852 / 3600)
-    assert c.envelope.altitudes_m == pytest.approx((0.0, 1524.0))
+    assert c.envelope.v_dive == pytest.approx(75 * 1852 / 3600)  # kt, exact factor (NIST SP 811)
+    assert c.envelope.altitudes_m == pytest.approx((0.0, 1524.0))  # 5000 ft x 0.3048 m/ft exact
     assert "envelope.category: 'commuter' is not one of" in error(
         tmp_path, BASE + env.replace('"custom"', '"commuter"'))
     assert "envelope.cl_max_neg: must be > 0" in error(tmp_path, BASE + env.replace("cl_max_neg = 0.8", "cl_max_neg = 0"))
@@ -196,6 +198,8 @@ def test_spar_line_and_table_mass(tmp_path):
                         '[wing_mass]\ndistribution = "table"\ntable = [[0.0, 1.2], [1.5, 0.4]]\n')
     text += "[spar]\nline = [[0.0, 0.08, 0.0], [1.5, 0.12, 0.05]]\n"
     c = load_case(write(tmp_path, text))
+    # the table is kg/m per side, linear between rows: both sides carry twice its trapezoid
+    # integral, 2 x (1.2 + 0.4) / 2 x 1.5 m = 2.4 kg (exact for a linear table)
     assert c.wing_mass.total_kg == pytest.approx(2 * 0.5 * (1.2 + 0.4) * 1.5)
     assert c.spar.chord_fraction is None and np.array(c.spar.line).shape == (2, 3)
     assert "omit it" in error(tmp_path, text.replace('distribution = "table"', 'distribution = "table"\ntotal_kg = 3.0'))

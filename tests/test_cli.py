@@ -14,7 +14,6 @@ import json
 import os
 import subprocess
 import sys
-import time
 from pathlib import Path
 
 import pytest
@@ -225,15 +224,13 @@ def test_real_process_ok_and_usage(corpus, tmp_path):
     assert p.returncode == 2 and "Traceback" not in p.stderr
 
 
-def test_help_is_fast():
-    """issue 4: `geomload --help` in 0.5 s or less; measured in a fresh interpreter (the bound
-    here is 2 s, loose for a loaded test machine; benchmarks/ measures the real figure)."""
-    t0 = time.perf_counter()
+def test_help_imports_no_heavy_library():
+    """`geomload --help` stays fast because the CLI imports no heavy library (DEVELOPERS.md);
+    the time itself is measured by benchmarks/bench_cli.py, never by a test (no timing in
+    tests)."""
     p = subprocess.run([sys.executable, "-m", "geomload.cli", "--help"], capture_output=True,
                        text=True, timeout=60)
-    dt = time.perf_counter() - t0
     assert p.returncode == 0 and "Usage" in p.stdout
-    assert dt < 2.0, dt
     q = subprocess.run([sys.executable, "-c", "import sys, geomload.cli; print(sorted(m for m in "
                         "('trimesh', 'pyvista', 'matplotlib', 'scipy') if m in sys.modules))"],
                        capture_output=True, text=True, timeout=60)

@@ -94,7 +94,7 @@ def test_derived_design_speeds_and_maneuver_speed():
           stall_speed(m, s, 1.5), rel=1e-12)
     check("14 CFR 23.335(c), from memory", "V_A = V_S sqrt(n), utility, capped at V_C (m/s EAS)",
           min(vs * math.sqrt(4.4), sp.v_cruise), sp.v_maneuver, rel=1e-12)
-    assert sp.v_dive >= 1.25 * sp.v_cruise  # 23.335(b)(1)
+    assert sp.v_dive >= 1.25 * sp.v_cruise  # 14 CFR 23.335(b)(1): V_D >= 1.25 V_C, from memory
 
 
 # --------------------------------------------------------------------------- 23.341 gusts
@@ -151,13 +151,16 @@ def test_vn_diagram_corners_lie_on_the_stall_and_limit_lines():
     # the positive corner is where the stall curve q S CLmax / W reaches n_pos
     check("stall line n = q S CLmax / W", "n at the positive stall corner = n_pos (-)", d.n_pos,
           q * s * 1.4 / (m * G), rel=1e-12)
+    # the corners sit on the envelope's own lines (23.333(b) shape, from memory)
     assert pts["pos-limit-dive"].v_eas == pytest.approx(d.speeds.v_dive)
     assert pts["neg-limit-cruise"].n == pytest.approx(d.n_neg)
     check("14 CFR 23.333(b)(3), from memory", "n at the negative V_D corner, normal category (-)", 0.0,
           pts["neg-limit-dive"].n)  # exact
     vstall, nstall = d.curves["stall-neg"]
+    # negative stall line n = -q S CLmax_neg / W, q = 1/2 rho0 V_EAS^2 (definition of EAS)
     np.testing.assert_allclose(nstall, -0.5 * 1.225 * vstall**2 * s * 0.8 / (m * G))
     # gust points use the density at altitude: thinner air -> larger mu -> larger Kg
+    # (23.341 mu = 2 (W/S) / (rho c a g), Kg = 0.88 mu / (5.3 + mu), from memory)
     hi = vn_diagram(spec, m, s, c, 5.0, altitude_m=3000.0, atmosphere=atmosphere)
     assert hi.gust_cruise[1] > d.gust_cruise[1] and hi.gust_cruise[0] > d.gust_cruise[0]
     rho3000 = atmosphere(3000.0)[0]
@@ -171,6 +174,8 @@ def test_lift_slope_is_asked_at_the_gust_mach():
     vn_diagram(spec, 30.0, 1.2, 0.3, lambda mach: seen.append(mach) or 5.2, altitude_m=1000.0,
                atmosphere=atmosphere)
     rho, a = atmosphere(1000.0)
+    # Mach = V_TAS / a with V_TAS = V_EAS sqrt(rho0 / rho) (definition of EAS); rho and a from
+    # the registry package `ambiance`
     assert seen == pytest.approx([30.0 * math.sqrt(1.225 / rho) / a, 42.0 * math.sqrt(1.225 / rho) / a])
 
 
@@ -179,8 +184,10 @@ def test_critical_points_names_masses_and_fuel():
                         altitudes_m=(0.0, 1500.0), min_mass_kg=32.0)
     pts = critical_points(spec, 36.0, 2.0, 0.3, 5.2, fuel_mass_kg=3.0, atmosphere=atmosphere)
     names = [p.name for p in pts]
-    assert len(names) == len(set(names)) == 2 * 2 * 10  # 2 masses x 2 altitudes x 10 points
-    # a small wing stalls above V_C at n_pos: the stall corners are capped at V_C (23.335(c)(2))
+    # project behaviour (no outside source): 2 masses x 2 altitudes x 10 points, unique names
+    assert len(names) == len(set(names)) == 2 * 2 * 10
+    # a small wing stalls above V_C at n_pos: the stall corners are capped at V_C
+    # (14 CFR 23.335(c)(2), from memory)
     # and merge with the cruise points, leaving 8 per diagram
     small = critical_points(spec, 36.0, 1.2, 0.3, 5.2, atmosphere=atmosphere)
     assert len(small) == 2 * 2 * 8 and not any("stall-corner" in p.name for p in small)

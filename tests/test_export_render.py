@@ -2,14 +2,12 @@
 
 import numpy as np
 import pytest
+from PIL import Image
 
 from geomload.errors import InputError
 from geomload.export import render, vtk
 
 import fakerun
-
-pv = pytest.importorskip("pyvista")
-Image = pytest.importorskip("PIL.Image")
 
 
 def _pixels(path):

@@ -2,12 +2,11 @@
 
 import numpy as np
 import pytest
+import pyvista as pv
 
 from geomload.export import vtk
 
 import fakerun
-
-pv = pytest.importorskip("pyvista")
 
 
 @pytest.fixture(scope="module")

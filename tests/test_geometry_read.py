@@ -79,7 +79,7 @@ def test_trimesh_formats(tmp_path, small_wing, ext):
     mesh.export(p)
     m = read_mesh(p)
     assert m.n_triangles == small_wing.shape[0]
-    # same surface area (to float32 storage precision)
+    # same surface area as the registry library trimesh computes (to float32 storage precision)
     a0 = mesh.area
     a1 = 0.5 * np.linalg.norm(np.cross(m.triangles[:, 1] - m.triangles[:, 0], m.triangles[:, 2] - m.triangles[:, 0]), axis=1).sum()
     assert abs(a1 / a0 - 1) < 1e-5
@@ -97,7 +97,7 @@ def test_several_bodies_keep_largest_or_chosen(tmp_path, small_wing):
     assert m.n_triangles == small_wing.shape[0]
     assert any("left out" in n and "2 bodies" in n for n in m.notes)
     other = [read_mesh(p, body=k).n_triangles for k in (1, 2)]
-    assert sorted(other) == sorted([small_wing.shape[0], 12])
+    assert sorted(other) == sorted([small_wing.shape[0], 12])  # a box is 12 triangles (6 quads)
     with pytest.raises(InputError, match="two.glb"):
         read_mesh(p, body=3)
 

@@ -28,11 +28,31 @@ DESIGN = "pellin_design.json (exact design of make_samples.py)"
 DESIGN_TAPER = DESIGN + ", straight-taper formulas (Raymer ch. 4)"
 
 
+def _taper_formulas(d):
+    """S, AR and MAC from the design's primary values (semi-span, root chord, taper) by the
+    straight-taper formulas (Raymer, Aircraft Design, ch. 4): S = s c_r (1 + l),
+    AR = (2 s)^2 / S, MAC = 2/3 c_r (1 + l + l^2) / (1 + l). Computed here, not read from the
+    derived entries of the design file."""
+    s, cr, lam = d["semispan_m"], d["root_chord_m"], d["taper"]
+    area = s * cr * (1 + lam)
+    return area, (2 * s) ** 2 / area, 2.0 / 3.0 * cr * (1 + lam + lam**2) / (1 + lam)
+
+
+def test_design_file_derived_values_follow_the_taper_formulas(design):
+    # the design file's own derived entries agree with the formulas (straight taper, Raymer ch. 4)
+    area, ar, mac = _taper_formulas(design)
+    check(DESIGN_TAPER, "design file area S (m^2)", area, design["area_m2"], rel=1e-12)
+    check(DESIGN_TAPER, "design file aspect ratio (-)", ar, design["aspect_ratio"], rel=1e-12)
+    check(DESIGN_TAPER, "design file MAC (m)", mac, design["mac_m"], rel=1e-12)
+
+
 def _planform_ok(pf, d, tol=0.005):
-    # S, AR within 0.5 % (issue 2); straight-taper formulas (Raymer ch. 4) in the design file
-    check(DESIGN_TAPER, "area S (m^2)", d["area_m2"], pf.area, rel=tol)
-    check(DESIGN_TAPER, "aspect ratio (-)", d["aspect_ratio"], pf.aspect_ratio, rel=tol)
-    check(DESIGN_TAPER, "MAC (m)", d["mac_m"], pf.mac, rel=tol)
+    # S, AR within 0.5 % (issue 2); straight-taper formulas (Raymer ch. 4) on the design's
+    # semi-span, root chord and taper
+    area, ar, mac = _taper_formulas(d)
+    check(DESIGN_TAPER, "area S (m^2)", area, pf.area, rel=tol)
+    check(DESIGN_TAPER, "aspect ratio (-)", ar, pf.aspect_ratio, rel=tol)
+    check(DESIGN_TAPER, "MAC (m)", mac, pf.mac, rel=tol)
     check(DESIGN, "taper ratio (-)", d["taper"], pf.taper, rel=0.01)
     check(DESIGN, "LE sweep (deg)", d["sweep_le_deg"], pf.sweep_le_deg, abs=0.2)
     # c/4 line of dihedral 3 deg LE line with washout about the LE stays within 0.2 deg (design)
@@ -64,6 +84,7 @@ def test_mm_stl_equals_metre_model(stl_wing):
     from geomload.geometry.sections import cut_stations
 
     st_m = cut_stations(mesh, detect_frame(mesh), n=15)
+    # internal consistency (no outside source): mm file read with --units mm == metre model
     assert np.allclose(st.y, st_m.y, atol=1e-6)
     assert np.allclose(st.chord, st_m.chord, rtol=1e-5)  # float32 mm storage
     assert np.allclose(st.twist_deg, st_m.twist_deg, atol=1e-3)
@@ -82,6 +103,7 @@ def test_full_span_yup_obj(sample_dir, design, stl_wing):
     assert frame.asymmetry < 1e-4
     _planform_ok(pf, design)
     st_h = stl_wing[2]
+    # internal consistency (no outside source): the OBJ and the STL of one design agree
     assert np.allclose(np.interp(st_h.y, st.y, st.chord), st_h.chord, rtol=2e-3)
 
 
@@ -91,7 +113,7 @@ def test_step_reads_its_own_units(sample_dir, design, stl_wing):
     assert mesh.units == "file" and any("ignored" in n for n in mesh.notes)
     _planform_ok(pf, design)
     st_h = stl_wing[2]
-    # B-rep loft through 7 spline sections, tessellated by the kernel: same stations within
-    # the issue-2 tolerances
+    # internal consistency (no outside source): the B-rep loft through 7 spline sections,
+    # tessellated by the kernel, gives the STL's stations within the issue-2 tolerances
     assert np.max(np.abs(np.interp(st_h.y, st.y, st.chord) / st_h.chord - 1)) < 0.005
     assert np.max(np.abs(np.interp(st_h.y, st.y, st.twist_deg) - st_h.twist_deg)) < 0.1

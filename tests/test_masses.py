@@ -38,7 +38,10 @@ def test_chord_distribution_holds_half_the_wing_mass_and_follows_the_chord():
 def test_table_distribution_uses_per_side_values():
     spec = WingMassSpec(2 * 1.5, "table", (0.0, 2.0), (1.0, 0.5))  # per-side integral 1.5 kg
     m = wing_mass_per_span(Y, CHORD, spec)
+    # linear interpolation of the per-side table (0 m, 1.0 kg/m), (2 m, 0.5 kg/m), derived here;
+    # its trapezoid integral is the 1.5 kg per side (conservation of mass)
     np.testing.assert_allclose(m, 1.0 - 0.25 * Y, rtol=1e-12)
+    check(MASS, "semi-span integral of the table distribution (kg)", 1.5, _trapz(Y, m), rel=1e-12)
 
 
 def test_fuel_tank_over_a_span_range():
@@ -47,10 +50,12 @@ def test_fuel_tank_over_a_span_range():
     check(MASS, "semi-span integral of a 4 kg tank, half full (kg)", 0.5 * 0.5 * 4.0, _trapz(Y, m),
           rel=1e-12)
     inside = (Y >= 0.4 - 1e-9) & (Y <= 1.2 + 1e-9)
+    # a tank carries mass only over its span range, uniform or chord-shaped (its definition)
     assert np.all(m[~inside] == 0.0)
     np.testing.assert_allclose(m[inside], m[inside][0])  # uniform per span
     mc = tank_mass_per_span(Y, CHORD, FuelTank("inner", 4.0, 0.4, 1.2, "chord"))
     np.testing.assert_allclose(mc[inside] / CHORD[inside], mc[inside][0] / CHORD[inside][0])
+    # project behaviour: a tank narrower than a station gap is not spread (it is lumped)
     assert tank_mass_per_span(Y, CHORD, FuelTank("tiny", 1.0, 0.41, 0.5)) is None
 
 
@@ -88,6 +93,7 @@ def test_inertia_and_relief_through_the_beam():
     # statics: root shear = L - n g (M/2 + m_pod)
     check("cantilever statics (VALIDATION.md 8)", "root shear L - n g (M/2 + m_pod) (N)",
           400.0 * 2.0 - n * G0 * (3.0 + 2.0), r.shear_N[0], rel=1e-12)
+    # internal consistency (no outside source): the residual check agrees with the integration
     res = equilibrium_residual(r)
     assert res["shear_residual_rel"] < 1e-9 and res["bending_residual_rel"] < 1e-9
     # torsion of the pod weight W about the (straight, slightly swept) spar: x_s = 0.125 +

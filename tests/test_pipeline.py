@@ -263,7 +263,7 @@ def test_flat_wing_root_bending_is_the_first_moment(tmp_path):
     # trim of the flat wing, share 1 (14 CFR 23.321: n = L / W)
     for cr in result.cases:
         lift = cr.aero.CL * cr.q_pa * result.lattice.s_ref
-        check("trim definition n = L / W (14 CFR 23.321)", f"elliptic wing lift, {cr.name} (N)",
+        check("trim definition n = L / W (14 CFR 23.321)", f"flat wing lift, {cr.name} (N)",
               cr.load_factor * cr.mass_kg * G0, lift, rel=1e-3)
 
 

@@ -2,14 +2,83 @@
 
 Other stages' tests may use `naca_wing_mesh(...)` for a `WingMesh` whose geometry is known
 exactly (NACA Report 824 sections on a straight-tapered planform).
+
+The mesh itself is lofted by geomload.geometry.airfoil.loft_wing (it is the test input); every
+expected value here is computed from the published equations by this file and aero_wings.py
+alone, never by geomload: the NACA 4-digit thickness form and mean line (NACA Report 824;
+Abbott & von Doenhoff, Theory of Wing Sections, sec. 6.4) and the farthest-point chord line
+found below by a bounded scalar search (scipy.optimize.minimize_scalar).
 """
 
 from __future__ import annotations
 
+from functools import lru_cache
+
 import numpy as np
 
-from geomload.geometry.airfoil import farthest_point_chord, loft_wing
+from aero_wings import naca4_camber
+from geomload.geometry.airfoil import loft_wing
 from geomload.records import WingMesh
+
+# NACA Report 824 thickness coefficients; the last one is -0.1015 (blunt TE) or -0.1036 (closed)
+_THICKNESS = (0.2969, -0.1260, -0.3516, 0.2843)
+
+
+def _naca4_side(code, t, blunt_te, x, upper):
+    """(x, z) / chord of the upper or lower surface at mean-line stations x (Report 824:
+    thickness y_t laid off normal to the mean line, x_u = x - y_t sin th, z_u = y_c + y_t cos th,
+    x_l = x + y_t sin th, z_l = y_c - y_t cos th, tan th = dy_c/dx)."""
+    m, p = int(code[0]) / 100.0, int(code[1]) / 10.0
+    x = np.asarray(x, float)
+    a = _THICKNESS + ((-0.1015,) if blunt_te else (-0.1036,))
+    yt = 5 * t * (a[0] * np.sqrt(x) + a[1] * x + a[2] * x**2 + a[3] * x**3 + a[4] * x**4)
+    if m == 0.0:
+        slope = np.zeros_like(x)
+    else:  # derivative of the two parabolas of the mean line
+        slope = np.where(x < p, 2 * m / p**2 * (p - x), 2 * m / (1 - p) ** 2 * (p - x))
+    th = np.arctan(slope)
+    sgn = 1.0 if upper else -1.0
+    return x - sgn * yt * np.sin(th), naca4_camber(code, x) + sgn * yt * np.cos(th)
+
+
+@lru_cache(maxsize=None)
+def farthest_point_chord(code, blunt_te=True, t=None):
+    """The chord line by the farthest-point-from-the-TE rule, from the equations.
+
+    The TE point is the mid-point of the two surface ends, (1, y_c(1)) = (1, 0). The contour
+    point farthest from it is searched along each surface with x = s^2 (smooth through the
+    sqrt(x) nose): a 4001-point scan of s, then a bounded golden-section refinement
+    (scipy.optimize.minimize_scalar). Returns (le_xz, chord, angle_deg), chord per unit nominal
+    chord, angle positive nose-up (LE above the TE).
+    """
+    from scipy.optimize import minimize_scalar
+
+    t = int(code[2:]) / 100.0 if t is None else float(t)
+    xu, zu = _naca4_side(code, t, blunt_te, 1.0, True)
+    xl, zl = _naca4_side(code, t, blunt_te, 1.0, False)
+    te = np.array([0.5 * (xu + xl), 0.5 * (zu + zl)])
+
+    def dist(s, upper):
+        x, z = _naca4_side(code, t, blunt_te, s * s, upper)
+        return float(np.hypot(x - te[0], z - te[1]))
+
+    s = np.linspace(0.0, 1.0, 4001)
+    best = None
+    for upper in (True, False):
+        xs, zs = _naca4_side(code, t, blunt_te, s * s, upper)
+        d = np.hypot(xs - te[0], zs - te[1])
+        k = int(np.argmax(d))
+        lo, hi = s[max(k - 1, 0)], s[min(k + 1, s.size - 1)]
+        r = minimize_scalar(lambda v: -dist(v, upper), bounds=(lo, hi), method="bounded",
+                            options=dict(xatol=1e-12))
+        cand = (max(-r.fun, d[k]), r.x if -r.fun >= d[k] else s[k], upper)
+        if best is None or cand[0] > best[0]:
+            best = cand
+    dmax, sv, upper = best
+    le = np.array(_naca4_side(code, t, blunt_te, sv * sv, upper), float)
+    le.setflags(write=False)  # shared by the cache
+    ang = np.degrees(np.arctan2(le[1] - te[1], te[0] - le[0]))
+    return le, float(dmax), float(ang)
 
 
 def design(semispan=1.8, root_chord=0.36, taper=0.5, sweep_le_deg=4.0, dihedral_deg=3.0,
@@ -113,8 +182,6 @@ def expected_max_camber(code, t, blunt_te=True):
 
     That chord line runs from a LE slightly above the nominal one, so f/c is a little below m.
     """
-    from geomload.geometry.airfoil import naca4_camber
-
     le, cl, _ = farthest_point_chord(code, blunt_te, t)
     x = np.linspace(0, 1, 20001)
     p = np.column_stack([x, naca4_camber(code, x)]) - le
