@@ -137,7 +137,7 @@ def test_rule_gust_velocities_with_altitude():
         got = rule_gust_velocities(h_ft * FOOT)
         assert len(got) == 2
         for name, e, m in zip(("V_C", "V_D"), ref, got):
-            check("14 CFR 23.333(c), from memory", f"gust velocity at {name}, {h_ft:g} ft (ft/s)", e,
+            check("14 CFR 23.333(c)(1)(i),(ii) (pre-2017 text, read)", f"gust velocity at {name}, {h_ft:g} ft (ft/s)", e,
                   m / FOOT, rel=1e-6)
 
 
@@ -154,13 +154,14 @@ def test_vn_diagram_corners_lie_on_the_stall_and_limit_lines():
     # the corners sit on the envelope's own lines (23.333(b) shape, from memory)
     assert pts["pos-limit-dive"].v_eas == pytest.approx(d.speeds.v_dive)
     assert pts["neg-limit-cruise"].n == pytest.approx(d.n_neg)
-    check("14 CFR 23.333(b)(3), from memory", "n at the negative V_D corner, normal category (-)", 0.0,
+    check("14 CFR 23.333(b)(3) (pre-2017 text, read)", "n at the negative V_D corner, normal category (-)", 0.0,
           pts["neg-limit-dive"].n)  # exact
     vstall, nstall = d.curves["stall-neg"]
     # negative stall line n = -q S CLmax_neg / W, q = 1/2 rho0 V_EAS^2 (definition of EAS)
     np.testing.assert_allclose(nstall, -0.5 * 1.225 * vstall**2 * s * 0.8 / (m * G))
     # gust points use the density at altitude: thinner air -> larger mu -> larger Kg
-    # (23.341 mu = 2 (W/S) / (rho c a g), Kg = 0.88 mu / (5.3 + mu), from memory)
+    # (23.341(c) mu = 2 (W/S) / (rho c a g), Kg = 0.88 mu / (5.3 + mu), c the mean geometric
+    # chord; definitions read in the pre-2017 text; the n formula itself from memory)
     hi = vn_diagram(spec, m, s, c, 5.0, altitude_m=3000.0, atmosphere=atmosphere)
     assert hi.gust_cruise[1] > d.gust_cruise[1] and hi.gust_cruise[0] > d.gust_cruise[0]
     rho3000 = atmosphere(3000.0)[0]
@@ -253,3 +254,13 @@ def test_envelope_refuses_mixed_grids():
     rng = np.random.default_rng(0)
     with pytest.raises(Exception, match="station grid"):
         envelope_of([_loads("a", np.linspace(0, 1, 4), rng), _loads("b", np.linspace(0, 1.1, 4), rng)])
+
+
+def test_negative_factor_at_dive_per_category():
+    # 14 CFR 23.333(b)(3), pre-2017 text (read): the negative line runs from its V_C value to
+    # 0.0 at V_D for the normal category and to -1.0 at V_D for utility and acrobatic
+    from geomload.loads.envelope import negative_factor_at_dive
+
+    for cat, expected in (("normal", 0.0), ("utility", -1.0), ("acrobatic", -1.0)):
+        check("14 CFR 23.333(b)(3) (pre-2017 text, read)", f"n at V_D, negative side, {cat} (-)",
+              expected, negative_factor_at_dive(cat), abs=1e-12)
