@@ -259,6 +259,11 @@ def compute(case, progress=None):
         atm = lambda h: (isa(h).rho, isa(h).a)  # noqa: E731
         pts = critical_points(spec, case.aircraft.gross_mass_kg, lattice.s_ref, mean_chord,
                               models.lift_slope, case.fuel_mass_kg, atm)
+        zero_fuel = case.aircraft.gross_mass_kg - case.fuel_mass_kg
+        if spec.min_mass_kg is not None and spec.min_mass_kg < zero_fuel - 1e-9:
+            warnings.append(f"envelope.min_mass_kg {spec.min_mass_kg:g} kg is below the zero-fuel "
+                            f"mass {zero_fuel:g} kg: the wing tanks are run empty and the rest is "
+                            "taken as payload off the wing")
         load_cases += list(points_to_load_cases(pts, spec.lift_share, case.aircraft.cl_max,
                                                 case.aircraft.cd0))
         masses = [case.aircraft.gross_mass_kg] + (
