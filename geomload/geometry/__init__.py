@@ -15,15 +15,16 @@ def load_wing(path, units=None, body=None, span_axis=None, up_axis=None, n_stati
     See `read.read_mesh`, `frame.detect_frame`, `sections.cut_stations` and
     `planform.summarize` for units, conventions and errors (InputError / GeometryError).
     """
-    from .frame import detect_frame
+    from .frame import detect_frame_indexed
     from .planform import summarize
     from .read import read_mesh
     from .sections import cut_stations
 
     progress = progress or no_progress
     mesh = read_mesh(path, units=units, body=body, progress=progress)
-    frame = detect_frame(mesh, span_axis=span_axis, up_axis=up_axis)
-    stations = cut_stations(mesh, frame, n=n_stations, spacing=spacing, progress=progress)
+    frame, index = detect_frame_indexed(mesh, span_axis=span_axis, up_axis=up_axis)
+    stations = cut_stations(mesh, frame, n=n_stations, spacing=spacing, progress=progress,
+                            index=index)
     return mesh, frame, stations, summarize(stations)
 
 

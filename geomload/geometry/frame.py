@@ -79,6 +79,12 @@ def detect_frame(mesh, span_axis=None, up_axis=None) -> WingFrame:
     (half wing) or centre-section (full wing) leading edge. Raises GeometryError when the mesh
     has no closed section or is not wing-shaped (section thicker than half its chord).
     """
+    return detect_frame_indexed(mesh, span_axis, up_axis)[0]
+
+
+def detect_frame_indexed(mesh, span_axis=None, up_axis=None):
+    """`detect_frame`, also returning the `SpanIndex` it built over the soup, so that
+    `sections.cut_stations(..., index=...)` can cut without a second pass over all triangles."""
     tris, src = mesh.triangles, mesh.source
     notes = []
     stride = max(1, tris.shape[0] // 200_000)
@@ -220,7 +226,7 @@ def detect_frame(mesh, span_axis=None, up_axis=None) -> WingFrame:
                          "upside-down half wing? (give --up-axis)")
     asym = _asymmetry(index, R, origin, semispan) if full else 0.0
     return WingFrame(rotation=R, origin=origin, full_span=bool(full), span_axis=axis_label(R[1]),
-                     up_axis=axis_label(R[2]), asymmetry=asym, notes=tuple(notes))
+                     up_axis=axis_label(R[2]), asymmetry=asym, notes=tuple(notes)), index
 
 
 def _root_cap_normal(tris, y_hat, tol, with_area=False):

@@ -376,7 +376,7 @@ def station_levels(y0, y1, n, spacing):
     raise GeometryError(f"station spacing {spacing!r} not one of cosine, uniform")
 
 
-def cut_stations(mesh, frame, n=20, spacing="cosine", progress=None) -> Stations:
+def cut_stations(mesh, frame, n=20, spacing="cosine", progress=None, index=None) -> Stations:
     """Cut n stations along the starboard semi-span and measure each airfoil section.
 
     Stations run from the root (inset 0.5 % of the semi-span from a root cap; y = 0 for a full
@@ -384,13 +384,22 @@ def cut_stations(mesh, frame, n=20, spacing="cosine", progress=None) -> Stations
     note; fewer than 3 good stations, a median section thicker than 35 % of its chord, a station
     twisted more than 45 deg, or a semi-span under half the mean chord (AR < 1) raise
     GeometryError. Lengths m, angles deg, wing frame (see `records.Stations`).
+    index: an optional `SpanIndex` over mesh.triangles (e.g. from
+    `frame.detect_frame_indexed`), reused instead of a new pass over all triangles.
     """
     progress = progress or no_progress
     if int(n) < 3:
         raise GeometryError(f"{mesh.source}: at least 3 stations are needed (got {n})")
     r1 = np.asarray(frame.rotation, float)[1]
-    index = SpanIndex(mesh.triangles, r1)  # the one pass over all triangles
-    semispan = float(index.s_max - r1 @ frame.origin)
+    if index is None or index.tris is not mesh.triangles:
+        index = SpanIndex(mesh.triangles, r1)  # the one pass over all triangles
+    if np.array_equal(index.e, r1):
+        s_max = index.s_max
+    elif np.array_equal(index.e, -r1):
+        s_max = -index.s_min
+    else:
+        s_max = float(index.extent(r1)[1])
+    semispan = float(s_max - r1 @ frame.origin)
     if semispan <= 0:
         raise GeometryError(f"{mesh.source}: no geometry on the starboard side of the root plane")
     y0 = 0.0 if frame.full_span else INSET * semispan
