@@ -155,6 +155,8 @@ class Case:
     envelope: Optional[EnvelopeSpec]
     lattice: LatticeSpec
     ultimate_factor: float = 1.5
+    load_factor_axis: str = "body"  # "body": n = N / W, N normal to the longitudinal axis
+    # (14 CFR 23.321(a)); "flight-path": n = L / W, inertia opposite the lift
 
     @property
     def fuel_mass_kg(self) -> float:
@@ -468,6 +470,7 @@ def load_case(path) -> Case:
     uf = t.positive("ultimate_factor", 1.5)
     if uf < 1.0:
         t.fail("ultimate_factor", f"must be >= 1, got {uf:g}")
+    nax = t.choice("load_factor_axis", ("body", "flight-path"), "body")
     t.done()
     top.done()
     carried = (wing_mass.total_kg if wing_mass else 0.0) + 2 * sum(p.mass for p in points) + sum(
@@ -478,7 +481,7 @@ def load_case(path) -> Case:
     return Case(path=str(Path(path).resolve()), title=title, geometry=geometry, aircraft=aircraft,
                 wing_mass=wing_mass, point_masses=tuple(points), fuel_tanks=tuple(tanks), spar=spar,
                 moment_reference=ref, load_cases=tuple(cases), envelope=envelope, lattice=lattice,
-                ultimate_factor=uf)
+                ultimate_factor=uf, load_factor_axis=nax)
 
 
 def check_against_span(case: Case, semispan: float) -> None:
@@ -541,7 +544,7 @@ spacing = "cosine"         # "cosine" (finer at root and tip) or "uniform"
 
 [aircraft]
 gross_mass_kg = 25.0       # CHANGE: design maximum take-off mass, whole aircraft
-cl_max = 1.3               # clean wing CLmax, for the stall warning
+cl_max = 1.3               # section cl_max: the stall-onset estimate (first strip to reach it)
 cd0 = 0.010                # section profile-drag coefficient added to the induced drag
 
 [wing_mass]
@@ -607,6 +610,8 @@ n_chord = 10               # chordwise panels
 
 [analysis]
 ultimate_factor = 1.5      # ultimate = factor x limit (14 CFR 23.303)
+load_factor_axis = "body"  # n = force normal to the wing root chord / W (14 CFR 23.321(a));
+                           # "flight-path": n = lift / W, inertia opposite the lift
 """
 
 

@@ -2,13 +2,15 @@
 envelope -> every output, written atomically.
 
 Decisions (docs/methods_loads.md, "Pipeline decisions"):
-- Trim: lift (normal to the free stream) of the wing = lift_share x n x W. The lattice is linear,
-  so each Mach needs one factorisation; cases are grouped into Mach bins of MACH_BIN width and
-  solved on the lattice at the bin's upper Mach (Prandtl-Glauert changes CL_alpha by under 0.2 %
-  across a bin at the low Mach of small aircraft; the upper edge is the conservative side).
-- Directions: lift normal to the free stream, drag along it, inertia n g m'(y) opposite to the
-  lift (the load factor is normal to the flight path); all resolved into the wing frame at the
-  trimmed alpha, so the chordwise force is (D - 0) cos(alpha) - (L - n g m') sin(alpha).
+- Trim: the wing's share of n x W equals its aerodynamic force normal to the longitudinal
+  (wing-frame x) axis, N = L cos(alpha) + D sin(alpha) (14 CFR 23.321(a)); `[analysis]
+  load_factor_axis = "flight-path"` trims the lift instead. Each Mach needs one factorisation;
+  cases are grouped into Mach bins of MACH_BIN width and solved on the lattice at the bin's upper
+  Mach (on the sample the lift slope rises 0.5-0.8 % from one bin to the next; the upper edge is
+  the conservative side for gusts).
+- Directions: lift normal to the free stream, drag along it, resolved into the wing frame at the
+  trimmed alpha; inertia n g m'(y) along -z (normal to the longitudinal axis, n_x = 0: thrust
+  balances the chordwise force), or opposite the lift with load_factor_axis = "flight-path".
 - Load grid: the lattice's strip edges from root to tip. Strip lift per span is interpolated to
   the edges (zero at the tip) and scaled so its integral equals the lattice's total exactly.
 """
@@ -102,7 +104,10 @@ def _edges_geometry(lattice, jumps=()):
 
 
 def _to_edges(y_edges, y_strip, values, width, total=None, tip_zero=True):
-    """Strip-centre values -> edge values, piecewise linear, integral scaled to the strip total."""
+    """Strip-centre values -> edge values, piecewise linear, with the integral corrected to the
+    strip total. The correction is additive, in proportion to |value|, so a distribution whose net
+    total is about zero (an n = 0 case: lift up inboard, down outboard) keeps its shape; for a
+    one-signed distribution it is the same as scaling."""
     v = np.interp(y_edges, y_strip, values)
     if y_strip.size >= 2 and y_edges[0] < y_strip[0]:
         slope = (values[1] - values[0]) / (y_strip[1] - y_strip[0])
@@ -110,40 +115,68 @@ def _to_edges(y_edges, y_strip, values, width, total=None, tip_zero=True):
     if tip_zero:
         v[-1] = 0.0
     strip_total = float(np.sum(values * width)) if total is None else float(total)
-    grid_total = float(np.sum(0.5 * (v[1:] + v[:-1]) * np.diff(y_edges)))
-    if abs(grid_total) > 1e-300 and abs(strip_total) > 1e-300:
-        v = v * (strip_total / grid_total)
+    h = np.diff(y_edges)
+    grid_total = float(np.sum(0.5 * (v[1:] + v[:-1]) * h))
+    a = np.abs(v)
+    a_total = float(np.sum(0.5 * (a[1:] + a[:-1]) * h))
+    if a_total > 0.0:
+        v = v + (strip_total - grid_total) * a / a_total
     return v
 
 
-def _stall_warning(lc, case, models, mach, CL_req) -> str:
-    """'' or a one-line warning when the required CL lies beyond the stall estimate.
+def _stall_warning(lc, case, models, mach, CL_req, cf_req) -> str:
+    """'' or a one-line warning when the case lies beyond the stall estimate.
 
-    The estimate is the wing CLmax of [envelope] (cl_max_pos / cl_max_neg) when given; otherwise
-    the wing CL at which the first strip reaches the section cl_max (load case or [aircraft]).
-    A 0.5 % margin keeps the stall-corner points, which sit on the line by construction, quiet.
+    With an [envelope], its cl_max_pos / cl_max_neg bound the force coefficient the load factor
+    is defined on (cf_req: the normal-force coefficient CN for load_factor_axis = "body", the
+    lift coefficient for "flight-path"), the same coefficient its stall lines n = q S C / W use.
+    Without one, the wing CL at which the first strip reaches the section cl_max (load case or
+    [aircraft]) bounds CL_req. A 0.5 % margin keeps the stall-corner points, which sit on the
+    line by construction, quiet.
     """
     env = case.envelope
     cl_sec = lc.cl_max if lc.cl_max is not None else case.aircraft.cl_max
-    if CL_req >= 0:
-        if env is not None:
-            limit, what = env.cl_max_pos, "the wing CLmax of [envelope]"
-        elif cl_sec is not None:
-            st = models.stall_cl(mach, cl_sec)
-            if not math.isfinite(st["CL_at_onset"]):
-                return ""
-            limit = st["CL_at_onset"]
-            what = (f"the stall-onset estimate (section cl_max {cl_sec:g} first reached at "
-                    f"y = {st['first_station_y']:.2f} m)")
-        else:
-            return ""
-        if CL_req > limit * 1.005:
-            return (f"required CL {CL_req:.3f} is beyond {what}, CL {limit:.3f}: the case is not "
-                    "attainable; it lies beyond the stall line")
-    elif env is not None and -CL_req > env.cl_max_neg * 1.005:
-        return (f"required CL {CL_req:.3f} is beyond the negative wing CLmax of [envelope], "
-                f"-{env.cl_max_neg:.3f}: the case is not attainable; it lies beyond the stall line")
+    name = "CN" if getattr(case, "load_factor_axis", "body") == "body" else "CL"
+    if env is not None:
+        if cf_req > env.cl_max_pos * 1.005:
+            return (f"required {name} {cf_req:.3f} is beyond the wing maximum of [envelope], "
+                    f"{env.cl_max_pos:.3f}: the case is not attainable; it lies beyond the stall line")
+        if -cf_req > env.cl_max_neg * 1.005:
+            return (f"required {name} {cf_req:.3f} is beyond the negative wing maximum of "
+                    f"[envelope], -{env.cl_max_neg:.3f}: the case is not attainable; it lies "
+                    "beyond the stall line")
+        return ""
+    if CL_req > 0 and cl_sec is not None:
+        st = models.stall_cl(mach, cl_sec)
+        if math.isfinite(st["CL_at_onset"]) and CL_req > st["CL_at_onset"] * 1.005:
+            return (f"required CL {CL_req:.3f} is beyond the stall-onset estimate (section cl_max "
+                    f"{cl_sec:g} first reached at y = {st['first_station_y']:.2f} m), CL "
+                    f"{st['CL_at_onset']:.3f}: the case is not attainable; it lies beyond the "
+                    "stall line")
     return ""
+
+
+def _trim(model, cf_req, cd0, body_axis):
+    """(alpha_deg, AeroSolution, CL) at which the wing's force coefficient equals cf_req.
+
+    body_axis: the force normal to the wing-frame x axis, CN = CL cos(a) + CD sin(a) with
+    CD = CDi + cd0 (the load factor of 14 CFR 23.321(a)); otherwise the lift CL itself. A few
+    fixed-point steps on CL converge to round-off (CD sin(a) is a small correction).
+    """
+    CL = cf_req
+    alpha = model.alpha_for_cl(CL)
+    sol = model.solve(alpha)
+    if not body_axis:
+        return alpha, sol, CL
+    for _ in range(8):
+        a = math.radians(alpha)
+        cl_new = (cf_req - (sol.CDi + cd0) * math.sin(a)) / math.cos(a)
+        if abs(cl_new - CL) <= 1e-12 * max(1.0, abs(cf_req)):
+            break
+        CL = cl_new
+        alpha = model.alpha_for_cl(CL)
+        sol = model.solve(alpha)
+    return alpha, sol, CL
 
 
 def solve_case(lc, case, lattice, models, stations, grid, masses_cache, atmosphere):
@@ -163,13 +196,13 @@ def solve_case(lc, case, lattice, models, stations, grid, masses_cache, atmosphe
         raise CaseError(f"{case.path}: load_case '{lc.name}': speed must be > 0")
     q = 0.5 * atm.rho * v_tas ** 2
     mass = case.aircraft.gross_mass_kg if lc.mass_kg is None else lc.mass_kg
-    lift_req = lc.lift_share * lc.load_factor * mass * G0
-    CL_req = lift_req / (q * lattice.s_ref)
+    force_req = lc.lift_share * lc.load_factor * mass * G0
     model = models.get(mach)
-    alpha = model.alpha_for_cl(CL_req)
-    sol = model.solve(alpha)
+    cd0 = lc.cd0 if lc.cd0 is not None else case.aircraft.cd0
+    body_axis = getattr(case, "load_factor_axis", "body") == "body"
+    alpha, sol, CL_req = _trim(model, force_req / (q * lattice.s_ref), cd0 or 0.0, body_axis)
 
-    warn = _stall_warning(lc, case, models, mach, CL_req)
+    warn = _stall_warning(lc, case, models, mach, CL_req, force_req / (q * lattice.s_ref))
 
     y, le, te, chord = grid
     keep = np.asarray(sol.y) >= 0  # a full-span lattice: the starboard strips
@@ -178,7 +211,6 @@ def solve_case(lc, case, lattice, models, stations, grid, masses_cache, atmosphe
     ys, ws = ys[order], ws[order]
     pick = lambda a: np.asarray(a)[keep][order]  # noqa: E731
     lift_s = pick(sol.lift_per_q) * q
-    cd0 = lc.cd0 if lc.cd0 is not None else case.aircraft.cd0
     drag_s = pick(sol.drag_per_q) * q + (cd0 or 0.0) * q * pick(sol.chord)
     pitch_s = pick(sol.moment_per_q) * q
     lift = _to_edges(y, ys, lift_s, ws)
@@ -196,8 +228,10 @@ def solve_case(lc, case, lattice, models, stations, grid, masses_cache, atmosphe
                                               case.wing_mass, case.fuel_tanks, key)
     dist = masses_cache[key]
     inertia, point_loads = inertia_loads(dist, lc.load_factor, case.point_masses)
-    # the load factor is normal to the flight path: point-mass inertia opposes the lift too
-    ca, sa = math.cos(math.radians(alpha)), math.sin(math.radians(alpha))
+    # inertia along the load factor: normal to the longitudinal axis (body, 14 CFR 23.321(a)),
+    # or opposite the lift (flight path)
+    tilt = 0.0 if body_axis else alpha
+    ca, sa = math.cos(math.radians(tilt)), math.sin(math.radians(tilt))
     point_loads = tuple(PointLoad(p.name, p.position, np.array([-p.force[2] * sa, 0.0,
                                                                  p.force[2] * ca]))
                         for p in point_loads)
@@ -206,12 +240,14 @@ def solve_case(lc, case, lattice, models, stations, grid, masses_cache, atmosphe
     side = -lift * np.gradient(load_z, y)
     half_lift = float(np.sum(0.5 * (lift[1:] + lift[:-1]) * np.diff(y)))
     loads = integrate_loads(
-        y, sx, sz, lift, drag_N_per_m=drag, side_N_per_m=side, pitch_Nm_per_m=pitch, alpha_deg=alpha, load_x=load_x,
+        y, sx, sz, lift, drag_N_per_m=drag, side_N_per_m=side, pitch_Nm_per_m=pitch, alpha_deg=alpha,
+        inertia_alpha_deg=tilt, load_x=load_x,
         load_z=load_z, inertia_N_per_m=inertia, inertia_x=dist.x_m, inertia_z=dist.z_m,
         point_loads=point_loads, case=lc.name, ultimate_factor=case.ultimate_factor,
         schrenk_lift_N_per_m=schrenk(y, chord, stations.semispan, half_lift))
     res = equilibrium_residual(loads)
-    loads.extras.update({"alpha_deg": alpha, "CL_required": CL_req, "q_pa": q,
+    loads.extras.update({"CL_required": CL_req, "q_pa": q, "load_factor_axis":
+                         "body" if body_axis else "flight-path", "force_required_N": force_req,
                          "aero_drag_N_per_m": drag, "chord_m": chord,
                          "lift_total_N": 2.0 * half_lift, "mach_lattice": _mach_bin(mach),
                          "equilibrium": res})
@@ -279,7 +315,9 @@ def compute(case, progress=None):
     dup = sorted({n for n in names if names.count(n) > 1})
     if dup:
         raise CaseError(f"{case.path}: load_case.name: duplicate case name(s) {', '.join(dup)}")
-    grid = _edges_geometry(lattice, [float(p.position[1]) for p in case.point_masses])
+    jumps = [float(p.position[1]) for p in case.point_masses]
+    jumps += [float(v) for t in case.fuel_tanks for v in (t.y_from_m, t.y_to_m)]
+    grid = _edges_geometry(lattice, jumps)
     masses_cache, results = {}, []
     for i, lc in enumerate(load_cases):
         results.append(solve_case(lc, case, lattice, models, stations, grid, masses_cache, isa))
@@ -298,6 +336,11 @@ def compute(case, progress=None):
     cl_sec = case.aircraft.cl_max
     if cl_sec is not None:
         st = models.stall_cl(results[0].mach, cl_sec)
+        if (case.envelope is not None and math.isfinite(st["CL_at_onset"])
+                and case.envelope.cl_max_pos > st["CL_at_onset"] * 1.005):
+            warnings.append(f"envelope.cl_max_pos {case.envelope.cl_max_pos:g} is above the wing CL "
+                            f"{st['CL_at_onset']:.3f} at which the section cl_max {cl_sec:g} is "
+                            "first reached: the stall line may be optimistic")
         if math.isfinite(st["CL_at_onset"]):
             warnings.append(f"note: stall onset: section cl_max {cl_sec:g} is first reached at y = "
                             f"{st['first_station_y']:.2f} m at wing CL {st['CL_at_onset']:.3f} "

@@ -247,7 +247,7 @@ def test_envelope_equals_stationwise_extremes(n_cases, n_st, seed):
             assert getattr(by_name[env.max_case[q][i]], q)[i] == env.maximum[q][i]
             assert getattr(by_name[env.min_case[q][i]], q)[i] == env.minimum[q][i]
     cols = env.columns()
-    assert list(cols)[0] == "y_m" and "bending_ult_max_Nm" in cols and "torsion_min_case" in cols
+    assert list(cols)[0] == "y_m" and "bending_max_ult_Nm" in cols and "torsion_min_case" in cols
 
 
 def test_envelope_refuses_mixed_grids():

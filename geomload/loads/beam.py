@@ -96,7 +96,8 @@ def integrate_loads(y, spar_x, spar_z, lift_N_per_m, *, drag_N_per_m=None, side_
                     pitch_Nm_per_m=None,
                     load_x=None, load_z=None, inertia_N_per_m=None, inertia_x=None,
                     inertia_z=None, point_loads=(), case="", ultimate_factor=1.5,
-                    schrenk_lift_N_per_m=None, alpha_deg=0.0) -> SpanLoads:
+                    schrenk_lift_N_per_m=None, alpha_deg=0.0,
+                    inertia_alpha_deg=None) -> SpanLoads:
     """Integrate the loads of one semi-span from tip to root (limit loads, SI).
 
     Parameters
@@ -112,14 +113,16 @@ def integrate_loads(y, spar_x, spar_z, lift_N_per_m, *, drag_N_per_m=None, side_
     pitch_Nm_per_m : (n,) section pitching moment per metre about the load line, nose-up
         (N m/m), e.g. cm_c4 q c^2 with the load line at the quarter chord; default 0.
     load_x, load_z : (n,) line where lift and drag act (m); default the spar line.
-    inertia_N_per_m : (n,) n g m'(y) (N/m), opposite to the lift: along (sin a, 0, -cos a),
-        i.e. the load factor n is normal to the flight path; default 0.
+    inertia_N_per_m : (n,) n g m'(y) (N/m), along (sin b, 0, -cos b) with b = inertia_alpha_deg:
+        b = 0 puts it along -z (load factor normal to the longitudinal axis, 14 CFR 23.321(a));
+        b = alpha opposes the lift (load factor normal to the flight path); default 0.
     inertia_x, inertia_z : (n,) line of the distributed mass (m); default the spar line.
     point_loads : sequence of :class:`PointLoad` (force vectors in N, wing frame).
     case : case name stored in the result; ultimate_factor : ultimate / limit (14 CFR 23.303).
     schrenk_lift_N_per_m : (n,) cross-check series stored as is (NaN when not given).
     alpha_deg : angle of attack of the wing frame's x axis to the free stream (deg); 0 makes
-        lift and inertia act along +/-z and drag along +x. Point-load forces are taken as given.
+        lift act along +z and drag along +x. Point-load forces are taken as given.
+    inertia_alpha_deg : tilt of the inertia direction (deg); default alpha_deg.
 
     Returns
     -------
@@ -150,8 +153,9 @@ def integrate_loads(y, spar_x, spar_z, lift_N_per_m, *, drag_N_per_m=None, side_
     fx_aero, fz_aero = drag * ca - lift * sa, lift * ca + drag * sa
     fa, ma = _segment_moments(y, p, np.column_stack([ax, y, az]),
                               np.column_stack([fx_aero, side, fz_aero]))
+    bi = np.radians(float(alpha_deg if inertia_alpha_deg is None else inertia_alpha_deg))
     fi, mi = _segment_moments(y, p, np.column_stack([ix, y, iz]),
-                              np.column_stack([q * sa, zero, -q * ca]))
+                              np.column_stack([q * np.sin(bi), zero, -q * np.cos(bi)]))
     couple = np.zeros((n - 1, 3))
     couple[:, 1] = 0.5 * np.diff(y) * (pitch[:-1] + pitch[1:])  # about axes parallel to y
     seg_f = fa + fi
@@ -182,6 +186,8 @@ def integrate_loads(y, spar_x, spar_z, lift_N_per_m, *, drag_N_per_m=None, side_
         ultimate_factor=float(ultimate_factor),
         extras={"force_N": force, "moment_Nm": moment, "axis_s": s, "axis_b": b, "axis_n": nrm,
                 "side_N_per_m": side, "load_z_m": az, "load_x_m": ax, "alpha_deg": float(alpha_deg),
+                "inertia_alpha_deg": float(np.degrees(bi)), "inertia_x_m": ix, "inertia_z_m": iz,
+                "pitch_about_load_line_Nm_per_m": pitch,
                 "point_loads": tuple(point_loads), "spar_points_m": p,
                 "sign_convention": SIGN_CONVENTION},
     )
@@ -194,54 +200,68 @@ def ultimate(loads: SpanLoads) -> dict:
             ("shear_N", "bending_Nm", "torsion_Nm", "inplane_shear_N", "inplane_bending_Nm")}
 
 
+def _lin_product(y, a, b):
+    """Integral over y of a(y) b(y), both linear between stations: exact, h/6 (2 a0 b0 + a0 b1 +
+    a1 b0 + 2 a1 b1) per segment."""
+    h = np.diff(y)
+    return float(np.sum(h / 6.0 * (2 * a[:-1] * b[:-1] + a[:-1] * b[1:] + a[1:] * b[:-1]
+                                   + 2 * a[1:] * b[1:])))
+
+
 def equilibrium_residual(loads: SpanLoads) -> dict:
     """Root equilibrium check, computed independently of the tip-to-root recursion.
 
-    In the wind axes of the case (normal n_w = (-sin a, 0, cos a), x_w = (cos a, 0, sin a)):
-    total normal load = integral of (lift - inertia) (trapezoid, exact for linear loads) plus the
-    point loads' F.n_w; first moment about x_w through the root spar point = integral of
-    (y - y0)(lift - inertia) (closed form for linear loads) plus the side-force and point-load
-    moments. Drag has no component along n_w. Compared with the root resultant F.n_w and M.x_w.
+    The whole semi-span's loads are summed directly about the root spar point p0: force = the
+    integrals of the aerodynamic force (lift, drag at alpha, side force) and of the inertia
+    (trapezoid, exact for linear loads) plus the point loads; moment = the integral of
+    (r - p0) x f (closed form for products of linear functions) plus the section moments and the
+    point-load moments. Compared, as vectors, with the root resultant of the recursion.
 
-    Returns dict: total_vertical_N, first_moment_Nm, shear_residual_rel, bending_residual_rel.
+    Returns dict: total_vertical_N (z of the summed force), first_moment_Nm (x of the summed
+    moment), shear_residual_rel, bending_residual_rel (vector differences relative to the size of
+    the loads carried, so a case whose net load is about zero is judged fairly).
     """
-    y, g = loads.y, loads.lift_N_per_m - loads.inertia_N_per_m
-    a, b, ga, gb = y[:-1] - y[0], y[1:] - y[0], g[:-1], g[1:]
-    total = float(np.sum(0.5 * (b - a) * (ga + gb)))
-    first = float(np.sum((b - a) / 6.0 * (2 * a * ga + a * gb + b * ga + 2 * b * gb)))
-    p0 = loads.extras["spar_points_m"][0]
-    al = np.radians(loads.extras.get("alpha_deg", 0.0))
-    ca, sa = float(np.cos(al)), float(np.sin(al))
-    n_w, x_w = np.array([-sa, 0.0, ca]), np.array([ca, 0.0, sa])
-    side = loads.extras.get("side_N_per_m")
-    if side is not None and np.any(side):
-        # a side force f_y on the line (x, z)(y) adds f_y (sin a (x - x0) - cos a (z - z0)) to
-        # the moment about x_w; both factors are linear per segment, so the product integral is
-        # exact: h/6 (2 a0 b0 + a0 b1 + a1 b0 + 2 a1 b1)
-        lever = (sa * (loads.extras["load_x_m"] - p0[0]) - ca * (loads.extras["load_z_m"] - p0[2]))
-        fy, hh = side, np.diff(y)
-        first += float(np.sum(hh / 6.0 * (2 * lever[:-1] * fy[:-1] + lever[:-1] * fy[1:]
-                                          + lever[1:] * fy[:-1] + 2 * lever[1:] * fy[1:])))
-    for pl in loads.extras.get("point_loads", ()):
+    ex = loads.extras
+    y = loads.y
+    p0 = ex["spar_points_m"][0]
+    al = np.radians(ex.get("alpha_deg", 0.0))
+    bi = np.radians(ex.get("inertia_alpha_deg", ex.get("alpha_deg", 0.0)))
+    lift, drag, q = loads.lift_N_per_m, loads.drag_N_per_m, loads.inertia_N_per_m
+    side = ex.get("side_N_per_m", np.zeros_like(y))
+    zero = np.zeros_like(y)
+    fa = np.column_stack([drag * np.cos(al) - lift * np.sin(al), side,
+                          lift * np.cos(al) + drag * np.sin(al)])
+    fi = np.column_stack([q * np.sin(bi), zero, -q * np.cos(bi)])
+    ra = np.column_stack([ex.get("load_x_m", ex["spar_points_m"][:, 0]), y,
+                          ex.get("load_z_m", ex["spar_points_m"][:, 2])]) - p0
+    ri = np.column_stack([ex.get("inertia_x_m", ex["spar_points_m"][:, 0]), y,
+                          ex.get("inertia_z_m", ex["spar_points_m"][:, 2])]) - p0
+    force = np.array([np.sum(0.5 * np.diff(y) * (f[1:, k] + f[:-1, k])) for f in (fa, fi)
+                      for k in range(3)]).reshape(2, 3).sum(0)
+    moment = np.zeros(3)
+    for r, f in ((ra, fa), (ri, fi)):  # (r x f) components, each a product of linear functions
+        moment += [_lin_product(y, r[:, 1], f[:, 2]) - _lin_product(y, r[:, 2], f[:, 1]),
+                   _lin_product(y, r[:, 2], f[:, 0]) - _lin_product(y, r[:, 0], f[:, 2]),
+                   _lin_product(y, r[:, 0], f[:, 1]) - _lin_product(y, r[:, 1], f[:, 0])]
+    pitch = ex.get("pitch_about_load_line_Nm_per_m")
+    if pitch is not None:
+        moment[1] += float(np.sum(0.5 * np.diff(y) * (pitch[1:] + pitch[:-1])))
+    tol = 1e-12 * max(1.0, float(y[-1] - y[0]))
+    gross = float(np.sum(0.5 * np.diff(y) * (np.abs(lift[1:]) + np.abs(lift[:-1]) + np.abs(q[1:])
+                                             + np.abs(q[:-1]) + np.abs(drag[1:]) + np.abs(drag[:-1]))))
+    for pl in ex.get("point_loads", ()):
         r, fv = np.asarray(pl.position, float) - p0, np.asarray(pl.force, float)
-        if r[1] >= -1e-12 * max(1.0, float(y[-1] - y[0])):
-            fn = float(fv @ n_w)
-            total += fn
-            first += float(r[1] * fn + fv[1] * (sa * r[0] - ca * r[2]))
-    f0, m0 = loads.extras["force_N"][0] @ n_w, loads.extras["moment_Nm"][0] @ x_w
-    # relative to the loads' own size, so a case whose net load is about zero (n = 0) is judged
-    # against the lift and inertia it carries rather than against round-off
+        if r[1] >= -tol:
+            force += fv
+            moment += np.cross(r, fv)
+        gross += float(np.abs(fv).sum())
+    f0, m0 = ex["force_N"][0], ex["moment_Nm"][0]
     span = float(y[-1] - y[0]) or 1.0
-    gross = float(np.sum(0.5 * np.diff(y) * (np.abs(g[1:]) + np.abs(g[:-1]) +
-                                              np.abs(loads.drag_N_per_m[1:]) +
-                                              np.abs(loads.drag_N_per_m[:-1]))))
-    gross += sum(float(np.abs(np.asarray(pl.force, float)).sum())
-                 for pl in loads.extras.get("point_loads", ()))
-    f_ref = max(abs(total), gross, 1e-300)
-    m_ref = max(abs(first), gross * span, 1e-300)
-    return {"total_vertical_N": total, "first_moment_Nm": first,
-            "shear_residual_rel": abs(f0 - total) / f_ref,
-            "bending_residual_rel": abs(m0 - first) / m_ref}
+    f_ref = max(float(np.linalg.norm(force)), gross, 1e-300)
+    m_ref = max(float(np.linalg.norm(moment)), gross * span, 1e-300)
+    return {"total_vertical_N": float(force[2]), "first_moment_Nm": float(moment[0]),
+            "shear_residual_rel": float(np.linalg.norm(f0 - force)) / f_ref,
+            "bending_residual_rel": float(np.linalg.norm(m0 - moment)) / m_ref}
 
 
 def schrenk(y, chord, semispan, total_lift_half):

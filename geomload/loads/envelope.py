@@ -95,7 +95,7 @@ class Envelope:
 
     def columns(self) -> dict:
         """Ordered columns for a table: y_m, then <q>_max_<unit>, <q>_max_case, <q>_min_...,
-        and the ultimate pairs (e.g. bending_max_Nm, bending_ult_max_Nm)."""
+        and the ultimate pairs (e.g. bending_max_Nm, bending_max_ult_Nm), as in envelope.csv."""
         out = {"y_m": self.y}
         for q in QUANTITIES:
             base, unit = q.rsplit("_", 1)
@@ -103,8 +103,8 @@ class Envelope:
             out[f"{base}_max_case"] = list(self.max_case[q])
             out[f"{base}_min_{unit}"] = self.minimum[q]
             out[f"{base}_min_case"] = list(self.min_case[q])
-            out[f"{base}_ult_max_{unit}"] = self.ultimate_max[q]
-            out[f"{base}_ult_min_{unit}"] = self.ultimate_min[q]
+            out[f"{base}_max_ult_{unit}"] = self.ultimate_max[q]
+            out[f"{base}_min_ult_{unit}"] = self.ultimate_min[q]
         return out
 
 
