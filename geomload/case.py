@@ -129,6 +129,7 @@ class EnvelopeSpec:
     gust_cruise_m_s: Optional[float] = None
     gust_dive_m_s: Optional[float] = None
     lift_share: float = 1.0
+    n_neg_dive: Optional[float] = None  # custom only: negative limit at V_D (default 0)
 
 
 @dataclass(frozen=True)
@@ -361,6 +362,11 @@ def _envelope(t: _Table, gross: float) -> EnvelopeSpec:
         if not 0.0 <= a <= MAX_ALTITUDE_M:
             t.fail("altitudes", f"{a:.0f} m is outside 0..{MAX_ALTITUDE_M:.0f} m")
     n_pos, n_neg = t.get("n_pos", float), t.get("n_neg", float)
+    n_neg_dive = t.get("n_neg_dive", float)
+    if n_neg_dive is not None and cat != "custom":
+        t.fail("n_neg_dive", f"only for category 'custom' (the {cat} rule sets it, 23.333(b)(3))")
+    if n_neg_dive is not None and (n_neg_dive > 0.0 or (n_neg is not None and n_neg_dive < n_neg)):
+        t.fail("n_neg_dive", f"must lie between n_neg and 0, got {n_neg_dive:g}")
     if cat == "custom":
         if n_pos is None or n_pos <= 1.0:
             t.fail("n_pos", "required for category 'custom' and must be > 1")
@@ -377,7 +383,7 @@ def _envelope(t: _Table, gross: float) -> EnvelopeSpec:
         category=cat,
         cl_max_pos=t.positive("cl_max_pos", required=True),
         cl_max_neg=t.positive("cl_max_neg", required=True),
-        n_pos=n_pos, n_neg=n_neg, altitudes_m=alts,
+        n_pos=n_pos, n_neg=n_neg, n_neg_dive=n_neg_dive, altitudes_m=alts,
         min_mass_kg=t.positive("min_mass_kg"),
         gust_cruise_m_s=None if gusts["gust_cruise"] is None else gusts["gust_cruise"] * GUST_UNITS[gu],
         gust_dive_m_s=None if gusts["gust_dive"] is None else gusts["gust_dive"] * GUST_UNITS[gu],
@@ -591,6 +597,7 @@ lift_share = 1.0           # share of n*W the wing carries (tail load taken out)
 # category = "custom"      # "normal", "utility", "acrobatic" (14 CFR 23, pre-2017) or "custom"
 # n_pos = 4.0              # custom only: positive limit load factor
 # n_neg = -2.0             # custom only: negative limit load factor
+# n_neg_dive = 0.0         # custom only: negative limit at V_D (default 0, as the normal category)
 # cl_max_pos = 1.3
 # cl_max_neg = 0.8         # magnitude of the negative CLmax
 # speed_unit = "m/s"       # speeds are EAS

@@ -264,3 +264,19 @@ def test_negative_factor_at_dive_per_category():
     for cat, expected in (("normal", 0.0), ("utility", -1.0), ("acrobatic", -1.0)):
         check("14 CFR 23.333(b)(3) (pre-2017 text, read)", f"n at V_D, negative side, {cat} (-)",
               expected, negative_factor_at_dive(cat), abs=1e-12)
+
+
+def test_custom_negative_factor_at_dive_and_low_gust_note(tmp_path):
+    # a custom envelope may set its negative limit at V_D; the V-n corner takes it (definition
+    # of the input); a gust below the 23.333(c)(1) value (50 ft/s = 15.24 m/s at V_C, read) is
+    # accepted with a note
+    from geomload.case import EnvelopeSpec
+    from geomload.loads.envelope import vn_diagram
+
+    spec = EnvelopeSpec(category="custom", cl_max_pos=1.3, cl_max_neg=0.7, n_pos=4.0, n_neg=-2.0,
+                        n_neg_dive=-0.5, v_cruise=30.0, v_dive=42.0, gust_cruise_m_s=9.0)
+    d = vn_diagram(spec, 20.0, 0.9, 0.25, 5.2)
+    corner = next(p for p in d.corners if p.label == "neg-limit-dive")
+    check("case input n_neg_dive (definition)", "custom n at the negative V_D corner (-)", -0.5,
+          corner.n, abs=1e-12)
+    assert any("gust_cruise" in n and "15.24" in n for n in d.notes)

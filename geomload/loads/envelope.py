@@ -267,15 +267,22 @@ def vn_diagram(spec: EnvelopeSpec, design_mass_kg: float, area_m2: float, mean_c
     sp = design_speeds(spec, design_mass_kg, area_m2, g)
     n_pos, n_neg = limit_load_factors(spec.category, design_mass_kg, spec.n_pos, spec.n_neg)
     n_dive = negative_factor_at_dive(spec.category)
+    if spec.category == "custom" and getattr(spec, "n_neg_dive", None) is not None:
+        n_dive = float(spec.n_neg_dive)
     rho, a_sound = (atmosphere or default_atmosphere)(altitude_m)
     ws = mass * g / area_m2
     vs_pos = stall_speed(mass, area_m2, spec.cl_max_pos, g)
     vs_neg = stall_speed(mass, area_m2, spec.cl_max_neg, g)
     v_corner = min(vs_pos * math.sqrt(n_pos), sp.v_cruise)
     v_neg_corner = min(vs_neg * math.sqrt(-n_neg), sp.v_cruise)
-    gc, gd = rule_gust_velocities(altitude_m)
-    gc = spec.gust_cruise_m_s if spec.gust_cruise_m_s is not None else gc
-    gd = spec.gust_dive_m_s if spec.gust_dive_m_s is not None else gd
+    gc_rule, gd_rule = rule_gust_velocities(altitude_m)
+    gc = spec.gust_cruise_m_s if spec.gust_cruise_m_s is not None else gc_rule
+    gd = spec.gust_dive_m_s if spec.gust_dive_m_s is not None else gd_rule
+    gust_notes = tuple(
+        f"envelope.{key}: {u:.2f} m/s is below the 23.333(c) value {u_rule:.2f} m/s at "
+        f"{altitude_m:g} m (accepted: set by the design team)"
+        for key, u, u_rule in (("gust_cruise", gc, gc_rule), ("gust_dive", gd, gd_rule))
+        if u < u_rule * (1 - 1e-9))
     gusts = []
     for v, u in ((sp.v_cruise, gc), (sp.v_dive, gd)):
         a = _slope(lift_slope, v * math.sqrt(RHO0 / rho) / a_sound)
@@ -311,7 +318,7 @@ def vn_diagram(spec: EnvelopeSpec, design_mass_kg: float, area_m2: float, mean_c
     corners = tuple(FlightPoint(lab, float(v), float(altitude_m), float(n), mass, lab, fuel_fraction)
                     for lab, v, n in pts)
     return VnDiagram(spec.category, mass, float(altitude_m), n_pos, n_neg, n_dive, vs_pos, vs_neg,
-                     sp, tuple(gusts[0]), tuple(gusts[1]), curves, corners, sp.notes)
+                     sp, tuple(gusts[0]), tuple(gusts[1]), curves, corners, sp.notes + gust_notes)
 
 
 def critical_points(spec: EnvelopeSpec, design_mass_kg: float, area_m2: float, mean_chord_m: float,
