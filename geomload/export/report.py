@@ -21,7 +21,8 @@ from geomload.export.atomic import write_text_atomic
 
 SECTIONS = (("job", "The job"), ("geometry", "Geometry check"), ("aerodynamics", "Aerodynamics"),
             ("loads", "Spanwise loads"), ("vn", "V-n diagram"),
-            ("critical", "Critical cases and root loads"), ("inputs", "Inputs"),
+            ("critical", "Critical cases and root loads"),
+            ("basis", "Assumptions behind the numbers"), ("inputs", "Inputs"),
             ("versions", "Versions and run time"))
 RENDER_KEYS = ("lattice_overlay", "surface_dcp", "spar_bending", "stations")
 CAPTIONS = {
@@ -188,6 +189,34 @@ def _versions(run, run_time_s) -> str:
             + f"<p>Report written {esc(stamp)} by geomload {esc(__version__)}.</p>")
 
 
+def _basis(run) -> str:
+    """The modelling decisions a reviewer must know to read the numbers (docs/methods_loads.md)."""
+    case = run.case
+    axis = getattr(case, "load_factor_axis", "body")
+    spar = getattr(getattr(case, "spar", None), "chord_fraction", None)
+    lat = run.lattice
+    items = [
+        ("load factor", "the wing's share of the aerodynamic force normal to the longitudinal "
+         "axis (root chord line) over W, 14 CFR 23.321(a); inertia along -z" if axis == "body"
+         else "lift over W (flight path); inertia opposite the lift"),
+        ("aerodynamics", f"vortex lattice, {lat.n_span} x {lat.n_chord} panels "
+         f"({'half wing with mirror images' if lat.mirrored else 'full span'}), linear theory, "
+         "Prandtl-Glauert compressibility, one factorisation per Mach bin of 0.05"),
+        ("load directions", "lift normal to the free stream, drag along it, resolved at the "
+         "trimmed alpha; lift tilted with the dihedral surface"),
+        ("spar axis", f"{spar:g} of the local chord" if spar is not None else "the given polyline"),
+        ("stall", "cases beyond the stall bound are flagged and kept in the envelope "
+         "(conservative)"),
+        ("ultimate", f"{getattr(case, 'ultimate_factor', 1.5):g} x limit (14 CFR 23.303)"),
+        ("not modelled", "balancing tail load (a constant lift share instead), rolling and "
+         "unsymmetrical cases, control-surface and flap loads, ground loads, aeroelastic "
+         "deformation, viscous stall beyond the flag"),
+    ]
+    rows = "".join(f"<tr><td class='t'>{esc(k)}</td><td class='t'>{esc(v)}</td></tr>" for k, v in items)
+    return (f"<table><tr><th>item</th><th>basis</th></tr>{rows}</table>"
+            f"<p class='caution'>{esc(CAUTION)}</p>")
+
+
 def render_html(run, images: dict, options=None, run_time_s=None) -> str:
     """The report as one HTML string (see module docstring)."""
     images = dict(images or {})
@@ -200,7 +229,7 @@ def render_html(run, images: dict, options=None, run_time_s=None) -> str:
               "the spar axis. Ultimate = limit x ultimate factor (1.5 unless set).</p>",
             "vn": (_images(images, ("vn",)) if run.vn is not None and "vn" in images
                    else "<p>No V-n diagram: the case file defines no envelope.</p>"),
-            "critical": _critical(run), "inputs": _inputs(run, options),
+            "critical": _critical(run), "basis": _basis(run), "inputs": _inputs(run, options),
             "versions": _versions(run, run_time_s)}
     known = {n for names in SECTION_IMAGES.values() for n in names}
     extra = [n for n in images if n not in known]
