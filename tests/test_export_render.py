@@ -56,3 +56,16 @@ def test_view_screenshot_and_bad_case(tmp_path, run):
         render.view(tmp_path, case="no such case", screenshot=tmp_path / "x.png")
     with pytest.raises(InputError, match="not a geomload run folder"):
         render.view(tmp_path / "missing", screenshot=tmp_path / "y.png")
+
+
+@pytest.mark.skipif(__import__("sys").platform.startswith(("win", "darwin")),
+                    reason="Windows and macOS always have a display")
+def test_view_without_a_display_says_so(tmp_path, monkeypatch):
+    # a headless machine cannot open a window: one clear line pointing at --screenshot
+    # (common practice, no source)
+    run = fakerun.make_run(("cruise",))
+    vtk.write_all_vtk(tmp_path, run)
+    monkeypatch.delenv("DISPLAY", raising=False)
+    monkeypatch.delenv("WAYLAND_DISPLAY", raising=False)
+    with pytest.raises(InputError, match="--screenshot"):
+        render.view(tmp_path)

@@ -187,6 +187,17 @@ def _case_key(mesh, case):
     return keys[names.index(case)], case
 
 
+def has_display() -> bool:
+    """True when an interactive window can open: always on Windows and macOS; on other systems
+    when an X11 or Wayland display is set."""
+    import os
+    import sys
+
+    if sys.platform.startswith(("win", "darwin")):
+        return True
+    return bool(os.environ.get("DISPLAY") or os.environ.get("WAYLAND_DISPLAY"))
+
+
 def view(run_dir, case=None, screenshot=None):
     """Show a run's surface (delta-Cp), lattice and load axis (bending) in a window.
 
@@ -200,6 +211,9 @@ def view(run_dir, case=None, screenshot=None):
     missing = [str(f) for f in files.values() if not f.is_file()]
     if missing:
         raise InputError(f"{d}: not a geomload run folder (missing {', '.join(missing)})")
+    if screenshot is None and not has_display():
+        raise InputError(f"{d}: no display for an interactive window (DISPLAY is not set); "
+                         "use --screenshot FILE to render offscreen")
     try:
         data = {k: pv.read(str(f)) for k, f in files.items()}
     except Exception as exc:
