@@ -12,7 +12,7 @@ import sys
 
 import click
 
-from geomload import CAUTION, __version__
+from geomload import __version__
 from geomload.errors import GeomloadError
 
 EXIT_OK, EXIT_INPUT, EXIT_USAGE, EXIT_INTERNAL, EXIT_INTERRUPTED = 0, 1, 2, 3, 130

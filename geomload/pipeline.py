@@ -11,8 +11,9 @@ Decisions (docs/methods_loads.md, "Pipeline decisions"):
 - Directions: lift normal to the free stream, drag along it, resolved into the wing frame at the
   trimmed alpha; inertia n g m'(y) along -z (normal to the longitudinal axis, n_x = 0: thrust
   balances the chordwise force), or opposite the lift with load_factor_axis = "flight-path".
-- Load grid: the lattice's strip edges from root to tip. Strip lift per span is interpolated to
-  the edges (zero at the tip) and scaled so its integral equals the lattice's total exactly.
+- Load grid: the lattice's strip edges from root to tip, plus the point-mass and tank-end
+  positions. Strip loads per span are interpolated to the grid (zero lift at the tip) and
+  corrected additively so each integral equals the lattice's total exactly.
 """
 
 from __future__ import annotations
@@ -200,9 +201,9 @@ def solve_case(lc, case, lattice, models, stations, grid, masses_cache, atmosphe
     model = models.get(mach)
     cd0 = lc.cd0 if lc.cd0 is not None else case.aircraft.cd0
     body_axis = getattr(case, "load_factor_axis", "body") == "body"
-    alpha, sol, CL_req = _trim(model, force_req / (q * lattice.s_ref), cd0 or 0.0, body_axis)
-
-    warn = _stall_warning(lc, case, models, mach, CL_req, force_req / (q * lattice.s_ref))
+    cf_req = force_req / (q * lattice.s_ref)
+    alpha, sol, CL_req = _trim(model, cf_req, cd0 or 0.0, body_axis)
+    warn = _stall_warning(lc, case, models, mach, CL_req, cf_req)
 
     y, le, te, chord = grid
     keep = np.asarray(sol.y) >= 0  # a full-span lattice: the starboard strips
@@ -240,17 +241,16 @@ def solve_case(lc, case, lattice, models, stations, grid, masses_cache, atmosphe
     side = -lift * np.gradient(load_z, y)
     half_lift = float(np.sum(0.5 * (lift[1:] + lift[:-1]) * np.diff(y)))
     loads = integrate_loads(
-        y, sx, sz, lift, drag_N_per_m=drag, side_N_per_m=side, pitch_Nm_per_m=pitch, alpha_deg=alpha,
-        inertia_alpha_deg=tilt, load_x=load_x,
-        load_z=load_z, inertia_N_per_m=inertia, inertia_x=dist.x_m, inertia_z=dist.z_m,
-        point_loads=point_loads, case=lc.name, ultimate_factor=case.ultimate_factor,
+        y, sx, sz, lift, drag_N_per_m=drag, side_N_per_m=side, pitch_Nm_per_m=pitch,
+        load_x=load_x, load_z=load_z, inertia_N_per_m=inertia, inertia_x=dist.x_m,
+        inertia_z=dist.z_m, point_loads=point_loads, case=lc.name,
+        ultimate_factor=case.ultimate_factor, alpha_deg=alpha, inertia_alpha_deg=tilt,
         schrenk_lift_N_per_m=schrenk(y, chord, stations.semispan, half_lift))
     res = equilibrium_residual(loads)
     loads.extras.update({"CL_required": CL_req, "q_pa": q, "load_factor_axis":
                          "body" if body_axis else "flight-path", "force_required_N": force_req,
-                         "aero_drag_N_per_m": drag, "chord_m": chord,
-                         "lift_total_N": 2.0 * half_lift, "mach_lattice": _mach_bin(mach),
-                         "equilibrium": res})
+                         "chord_m": chord, "lift_total_N": 2.0 * half_lift,
+                         "mach_lattice": _mach_bin(mach), "equilibrium": res})
     return CaseResult(name=lc.name, v_eas=v_eas, v_tas=v_tas, altitude_m=lc.altitude_m,
                       mach=mach, q_pa=q, load_factor=lc.load_factor, mass_kg=mass,
                       lift_share=lc.lift_share, aero=sol, loads=loads, stall_warning=warn,
