@@ -36,9 +36,7 @@ def _guarded(fn):
         except KeyboardInterrupt:
             _echo_err("geomload: interrupted; no output was written")
             sys.exit(EXIT_INTERRUPTED)
-        except click.exceptions.Exit:
-            raise
-        except (click.ClickException, click.Abort):
+        except (click.exceptions.Exit, click.ClickException, click.Abort):
             raise
         except MemoryError:
             _echo_err("geomload: error: out of memory (try fewer stations or panels)")
@@ -185,15 +183,15 @@ def aero(geometry, units, span_axis, up_axis, n_stations, spacing, body, alpha, 
     mesh, frame, stations, planform = _load(geometry, units, span_axis, up_axis, n_stations,
                                             spacing, body)
     from geomload.aero.lattice import build_lattice
-    from geomload.aero.solve import AeroModel, check_convergence as _conv
+    from geomload.aero.solve import DEFAULT_CL_MAX, AeroModel, check_convergence as _conv
 
     lattice = build_lattice(stations, n_span=panels_span, n_chord=panels_chord)
     model = AeroModel(lattice, mach=mach)
     sol = model.solve(alpha)
-    warnings = list(getattr(model, "warnings", []))
+    warnings = list(model.warnings)
     if cl_max is None:
-        cl_max = 1.4
-        warnings.append("section cl_max not given; stall onset uses a default cl_max = 1.4")
+        cl_max = DEFAULT_CL_MAX
+        warnings.append(f"section cl_max not given; stall onset uses a default cl_max = {cl_max:g}")
     stall = dict(model.stall(cl_max), cl_max=cl_max)
     warnings.extend(stall.pop("warnings", []))
     conv = _conv(stations, alpha, mach, n_span=panels_span, n_chord=panels_chord) \

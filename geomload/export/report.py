@@ -237,7 +237,7 @@ def render_html(run, images: dict, options=None, run_time_s=None) -> str:
         body["loads"] += _images(images, extra)
     title = esc(getattr(run.case, "title", "") or Path(run.case_path).stem)
     nav = " · ".join(f'<a href="#{k}">{esc(t)}</a>' for k, t in SECTIONS)
-    parts = [f"<!DOCTYPE html><html lang='en'><head><meta charset='utf-8'>",
+    parts = ["<!DOCTYPE html><html lang='en'><head><meta charset='utf-8'>",
              f"<title>geomload report: {title}</title><style>{CSS}</style></head><body>",
              f"<h1>geomload report: {title}</h1><nav>{nav}</nav>"]
     for key, t in SECTIONS:

@@ -110,10 +110,8 @@ def detect_frame_indexed(mesh, span_axis=None, up_axis=None):
         P = np.eye(3) - np.outer(e_up, e_up)
         ev, V = np.linalg.eigh(P @ ((dev.T * w) @ dev) @ P)
         e_span = V[:, 2]
-    if span_axis is not None or up_axis is not None:
-        e_chord = _unit(np.cross(e_up, e_span))
+    e_chord = _unit(np.cross(e_up, e_span))  # in the planform plane
     if span_axis is None:
-        e_chord = _unit(np.cross(e_up, e_span))  # in the planform plane
         extents = np.ptp(dev @ np.column_stack([e_span, e_chord]), axis=0)
         e_span, snapped = _snap(e_span, 5.0)
         index = SpanIndex(tris, e_span)  # the one pass over all triangles; cuts touch only candidates
@@ -152,9 +150,7 @@ def detect_frame_indexed(mesh, span_axis=None, up_axis=None):
             notes.append("constant-chord mirror-symmetric mesh on one side of the CAD origin: taken as a half wing")
     if full:
         y_hat = e_span
-        y_mid = 0.5 * (lo + hi)
         notes.append(f"full wing (cuts mirror about mid-span to {100 * resid:.1f} % of chord)")
-        root_level = 0.0
     else:
         root_at_lo = c_first >= c_last
         if abs(c_first - c_last) < 0.02 * cmax:

@@ -12,7 +12,6 @@ from __future__ import annotations
 
 import io
 import os
-import re
 
 import numpy as np
 

@@ -215,7 +215,6 @@ def _chain(seg, tol):
     sn = node.reshape(-1, 2)
     good = sn[:, 0] != sn[:, 1]
     sn = sn[good]
-    segs = seg[good]
     nn = deg.size
     inc = [[] for _ in range(nn)]
     for s, (a, b) in enumerate(sn.tolist()):

@@ -200,6 +200,11 @@ def ultimate(loads: SpanLoads) -> dict:
             ("shear_N", "bending_Nm", "torsion_Nm", "inplane_shear_N", "inplane_bending_Nm")}
 
 
+def _trapz(y, f):
+    """Integral over y of f, linear between stations (trapezoid rule, exact)."""
+    return float(np.sum(0.5 * np.diff(y) * (f[1:] + f[:-1])))
+
+
 def _lin_product(y, a, b):
     """Integral over y of a(y) b(y), both linear between stations: exact, h/6 (2 a0 b0 + a0 b1 +
     a1 b0 + 2 a1 b1) per segment."""
@@ -236,8 +241,7 @@ def equilibrium_residual(loads: SpanLoads) -> dict:
                           ex.get("load_z_m", ex["spar_points_m"][:, 2])]) - p0
     ri = np.column_stack([ex.get("inertia_x_m", ex["spar_points_m"][:, 0]), y,
                           ex.get("inertia_z_m", ex["spar_points_m"][:, 2])]) - p0
-    force = np.array([np.sum(0.5 * np.diff(y) * (f[1:, k] + f[:-1, k])) for f in (fa, fi)
-                      for k in range(3)]).reshape(2, 3).sum(0)
+    force = np.array([_trapz(y, f[:, k]) for f in (fa, fi) for k in range(3)]).reshape(2, 3).sum(0)
     moment = np.zeros(3)
     for r, f in ((ra, fa), (ri, fi)):  # (r x f) components, each a product of linear functions
         moment += [_lin_product(y, r[:, 1], f[:, 2]) - _lin_product(y, r[:, 2], f[:, 1]),
@@ -245,7 +249,7 @@ def equilibrium_residual(loads: SpanLoads) -> dict:
                    _lin_product(y, r[:, 0], f[:, 1]) - _lin_product(y, r[:, 1], f[:, 0])]
     pitch = ex.get("pitch_about_load_line_Nm_per_m")
     if pitch is not None:
-        moment[1] += float(np.sum(0.5 * np.diff(y) * (pitch[1:] + pitch[:-1])))
+        moment[1] += _trapz(y, pitch)
     tol = 1e-12 * max(1.0, float(y[-1] - y[0]))
     gross = float(np.sum(0.5 * np.diff(y) * (np.abs(lift[1:]) + np.abs(lift[:-1]) + np.abs(q[1:])
                                              + np.abs(q[:-1]) + np.abs(drag[1:]) + np.abs(drag[:-1]))))
@@ -272,7 +276,7 @@ def schrenk(y, chord, semispan, total_lift_half):
     rule on them. semispan : tip y (m). Returns lift per span (N/m) at y.
     """
     y, c = np.asarray(y, float), np.asarray(chord, float)
-    area = float(np.sum(0.5 * (c[1:] + c[:-1]) * np.diff(y)))
+    area = _trapz(y, c)
     if area <= 0 or semispan <= 0:
         raise InputError("schrenk: chord and semispan must be positive")
     planform = total_lift_half * c / area
