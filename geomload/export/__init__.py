@@ -67,14 +67,15 @@ def write_all(run, folder, inputs=(), render=True, progress=None, options=None,
     if has_vn:
         rec(tables.write_vn_csv(f / "vn.csv", run.vn, inputs))
     rec(tables.write_summary_json(f / "summary.json", run, inputs))
-    for p in vtk.write_all_vtk(f, run, inputs):
+    surface = vtk.surface_polydata(run)  # built once: surface.vtp and the 3-D pictures
+    for p in vtk.write_all_vtk(f, run, inputs, surface):
         rec(p)
     images = plots.make_plots(run, f / "plots", inputs)
     tick()
     if render:
         from geomload.export import render as rnd
 
-        images.update(rnd.render_all(run, f / "plots", inputs))
+        images.update(rnd.render_all(run, f / "plots", inputs, surface))
         tick()
     for v in images.values():
         if isinstance(v, Path):

@@ -161,13 +161,15 @@ RENDERS = {"surface_dcp": render_surface_dcp, "lattice_overlay": render_lattice_
            "spar_bending": render_spar_bending}
 
 
-def render_all(run, folder, inputs=()) -> dict:
-    """folder/<name>.png for each of RENDERS; name -> Path, or the Exception if it failed."""
-    out, surf = {}, None
-    try:
-        surf = gvtk.surface_polydata(run)
-    except Exception:  # each picture below then reports its own failure
-        pass
+def render_all(run, folder, inputs=(), surface=None) -> dict:
+    """folder/<name>.png for each of RENDERS; name -> Path, or the Exception if it failed.
+    `surface`: a prebuilt vtk.surface_polydata(run) (the one surface.vtp was written from)."""
+    out, surf = {}, surface
+    if surf is None:
+        try:
+            surf = gvtk.surface_polydata(run)
+        except Exception:  # each picture below then reports its own failure
+            pass
     for name, fn in RENDERS.items():
         try:
             out[name] = fn(run, Path(folder) / f"{name}.png", inputs=inputs, surface=surf)

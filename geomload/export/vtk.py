@@ -180,18 +180,19 @@ def surface_polydata(run):
     return surf
 
 
-def write_surface_vtp(path, run, inputs=()):
-    """Write surface.vtp (see module docstring)."""
-    surf = surface_polydata(run)
+def write_surface_vtp(path, run, inputs=(), surface=None):
+    """Write surface.vtp (see module docstring); `surface`: a prebuilt surface_polydata(run)."""
+    surf = surface if surface is not None else surface_polydata(run)
     _field(surf, run, ea.critical_case(run))
     return _save(surf, path, inputs)
 
 
-def write_all_vtk(folder, run, inputs=()):
-    """lattice.vtp, load_axis.vtp and surface.vtp into `folder`; returns their paths."""
+def write_all_vtk(folder, run, inputs=(), surface=None):
+    """lattice.vtp, load_axis.vtp and surface.vtp into `folder`; returns their paths.
+    `surface`: a prebuilt surface_polydata(run), shared with the renders."""
     from pathlib import Path
 
     f = Path(folder)
     return [write_lattice_vtp(f / "lattice.vtp", run, inputs),
             write_load_axis_vtp(f / "load_axis.vtp", run, inputs),
-            write_surface_vtp(f / "surface.vtp", run, inputs)]
+            write_surface_vtp(f / "surface.vtp", run, inputs, surface)]
