@@ -171,7 +171,7 @@ def spanwise_edges(semispan: float, n_span: int, spacing: str, full_span: bool,
 
 def build_lattice(stations: Stations, n_span: int = 40, n_chord: int = 10,
                   spacing: str = "cosine", full_span: bool = False, x_ref=None,
-                  chord_spacing: str = "uniform") -> Lattice:
+                  chord_spacing: str = "uniform", controls=()) -> Lattice:
     """Horseshoe vortex lattice on the mean surface of `stations`.
 
     Parameters
@@ -184,6 +184,10 @@ def build_lattice(stations: Stations, n_span: int = 40, n_chord: int = 10,
         True: both sides, stations mirrored to port, strips ordered port tip to starboard tip.
     x_ref : (3,) moment reference (m); default the MAC quarter chord.
     chord_spacing : chordwise "uniform" (default) or "cosine".
+    controls : control surfaces (`geomload.aero.controls.ControlSurface`); when given, a
+        chordwise panel edge is placed on every hinge line and the spanwise strip edge nearest
+        each surface end is moved onto it (see `controls.chord_fractions`, `controls.snap_edges`).
+        Empty (default): the lattice is exactly the one without controls.
 
     Returns a `Lattice` with s_ref = projected planform area of both sides, c_ref = MAC,
     b_ref = 2 * semispan. Raises AeroError on bad counts, spacing or degenerate stations.
@@ -199,7 +203,16 @@ def build_lattice(stations: Stations, n_span: int = 40, n_chord: int = 10,
     c_in = float(np.linalg.norm(le_te[0, 1] - le_te[0, 0]))
     ye = spanwise_edges(s, n_span, spacing, bool(full_span),
                         min_width=c_in / n_chord / MAX_TIP_PANEL_ASPECT)
-    if chord_spacing == "uniform":
+    controls = tuple(controls or ())
+    if controls:
+        from geomload.aero.controls import chord_fractions, check_controls, snap_edges
+
+        check_controls(controls, s, full_span=bool(full_span))
+        ye = snap_edges(ye, controls)
+        if chord_spacing not in ("uniform", "cosine"):
+            raise AeroError(f"chord_spacing: expected 'cosine' or 'uniform', got {chord_spacing!r}")
+        xi = chord_fractions(n_chord, [c.hinge_fraction for c in controls], chord_spacing)
+    elif chord_spacing == "uniform":
         xi = np.linspace(0.0, 1.0, n_chord + 1)
     elif chord_spacing == "cosine":
         xi = 0.5 * (1.0 - np.cos(np.pi * np.arange(n_chord + 1) / n_chord))

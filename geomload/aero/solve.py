@@ -100,6 +100,7 @@ class AeroModel:
             raise AeroError("lattice: influence matrix is singular (degenerate panels)")
         self._basis = self._solve_rhs(np.column_stack([-lat.normal[:, 0], -lat.normal[:, 2]]))
         mid_s = 0.5 * (lat.bound_a + lat.bound_b) * stretch
+        self._hs, self._mid_s = hs, mid_s
         self._vind = hs.velocity(mid_s, self._basis, self_panels=True)
         self._prepare_geometry()
         self._check_lift_slope()
@@ -209,6 +210,25 @@ class AeroModel:
         return -(np.cos(a)[None, :] * n[:, 0:1] + np.sin(a)[None, :] * n[:, 2:3])
 
     # ------------------------------------------------------------------------------ public
+    def solve_rhs(self, rhs) -> np.ndarray:
+        """Circulations (N, k) per unit free-stream speed for right-hand sides rhs (N, k) (the
+        negative free-stream normal velocity at each collocation point), on the one factorised
+        influence matrix."""
+        r = np.asarray(rhs, float)
+        n = self.lattice.colloc.shape[0]
+        if r.shape[0] != n or not np.all(np.isfinite(r)):
+            raise AeroError(f"rhs: expected {n} finite rows, got shape {r.shape}")
+        return self._solve_rhs(r)
+
+    def induced_at_bound(self, gammas) -> np.ndarray:
+        """Velocity (N, 3, k) induced at the bound-vortex midpoints by circulations (N, k)
+        (a segment does not act on itself; physical velocities per unit free-stream speed)."""
+        return self._hs.velocity(self._mid_s, gammas, self_panels=True)
+
+    def coefficients(self, alpha_deg: float) -> tuple:
+        """(CL, Cm about lattice.x_ref) at `alpha_deg` (deg) by superposition (cheap)."""
+        return self._cl_cm(_alpha_rad(alpha_deg))
+
     def solve(self, alpha_deg: float) -> AeroSolution:
         """Loads at angle of attack `alpha_deg` (deg), per unit dynamic pressure q where the
         field says so (see records.AeroSolution); circulation per unit free-stream speed."""
