@@ -48,7 +48,7 @@ class LiftingLine:
         self.aspect = self.b**2 / self.area
 
     def solve(self, alpha_eff):
-        """Fourier coefficients A_n for the effective angle alpha - alpha_L0 (callable of y, rad)."""
+        """Fourier coefficients A_n for the effective angle alpha - alpha_L0 (callable, rad)."""
         y = -0.5 * self.b * np.cos(self.th)
         return np.linalg.solve(self.M, alpha_eff(y))
 

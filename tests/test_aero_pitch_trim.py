@@ -1,8 +1,5 @@
 """Balancing tail load: equilibrium and the classical two-force statics."""
 
-import math
-
-import numpy as np
 import pytest
 
 from aero_wings import trapezoid

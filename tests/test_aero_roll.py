@@ -11,7 +11,7 @@ import numpy as np
 import pytest
 
 from aero_wings import elliptic, make_stations
-from lifting_line import LiftingLine, glauert_flap_effectiveness
+from lifting_line import LiftingLine
 from geomload.aero.controls import ControlSurface
 from geomload.aero.lattice import build_lattice
 from geomload.aero.roll import ControlModel, side_strip_loads

@@ -13,7 +13,8 @@ from geomload.aero.solve import AeroModel
 from geomload.errors import CaseError
 from geomload.loads.beam import integrate_loads
 from geomload.loads.rules_unsymmetric import aileron_deflections, aileron_torsion_increment, \
-    flap_cases, flap_speed_minimum, lattice_rolling_cases, simplified_rolling_cases, \
+    flap_cases, flap_speed_minimum, lattice_rolling_cases, lattice_state, \
+    simplified_rolling_cases, \
     simplified_side_airloads
 from validation import check
 
@@ -129,3 +130,26 @@ def test_flapped_wing_loads_inboard(wing):
 def test_bad_category():
     with pytest.raises(CaseError, match="^category: expected one of"):
         simplified_rolling_cases("glider", 50.0, 3.8)
+
+
+def test_lattice_state_of_rolling_and_flap_cases(wing):
+    q, W, n_pos = 2500.0, 9000.0, 3.8
+    cases = lattice_rolling_cases("ail", 15.0, 50.0, 70.0, 95.0, n_pos,
+                                  states=("steady", "initial"))
+    right = next(c for c in cases if c.name == "roll_V_A_right")
+    init = next(c for c in cases if c.name == "roll_V_A_right_initial")
+    lift = right.load_factor * W
+    st = lattice_state(wing, right, q, lift)
+    # the state carries the required lift (definition) and rolls right at steady state
+    check("definition: wing lift = CL q S", "CL of the steady-roll state", lift / (q *
+          wing.lattice.s_ref), st.solution.CL, rel=1e-9)
+    assert st.pb_2V > 0 and abs(st.solution.Cl_roll) < 1e-9
+    s0 = lattice_state(wing, init, q, lift)
+    assert s0.pb_2V == 0 and s0.solution.Cl_roll > 0
+    # the initial state (no damping yet) loads the port (down-aileron) wing more than steady
+    rb = lambda s: float(np.sum(s.lift_per_q * s.width_m * s.y_m))  # noqa: E731
+    assert rb(s0.solution.port) > rb(st.solution.port)
+    fcase = flap_cases("flap", 20.0, 30.0, 25.0, 600.0, 1.225, 1.3, 5.0)[0][0]
+    fs = lattice_state(wing, fcase, q, 2.0 * W)
+    check("definition: wing lift = CL q S", "CL of the flaps-down state",
+          2.0 * W / (q * wing.lattice.s_ref), fs.solution.CL, rel=1e-9)

@@ -28,8 +28,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from geomload.errors import AeroError
-from geomload.aero.controls import ControlSurface, check_controls, check_deflection, \
-    deflection_rhs
+from geomload.aero.controls import check_controls, check_deflection, deflection_rhs
 
 DIFF_STEP = math.radians(1.0)  # central differences of quadratic forces are exact; any step
 
@@ -173,8 +172,8 @@ class ControlModel:
             return 0.0  # images: symmetric by construction
         return self._rolling(self._forces(alpha, defl, p_hat)[1])
 
-    def _CL(self, alpha, defl):
-        _, F, ca, sa = self._forces(alpha, defl, 0.0)
+    def _CL(self, alpha, defl, p_hat=0.0):
+        _, F, ca, sa = self._forces(alpha, defl, p_hat)
         return self._fac * float(np.sum(F @ np.array([-sa, 0.0, ca]))) / self.lattice.s_ref
 
     def _defl_rad(self, deflections_deg, key="deflection"):
@@ -263,20 +262,25 @@ class ControlModel:
                           pb_2V=float(p), Cl_delta_per_rad=cld, Cl_p=clp,
                           Cl_aileron=cld * d, Cl_damping=clp * p, solution=sol)
 
-    def alpha_for_cl(self, CL: float, deflections_deg=None) -> float:
-        """Angle of attack (deg) giving wing CL with the deflections {name: deg} (Newton)."""
+    def alpha_for_cl(self, CL: float, deflections_deg=None,
+                     roll_rate_pb2v: float = 0.0) -> float:
+        """Angle of attack (deg) giving wing CL with the deflections {name: deg} and roll rate
+        p b / (2 V) (Newton)."""
         target = float(CL)
         if not math.isfinite(target):
             raise AeroError(f"CL: target lift coefficient must be finite, got {CL!r}")
         defl, _ = self._defl_rad(deflections_deg)
+        p = float(roll_rate_pb2v)
+        if p and self.lattice.mirrored:
+            raise AeroError("roll_rate: a roll rate needs a full-span lattice")
         a0, cla, _ = self.model._linear()
         a = a0 + target / cla
         for _ in range(30):
-            f = self._CL(a, defl) - target
+            f = self._CL(a, defl, p) - target
             if abs(f) <= 1e-12 * max(1.0, abs(target)):
                 break
             h = 1e-4
-            a -= f / ((self._CL(a + h, defl) - self._CL(a - h, defl)) / (2 * h))
+            a -= f / ((self._CL(a + h, defl, p) - self._CL(a - h, defl, p)) / (2 * h))
         if abs(a) > math.radians(60.0):
             raise AeroError(f"CL: {target:g} needs |alpha| > 60 deg; outside linear theory")
         return math.degrees(a)

@@ -54,6 +54,9 @@ class RollingCase:
     aileron_deg : deflection (deg, the surface's positive sense; see aero.controls);
     factor_starboard, factor_port : multipliers on the semispan airload (simplified method;
     1.0 for the lattice method).
+    roll_state : lattice method: "steady" (roll rate where aileron and damping moments balance)
+    or "initial" (p = 0 at the instant of the sudden deflection; the rolling acceleration's
+    inertia relief is not modelled, so this is the conservative unsymmetric airload).
     """
 
     name: str
@@ -66,6 +69,20 @@ class RollingCase:
     aileron_deg: float = 0.0
     factor_starboard: float = 1.0
     factor_port: float = 1.0
+    roll_state: str = "steady"
+
+
+@dataclass(frozen=True)
+class CaseState:
+    """The lattice state of a rolling or flaps-down case: alpha_deg, deflections_deg ((name, deg)
+    pairs), pb_2V, CL (both sides, = wing lift / (q S)), and `solution`, the ControlledSolution
+    (per-side strip loads per unit q: multiply by q for N/m, N m/m)."""
+
+    alpha_deg: float
+    deflections_deg: tuple
+    pb_2V: float
+    CL: float
+    solution: object
 
 
 @dataclass(frozen=True)
@@ -140,19 +157,49 @@ def aileron_deflections(delta_max_deg: float, v_a: float, v_c: float, v_d: float
 
 
 def lattice_rolling_cases(aileron: str, delta_max_deg: float, v_a: float, v_c: float,
-                          v_d: float, n_pos: float) -> list:
+                          v_d: float, n_pos: float, states=("steady",)) -> list:
     """23.349(a)(2) with 23.455: at each speed the aileron deflection of `aileron_deflections`,
-    both senses (roll to starboard and to port), at n = 2/3 n_pos, with steady roll."""
+    both senses (roll to starboard and to port), at n = 2/3 n_pos, in each roll state of
+    `states` ("steady" and/or "initial", see RollingCase)."""
     n = ROLL_FACTOR_N * _positive(n_pos, "load_factor.n_pos")
+    for st in states:
+        if st not in ("steady", "initial"):
+            raise CaseError(f"rolling.states: expected 'steady' or 'initial', got {st!r}")
     out = []
     for label, (v, d) in aileron_deflections(delta_max_deg, v_a, v_c, v_d).items():
         for sense, sgn in (("right", 1.0), ("left", -1.0)):
-            out.append(RollingCase(
-                name=f"roll_{label}_{sense}", method="lattice",
-                rule="14 CFR 23.349(a)(2) and 23.455(a)(2), pre-2017, from memory",
-                speed_label=label, v_eas_m_s=v, load_factor=n, aileron=aileron,
-                aileron_deg=sgn * d))
+            for st in states:
+                out.append(RollingCase(
+                    name=f"roll_{label}_{sense}" + ("" if st == "steady" else "_initial"),
+                    method="lattice",
+                    rule="14 CFR 23.349(a)(2) and 23.455(a)(2), pre-2017, from memory",
+                    speed_label=label, v_eas_m_s=v, load_factor=n, aileron=aileron,
+                    aileron_deg=sgn * d, roll_state=st))
     return out
+
+
+def lattice_state(model, case, q_Pa: float, wing_lift_N: float) -> CaseState:
+    """Lattice state of a RollingCase (method "lattice") or FlapCase on a factorised
+    `aero.roll.ControlModel`: the angle of attack giving wing_lift_N (both sides, N, e.g.
+    n W times the lift share or the trimmed wing lift of `aero.pitch_trim`) at q_Pa with the
+    case's deflection (and, for a steady roll, the balancing roll rate, iterated twice with
+    alpha because the quadratic force terms couple them weakly)."""
+    q = _positive(q_Pa, "q")
+    CL = float(wing_lift_N) / (q * model.lattice.s_ref)
+    if isinstance(case, FlapCase):
+        defl = {case.flap: case.flap_deg}
+        a = model.alpha_for_cl(CL, defl)
+        return CaseState(a, tuple(defl.items()), 0.0, CL, model.solve(a, defl))
+    if not isinstance(case, RollingCase) or case.method != "lattice":
+        raise CaseError("rolling: lattice_state needs a lattice RollingCase or a FlapCase")
+    defl = {case.aileron: case.aileron_deg}
+    p = 0.0
+    a = model.alpha_for_cl(CL, defl)
+    if case.roll_state == "steady":
+        for _ in range(2):
+            p = model.steady_roll(case.aileron, case.aileron_deg, alpha_deg=a).pb_2V
+            a = model.alpha_for_cl(CL, defl, p)
+    return CaseState(a, tuple(defl.items()), p, CL, model.solve(a, defl, p))
 
 
 def simplified_side_airloads(lift_per_span, case: RollingCase) -> tuple:
@@ -204,8 +251,8 @@ def flap_cases(flap: str, flap_deg: float, v_s: float, v_sf: float, wing_loading
     u = FLAP_GUST_FT_S * FT_S
     dn = kg * u * vf * a * rho0 / (2.0 * ws)
     rule = "14 CFR 23.345(a), pre-2017, from memory"
-    cases = [FlapCase(f"flaps_maneuver", rule, "maneuver", flap, float(flap_deg), vf,
+    cases = [FlapCase("flaps_maneuver", rule, "maneuver", flap, float(flap_deg), vf,
                       FLAP_MANEUVER_N),
-             FlapCase(f"flaps_gust_up", rule, "gust", flap, float(flap_deg), vf, 1.0 + dn, u),
-             FlapCase(f"flaps_gust_down", rule, "gust", flap, float(flap_deg), vf, 1.0 - dn, -u)]
+             FlapCase("flaps_gust_up", rule, "gust", flap, float(flap_deg), vf, 1.0 + dn, u),
+             FlapCase("flaps_gust_down", rule, "gust", flap, float(flap_deg), vf, 1.0 - dn, -u)]
     return cases, warnings
