@@ -120,3 +120,17 @@ def test_large_deflection_warns_and_limits_are_enforced():
     # an antisymmetric surface needs both sides in the lattice
     with pytest.raises(AeroError, match="^controls.ail.mode"):
         check_controls([_surf()], 5.0, full_span=False)
+
+
+def test_hinge_table_constant_equals_constant_hinge():
+    # a table holding the same fraction everywhere is the same surface (definition)
+    st = trapezoid(8.0, 0.5)
+    a = ControlSurface("f", "flap", 0.5, 3.0, 0.7)
+    b = ControlSurface("f", "flap", 0.5, 3.0, 0.7, hinge_table=((0.0, 0.7), (5.0, 0.7)))
+    lat = build_lattice(st, n_span=12, n_chord=10, controls=[a])
+    ca, cb = ControlModel(AeroModel(lat), [a]), None
+    cb = ControlModel(ca.model, [b])
+    assert ca.coefficients(2.0, {"f": 10.0}) == cb.coefficients(2.0, {"f": 10.0})
+    with pytest.raises(AeroError, match="^controls.f.hinge_fraction"):
+        check_controls([ControlSurface("f", "flap", 0.5, 3.0, 0.7,
+                                       hinge_table=((0.0, 0.7), (5.0, 1.0)))], 5.0)

@@ -48,6 +48,10 @@ class ControlSurface:
     side : "both", "starboard" or "port".
     mode : "symmetric" or "antisymmetric" (only meaningful with side "both").
     delta_min_deg, delta_max_deg : deflection limits (deg, trailing edge down positive).
+    hinge_table : optional ((y_m, fraction), ...) when the hinge fraction varies along the span
+        (e.g. a constant-chord aileron on a tapered wing, as the geometry finds it per station);
+        interpolated linearly at each strip, `hinge_fraction` then only places the chordwise
+        panel edge (use the mean) and panels the hinge crosses count with their aft fraction.
     """
 
     name: str
@@ -59,6 +63,15 @@ class ControlSurface:
     mode: str = "symmetric"
     delta_min_deg: float = -20.0
     delta_max_deg: float = 20.0
+    hinge_table: tuple = ()
+
+    def hinge_at(self, y_abs) -> np.ndarray:
+        """Hinge chord fraction at |y| (m) (the table, or the constant hinge_fraction)."""
+        y = np.abs(np.asarray(y_abs, float))
+        if not self.hinge_table:
+            return np.full(y.shape, float(self.hinge_fraction))
+        t = np.asarray(self.hinge_table, float)
+        return np.interp(y, t[:, 0], t[:, 1])
 
 
 def _key(key, c, field):
@@ -90,6 +103,15 @@ def check_controls(controls, semispan: float, full_span: bool = True, key: str =
             raise AeroError(f"{_key(key, c, 'y_from_m')}: span range {y0:g}..{y1:g} m is not "
                             f"inside 0..{s:g} m (semispan) with y_from < y_to")
         h = float(c.hinge_fraction)
+        if c.hinge_table:
+            t = np.asarray(c.hinge_table, float)
+            if t.ndim != 2 or t.shape[1] != 2 or t.shape[0] < 1 or not np.all(np.isfinite(t)) \
+                    or np.any(np.diff(t[:, 0]) <= 0):
+                raise AeroError(f"{_key(key, c, 'hinge_table')}: expected (y_m, fraction) pairs "
+                                "with increasing y")
+            bad = t[(t[:, 1] < HINGE_MIN) | (t[:, 1] > HINGE_MAX)]
+            if bad.size:
+                h = float(bad[0, 1])
         if not (HINGE_MIN <= h <= HINGE_MAX):
             raise AeroError(f"{_key(key, c, 'hinge_fraction')}: {h:g} must lie in "
                             f"[{HINGE_MIN}, {HINGE_MAX}] of the chord (a hinge at the leading or "
@@ -196,7 +218,7 @@ def panel_fractions(lattice, c: ControlSurface):
     xi = np.einsum("sjk,sk->sj", cor - le[:, None, :], d) / np.einsum("sk,sk->s", d, d)[:, None]
     xi = 0.5 * (xi[:-1] + xi[1:])  # (ns, nc + 1) at strip centres
     a, b = xi[:, :-1], xi[:, 1:]
-    h = float(c.hinge_fraction)
+    h = c.hinge_at(0.5 * (cor[:-1, 0, 1] + cor[1:, 0, 1]))[:, None]
     aft = np.clip((b - h) / np.maximum(b - a, 1e-15), 0.0, 1.0)
     # spanwise: the overlap of each strip with the surface's y range, on each side
     ye = cor[:, 0, 1]
@@ -220,7 +242,7 @@ def hinge_axes(lattice, c: ControlSurface) -> np.ndarray:
     """Unit hinge axis per strip (ns, 3), pointing to +y: the line through the hinge points
     (LE + h (TE - LE)) at the strip's two edges."""
     cor = lattice.corners
-    p = cor[:, 0] + float(c.hinge_fraction) * (cor[:, -1] - cor[:, 0])
+    p = cor[:, 0] + c.hinge_at(cor[:, 0, 1])[:, None] * (cor[:, -1] - cor[:, 0])
     a = p[1:] - p[:-1]
     return a / np.linalg.norm(a, axis=1, keepdims=True)
 
