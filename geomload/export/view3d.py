@@ -430,11 +430,16 @@ scene.add(new THREE.AmbientLight(0xffffff,0.65*Math.PI));
 var cam=new THREE.PerspectiveCamera(30,1,bs.radius*0.01,bs.radius*50);cam.up.set(0,0,1);
 var dl=new THREE.DirectionalLight(0xffffff,0.45*Math.PI);dl.position.set(0.3,-0.4,1);cam.add(dl);scene.add(cam);
 var dir=new THREE.Vector3(-0.9,-0.9,0.8).normalize(),dist=bs.radius/Math.sin(15*Math.PI/180)*1.05;
-cam.position.copy(bs.center).addScaledVector(dir,dist);
-var ctl=new OrbitControls(cam,canvas);ctl.target.copy(bs.center);ctl.update();
+geo.computeBoundingBox();var bb=geo.boundingBox,corners=[];
+for(var i=0;i<8;i++)corners.push(new THREE.Vector3(i&1?bb.max.x:bb.min.x,i&2?bb.max.y:bb.min.y,i&4?bb.max.z:bb.min.z));
+var ctl=new OrbitControls(cam,canvas);ctl.target.copy(bs.center);
+function place(){cam.position.copy(bs.center).addScaledVector(dir,dist);cam.lookAt(bs.center);cam.updateMatrixWorld();}
+function fit(){for(var it=0;it<4;it++){place();var m=0;corners.forEach(function(c){var q=c.clone().project(cam);m=Math.max(m,Math.abs(q.x),Math.abs(q.y));});
+dist=Math.max(bs.radius*1.02,dist*(0.3+0.7*m/0.9));}place();ctl.update();}
+var fitted=false;
 function draw(){renderer.render(scene,cam);}
 ctl.addEventListener("change",draw);
-function resize(){var w=stage.clientWidth,h=stage.clientHeight;if(!w||!h)return;renderer.setSize(w,h,false);cam.aspect=w/h;cam.updateProjectionMatrix();draw();}
+function resize(){var w=stage.clientWidth,h=stage.clientHeight;if(!w||!h)return;renderer.setSize(w,h,false);cam.aspect=w/h;cam.updateProjectionMatrix();if(!fitted){fit();fitted=true;}draw();}
 var sel=root.querySelector(".gl3-case"),common=root.querySelector(".gl3-common");
 function colours(b64,sc,all,tab,out,rep,perTri){var q=new Uint16Array(bytes(b64)),N=tab.length;
 for(var i=0;i<q.length;i++){var col;if(q[i]>D.q_max)col=grey;else{var v=sc.lo+(sc.hi-sc.lo)*q[i]/D.q_max;
@@ -442,7 +447,7 @@ var t=(v-all.lo)/(all.hi-all.lo);col=tab[Math.max(0,Math.min(N-1,Math.floor(t*N)
 for(var k=0;k<rep;k++){var o=3*(perTri?3*i+k:i*rep+k);out[o]=col.r;out[o+1]=col.g;out[o+2]=col.b;}}}
 function bar(q,sc,label,table){var el=root.querySelector('.gl3-cb[data-q="'+q+'"]');if(!el)return;
 var stops=table.map(function(c,i){return "rgb("+c+") "+(100*i/(table.length-1)).toFixed(1)+"%";}).join(",");
-var h='<div style="margin:4px 0 2px;font-weight:bold">'+label+' ('+sc.unit+')</div><div style="display:flex;height:190px;margin-bottom:10px">'
+var h='<div style="margin:4px 0 2px;font-weight:bold">'+label+' ('+sc.unit+')</div><div style="display:flex;height:180px;margin:0.7em 0 1.2em">'
 +'<div style="width:18px;border:1px solid #888;background:linear-gradient(to top,'+stops+')"></div><div style="position:relative;flex:1">';
 for(var i=0;i<sc.ticks.length;i++){var f=(sc.ticks[i]-sc.lo)/(sc.hi-sc.lo);
 h+='<div class="gl3-tick" style="position:absolute;left:4px;bottom:calc('+(100*f).toFixed(2)+'% - 0.6em);line-height:1.2em">'+sc.labels[i]+'</div>';}
