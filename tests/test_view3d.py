@@ -87,6 +87,17 @@ def elliptic_cases(pts, tri, semispan=6.0):
             spar, {"pull-up 3.8 g": bend(2400.0), "push-over -1.5 g": bend(-950.0)})
 
 
+def upper_points(ys, semispan=6.0, c_root=1.5, c_tip=0.8, t_c=0.12, xc=0.7):
+    """Points on the upper skin of `naca_wing` at chord fraction xc (NACA Report 824)."""
+    yt = 5 * t_c * (0.2969 * np.sqrt(xc) - 0.126 * xc - 0.3516 * xc**2 + 0.2843 * xc**3
+                    - 0.1015 * xc**4)
+    out = []
+    for y in ys:
+        c = c_root + (c_tip - c_root) * y / semispan
+        out.append((0.1 * y + c * xc, y, c * yt))
+    return out
+
+
 # ---------------------------------------------------------------- decimation
 def test_decimate_sphere_keeps_area_and_budget():
     import trimesh
@@ -275,6 +286,9 @@ def test_view_draws_in_chromium_offline(tmp_path):
                                  "width:r.width,height:r.height}})())", s))
         assert rect["width"] > 300 and rect["height"] > 300
         px1 = _shot(b, s, rect)
+        # upper skin at 70 % chord (clear of the spar), near the root and near the tip
+        probes = [b.eval(f"document.querySelector('.gl3').gl3.project({x},{y},{z})", s)
+                  for x, y, z in upper_points((0.3, 5.7))]
         ticks1 = b.eval("[...document.querySelectorAll('.gl3-tick')].map(e=>e.textContent).join('|')", s)
         unit1 = b.eval("[...document.querySelectorAll('.gl3-cb')].map(e=>e.textContent).join('|')", s)
         # switch to the second case as a user would
@@ -297,6 +311,16 @@ def test_view_draws_in_chromium_offline(tmp_path):
     # the pull-up paints positive pressure jump (upper viridis: green-yellow), the push-over
     # negative: different pictures
     assert np.abs(px1 - px2).mean() > 2.0
+    # colour follows the analytic field: 2400 sqrt(1 - eta^2) Pa is near the top of its scale at
+    # the root (bright yellow-green) and low at the tip (dark blue-purple); the push-over field
+    # -950 sqrt(1 - eta^2) Pa is the other way round (the root is the most negative)
+    def rg(px, p):  # mean R + G of a 5 x 5 patch: high for viridis' top, low for its bottom
+        i, j = int(round(p[1])), int(round(p[0]))
+        return px[i - 2:i + 3, j - 2:j + 3, :2].sum(axis=2).mean()
+
+    root, tip = probes
+    assert rg(px1, root) > rg(px1, tip) + 60, (rg(px1, root), rg(px1, tip))
+    assert rg(px2, tip) > rg(px2, root) + 60, (rg(px2, root), rg(px2, tip))
     # the colour bars follow the case and show round numbers with their unit
     assert "kPa" in unit1 and "kN\u00b7m" in unit1
     assert ticks1 != ticks2
