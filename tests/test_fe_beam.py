@@ -77,6 +77,20 @@ def test_sample_critical_case_root_reaction_by_ccx(sample_run, critical, tmp_pat
     check(src, f"root shear, case {L.case} (N)", L.shear_N[0], force @ n, rel=1e-3)
     check(src, f"root bending, case {L.case} (N m)", L.bending_Nm[0], moment @ b, rel=1e-3)
     check(src, f"root torsion, case {L.case} (N m)", L.torsion_Nm[0], moment @ s, rel=1e-3)
+    # along the span: the outboard part clamped at node k, solved by ccx, carries at its root
+    # the internal loads of the whole beam at node k (statically determinate cantilever)
+    scale = UNITS[sample_run.mesh.units]
+    for k in (nl.y_m.size // 4, nl.y_m.size // 2, 3 * nl.y_m.size // 4):
+        sub = sub_model(nl, k)
+        d = fe.beam_deck(sub, sample_run.frame, scale, sample_run.mesh.units)
+        rf, rm = fe.root_reaction(d, solve(d, tmp_path / f"n{k}"), sample_run.frame)
+        i = nl.station_index[k]
+        s, b, n = nl.axis_s[k], nl.axis_b[k], nl.axis_n[k]
+        yk = f"y = {nl.y_m[k]:.3f} m"
+        check(src, f"shear at {yk}, case {L.case} (N)", L.shear_N[i], -rf @ n, rel=1e-3)
+        check(src, f"bending at {yk}, case {L.case} (N m)", L.bending_Nm[i], -rm @ b, rel=1e-3)
+        check(src, f"torsion at {yk}, case {L.case} (N m; abs floor 0.1 % of root bending)",
+              L.torsion_Nm[i], -rm @ s, rel=1e-3, abs=1e-3 * abs(L.bending_Nm[0]))
 
 
 def test_every_deck_sums_to_the_case_loads_and_recovers_the_csv(sample_run, tmp_path):
@@ -186,3 +200,17 @@ def test_write_fe_decks_writes_both_files_with_caution(sample_run, tmp_path):
     with pytest.raises(fe.InputError, match="force_N"):
         fe.write_fe_decks(tmp_path / "x", [loads[1], bad])
     assert not (tmp_path / "x").exists()
+
+
+def test_missing_solver_fails_when_required(monkeypatch):
+    # without ccx: skip normally, fail when GEOMLOAD_REQUIRE_CCX=1 (CI)
+    import sys
+
+    mod = sys.modules[__name__]
+    monkeypatch.setattr(mod, "CCX", None)
+    monkeypatch.setenv("GEOMLOAD_REQUIRE_CCX", "1")
+    with pytest.raises(pytest.fail.Exception, match="required"):
+        need_ccx()
+    monkeypatch.delenv("GEOMLOAD_REQUIRE_CCX")
+    with pytest.raises(pytest.skip.Exception, match="calculix-ccx"):
+        need_ccx()
