@@ -69,7 +69,7 @@ def test_sample_critical_case_root_reaction_by_ccx(sample_run, critical, tmp_pat
     L = critical.loads
     nl = fe.nodal_loads(L)
     deck = fe.beam_deck(nl, sample_run.frame, UNITS[sample_run.mesh.units], sample_run.mesh.units)
-    assert deck.text.splitlines()[1] == "** " + CAUTION
+    assert deck.text.splitlines()[0] == "** " + CAUTION
     rf, rm = fe.root_reaction(deck, solve(deck, tmp_path), sample_run.frame)
     force, moment = -rf, -rm  # the load the root carries = minus the support's reaction
     s, b, n = L.extras["axis_s"][0], L.extras["axis_b"][0], L.extras["axis_n"][0]
@@ -214,3 +214,50 @@ def test_missing_solver_fails_when_required(monkeypatch):
     monkeypatch.delenv("GEOMLOAD_REQUIRE_CCX")
     with pytest.raises(pytest.skip.Exception, match="calculix-ccx"):
         need_ccx()
+
+
+def test_deck_in_a_turned_cad_frame_by_ccx(tmp_path):
+    """Span along CAD -Z, up along CAD +Y, origin away from 0, CAD unit inch: the deck and the
+    CSV are written in those axes and unit, and the solver's reaction turned back equals the
+    wing-frame root loads."""
+    need_ccx()
+    from geomload.records import WingFrame
+
+    R = np.array([[1.0, 0.0, 0.0], [0.0, 0.0, -1.0], [0.0, 1.0, 0.0]])  # rows: wing x, y, z
+    frame = WingFrame(rotation=R, origin=np.array([0.5, -0.2, 1.0]), full_span=False,
+                      span_axis="-Z", up_axis="+Y")
+    n = 21
+    y = np.linspace(0.0, 1.5, n)
+    loads = integrate_loads(y, 0.3 + 0.1 * y, 0.05 * y, np.full(n, 150.0),
+                            drag_N_per_m=np.full(n, 8.0), pitch_Nm_per_m=np.full(n, -6.0),
+                            load_x=0.25 + 0.1 * y, case="turned")
+    nl = fe.nodal_loads(loads)
+    inch = 0.0254
+    deck = fe.beam_deck(nl, frame, inch, "in")
+    rf, rm = fe.root_reaction(deck, solve(deck, tmp_path), frame)
+    src = "CalculiX ccx static solution, deck in a turned CAD frame (inch)"
+    s, b, nn = loads.extras["axis_s"][0], loads.extras["axis_b"][0], loads.extras["axis_n"][0]
+    check(src, "root shear (N)", loads.shear_N[0], -rf @ nn, rel=1e-3)
+    check(src, "root bending (N m)", loads.bending_Nm[0], -rm @ b, rel=1e-3)
+    check(src, "root torsion (N m)", loads.torsion_Nm[0], -rm @ s, rel=1e-3)
+    csv = tmp_path / "n.csv"
+    csv.write_text(fe.nodal_loads_csv(nl, frame, inch, "in"))
+    t = read_csv_table(csv)
+    xyz = np.column_stack([t["x_in"], t["y_in"], t["z_in"]]) * inch
+    # common practice, no source: the stored transform applied back gives the wing points
+    assert np.allclose(frame.to_wing(xyz), nl.points_m, atol=1e-12)
+    assert np.isclose(t["Mz_Nin"].sum() * inch,  # CAD z = -wing y: moments in N*in
+                      -(nl.moment_Nm[:, 1]).sum(), rtol=1e-12)
+
+
+def test_one_call_writes_the_handoff_and_refuses_a_bad_mesh(sample_run, tmp_path):
+    out = fe.write_structural_handoff(sample_run, tmp_path / "ok", plot=False)
+    names = {p.name for p in out["files"]}
+    assert "sizing.csv" in names and len([n for n in names if n.endswith(".inp")]) == \
+        len(sample_run.cases)
+    assert any("thickness shape" in w for w in out["warnings"])
+    bad = tmp_path / "bad.vtu"
+    bad.write_text("<VTKFile>not really</VTKFile>")
+    with pytest.raises(fe.InputError, match="bad.vtu"):
+        fe.write_structural_handoff(sample_run, tmp_path / "no", structural_mesh=bad)
+    assert not (tmp_path / "no").exists()

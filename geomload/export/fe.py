@@ -209,8 +209,8 @@ def beam_deck(nl: NodalLoads, frame=None, unit_scale_m: float = 1.0, unit: str =
     e_mod = NOMINAL_E_PA * s * s  # N / unit^2
     g = lambda v: ", ".join(_num(x) for x in v)  # noqa: E731
     sections = []
-    L = [f"** geomload beam load deck: case '{nl.case}'" + (f" - {title}" if title else "")]
-    L += _caution_lines("**")
+    L = _caution_lines("**")
+    L += [f"** geomload beam load deck: case '{nl.case}'" + (f" - {title}" if title else "")]
     L += ["** Spar beam on the load stations (node 1 = root). The root is clamped through three",
           "** short arms to held nodes (6 single-DOF supports, statically determinate): equal to",
           "** a clamp for reactions; root reaction = sum RF, moment = sum r x RF (r from node 1).",
@@ -218,8 +218,8 @@ def beam_deck(nl: NodalLoads, frame=None, unit_scale_m: float = 1.0, unit: str =
           "** outboard of each node and its moment about the node (exact internal loads at",
           "** every node). Limit loads (multiply by the case's ultimate factor for ultimate).",
           f"** Frame: CAD axes; lengths in {unit} (1 {unit} = {s:g} m); forces N; moments N*{unit}.",
-          "** Nodal moments enter as force couples on two short lever arms per node (nodes",
-          "** above the spar's, NSET=LEVERS); the CSV beside this deck lists the plain nodal",
+          "** Nodal moments enter as force couples on two short lever arms per node (NSET=LEVERS,",
+          "** numbered after the spar and support nodes); the CSV beside this deck lists the plain nodal",
           "** forces and moments (DOF 1-6) for a model of your own.",
           "** Section and material are NOMINAL: the model is statically determinate, so the",
           "** reactions and internal forces do not depend on them (displacements do).",
@@ -227,7 +227,7 @@ def beam_deck(nl: NodalLoads, frame=None, unit_scale_m: float = 1.0, unit: str =
     L += [f"{i + 1}, {g(p)}" for i, p in enumerate(pts)]
     L += [f"{na}, {g(pa)}", f"{nb}, {g(pb)}", f"{nc}, {g(pc)}"]
     # one section per element, its 1-direction the wing's chordwise axis made exactly normal
-    # to the element (the solver turns nodal moments into forces on the section's corners)
+    # to the element (the section's axes must be normal to the beam)
     for i in range(n - 1):
         t = (pts[i + 1] - pts[i]) / np.linalg.norm(pts[i + 1] - pts[i])
         d1 = chordwise - np.dot(chordwise, t) * t
@@ -242,13 +242,14 @@ def beam_deck(nl: NodalLoads, frame=None, unit_scale_m: float = 1.0, unit: str =
     gA = lev[:, :1] * eb + lev[:, 1:2] * ec   # force at lever node A_i (and minus it at node i)
     gB = lev[:, 2:3] * ec                     # force at lever node B_i (and minus it at node i)
     lever_a = {i: n + 4 + 2 * i for i in range(n) if np.any(Mo[i] != 0)}
-    L += ["*NODE, NSET=LEVERS"]
-    for i, k in lever_a.items():
-        L += [f"{k}, {g(pts[i] + arm * ea)}", f"{k + 1}, {g(pts[i] + arm * eb)}"]
-    L += ["*ELEMENT, TYPE=B31, ELSET=LEVA"] + [f"{n + 2 + 2 * i + 1}, {i + 1}, {k}"
-                                               for i, k in lever_a.items()]
-    L += ["*ELEMENT, TYPE=B31, ELSET=LEVB"] + [f"{n + 2 + 2 * i + 2}, {i + 1}, {k + 1}"
-                                               for i, k in lever_a.items()]
+    if lever_a:
+        L += ["*NODE, NSET=LEVERS"]
+        for i, k in lever_a.items():
+            L += [f"{k}, {g(pts[i] + arm * ea)}", f"{k + 1}, {g(pts[i] + arm * eb)}"]
+        L += ["*ELEMENT, TYPE=B31, ELSET=LEVA"] + [f"{n + 2 + 2 * i + 1}, {i + 1}, {k}"
+                                                   for i, k in lever_a.items()]
+        L += ["*ELEMENT, TYPE=B31, ELSET=LEVB"] + [f"{n + 2 + 2 * i + 2}, {i + 1}, {k + 1}"
+                                                   for i, k in lever_a.items()]
     L += ["*NSET, NSET=ROOT", "1", "*NSET, NSET=SUPPORT", f"{na}, {nb}, {nc}",
           "*MATERIAL, NAME=NOMINAL", "*ELASTIC", f"{e_mod:.10g}, {NOMINAL_NU:g}"]
     L += ["*ELSET, ELSET=SPAR"] + [f"E{i + 1}," for i in range(n - 1)]
@@ -348,3 +349,47 @@ def root_reaction(deck: BeamDeck, dat_text: str, frame=None):
                  for k in deck.support_nodes)
     R = np.eye(3) if frame is None else np.asarray(frame.rotation, float)
     return R @ force, R @ moment
+
+
+# --------------------------------------------------------------------------- one call per run
+def cad_unit(run):
+    """(unit label, metres per unit) of the run's CAD file; metres when the file carried its own
+    unit (its scale was applied on reading and is not kept)."""
+    from geomload.geometry.read import UNITS
+
+    u = getattr(run.mesh, "units", "m")
+    return (u, UNITS[u]) if u in UNITS else ("m", 1.0)
+
+
+def write_structural_handoff(run, folder, inputs=(), structural_mesh=None, material=None,
+                             sigma_allow_Pa=None, tau_allow_Pa=None, front_spar_fraction=0.15,
+                             rear_spar_fraction=0.65, cap_depth_factor=None, plot=True) -> dict:
+    """Every structural hand-off output of a RunResult, into folder:
+
+    fe/<case>.inp and fe/<case>_nodal_loads.csv for every case (the envelope's governing cases
+    are cases of the run); with structural_mesh (a path meshio reads, CAD frame and unit) the
+    mapped loads fe/mesh_<case>_*; sizing.csv (+ sizing.png when plot).
+    Returns {"files": [paths], "warnings": [one-line warnings]}. Everything that can fail on
+    bad input (mesh, material, fractions) is checked before the first file is written.
+    """
+    from geomload.export import mesh_map, sizing
+
+    unit, scale = cad_unit(run)
+    mat = sizing.material(material or (None if sigma_allow_Pa is not None else "al-2024-t3"),
+                          sigma_allow_Pa, tau_allow_Pa)
+    siz = sizing.size_from_run(run, front_spar_fraction, rear_spar_fraction, mat=mat,
+                               depth_factor=cap_depth_factor or sizing.DEPTH_FACTOR)
+    loads = [c.loads for c in run.cases]
+    warnings = [f"sizing: {w}" for w in siz.warnings]
+    if structural_mesh is not None:  # read and map first: a bad mesh writes nothing
+        smesh = mesh_map.read_structural_mesh(structural_mesh)
+        for L in loads:
+            mesh_map.map_loads(smesh, L, run.frame, scale, run.stations)
+    files = write_fe_decks(folder, loads, run.frame, scale, unit, inputs)
+    if structural_mesh is not None:
+        paths, w = mesh_map.write_mesh_loads(folder, structural_mesh, loads, run.frame, scale,
+                                             unit, run.stations, inputs)
+        files += paths
+        warnings += w
+    files += sizing.write_sizing(folder, siz, inputs, plot=plot)
+    return {"files": files, "warnings": warnings}
