@@ -207,7 +207,7 @@ def beam_deck(nl: NodalLoads, frame=None, unit_scale_m: float = 1.0, unit: str =
     pa, pb, pc = pts[0] + arm * ea, pts[0] + arm * eb, pts[0] - arm * ea
     w, h = (d / s for d in NOMINAL_SECTION_M)
     e_mod = NOMINAL_E_PA * s * s  # N / unit^2
-    g = lambda v: ", ".join(_num(x) for x in v)  # noqa: E731
+    g = lambda v: f"{v[0]:.14g}, {v[1]:.14g}, {v[2]:.14g}"  # noqa: E731 (DECK_DIGITS)
     sections = []
     L = _caution_lines("**")
     L += [f"** geomload beam load deck: case '{nl.case}'" + (f" - {title}" if title else "")]
@@ -228,11 +228,13 @@ def beam_deck(nl: NodalLoads, frame=None, unit_scale_m: float = 1.0, unit: str =
     L += [f"{na}, {g(pa)}", f"{nb}, {g(pb)}", f"{nc}, {g(pc)}"]
     # one section per element, its 1-direction the wing's chordwise axis made exactly normal
     # to the element (the section's axes must be normal to the beam)
+    t = np.diff(pts, axis=0)
+    t /= np.linalg.norm(t, axis=1)[:, None]
+    d1 = chordwise[None, :] - (t @ chordwise)[:, None] * t
+    d1 /= np.linalg.norm(d1, axis=1)[:, None]
     for i in range(n - 1):
-        t = (pts[i + 1] - pts[i]) / np.linalg.norm(pts[i + 1] - pts[i])
-        d1 = chordwise - np.dot(chordwise, t) * t
         L += [f"*ELEMENT, TYPE=B31, ELSET=E{i + 1}", f"{i + 1}, {i + 1}, {i + 2}"]
-        sections.append((f"E{i + 1}", d1 / np.linalg.norm(d1)))
+        sections.append((f"E{i + 1}", d1[i]))
     L += ["*ELEMENT, TYPE=B31, ELSET=ARMA", f"{n}, 1, {na}", f"{n + 2}, {nc}, 1",
           "*ELEMENT, TYPE=B31, ELSET=ARMB", f"{n + 1}, 1, {nb}"]
     # moment levers: nodal moments enter as force couples on two short arms per node
@@ -260,13 +262,13 @@ def beam_deck(nl: NodalLoads, frame=None, unit_scale_m: float = 1.0, unit: str =
               f"{w:.10g}, {h:.10g}", g(d)]
     L += ["*BOUNDARY", f"{nc}, 1, 3", f"{na}, {b + 1}, {b + 1}", f"{na}, {c + 1}, {c + 1}",
           f"{nb}, {c + 1}, {c + 1}", "*STEP", "*STATIC", "*CLOAD"]
+    node_f = F - gA - gB  # every node with a moment has levers (gA = gB = 0 elsewhere)
     for i in range(n):
-        node_f = F[i] - (gA[i] + gB[i] if i in lever_a else 0.0)
-        rows = [(i + 1, node_f)]
+        rows = [(i + 1, node_f[i])]
         if i in lever_a:
             rows += [(lever_a[i], gA[i]), (lever_a[i] + 1, gB[i])]
         for node, vec in rows:
-            L += [f"{node}, {dof + 1}, {_num(v)}" for dof, v in enumerate(vec) if v != 0.0]
+            L += [f"{node}, {dof + 1}, {v:.14g}" for dof, v in enumerate(vec.tolist()) if v != 0.0]
     L += ["*NODE PRINT, NSET=SUPPORT", "RF", "*NODE FILE, NSET=NALL", "U", "*END STEP"]
     return BeamDeck(text="\n".join(L) + "\n", spar_nodes=tuple(range(1, n + 1)),
                     support_nodes={na: pa, nb: pb, nc: pc}, root_cad=pts[0], unit=unit,
@@ -282,9 +284,8 @@ def nodal_loads_csv(nl: NodalLoads, frame=None, unit_scale_m: float = 1.0, unit:
              f"# CAD frame; coordinates in {u} (1 {u} = {float(unit_scale_m):g} m); forces N; "
              f"moments N*{u} about the node",
              f"node,x_{u},y_{u},z_{u},Fx_N,Fy_N,Fz_N,Mx_N{u},My_N{u},Mz_N{u}"]
-    for i in range(pts.shape[0]):
-        vals = np.concatenate([pts[i], F[i], Mo[i]])
-        lines.append(f"{i + 1}," + ",".join(f"{float(v):.17g}" for v in vals))
+    rows = np.column_stack([pts, F, Mo]).tolist()
+    lines += [f"{i + 1}," + ",".join(map(repr, r)) for i, r in enumerate(rows)]
     return "\n".join(lines) + "\n"
 
 
