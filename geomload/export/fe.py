@@ -382,6 +382,8 @@ def write_structural_handoff(run, folder, inputs=(), structural_mesh=None, mater
                                depth_factor=cap_depth_factor or sizing.DEPTH_FACTOR)
     loads = [c.loads for c in run.cases]
     warnings = [f"sizing: {w}" for w in siz.warnings]
+    if material is None and sigma_allow_Pa is None:
+        warnings.append(f"sizing: no material given; {mat.name} used ({mat.source})")
     if structural_mesh is not None:  # read and map first: a bad mesh writes nothing
         smesh = mesh_map.read_structural_mesh(structural_mesh)
         for L in loads:
