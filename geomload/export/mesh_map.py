@@ -137,7 +137,8 @@ def map_loads(smesh: StructuralMesh, loads, frame, unit_scale_m: float, stations
     if yi.max() - yi.min() < ROOT_ONLY_FRACTION * stations.semispan:
         raise InputError(f"{smesh.path}: the structural mesh's nodes inside the wing span only "
                          f"y = {yi.min():.4g} to {yi.max():.4g} m of a {stations.semispan:.4g} m "
-                         "semi-span (nodes only at the root?)")
+                         "semi-span (nodes only at the root, or a mesh in another unit than the "
+                         "CAD file's?)")
     P0 = nl.points_m[0]
     ys = nl.y_m
     m0 = nl.moment_Nm + np.cross(nl.points_m - P0, nl.force_N)  # each strip's moment about P0
@@ -151,8 +152,10 @@ def map_loads(smesh: StructuralMesh, loads, frame, unit_scale_m: float, stations
     ms[-1] += m0[-1]
     g = np.zeros_like(pw)
     groups, empty = {}, []
+    order = np.argsort(strip, kind="stable")
+    bounds = np.searchsorted(strip[order], np.arange(ys.size), side="left")
     for j in range(ys.size - 1):
-        idx = np.flatnonzero(strip == j)
+        idx = order[bounds[j]:bounds[j + 1]]
         if idx.size:
             r = pw[idx] - pw[idx].mean(0)
             S = r.T @ r
