@@ -15,9 +15,11 @@ sum (x_k - P_i) x g_k = (c - P_i) x f + sum r_k x (w x r_k) = (c - P_i) x f + (t
 the strip's force and its moment are preserved exactly, hence the total force and the moment
 about the root. The w x r_k part is the least-squares (minimum sum |g_k|^2) set of
 self-equilibrated forces carrying the moment: a rigid-rotation pattern, like a bolt group.
-A strip with no node, or nodes on one line (S degenerate), passes its load (as force and moment
-about the root) to the nearest strip with a usable node set; the result says so in a warning,
-since it shifts the distribution along the span (never the totals).
+A strip with no node passes its load (as force and moment about the root) to the nearest strip
+with nodes; a strip whose nodes lie on one line (S degenerate: a stick model, one node) takes
+f / N per node and its moment about the centroid as equal nodal moments (DOF 4-6, for nodes
+with rotational DOFs). Both are reported as warnings, since they shift the distribution (never
+the totals).
 
 Node numbers: the file's own for Abaqus/CalculiX .inp (read from its *NODE lines); for other
 formats the 1-based order of the points in the file.
@@ -54,11 +56,13 @@ class StructuralMesh:
 
 @dataclass(frozen=True)
 class MappedLoads:
-    """Nodal forces of one case on a structural mesh: case; force_N (N, 3) CAD frame (zero on
-    nodes that take no load); loaded (N,) bool; warnings (strips passed on)."""
+    """Nodal loads of one case on a structural mesh, CAD frame: case; force_N (N, 3) (zero on
+    nodes that take no load); moment_Nm (N, 3) (N m; non-zero only in strips whose nodes lie on
+    one line); loaded (N,) bool; warnings."""
 
     case: str
     force_N: np.ndarray
+    moment_Nm: np.ndarray
     loaded: np.ndarray
     warnings: tuple = ()
 
@@ -151,22 +155,25 @@ def map_loads(smesh: StructuralMesh, loads, frame, unit_scale_m: float, stations
     fs[-1] += nl.force_N[-1]
     ms[-1] += m0[-1]
     g = np.zeros_like(pw)
-    groups, empty = {}, []
+    mom = np.zeros_like(pw)
+    groups, empty, lines = {}, [], []
     order = np.argsort(strip, kind="stable")
     bounds = np.searchsorted(strip[order], np.arange(ys.size), side="left")
     for j in range(ys.size - 1):
         idx = order[bounds[j]:bounds[j + 1]]
-        if idx.size:
-            r = pw[idx] - pw[idx].mean(0)
-            S = r.T @ r
-            A = np.trace(S) * np.eye(3) - S
-            ev = np.linalg.eigvalsh(A)
-            if ev[0] > DEGENERATE_RATIO * max(ev[-1], 1e-300):
-                groups[j] = [idx, fs[j].copy(), ms[j].copy(), A]
-                continue
-        empty.append(j)
+        if not idx.size:
+            empty.append(j)
+            continue
+        r = pw[idx] - pw[idx].mean(0)
+        S = r.T @ r
+        A = np.trace(S) * np.eye(3) - S
+        ev = np.linalg.eigvalsh(A)
+        if ev[0] <= DEGENERATE_RATIO * max(ev[-1], 1e-300):
+            A = None  # nodes on one line (or one node): the moment goes on as nodal moments
+            lines.append(j)
+        groups[j] = [idx, fs[j].copy(), ms[j].copy(), A]
     if not groups:
-        raise InputError(f"{smesh.path}: no strip of the span holds a usable set of mesh nodes")
+        raise InputError(f"{smesh.path}: no strip of the span holds a mesh node")
     good = np.array(sorted(groups))
     mid = 0.5 * (ys[:-1] + ys[1:])
     for j in empty:  # force and moment about the root move unchanged: the sums stay exact
@@ -175,32 +182,41 @@ def map_loads(smesh: StructuralMesh, loads, frame, unit_scale_m: float, stations
         groups[t][2] += ms[j]
     warnings = []
     if empty:
-        warnings.append(f"{len(empty)} of {ys.size - 1} load strips hold no usable mesh node "
-                        f"(no node, or nodes on one line); their loads went to the nearest strip "
-                        "with nodes (total force and root moment unchanged)")
-    groups = list(groups.values())
-    for idx, f, m, A in groups:
+        warnings.append(f"{len(empty)} of {ys.size - 1} load strips hold no mesh node; their "
+                        "loads went to the nearest strip with nodes (total force and root moment "
+                        "unchanged)")
+    if lines:
+        warnings.append(f"{len(lines)} load strips have their nodes on one line: their moment "
+                        "is applied as nodal moments (DOF 4-6), which only nodes with rotational "
+                        "DOFs (beams, shells) carry")
+    for idx, f, m, A in groups.values():
         c = pw[idx].mean(0)
         r = pw[idx] - c
-        w = np.linalg.solve(A, m - np.cross(c - P0, f))
-        g[idx] = f / idx.size + np.cross(w, r)
+        mc = m - np.cross(c - P0, f)  # the strip's moment about its node centroid
+        g[idx] = f / idx.size
+        if A is None:
+            mom[idx] = mc / idx.size
+        else:
+            g[idx] += np.cross(np.linalg.solve(A, mc), r)
     R = np.eye(3) if frame is None else np.asarray(frame.rotation, float)
-    return MappedLoads(case=str(loads.case), force_N=g @ R, loaded=np.isin(strip, np.arange(
-        ys.size - 1)) & (np.abs(g).sum(1) > 0), warnings=tuple(warnings))
+    return MappedLoads(case=str(loads.case), force_N=g @ R, moment_Nm=mom @ R,
+                       loaded=(strip >= 0) & ((np.abs(g).sum(1) > 0) | (np.abs(mom).sum(1) > 0)),
+                       warnings=tuple(warnings))
 
 
 def _texts(smesh, ml, unit, unit_scale_m):
     u = unit
+    mo = ml.moment_Nm / float(unit_scale_m)  # N*unit, like the coordinates
     head = [CAUTION, f"geomload loads of case '{ml.case}' mapped on {os.path.basename(smesh.path)}"
             " (limit loads)", f"CAD frame; coordinates in {u} (1 {u} = {unit_scale_m:g} m); "
-            "forces N; node numbers of the mesh file", *ml.warnings]
-    csv = [f"# {h}" for h in head] + [f"node,x_{u},y_{u},z_{u},Fx_N,Fy_N,Fz_N"]
+            f"forces N; moments N*{u}; node numbers of the mesh file", *ml.warnings]
+    csv = [f"# {h}" for h in head] + [f"node,x_{u},y_{u},z_{u},Fx_N,Fy_N,Fz_N,Mx_N{u},My_N{u},Mz_N{u}"]
     inp = [f"** {h}" for h in head] + ["*CLOAD"]
     for k in np.flatnonzero(ml.loaded):
         nid = int(smesh.node_ids[k])
-        csv.append(f"{nid}," + ",".join(f"{float(v):.17g}" for v in
-                                         (*smesh.points[k], *ml.force_N[k])))
-        inp += [f"{nid}, {d + 1}, {float(v):.14g}" for d, v in enumerate(ml.force_N[k]) if v != 0]
+        vals = [*ml.force_N[k].tolist(), *mo[k].tolist()]
+        csv.append(f"{nid}," + ",".join(map(repr, [*smesh.points[k].tolist(), *vals])))
+        inp += [f"{nid}, {d + 1}, {v:.14g}" for d, v in enumerate(vals) if v != 0]
     return "\n".join(csv) + "\n", "\n".join(inp) + "\n"
 
 
@@ -227,7 +243,7 @@ def write_mesh_loads(folder, mesh_path, loads_list, frame, unit_scale_m: float, 
         paths.append(write_text_atomic(d / f"mesh_{name}_nodal_loads.csv", csv, inputs))
         paths.append(write_text_atomic(d / f"mesh_{name}_cload.inp", inp, inputs))
         out = meshio.Mesh(smesh.points, smesh.mesh.cells,
-                          point_data={"force_N": ml.force_N,
+                          point_data={"force_N": ml.force_N, "moment_Nm": ml.moment_Nm,
                                       "node_id": smesh.node_ids.astype(np.int64)},
                           field_data={})
         with atomic_path(d / f"mesh_{name}.vtu", inputs) as tmp:
