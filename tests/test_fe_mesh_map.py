@@ -185,3 +185,60 @@ def test_stick_model_takes_nodal_moments(run, tmp_path):
           np.abs(np.cross(pw - P0, fw).sum(0) + mw.sum(0) - M).max() / np.abs(M).max(), abs=1e-9)
     check(SRC, "stick model: mapped force sum vs total (relative)", 0.0,
           np.abs(fw.sum(0) - F).max() / np.abs(F).max(), abs=1e-9)
+
+
+def test_mapped_cload_file_solved_by_ccx_with_the_mesh(run, tmp_path):
+    """The *CLOAD lines written against the mesh file's own node numbers (1001...), included
+    in a shell model of that mesh held at its root rib and solved by CalculiX: the load the
+    structure transmits to the root equals the case's total force and root moment."""
+    import shutil
+    import subprocess
+
+    ccx = shutil.which("ccx")
+    if ccx is None:
+        if os.environ.get("GEOMLOAD_REQUIRE_CCX") == "1":
+            pytest.fail("ccx (calculix-ccx) is required (GEOMLOAD_REQUIRE_CCX=1)")
+        pytest.skip("ccx (CalculiX, Debian package calculix-ccx) not on PATH")
+    m = wing_shell_mesh(run.stations, run.frame, 1e-3, n_ribs=9, n_chord=7)
+    quads = m.cells[0].data
+    text = ["*NODE, NSET=NALL"] + [f"{k + 1001}, {p[0]:.14g}, {p[1]:.14g}, {p[2]:.14g}"
+                                   for k, p in enumerate(m.points)]
+    text += ["*ELEMENT, TYPE=S4, ELSET=SKIN"] + [f"{e + 1}, " + ", ".join(str(v + 1001) for v in q)
+                                                 for e, q in enumerate(quads)]
+    mesh_inp = tmp_path / "wing.inp"
+    mesh_inp.write_text("\n".join(text) + "\n")
+    cr = max(run.cases, key=lambda c: abs(c.loads.bending_Nm[0]))
+    paths, _ = mesh_map.write_mesh_loads(tmp_path / "out", mesh_inp, [cr.loads], run.frame,
+                                         1e-3, "mm", run.stations)
+    cload = next(p for p in paths if str(p).endswith("_cload.inp"))
+    pw = run.frame.to_wing(m.points * 1e-3)
+    root = np.flatnonzero(pw[:, 1] <= pw[:, 1].min() + 1e-9)
+    deck = [*text, "*NSET, NSET=ROOTRIB"] + [f"{k + 1001}," for k in root]
+    deck += ["*MATERIAL, NAME=AL", "*ELASTIC", "70000., 0.33",
+             "*SHELL SECTION, ELSET=SKIN, MATERIAL=AL", "1.0", "*BOUNDARY", "ROOTRIB, 1, 3",
+             "*STEP", "*STATIC", f"*INCLUDE, INPUT={cload.name}",
+             "*NODE PRINT, NSET=ROOTRIB", "RF", "*END STEP"]
+    (cload.parent / "shell.inp").write_text("\n".join(deck) + "\n")
+    r = subprocess.run([ccx, "-i", "shell"], cwd=cload.parent, capture_output=True, text=True,
+                       timeout=300)
+    dat = cload.parent / "shell.dat"
+    assert r.returncode == 0 and dat.exists(), r.stdout[-2000:]
+    rf = fe.read_reactions(dat.read_text())
+    ml = mesh_map.map_loads(mesh_map.read_structural_mesh(mesh_inp), cr.loads, run.frame, 1e-3,
+                            run.stations)
+    R = run.frame.rotation
+    F, M, P0 = totals_about_root(run, cr.loads)
+    held = {k + 1001 for k in root}
+    # transmitted = minus the reactions of the element forces, plus the loads put on held nodes
+    # (the solver's RF leaves out a load applied at a held node)
+    f_t = -sum(R @ rf[k] for k in held) + sum(R @ ml.force_N[k - 1001] for k in held)
+    m_t = (-sum(np.cross(pw[k - 1001] - P0, R @ rf[k]) for k in held)
+           + sum(np.cross(pw[k - 1001] - P0, R @ ml.force_N[k - 1001]) for k in held))
+    src = "CalculiX ccx static solution of the mapped *CLOAD on the shell mesh (real FE solver)"
+    L = cr.loads
+    s, b, n = L.extras["axis_s"][0], L.extras["axis_b"][0], L.extras["axis_n"][0]
+    check(src, "shell mesh: root shear from the reactions (N)", L.shear_N[0], f_t @ n, rel=1e-3)
+    check(src, "shell mesh: root bending from the reactions (N m)", L.bending_Nm[0], m_t @ b,
+          rel=1e-3)
+    check(src, "shell mesh: root torsion from the reactions (N m; floor 0.1 % of bending)",
+          L.torsion_Nm[0], m_t @ s, rel=1e-3, abs=1e-3 * abs(L.bending_Nm[0]))
