@@ -165,10 +165,6 @@ DECK_DIGITS = 14  # significant digits of a number in the deck: the solver reads
                   # most 20 characters (sign, 14 digits, point, 4-character exponent)
 
 
-def _num(v) -> str:
-    return f"{float(v):.{DECK_DIGITS}g}"
-
-
 def _caution_lines(prefix: str) -> list:
     return [f"{prefix} {CAUTION}"]
 

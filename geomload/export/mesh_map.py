@@ -79,7 +79,10 @@ def _inp_node_ids(path, n):
                 continue
             if on and t and not t.startswith("**"):
                 ids.append(int(t.split(",")[0]))
-    return np.array(ids, dtype=np.int64) if len(ids) == n else np.arange(1, n + 1)
+    if len(ids) != n or len(set(ids)) != n:
+        raise InputError(f"{path}: its *NODE lines ({len(ids)} numbers) do not match the "
+                         f"{n} nodes read; cannot name the nodes for *CLOAD")
+    return np.array(ids, dtype=np.int64)
 
 
 def read_structural_mesh(path) -> StructuralMesh:
