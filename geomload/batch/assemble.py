@@ -170,7 +170,7 @@ batch.csv</a>; each run folder has its own report.</p>
 
 def write_batch_folder(od, variants, outcomes, keys, with_source: bool) -> list:
     """Write the run folders, batch.csv, plots and index.html into the open OutputDir `od`."""
-    from geomload.export.atomic import write_bytes_atomic, write_text_atomic
+    from geomload.export.atomic import safe_name, write_bytes_atomic, write_text_atomic
 
     files = []
     for v, o in zip(variants, outcomes):
@@ -186,7 +186,7 @@ def write_batch_folder(od, variants, outcomes, keys, with_source: bool) -> list:
     if any(o.ok for o in outcomes):
         for k in (list(keys) or [None]):
             name = "variant" if k is None else k
-            p = od.path(Path("plots") / f"root_loads_vs_{name.replace('[', '_').replace(']', '')}.png")
+            p = od.path(Path("plots") / f"root_loads_vs_{safe_name(name)}.png")
             plot_against(variants, outcomes, k, p)
             plots[name] = p.read_bytes()
             files.append(p.relative_to(od.staging))

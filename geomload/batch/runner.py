@@ -246,7 +246,7 @@ def run_variants(variants, final_case_paths, workers: int = 1, client=None, rend
         futs = {client.submit(run_chunk, token, [items[i] for i in idx], render, pure=False,
                               key=f"geomload-batch-{token[:8]}-{k}"): idx
                 for k, idx in enumerate(tasks)}
-        for fut in as_completed(futs):
+        for fut in as_completed(list(futs), loop=client.loop):
             try:
                 settle(futs[fut], fut.result())
             except Exception as exc:  # noqa: BLE001 - a lost worker fails its variants only
