@@ -17,7 +17,7 @@ import time
 ROOT = pathlib.Path(__file__).resolve().parent.parent
 SAMPLE = ROOT / "sample_geometry" / "pellin_case.toml"
 TARGET_RATIO = 8.0
-SWEEP = ["--vary", "aircraft.gross_mass_kg=19,20,21,22,23,24",
+SWEEP = ["--vary", "aircraft.gross_mass_kg=20,21,22,23,24,25",
          "--vary", "spar.chord_fraction=0.25,0.3"]
 
 

@@ -70,3 +70,11 @@ def envelope_table(envelope) -> dict:
     from geomload.export.envelope_access import table
 
     return table(envelope)
+
+
+def with_lattice(case, n_span: int, n_chord: int):
+    """A copy of `case` on another lattice (same spacing)."""
+    import dataclasses
+
+    return dataclasses.replace(case, lattice=dataclasses.replace(case.lattice, n_span=int(n_span),
+                                                                 n_chord=int(n_chord)))

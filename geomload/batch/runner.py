@@ -256,7 +256,7 @@ def run_variants(variants, final_case_paths, workers: int = 1, client=None, rend
     import multiprocessing as mp
 
     with cf.ProcessPoolExecutor(max_workers=min(workers, len(tasks)),
-                                mp_context=mp.get_context("spawn")) as pool:
+                                mp_context=mp.get_context(_start_method())) as pool:
         futs = {pool.submit(run_chunk, token, [items[i] for i in idx], render): idx
                 for idx in tasks}
         for fut in cf.as_completed(futs):
@@ -265,6 +265,16 @@ def run_variants(variants, final_case_paths, workers: int = 1, client=None, rend
             except Exception as exc:  # noqa: BLE001 - a crashed worker fails its variants only
                 settle(futs[fut], exc=exc)
     return out
+
+
+def _start_method() -> str:
+    """'fork' when this process has a single thread on a system that has it (workers start
+    without re-importing geomload), else 'spawn' (forking a threaded process can deadlock)."""
+    import multiprocessing as mp
+
+    if "fork" in mp.get_all_start_methods() and threading.active_count() == 1:
+        return "fork"
+    return "spawn"
 
 
 def default_workers() -> int:
