@@ -103,32 +103,45 @@ def _numeric(vals) -> bool:
 
 
 def plot_against(variants, outcomes, key, path) -> Path:
-    """Root loads of every successful variant against the varied `key` (None: the variant)."""
+    """Root loads of every successful variant against the varied `key` (None: the variant);
+    variants that share the values of the other varied keys are joined by a line."""
     from matplotlib.backends.backend_agg import FigureCanvasAgg
     from matplotlib.figure import Figure
 
     ok = [(v, o) for v, o in zip(variants, outcomes) if o.ok]
     xs = [dict(v.overrides).get(key) if key else v.name for v, _ in ok]
     numeric = key is not None and _numeric(xs)
-    labels = sorted({value_text(x) for x in xs}, key=lambda s: [value_text(x) for x in xs].index(s))
-    pos = [float(x) if numeric else labels.index(value_text(x)) for x in xs]
+    texts = [value_text(x) for x in xs]
+    labels = list(dict.fromkeys(texts))
+    pos = [float(x) if numeric else labels.index(t) for x, t in zip(xs, texts)]
+    groups: dict = {}
+    for k, (v, _o) in enumerate(ok):
+        rest = tuple((kk, value_text(vv)) for kk, vv in v.overrides if kk != key)
+        groups.setdefault(rest, []).append(k)
     fig = Figure(figsize=(9.0, 7.0))
     FigureCanvasAgg(fig)
-    quantities = (("shear", "N"), ("bending", "N m"), ("torsion", "N m"))
-    for k, (q, unit) in enumerate(quantities):
-        ax = fig.add_subplot(3, 1, k + 1)
-        for side, mark in (("max", "^"), ("min", "v")):
-            col = f"root_{q}_{side}_{'N' if unit == 'N' else 'Nm'}"
-            ax.plot(pos, [o.root[col] for _, o in ok], mark, label=f"{side} (limit)")
+    quantities = (("shear", "N", "N"), ("bending", "N m", "Nm"), ("torsion", "N m", "Nm"))
+    for qi, (q, unit, col_unit) in enumerate(quantities):
+        ax = fig.add_subplot(3, 1, qi + 1)
+        for gi, (rest, members) in enumerate(groups.items()):
+            members = sorted(members, key=lambda m: pos[m])
+            color = f"C{gi % 10}"
+            name = ", ".join(f"{kk.split('.')[-1]} {vv}" for kk, vv in rest) or "all"
+            for side, style in (("max", "-^"), ("min", "--v")):
+                col = f"root_{q}_{side}_{col_unit}"
+                ax.plot([pos[m] for m in members], [ok[m][1].root[col] for m in members], style,
+                        color=color, label=f"{side}: {name}" if gi < 6 else None)
         ax.set_ylabel(f"root {q} ({unit})")
         ax.grid(True, alpha=0.3)
-        ax.legend(fontsize=7, loc="best")
+        if qi == 0:
+            ax.legend(fontsize=6, loc="best", ncol=2)
         if not numeric:
             ax.set_xticks(range(len(labels)))
-            ax.set_xticklabels(labels if k == 2 else [""] * len(labels), rotation=30, ha="right",
+            ax.set_xticklabels(labels if qi == 2 else [""] * len(labels), rotation=30, ha="right",
                                fontsize=7)
     fig.axes[-1].set_xlabel(key or "variant")
-    fig.suptitle(f"Root limit loads against {key or 'variant'} (all variants)", fontsize=10)
+    fig.suptitle(f"Root limit loads against {key or 'variant'} (max solid, min dashed)",
+                 fontsize=10)
     fig.text(0.01, 0.005, CAUTION, fontsize=5, wrap=True)
     fig.tight_layout(rect=(0, 0.03, 1, 0.97))
     fig.savefig(path, dpi=90, format="png")
