@@ -11,7 +11,7 @@ from batch_helpers import SAMPLE
 from validation import check
 
 from geomload.batch import _api
-from geomload.batch.errorbars import _roots, estimate_errors, richardson
+from geomload.batch.errorbars import _roots, envelope_errors, estimate_errors, richardson
 
 
 def test_richardson_on_a_first_order_sequence():
@@ -33,8 +33,9 @@ def test_estimate_bounds_a_twice_finer_lattice():
     case = _api.load_case(SAMPLE)
     run = _api.compute(case)
     est = estimate_errors(case, run)
-    finer = _roots(_api.compute(_api.with_lattice(case, 2 * case.lattice.n_span,
-                                                  2 * case.lattice.n_chord)))
+    fine_run = _api.compute(_api.with_lattice(case, 2 * case.lattice.n_span,
+                                              2 * case.lattice.n_chord))
+    finer = _roots(fine_run)
     here = _roots(run)
     assert set(est) == set(here) and len(here) > 20
     for name, q in here.items():
@@ -42,3 +43,9 @@ def test_estimate_bounds_a_twice_finer_lattice():
             change = abs(finer[name][key] - q[key])
             # reference: the same case on a lattice twice as fine in each direction
             assert change <= est[name][key], (name, key, change, est[name][key])
+    env = envelope_errors(est)
+    a, b = _api.envelope_table(run.envelope), _api.envelope_table(fine_run.envelope)
+    for q, key in (("shear", "root_shear_N"), ("bending", "root_bending_Nm"),
+                   ("torsion", "root_torsion_Nm")):
+        for side in ("max", "min"):
+            assert abs(float(b[f"{q}_{side}"][0]) - float(a[f"{q}_{side}"][0])) <= env[key]

@@ -18,9 +18,10 @@ import inspect
 
 def load_case(path):
     """Parse a case file; returns the pipeline's Case record (raises CaseError, one line)."""
-    from geomload import case as _case
-
-    fn = getattr(_case, "load_case", None) or getattr(_case, "read_case")
+    try:
+        from geomload.config.parse import read_case_file as fn
+    except ImportError:
+        from geomload.case import load_case as fn
     return fn(path)
 
 

@@ -97,3 +97,17 @@ def estimate_errors(case, result, cache=None) -> dict:
                 flags.append(key)
         out[name] = {**est, "order": order, "not_monotone": tuple(flags)}
     return out
+
+
+def envelope_errors(estimates: dict) -> dict:
+    """Error bound of the envelope's root maxima and minima from the per-case estimates.
+
+    The envelope maximum over cases moves by at most the largest change of any one case
+    (max is 1-Lipschitz in the largest-component norm), so its bound is the largest per-case
+    estimate of that quantity (N, N m). Keys: root_shear_N, root_bending_Nm, root_torsion_Nm.
+    """
+    out = {}
+    for key, _f in KEYS:
+        vals = [e[key] for e in estimates.values() if math.isfinite(e[key])]
+        out[key] = max(vals) if vals else float("nan")
+    return out
