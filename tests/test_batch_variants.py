@@ -93,3 +93,18 @@ def test_plan_tasks_keeps_groups_whole_unless_workers_idle(tmp_path):
     tasks = plan_tasks(vs, 4)
     assert len(tasks) == 4 and sorted(i for t in tasks for i in t) == list(range(6))
     assert all(len({vs[i].group for i in t}) == 1 for t in tasks)
+
+
+def test_progress_over_variants_and_one_line_errors(tmp_path):
+    from geomload.batch.runner import run_variants
+
+    case = small_case(tmp_path)
+    # both supersonic at sea level (Mach > 1): each fails quickly with its own one-line error
+    vs = make_variants([case], ["load_case[1].speed=400,450"])
+    calls = []
+    outs = run_variants(vs, [tmp_path / v.name / "case.toml" for v in vs], workers=1,
+                        progress=lambda *a: calls.append(a))
+    assert calls == [("variants", 0, 2), ("variants", 1, 2), ("variants", 2, 2)]
+    assert [o.ok for o in outs] == [False, False]
+    assert all("Mach" in o.error and "\n" not in o.error and o.files == {} for o in outs)
+    assert "variant 01_speed-400.0" in outs[0].error  # the temporary path is not shown
