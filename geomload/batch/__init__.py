@@ -1,0 +1,13 @@
+"""Trade studies: many variants of a case at once, locally or on a Dask cluster, and comparisons
+of finished runs.
+
+- `variants`: the grid of ``--vary KEY=V1,V2`` overrides on a case file (dotted key paths), or a
+  list of case files, each turned into a variant case file with absolute geometry paths.
+- `runner`: runs the variants serially, on a local process pool or on a running
+  dask.distributed scheduler, sharing the geometry read/cut and the factorised aero models
+  between variants of one geometry, and assembles the batch folder atomically.
+- `compare`: overlays the envelopes of finished runs and tabulates their differences.
+- `cli_batch`: the click commands ``batch`` and ``compare``.
+
+Every library function returns data; nothing here prints.
+"""

@@ -1,0 +1,132 @@
+"""The click commands `batch` and `compare` (registered on the main group by geomload.cli).
+
+Both print; the library functions they call return data. Exit codes as the rest of the CLI:
+0 ok, 1 bad input / unreachable cluster / some variant failed, 2 usage, 3 internal error.
+"""
+
+from __future__ import annotations
+
+import functools
+import os
+import sys
+
+import click
+
+from geomload.errors import GeomloadError
+
+EXIT_INPUT, EXIT_INTERNAL, EXIT_INTERRUPTED = 1, 3, 130
+
+
+def _guarded(fn):
+    """Library errors -> one line on stderr and an exit code, never a traceback."""
+
+    @functools.wraps(fn)
+    def wrapper(*args, **kwargs):
+        try:
+            return fn(*args, **kwargs)
+        except GeomloadError as exc:
+            click.echo(f"geomload: error: {exc}", err=True)
+            sys.exit(getattr(exc, "exit_code", EXIT_INPUT))
+        except KeyboardInterrupt:
+            click.echo("geomload: interrupted; no output was written", err=True)
+            sys.exit(EXIT_INTERRUPTED)
+        except (click.exceptions.Exit, click.ClickException, click.Abort):
+            raise
+        except Exception as exc:  # noqa: BLE001 - the last line of defence
+            if os.environ.get("GEOMLOAD_DEBUG", "") not in ("", "0"):
+                raise
+            click.echo(f"geomload: internal error: {type(exc).__name__}: {exc} (this is a bug in "
+                       "geomload; please report it; set GEOMLOAD_DEBUG=1 for a traceback)", err=True)
+            sys.exit(EXIT_INTERNAL)
+
+    return wrapper
+
+
+@click.command("batch")
+@click.argument("case_files", nargs=-1, required=True, type=click.Path(dir_okay=False))
+@click.option("--vary", "vary", multiple=True, metavar="KEY=V1,V2,...",
+              help="Run every value of a case-file key given by its dotted path, e.g. "
+                   "aircraft.gross_mass_kg=20,22,24 or load_case[1].load_factor=2.5,3. Repeat "
+                   "for a grid. A relative geometry.file is relative to the case file's folder.")
+@click.option("--out", "out_dir", type=click.Path(file_okay=True), required=True,
+              help="Batch folder (refused if it exists, unless --force and geomload made it).")
+@click.option("--workers", type=click.IntRange(min=1), default=None,
+              help="Local worker processes (default: the CPUs available; 1 runs in this process).")
+@click.option("--cluster", "cluster", default=None, metavar="ADDRESS",
+              help="Send the variants to a running Dask scheduler, e.g. tcp://10.0.0.5:8786 "
+                   "(case and geometry files must be visible to its workers at the same paths).")
+@click.option("--cluster-timeout", type=click.FloatRange(min=0.1), default=10.0, show_default=True,
+              help="Seconds allowed to reach the --cluster scheduler.")
+@click.option("--force", is_flag=True, help="Replace an existing batch folder made by geomload.")
+@click.option("--no-render", is_flag=True, help="Skip each run's 3D pictures (faster).")
+@_guarded
+def batch(case_files, vary, out_dir, workers, cluster, cluster_timeout, force, no_render):
+    """Run a grid of variants of CASE_FILE (--vary), or a list of case files, into --out."""
+    from geomload import CAUTION
+    from geomload.batch.assemble import run_batch
+    from geomload.progress import make_progress
+
+    bar = make_progress()
+    try:
+        res = run_batch(case_files, vary, out_dir, workers=workers, cluster=cluster,
+                        render=not no_render, force=force, progress=bar,
+                        cluster_timeout=cluster_timeout)
+    finally:
+        bar.close()
+    seen: dict = {}  # one line per distinct warning, naming the variants that gave it
+    for o in res.outcomes:
+        for w in o.warnings:
+            if not w.startswith("note: "):
+                seen.setdefault(w, []).append(o.name)
+    for w, names in seen.items():
+        who = names[0] if len(names) == 1 else f"{len(names)} variants ({names[0]}, ...)"
+        click.echo(f"geomload: warning: {who}: {w}", err=True)
+    for o in res.failed:
+        click.echo(f"geomload: error: variant {o.name} failed: {o.error}", err=True)
+    width = max(len(o.name) for o in res.outcomes)
+    click.echo(f"{'variant':<{width}}  {'shear max':>10} {'bending max':>12} {'bending min':>12}"
+               f" {'torsion min':>12}  (root, limit, N and N m)")
+    for o in res.outcomes:
+        if o.ok:
+            r = o.root
+            click.echo(f"{o.name:<{width}}  {r['root_shear_max_N']:10.1f} "
+                       f"{r['root_bending_max_Nm']:12.1f} {r['root_bending_min_Nm']:12.1f} "
+                       f"{r['root_torsion_min_Nm']:12.2f}")
+        else:
+            click.echo(f"{o.name:<{width}}  failed")
+    click.echo(CAUTION)
+    n_ok = len(res.outcomes) - len(res.failed)
+    click.echo(f"{n_ok} of {len(res.outcomes)} variants ran; wrote {res.out_dir}/batch.csv and "
+               f"{res.out_dir}/index.html")
+    if res.failed:
+        sys.exit(EXIT_INPUT)
+
+
+@click.command("compare")
+@click.argument("runs", nargs=-1, required=True, type=click.Path(file_okay=False))
+@click.option("--out", "out_dir", type=click.Path(file_okay=True), required=True,
+              help="Comparison folder (refused if it exists, unless --force and geomload made it).")
+@click.option("--force", is_flag=True, help="Replace an existing comparison folder made by geomload.")
+@_guarded
+def compare(runs, out_dir, force):
+    """Compare the load envelopes of finished run folders (the first is the reference)."""
+    from geomload import CAUTION
+    from geomload.batch.compare import compare_runs
+
+    res = compare_runs(runs, out_dir, force=force)
+    for line in res.summary_lines:
+        click.echo(line)
+    click.echo(CAUTION)
+    click.echo(f"wrote {res.out_dir}/compare.csv and {res.out_dir}/compare.html")
+
+
+@click.group()
+def _standalone():
+    """geomload batch commands (stand-alone entry, until registered on the main group)."""
+
+
+_standalone.add_command(batch)
+_standalone.add_command(compare)
+
+if __name__ == "__main__":  # python -m geomload.batch.cli_batch batch|compare ...
+    _standalone(prog_name="geomload")
