@@ -47,33 +47,57 @@ def python(*args) -> list:
     return [sys.executable, *map(str, args)]
 
 
+# A small launcher process starts every measured command and reports the command's own wall
+# time, CPU time and peak RSS. Linux carries the hiwater RSS of the process image that exec
+# replaces into the new program's ru_maxrss (and Python starts children by vfork, sharing the
+# parent's memory until exec), so a child started straight from a big benchmark process would
+# report at least that process's peak; the launcher is a bare interpreter of ~10 MB.
+_LAUNCHER = r"""
+import json, os, subprocess, sys, time
+out, cmd = sys.argv[1], json.loads(sys.argv[2])
+t0 = time.perf_counter()
+p = subprocess.Popen(cmd, stdin=subprocess.DEVNULL)
+_, status, ru = os.wait4(p.pid, 0)
+wall = time.perf_counter() - t0
+with open(out, "w") as f:
+    json.dump({"wall": wall, "cpu": ru.ru_utime + ru.ru_stime, "rss_kib": ru.ru_maxrss,
+               "code": os.waitstatus_to_exitcode(status)}, f)
+"""
+
+
 def run_child(cmd, capture_stdout: bool = False, usage_out: list | None = None):
     """Run cmd once. Returns (wall_s, peak_rss_MB, stdout text or '').
 
-    The peak resident set is the child's own `ru_maxrss` as reported by `os.wait4` for that
-    child alone (Linux: KiB), so an earlier, bigger child does not mask it. usage_out, if given,
-    receives the child's CPU time (user + system, s, all its threads), which other processes
-    on the machine disturb far less than the wall time.
+    Wall time, CPU time and peak resident set are measured around the command alone by a small
+    launcher process (see _LAUNCHER): `ru_maxrss` of `os.wait4` for that child only (Linux:
+    KiB). usage_out, if given, receives the child's CPU time (user + system, s, all threads),
+    which other processes on the machine disturb far less than the wall time.
     """
-    with tempfile.TemporaryFile() as err, tempfile.TemporaryFile() as out:
-        t0 = time.perf_counter()
-        p = subprocess.Popen(cmd, stdout=out if capture_stdout else subprocess.DEVNULL, stderr=err,
-                             stdin=subprocess.DEVNULL, env=child_env())
-        _, status, usage = os.wait4(p.pid, 0)
-        wall = time.perf_counter() - t0
-        if usage_out is not None:
-            usage_out.append(usage.ru_utime + usage.ru_stime)
-        p.returncode = os.waitstatus_to_exitcode(status)
-        if p.returncode != 0:
+    import json
+
+    with tempfile.TemporaryFile() as err, tempfile.TemporaryFile() as out, \
+            tempfile.TemporaryDirectory() as d:
+        res = os.path.join(d, "usage.json")
+        subprocess.run([sys.executable, "-S", "-c", _LAUNCHER, res, json.dumps(list(map(str, cmd)))],
+                       stdout=out if capture_stdout else subprocess.DEVNULL, stderr=err,
+                       stdin=subprocess.DEVNULL, env=child_env(), check=False)
+        try:
+            with open(res) as f:
+                r = json.load(f)
+        except (OSError, ValueError):
+            r = {"code": -1}
+        if r["code"] != 0:
             err.seek(0)
             tail = err.read().decode(errors="replace").strip().splitlines()[-3:]
-            raise RuntimeError(f"{' '.join(map(str, cmd[-6:]))}: exit {p.returncode}: "
+            raise RuntimeError(f"{' '.join(map(str, cmd[-6:]))}: exit {r['code']}: "
                                + " | ".join(tail))
+        if usage_out is not None:
+            usage_out.append(r["cpu"])
         text = ""
         if capture_stdout:
             out.seek(0)
             text = out.read().decode(errors="replace")
-    return wall, usage.ru_maxrss / 1024.0, text
+    return r["wall"], r["rss_kib"] / 1024.0, text
 
 
 class Timings:

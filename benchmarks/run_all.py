@@ -87,6 +87,14 @@ def main(argv=None) -> int:
     print_table(rows)
     print(f"(whole run {time.perf_counter() - t_all:.0f} s; timings are the best of interleaved "
           "repeats)")
+    try:
+        load_end = os.getloadavg()
+    except OSError:
+        load_end = None
+    if load_end is not None and max(load_end) > (os.cpu_count() or 1):
+        print(f"WARNING: load average {', '.join(f'{v:.1f}' for v in load_end)} (1, 5, 15 min) on "
+              f"{os.cpu_count()} cpus: other work inflated the wall times, long runs more than "
+              "their short floors; judge by the *_cpu_* rows or rerun on a quiet machine")
     return 0
 
 
