@@ -97,7 +97,7 @@ def _cum(stats: pstats.Stats, suffix: str, name: str):
 
 def _short(fn: str) -> str:
     fn = fn.replace(os.sep, "/")
-    for mark in ("/site-packages/", "/wt/bench/", str(u.ROOT).replace(os.sep, "/") + "/"):
+    for mark in ("/site-packages/", str(u.ROOT).replace(os.sep, "/") + "/"):
         if mark in fn:
             return fn.split(mark, 1)[1]
     return fn
@@ -127,7 +127,7 @@ def profile(argv: list, out: str | None, top: int, cpu: bool = False) -> None:
 def report(st: pstats.Stats, top: int, kind: str = "") -> None:
     """Print the stage table and the top functions by own time of a profile."""
     total = max(st.total_tt, 1e-9)
-    print(f"{kind} time profiled {total:.2f} s")
+    print(f"{kind or 'profiled'} time: {total:.2f} s in all")
     print(f"\n{'stage':38s} {'calls':>7s} {'cum s':>8s} {'share':>7s}")
     for label, suffix, name in STAGES:
         calls, cum = _cum(st, suffix, name)
