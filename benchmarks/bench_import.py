@@ -1,6 +1,6 @@
 """Benchmark: read a 2-million-triangle binary STL wing and cut it at 60 stations.
 
-Targets (issue 2): read + frame + 60 cuts in <= 2.0 s on a 2-core machine, and <= 10x a bare
+Targets: read + frame + 60 cuts in <= 2.0 s on a 2-core machine, and <= 10x a bare
 `numpy.fromfile` of the same file in the same run. The wing is generated in a temporary folder
 from the NACA equations. Run: python benchmarks/bench_import.py
 
