@@ -1,6 +1,6 @@
 """Benchmark: read a 2-million-triangle binary STL wing and cut it at 60 stations.
 
-Targets (issue 2): read + frame + 60 cuts in <= 2.0 s on a 2-core machine, and <= 10x a bare
+Targets: read + frame + 60 cuts in <= 2.0 s on a 2-core machine, and <= 10x a bare
 `numpy.fromfile` of the same file in the same run. The wing is generated in a temporary folder
 from the NACA equations. Run: python benchmarks/bench_import.py
 
@@ -49,7 +49,7 @@ def make_stl(path, n_tri=N_TRI):
 
 
 def main():
-    """Run the benchmark; return {figure: (target, measured, ratio measured/target)}."""
+    """Run the benchmark; return {figure: (target, measured, measured/target, floor)}."""
     with tempfile.TemporaryDirectory() as tmp:
         path = os.path.join(tmp, "wing_2M.stl")
         n = make_stl(path)
@@ -87,8 +87,9 @@ def main():
     print(f"  bare numpy.fromfile {t_raw:.3f} s (page-cached); ratio {ratio:.1f}x (target <= {TARGET_RATIO}x)")
     print(f"  float64 copy (fromfile + scale to float64 metres) {t_f64:.3f} s = {t_f64 / t_raw:.1f}x "
           f"of the floor, irreducible with a float64 record")
-    return {"import_2M_total_s": (TARGET_S, total, total / TARGET_S),
-            "import_vs_fromfile_ratio": (TARGET_RATIO, ratio, ratio / TARGET_RATIO)}
+    floor = f"fromfile {t_raw:.3f} s"
+    return {"import_2M_total_s": (TARGET_S, total, total / TARGET_S, f"absolute; {floor}"),
+            "import_vs_fromfile_ratio": (TARGET_RATIO, ratio, ratio / TARGET_RATIO, floor)}
 
 
 if __name__ == "__main__":

@@ -1,16 +1,23 @@
-"""Run every benchmark of the project and print one table: figure, target, measured, ratio to floor.
+"""Run every benchmark of the project and print one table: figure, target, measured, floor, met.
 
-Each benchmarks/bench_*.py exposes main() -> {figure: (target, measured, measured / target)} and
-prints its own details. Ratios to a floor measured in the same run (a bare numpy read, a bare
-LAPACK LU, a single-case run) are figures of their own, named *_ratio.
-Run: python benchmarks/run_all.py   (see DEVELOPERS.md)
+Each benchmarks/bench_*.py exposes main() -> {figure: (target, measured, measured / target[,
+floor])} and prints its own details. The optional fourth item names the floor the figure was
+measured against in the same run (e.g. "import numpy 0.21 s"; "absolute" for a wall time or
+memory of this machine class). Figures named *_ratio are ratios to that floor and compare across
+machines. Every timing is the best of interleaved repeats (see benchmarks/_bench_util.py).
+
+Run: python benchmarks/run_all.py [NAME ...]     NAME: a script's short name (cli, cases,
+large_stl, lattice, import) to run only those. GEOMLOAD_BENCH_REPEAT=N sets every repeat count
+(1 = a quick look). See DEVELOPERS.md and docs/performance.md.
 """
 
 from __future__ import annotations
 
 import importlib.util
+import os
 import pathlib
 import sys
+import time
 
 
 def _load(path: pathlib.Path):
@@ -28,24 +35,66 @@ def _fmt(v):
     return str(v)
 
 
-def main() -> int:
-    here = pathlib.Path(__file__).resolve().parent
+def rows_of(figures: dict) -> list:
+    """Table rows (figure, target, measured, floor, met) of one script's figures."""
     rows = []
-    for path in sorted(here.glob("bench_*.py")):
+    for name, value in figures.items():
+        target, measured = value[0], value[1]
+        floor = value[3] if len(value) > 3 else "-"
+        met = "-" if target is None else ("yes" if measured <= target else "NO")
+        rows.append((name, _fmt(target), _fmt(measured), str(floor), met))
+    return rows
+
+
+def print_table(rows: list) -> None:
+    w = max([len(r[0]) for r in rows] + [6])
+    wf = max([len(r[3]) for r in rows] + [5])
+    print(f"{'figure':<{w}}  {'target':>8}  {'measured':>9}  {'floor':<{wf}}  met")
+    for name, target, measured, floor, met in rows:
+        print(f"{name:<{w}}  {target:>8}  {measured:>9}  {floor:<{wf}}  {met}")
+
+
+def main(argv=None) -> int:
+    argv = sys.argv[1:] if argv is None else argv
+    here = pathlib.Path(__file__).resolve().parent
+    sys.path.insert(0, str(here))
+    scripts = sorted(here.glob("bench_*.py"))
+    if argv:
+        unknown = [a for a in argv if not (here / f"bench_{a}.py").is_file()]
+        if unknown:
+            names = ", ".join(p.stem[len("bench_"):] for p in scripts)
+            print(f"run_all.py: unknown benchmark(s) {', '.join(unknown)} (have: {names})",
+                  file=sys.stderr)
+            return 2
+        scripts = [here / f"bench_{a}.py" for a in argv]
+    try:
+        load = "%.2f" % os.getloadavg()[0]
+    except OSError:
+        load = "?"
+    print(f"cpus {os.cpu_count()}, load average (1 min) at start {load}")
+    rows, t_all = [], time.perf_counter()
+    for path in scripts:
         print(f"== {path.name}", flush=True)
+        t0 = time.perf_counter()
         try:
             figures = _load(path).main() or {}
         except Exception as exc:  # a broken benchmark is reported, the others still run
-            rows.append((path.stem, "-", f"FAILED: {type(exc).__name__}: {exc}", "-", "NO"))
+            rows.append((path.stem, "-", "-", f"FAILED: {type(exc).__name__}: {exc}", "NO"))
             continue
-        for name, (target, measured, ratio) in figures.items():
-            met = "-" if target is None else ("yes" if measured <= target else "NO")
-            rows.append((name, _fmt(target), _fmt(measured), _fmt(ratio), met))
-    w = max([len(r[0]) for r in rows] + [6])
+        print(f"   ({time.perf_counter() - t0:.0f} s)", flush=True)
+        rows.extend(rows_of(figures))
     print()
-    print(f"{'figure':<{w}}  {'target':>10}  {'measured':>10}  {'measured/target':>15}  met")
-    for name, target, measured, ratio, met in rows:
-        print(f"{name:<{w}}  {target:>10}  {measured:>10}  {ratio:>15}  {met}")
+    print_table(rows)
+    print(f"(whole run {time.perf_counter() - t_all:.0f} s; timings are the best of interleaved "
+          "repeats)")
+    try:
+        load_end = os.getloadavg()
+    except OSError:
+        load_end = None
+    if load_end is not None and max(load_end) > (os.cpu_count() or 1):
+        print(f"WARNING: load average {', '.join(f'{v:.1f}' for v in load_end)} (1, 5, 15 min) on "
+              f"{os.cpu_count()} cpus: other work inflated the wall times, long runs more than "
+              "their short floors; judge by the *_cpu_* rows or rerun on a quiet machine")
     return 0
 
 
