@@ -72,8 +72,10 @@ def csv_text_cell(s) -> str:
     The cell is also kept on one line and free of the CSV and comment metacharacters geomload's
     tables do not quote (',' -> ';', '"' -> "'", '#' -> '_').
     """
-    t = " ".join(printable(s).split())
-    t = t.replace(",", ";").replace('"', "'").replace("#", "_") or "-"
+    t = " ".join(printable(" ".join(str(s).split())).split())
+    t = t.replace(",", ";").replace('"', "'").replace("#", "_")
+    if not t:
+        return "-"  # an empty name: a visible placeholder
     if t.startswith(FORMULA_START):
         t = "'" + t
     return t
