@@ -199,8 +199,10 @@ def _forbidden(final: Path, inputs) -> str:
         return "is the current folder or holds it"
     for inp in inputs:
         q = _real(inp)
-        if real == q or real in q.parents:
-            return f"is or holds the input {shown(inp)}"
+        if real == q:
+            return f"is the input file {shown(inp)}, not a folder"
+        if real in q.parents:
+            return f"contains the input file {shown(inp)} (replacing it would delete it)"
     try:
         st = os.stat(final)
     except OSError:
@@ -212,7 +214,7 @@ def _forbidden(final: Path, inputs) -> str:
                 s = os.stat(a)
                 ids.add((s.st_dev, s.st_ino))
     if (st.st_dev, st.st_ino) in ids:
-        return "is (through another name) a folder holding an input"
+        return "contains an input file (reached through another name)"
     return ""
 
 
