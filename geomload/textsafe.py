@@ -50,14 +50,14 @@ def _unsafe(ch: str) -> bool:
 def printable(s, keep_newlines: bool = False) -> str:
     """`s` with every control / invisible formatting character shown as a backslash escape.
 
-    keep_newlines: leave "\\n" as a line break (for multi-line console text); otherwise it is
-    escaped too, so one name stays on one line. A backslash itself is left alone (paths on
+    keep_newlines: leave "\\n" and TAB as they are (for multi-line text such as a case file);
+    otherwise they are escaped too, so one name stays on one line. A backslash itself is left alone (paths on
     Windows).
     """
     s = str(s)
     out = []
     for ch in s:
-        if ch == "\n" and keep_newlines:
+        if keep_newlines and ch in "\n\t":
             out.append(ch)
         elif _unsafe(ch):
             out.append(_escape_char(ch))

@@ -199,24 +199,39 @@ def decimate_soup(triangles, target: int):
     decimation; the shape is kept to within about h.
     """
     t = np.asarray(triangles, np.float64).reshape(-1, 3, 3)
-    area = 0.5 * np.linalg.norm(np.cross(t[:, 1] - t[:, 0], t[:, 2] - t[:, 0]), axis=1).sum()
+    step = max(1, t.shape[0] // 200_000)  # the area from a regular sample: it only sets h
+    ts = t[::step]
+    area = 0.5 * np.linalg.norm(np.cross(ts[:, 1] - ts[:, 0], ts[:, 2] - ts[:, 0]), axis=1).sum()
+    area *= t.shape[0] / ts.shape[0]
     v = t.reshape(-1, 3)
-    lo = v.min(axis=0)
+    lo, hi = np.array([v[:, k].min() for k in range(3)]), np.array([v[:, k].max() for k in range(3)])
     h = max(float(np.sqrt(2.0 * area / max(target, 1))), 1e-12)
-    q = np.floor((v - lo) / h).astype(np.int64)
-    dims = q.max(axis=0) + 1
+    q = ((v - lo) * (1.0 / h)).astype(np.int64)  # non-negative: truncation is the floor
+    dims = np.floor((hi - lo) / h).astype(np.int64) + 2
     key = (q[:, 0] * dims[1] + q[:, 1]) * dims[2] + q[:, 2]
-    uniq, inv = np.unique(key, return_inverse=True)
-    cnt = np.bincount(inv, minlength=uniq.size).astype(float)
-    pts = np.column_stack([np.bincount(inv, weights=v[:, k], minlength=uniq.size) / cnt
-                           for k in range(3)])
+    n_cells = int(np.prod(dims))
+    if n_cells <= DENSE_GRID_MAX:  # a counting pass over a dense grid: no sort of the vertices
+        occupied = np.bincount(key, minlength=n_cells) > 0
+        inv = (np.cumsum(occupied) - 1)[key]
+        n = int(occupied.sum())
+    else:
+        _, inv = np.unique(key, return_inverse=True)
+        n = int(inv.max()) + 1
+    cnt = np.bincount(inv, minlength=n).astype(float)
+    pts = np.column_stack([np.bincount(inv, weights=v[:, k], minlength=n) / cnt for k in range(3)])
     f = inv.reshape(-1, 3)
     ok = (f[:, 0] != f[:, 1]) & (f[:, 1] != f[:, 2]) & (f[:, 0] != f[:, 2])
     f = f[ok]
-    s = np.sort(f, axis=1)
-    n = np.int64(uniq.size)
-    _, first = np.unique((s[:, 0] * n + s[:, 1]) * n + s[:, 2], return_index=True)
+    s = np.sort(f, axis=1).astype(np.int64)
+    if n ** 3 < 2 ** 62:
+        _, first = np.unique((s[:, 0] * n + s[:, 1]) * n + s[:, 2], return_index=True)
+    else:
+        _, first = np.unique(np.ascontiguousarray(s).view(np.dtype((np.void, 24))).ravel(),
+                             return_index=True)
     return pts, f[np.sort(first)]
+
+
+DENSE_GRID_MAX = 40_000_000  # grid cells counted densely (320 MB of int64 at most)
 
 
 def map_to_panels(points_xy, lattice) -> np.ndarray:
