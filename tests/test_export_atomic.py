@@ -314,3 +314,50 @@ def test_safe_name_unique_ascii_and_unicode():
 def test_marker_is_strict_json(tmp_path, project):
     out = run_into(tmp_path / "run", project)
     json.loads((out / MARKER).read_text(encoding="utf-8"))
+
+
+# ------------------------------------------------------------- a real run, really interrupted
+def _interrupt_real_run(tmp_path, sig):
+    import signal
+    import time
+
+    sys.path.insert(0, os.path.join(os.path.dirname(__file__), "bad_inputs"))
+    import make_corpus
+
+    make_corpus.build(tmp_path / "c")
+    out = tmp_path / "out"
+    root = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
+    p = subprocess.Popen([sys.executable, "-m", "geomload.cli", "run",
+                          str(tmp_path / "c" / "good_envelope.toml"), "--out", str(out)],
+                         stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True,
+                         env={**os.environ, "PYTHONPATH": root})
+    deadline = time.monotonic() + 120
+    while time.monotonic() < deadline and p.poll() is None:
+        if any(".partial-" in n for n in os.listdir(tmp_path)):
+            break
+        time.sleep(0.02)
+    assert p.poll() is None, "the run ended before it could be interrupted"
+    time.sleep(0.3)  # into the heavy work
+    p.send_signal(getattr(signal, sig))
+    _, err = p.communicate(timeout=120)
+    return p.returncode, err, out
+
+
+def test_interrupted_run_leaves_nothing(tmp_path):
+    code, err, out = _interrupt_real_run(tmp_path, "SIGINT")
+    assert code == 130, err
+    assert "Traceback" not in err
+    assert not out.exists() and leftovers(tmp_path) == []
+
+
+@pytest.mark.xfail(strict=True, reason="integration: the CLI must turn SIGTERM into the normal "
+                   "cleanup path (exit 128 + 15 or 130); today the default action kills the run "
+                   "and leaves the hidden staging folder and the lock file")
+def test_terminated_run_leaves_nothing(tmp_path):
+    code, err, out = _interrupt_real_run(tmp_path, "SIGTERM")
+    left = leftovers(tmp_path)
+    for p in left:  # clean up for the suite-wide check; the assertion below still fails
+        import shutil
+
+        shutil.rmtree(p, ignore_errors=True) if os.path.isdir(p) else os.unlink(p)
+    assert code in (130, 143) and not out.exists() and left == [], (code, left)
