@@ -116,3 +116,27 @@ def test_png_writer_matches_a_reference_reader():
     np.testing.assert_array_equal(back, img)
     rgba = rng.integers(0, 256, size=(3, 4, 4), dtype=np.uint8)
     np.testing.assert_array_equal(np.asarray(Image.open(io.BytesIO(render.png_bytes(rgba)))), rgba)
+
+
+def test_pictures_and_view_with_hostile_names(tmp_path):
+    names = ("banked turn 60°", "Überziehen", "$\\alpha$ $", "\x1b[2Jclear")
+    run = fakerun.make_run(names)
+    out = render.render_all(run, tmp_path)
+    assert not [v for v in out.values() if isinstance(v, Exception)], out
+    vtk.write_all_vtk(tmp_path, run)
+    p = render.view(tmp_path, case="Überziehen", screenshot=tmp_path / "shot.png")
+    assert _pixels(p).var() > 0
+
+
+def test_view_screenshot_refuses_a_symlink_target(tmp_path):
+    from geomload.errors import OutputError
+
+    run = fakerun.make_run(("cruise",))
+    vtk.write_all_vtk(tmp_path, run)
+    (tmp_path / "mine.txt").write_text("the user's file\n")
+    (tmp_path / "shot.png").symlink_to(tmp_path / "mine.txt")
+    with pytest.raises(OutputError, match="symbolic link"):
+        render.view(tmp_path, screenshot=tmp_path / "shot.png")
+    assert (tmp_path / "mine.txt").read_text() == "the user's file\n"
+    with pytest.raises(OutputError, match="input"):  # nor onto the run's own files
+        render.view(tmp_path, screenshot=tmp_path / "surface.vtp")

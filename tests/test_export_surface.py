@@ -154,6 +154,11 @@ def test_pipeline_surface_pressure_equals_each_case_lift(tmp_path):
     make_corpus.build(tmp_path / "c")
     res, _ = run_case_file(tmp_path / "c" / "good_envelope.toml", tmp_path / "out", render=False)
     s = pv.read(str(tmp_path / "out" / "surface.vtp"))
+    from geomload.export.run_folder import read_marker
+
+    marker = read_marker(tmp_path / "out")  # the run folder says it is geomload's, file by file
+    assert {"surface.vtp", "summary.json", "report.html"} <= set(marker["files"])
+    assert marker["case_file"] == str(tmp_path / "c" / "good_envelope.toml")
     keys = [str(k) for k in s.field_data["case_keys"]]
     assert len(keys) == len(res.cases) >= 5
     for key, cr in zip(keys, res.cases):
