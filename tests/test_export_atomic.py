@@ -327,7 +327,10 @@ def _interrupt_real_run(tmp_path, sig):
     make_corpus.build(tmp_path / "c")
     out = tmp_path / "out"
     root = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
-    p = subprocess.Popen([sys.executable, "-m", "geomload.cli", "run",
+    # started the way the installed `geomload` console script starts it (a script calling main)
+    launcher = tmp_path / "geomload_script.py"
+    launcher.write_text("import sys\nfrom geomload.cli import main\nsys.exit(main())\n")
+    p = subprocess.Popen([sys.executable, str(launcher), "run",
                           str(tmp_path / "c" / "good_envelope.toml"), "--out", str(out)],
                          stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True,
                          env={**os.environ, "PYTHONPATH": root})
@@ -361,3 +364,15 @@ def test_terminated_run_leaves_nothing(tmp_path):
 
         shutil.rmtree(p, ignore_errors=True) if os.path.isdir(p) else os.unlink(p)
     assert code in (130, 143) and not out.exists() and left == [], (code, left)
+
+
+def test_staging_of_a_killed_run_is_removed_by_the_next_run(tmp_path, project):
+    stale = tmp_path / ".out.partial-k1ll3d"      # what a SIGKILLed run leaves
+    stale.mkdir()
+    (stale / "stations.csv").write_text("half\n")
+    other = tmp_path / ".other.partial-abc"        # another folder's staging: not ours to touch
+    other.mkdir()
+    od = OutputDir(tmp_path / "out", inputs=inputs_of(project)).open()
+    assert od.removed_stale == [str(stale)] and not stale.exists() and other.is_dir()
+    od.abort()
+    other.rmdir()

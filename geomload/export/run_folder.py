@@ -218,6 +218,24 @@ def _forbidden(final: Path, inputs) -> str:
     return ""
 
 
+def _remove_stale_staging(final: Path) -> list:
+    """Remove `.<name>.partial-*` folders of earlier runs into `final` that were killed outright
+    (SIGKILL, power cut). Called while holding the lock, so no live run owns them. Folders moved
+    aside during a replacement (`.<name>.old-*`) hold a finished earlier run and are left alone."""
+    gone = []
+    prefix = f".{final.name}{STAGING_TAG}"
+    try:
+        entries = list(os.scandir(final.parent))
+    except OSError:
+        return gone
+    for e in entries:
+        if e.name.startswith(prefix) and e.is_dir(follow_symlinks=False):
+            with held_signals():
+                shutil.rmtree(e.path, ignore_errors=True)
+            gone.append(e.path)
+    return gone
+
+
 class OutputDir:
     """A run folder filled atomically.
 
@@ -249,6 +267,7 @@ class OutputDir:
         self.committed = False
         self._lock = None
         self._made_parents: list = []
+        self.removed_stale: list = []  # staging folders of killed earlier runs removed by open()
 
     # -- checks
     def _check_existing(self) -> None:
@@ -299,6 +318,7 @@ class OutputDir:
         self._lock = _Lock(f)
         try:
             self._lock.acquire()
+            self.removed_stale = _remove_stale_staging(f)
             self._check_existing()
             with held_signals():
                 self.staging = Path(tempfile.mkdtemp(prefix=f".{f.name}{STAGING_TAG}", dir=f.parent))
