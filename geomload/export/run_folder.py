@@ -357,8 +357,13 @@ class OutputDir:
                     if os.path.lexists(f):
                         self._check_existing()  # again: the folder may have changed meanwhile
                         if any(os.scandir(f)):
-                            aside = Path(tempfile.mkdtemp(prefix=f".{f.name}{OLD_TAG}", dir=f.parent))
-                            os.rename(f, aside)  # onto the empty aside folder: atomic
+                            spot = Path(tempfile.mkdtemp(prefix=f".{f.name}{OLD_TAG}", dir=f.parent))
+                            try:
+                                os.rename(f, spot)  # onto the empty aside folder: atomic
+                            except OSError:
+                                os.rmdir(spot)
+                                raise
+                            aside = spot
                             why = replaceable_reason(aside)
                             if why:  # swapped between the check and the rename: put it back
                                 os.rename(aside, f)
