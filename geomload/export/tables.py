@@ -42,14 +42,19 @@ def _csv(header_lines, columns: dict) -> str:
     cols = [np.asarray(columns[k]) for k in names]
     n = max((c.size for c in cols), default=0)
     out = [f"# {_clean(h)}" for h in header_lines] + [",".join(names)]
+    text = [c.dtype == object or c.dtype.kind in "US" for c in cols]
+    if not any(text):  # all numbers: one %-format per row ('%.10g' is the same as f'{v:.10g}')
+        a = np.full((n, len(cols)), np.nan)
+        for j, c in enumerate(cols):
+            a[: c.size, j] = np.asarray(c, float).ravel()
+        fmt = ",".join(["%.10g"] * len(cols))
+        out.extend(fmt % tuple(r) for r in a.tolist())
+        return "\n".join(out) + "\n"
     for i in range(n):
         row = []
-        for c in cols:
+        for c, is_text in zip(cols, text):
             v = c[i] if i < c.size else float("nan")
-            if isinstance(v, (str, np.str_)) or c.dtype == object:
-                row.append(_cell_text(v))
-            else:
-                row.append(f"{float(v):.10g}")
+            row.append(_cell_text(v) if is_text else f"{float(v):.10g}")
         out.append(",".join(row))
     return "\n".join(out) + "\n"
 
