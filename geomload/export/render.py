@@ -117,7 +117,7 @@ def render_surface_dcp(run, path, case=None, inputs=(), surface=None, image_only
 def render_lattice_overlay(run, path, inputs=(), surface=None, image_only=False):
     """The CAD surface (grey, translucent) with the vortex-lattice panels drawn over it."""
     surf = gvtk.surface_polydata(run, surface)
-    lat = gvtk.lattice_polydata(run)
+    lat = gvtk.lattice_polydata(run, with_cases=False)
     p = _plotter()
     p.add_mesh(surf, color="lightgrey", opacity=0.55)
     p.add_mesh(lat, style="wireframe", color="navy", line_width=1.5)

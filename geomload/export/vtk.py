@@ -70,15 +70,16 @@ def panel_centres(lattice) -> np.ndarray:
     return (0.25 * (c[:-1, :-1] + c[1:, :-1] + c[:-1, 1:] + c[1:, 1:])).reshape(-1, 3)
 
 
-def lattice_arrays(run):
-    """(points (P, 3), quads (N, 4), cell_data) of the lattice, strip-major like AeroSolution.dcp."""
+def lattice_arrays(run, with_cases: bool = True):
+    """(points (P, 3), quads (N, 4), cell_data) of the lattice, strip-major like AeroSolution.dcp.
+    with_cases=False: only ``strip`` and ``area_m2`` (a wireframe needs no per-case arrays)."""
     lat = run.lattice
     c = np.asarray(lat.corners, float)
     ns, nc = c.shape[0] - 1, c.shape[1] - 1
     idx = np.arange((ns + 1) * (nc + 1)).reshape(ns + 1, nc + 1)
     quads = np.stack([idx[:-1, :-1], idx[1:, :-1], idx[1:, 1:], idx[:-1, 1:]], axis=-1).reshape(-1, 4)
     cells = {"strip": np.repeat(np.arange(ns), nc), "area_m2": np.asarray(lat.area, float)}
-    for key, cr in zip(case_keys(run), run.cases):
+    for key, cr in zip(case_keys(run) if with_cases else (), run.cases):
         g = np.asarray(cr.aero.gamma, float)
         cells[f"gamma_{key}"] = g
         cells[f"circulation_{key}"] = g * float(cr.v_tas)
@@ -86,11 +87,11 @@ def lattice_arrays(run):
     return c.reshape(-1, 3), quads, cells
 
 
-def lattice_polydata(run):
+def lattice_polydata(run, with_cases: bool = True):
     """The lattice as a pyvista PolyData (for renders and `view`; imports pyvista)."""
     import pyvista as pv
 
-    pts, quads, cells = lattice_arrays(run)
+    pts, quads, cells = lattice_arrays(run, with_cases)
     mesh = pv.PolyData(pts, np.hstack([np.full((quads.shape[0], 1), 4), quads]).ravel())
     for k, v in cells.items():
         mesh.cell_data[k] = v
