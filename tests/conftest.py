@@ -31,7 +31,12 @@ def wing_factory():
 
 
 def pytest_sessionfinish(session, exitstatus):
-    """Write docs/validation.md from the recorded checks when GEOMLOAD_VALIDATION_MD is set."""
+    """Fail the session if any test left a hidden staging folder anywhere under pytest's
+    temporary root; write docs/validation.md when GEOMLOAD_VALIDATION_MD is set."""
+    left = _session_leftovers(session)
+    if left:
+        session.exitstatus = 1
+        print(f"\nERROR: hidden staging left behind: {left}", file=sys.stderr)
     out = os.environ.get("GEOMLOAD_VALIDATION_MD")
     if not out:
         return
@@ -39,3 +44,75 @@ def pytest_sessionfinish(session, exitstatus):
 
     with open(out, "w", encoding="utf-8") as fh:
         fh.write(validation.markdown())
+
+
+# ----------------------------------------------------------------- nothing left behind, ever
+def _staging_leftovers(folder) -> list:
+    from geomload.export.run_folder import leftovers
+
+    return leftovers(folder)
+
+
+@pytest.fixture(autouse=True)
+def no_hidden_staging_left(request):
+    """Suite-wide: after every test that used tmp_path, no hidden staging/old folder, lock file or
+    temporary file of geomload's atomic writers is left there (on success, failure or signal)."""
+    yield
+    tmp = request.node.funcargs.get("tmp_path") if hasattr(request.node, "funcargs") else None
+    if tmp is not None and os.path.isdir(tmp):
+        left = _staging_leftovers(tmp)
+        assert not left, f"hidden staging left behind: {left}"
+
+
+def _session_leftovers(session):  # called from pytest_sessionfinish
+    base = getattr(session.config, "_tmp_path_factory", None)
+    if base is None:
+        return []
+    try:
+        root = base.getbasetemp()
+    except Exception:  # noqa: BLE001 - no temporary folder was made
+        return []
+    return _staging_leftovers(root)
+
+
+@pytest.fixture()
+def small_tmpfs(tmp_path):
+    """mount(size) -> a folder on a fresh tmpfs of that size (bytes), unmounted afterwards; the
+    test is skipped with the reason where mounting is not allowed (no root / no CAP_SYS_ADMIN)."""
+    import subprocess
+
+    mounted = []
+
+    def mount(size: int, readonly: bool = False):
+        d = tmp_path / f"tmpfs{len(mounted)}"
+        d.mkdir()
+        opts = f"size={int(size)}" + (",ro" if readonly else "")
+        p = subprocess.run(["mount", "-t", "tmpfs", "-o", opts, "tmpfs", str(d)],
+                           capture_output=True, text=True)
+        if p.returncode != 0:
+            d.rmdir()
+            pytest.skip(f"cannot mount a small tmpfs here ({p.stderr.strip() or p.returncode})")
+        mounted.append(d)
+        return d
+
+    yield mount
+    for d in reversed(mounted):
+        subprocess.run(["umount", "-l", str(d)], capture_output=True)
+
+
+# A test outside the export area that still asserts the old behaviour (`--force` replacing a
+# folder that geomload did not make, which is exactly the loss the run-folder rules forbid).
+# Strict: once the test is rewritten (run once, then --force over that run) it passes, the
+# strict xfail turns red, and this entry must be deleted.
+OLD_BEHAVIOUR = {
+    "tests/test_cli.py::test_forced_run_replaces_the_folder":
+        "asserts that --force deletes a folder without a geomload run marker; rewrite it to "
+        "replace an earlier geomload run (see geomload.export.run_folder), then delete this entry",
+}
+
+
+def pytest_collection_modifyitems(config, items):
+    for item in items:
+        why = OLD_BEHAVIOUR.get(item.nodeid)
+        if why:
+            item.add_marker(pytest.mark.xfail(strict=True, reason=why))

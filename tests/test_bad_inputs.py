@@ -9,7 +9,9 @@ copies) and the committed copies are checked against that build.
 
 from __future__ import annotations
 
+import hashlib
 import os
+import shutil
 import subprocess
 import sys
 import tomllib
@@ -39,14 +41,87 @@ def _fill(text, corpus, tmp):
     return text.format(corpus=str(corpus), out=str(tmp / "out"), tmp=str(tmp))
 
 
-def _setup(kind, tmp):
+def _mount(tmp, size, readonly=False):
+    d = tmp / "disk"
+    d.mkdir()
+    opts = f"size={size}" + (",ro" if readonly else "")
+    p = subprocess.run(["mount", "-t", "tmpfs", "-o", opts, "tmpfs", str(d)], capture_output=True,
+                       text=True)
+    if p.returncode != 0:
+        d.rmdir()
+        pytest.skip(f"cannot mount a small tmpfs here ({p.stderr.strip() or p.returncode})")
+    return d
+
+
+def _setup(kind, tmp, corpus):
+    """Build the case's scene in tmp (real files, real links); returns a cleanup callable."""
+    done = lambda: None  # noqa: E731
     if kind == "plain_file":
         (tmp / "plain").write_text("a regular file, not a folder\n")
     elif kind == "existing_out":
         (tmp / "out").mkdir()
         (tmp / "out" / "keep.txt").write_text("a previous result\n")
+    elif kind == "precious_file":  # the current folder of an "--out ." / "--out ''" run
+        (tmp / "precious.txt").write_text("the user's work\n")
+    elif kind == "project_with_alias":  # proj/ holds the inputs; alias -> tmp, projlink -> proj
+        (tmp / "proj").mkdir()
+        for n in ("good.toml", "wing.stl"):
+            shutil.copyfile(corpus / n, tmp / "proj" / n)
+        (tmp / "proj" / "notes.txt").write_text("not geomload's\n")
+        (tmp / "alias").symlink_to(tmp)
+        (tmp / "projlink").symlink_to(tmp / "proj")
+    elif kind == "out_symlink":
+        (tmp / "real").mkdir()
+        (tmp / "real" / "keep.txt").write_text("behind the link\n")
+        (tmp / "out").symlink_to(tmp / "real")
+    elif kind == "marked_out_with_user_file":  # an earlier geomload run the user added notes to
+        from geomload.export.run_folder import _write_marker
+
+        (tmp / "out").mkdir()
+        (tmp / "out" / "stations.csv").write_text("y_m\n0\n")
+        _write_marker(tmp / "out", corpus / "good.toml")
+        (tmp / "out" / "notes.txt").write_text("added by the user\n")
+    elif kind == "locked_out":  # another run holds the lock of {out}
+        import fcntl
+
+        fh = open(tmp / ".out.geomload-lock", "w")
+        fcntl.flock(fh, fcntl.LOCK_EX)
+
+        def done():
+            os.unlink(tmp / ".out.geomload-lock")
+            fh.close()
+    elif kind in ("small_disk", "read_only_disk"):
+        d = _mount(tmp, 96 * 1024, readonly=kind == "read_only_disk")
+
+        def done():
+            left = os.listdir(d)
+            subprocess.run(["umount", "-l", str(d)], capture_output=True)
+            d.rmdir()
+            assert left == [], f"left on the small disk: {left}"
+    elif kind == "csv_symlink":
+        (tmp / "plain").write_text("the user's file the link points to\n")
+        (tmp / "link.csv").symlink_to(tmp / "plain")
+    elif kind == "csv_fifo":
+        os.mkfifo(tmp / "fifo.csv")
     elif kind:
         raise AssertionError(f"unknown setup {kind!r} in cases.toml")
+    return done
+
+
+def snapshot(folder) -> dict:
+    """Every file, folder and symlink below `folder` (links not followed): path -> content."""
+    out = {}
+    for root, dirs, names in os.walk(folder):
+        for n in dirs + names:
+            p = os.path.join(root, n)
+            rel = os.path.relpath(p, folder)
+            if os.path.islink(p):
+                out[rel] = "link:" + os.readlink(p)
+            elif os.path.isfile(p):
+                out[rel] = hashlib.sha256(Path(p).read_bytes()).hexdigest()
+            else:
+                out[rel] = "dir" if os.path.isdir(p) else "special"
+    return out
 
 
 def test_corpus_is_large_enough_and_ids_unique():
@@ -58,17 +133,34 @@ def test_corpus_is_large_enough_and_ids_unique():
     assert len(geometry) >= 15 and len(case_files) >= 15 and len(CASES) >= 30
     for c in CASES:
         assert c["exit"] in (0, 1, 2) and c["fragment"] and c["names"]
+    # the output-safety findings each have a case (folders, files, disks, names)
+    have = set(ids)
+    for cid in ("out_through_symlinked_parent_is_the_input_folder", "out_empty_string", "out_dot",
+                "out_exists_with_force_but_not_geomloads", "out_locked_by_another_run",
+                "out_on_a_full_disk", "out_on_a_read_only_disk", "csv_target_is_a_symlink",
+                "csv_target_is_a_fifo", "unicode_and_hostile_case_names_run"):
+        assert cid in have, cid
 
 
 @pytest.mark.parametrize("case", [
     pytest.param(c, marks=pytest.mark.xfail(strict=True, reason=c["xfail"])) if c.get("xfail") else c
     for c in CASES], ids=[c["id"] for c in CASES])
-def test_bad_input_case(case, corpus, tmp_path):
-    _setup(case.get("setup"), tmp_path)
+def test_bad_input_case(case, corpus, tmp_path, monkeypatch):
+    cleanup = _setup(case.get("setup"), tmp_path, corpus)
+    if case.get("cwd_tmp"):
+        monkeypatch.chdir(tmp_path)
     before = sorted(p.name for p in tmp_path.iterdir())
+    kept = snapshot(tmp_path)
     args = [_fill(a, corpus, tmp_path) for a in case["args"]]
-    res = CliRunner().invoke(cli, args)
+    try:
+        res = CliRunner().invoke(cli, args)
+        now = snapshot(tmp_path)
+        after = sorted(p.name for p in tmp_path.iterdir())
+    finally:
+        cleanup()
     out, err = res.stdout, res.stderr
+    lost = {k: v for k, v in kept.items() if now.get(k) != v}
+    assert not lost, f"nothing lost: changed or gone {sorted(lost)}"
     assert res.exit_code == case["exit"], (res.exit_code, out, err, res.exception)
     # a library error or a crash surfaces as SystemExit only (the CLI's guard), never raw
     assert res.exception is None or isinstance(res.exception, SystemExit), repr(res.exception)
@@ -83,9 +175,8 @@ def test_bad_input_case(case, corpus, tmp_path):
     elif case["exit"] == 2:  # click's usage error: a usage line and an "Error:" line
         assert lines[-1].startswith("Error:") and fragment in err and names in err, err
     else:
-        assert fragment in err and names in err, err
-    if args[0] == "run":
-        after = sorted(p.name for p in tmp_path.iterdir())
+        assert fragment in out + err and names in out + err, out + err
+    if args[0] == "run" and case["exit"] != 0:
         assert after == before, f"left behind: {set(after) - set(before)}"
         if case.get("setup") == "existing_out":
             assert [p.name for p in (tmp_path / "out").iterdir()] == ["keep.txt"]
@@ -156,7 +247,7 @@ KNOWN_REAL: dict = {}  # case id -> "BUG: ..." reason, for a known bug (xfail)
                                  if c in KNOWN_REAL else c for c in REAL])
 def test_real_process(cid, corpus, tmp_path):
     case = next(c for c in CASES if c["id"] == cid)
-    _setup(case.get("setup"), tmp_path)
+    _setup(case.get("setup"), tmp_path, corpus)()
     args = [_fill(a, corpus, tmp_path) for a in case["args"]]
     p = subprocess.run([sys.executable, "-m", "geomload.cli", *args], capture_output=True, text=True,
                        timeout=120, env={**os.environ, "GEOMLOAD_DEBUG": ""})

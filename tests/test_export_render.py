@@ -69,3 +69,74 @@ def test_view_without_a_display_says_so(tmp_path, monkeypatch):
     monkeypatch.delenv("WAYLAND_DISPLAY", raising=False)
     with pytest.raises(InputError, match="--screenshot"):
         render.view(tmp_path)
+
+
+def test_render_process_gives_the_same_pictures(run):
+    """The forked render process returns the same PNGs as rendering in this process."""
+    s = vtk.surface_data(run)
+    job = render.RenderProcess.start(run, s)
+    assert job is not None
+    try:
+        got = job.result()
+    finally:
+        job.stop()
+    here = render.render_images(run, s)
+    assert set(got) == set(here) == set(render.RENDERS)
+    import io
+
+    for name in render.RENDERS:
+        assert isinstance(got[name], bytes), got[name]
+        a = np.asarray(Image.open(io.BytesIO(got[name])).convert("RGB"), float)
+        b = np.asarray(Image.open(io.BytesIO(here[name])).convert("RGB"), float)
+        assert a.shape == b.shape and np.abs(a - b).mean() < 2.0
+
+
+def test_render_process_crash_costs_only_the_pictures(run):
+    import os
+    import signal
+
+    job = render.RenderProcess.start(run, vtk.surface_data(run))
+    os.kill(job.proc.pid, signal.SIGKILL)   # a real crash of the child (as a VTK segfault would)
+    try:
+        got = job.result()
+    finally:
+        job.stop()
+    assert set(got) == set(render.RENDERS)
+    assert all(isinstance(v, Exception) and "render process" in str(v) for v in got.values())
+    assert not job.proc.is_alive()
+
+
+def test_png_writer_matches_a_reference_reader():
+    # PNG (ISO/IEC 15948) bytes from our encoder decoded by Pillow, pixel for pixel
+    rng = np.random.default_rng(1)
+    img = rng.integers(0, 256, size=(7, 5, 3), dtype=np.uint8)
+    import io
+
+    back = np.asarray(Image.open(io.BytesIO(render.png_bytes(img))))
+    np.testing.assert_array_equal(back, img)
+    rgba = rng.integers(0, 256, size=(3, 4, 4), dtype=np.uint8)
+    np.testing.assert_array_equal(np.asarray(Image.open(io.BytesIO(render.png_bytes(rgba)))), rgba)
+
+
+def test_pictures_and_view_with_hostile_names(tmp_path):
+    names = ("banked turn 60°", "Überziehen", "$\\alpha$ $", "\x1b[2Jclear")
+    run = fakerun.make_run(names)
+    out = render.render_all(run, tmp_path)
+    assert not [v for v in out.values() if isinstance(v, Exception)], out
+    vtk.write_all_vtk(tmp_path, run)
+    p = render.view(tmp_path, case="Überziehen", screenshot=tmp_path / "shot.png")
+    assert _pixels(p).var() > 0
+
+
+def test_view_screenshot_refuses_a_symlink_target(tmp_path):
+    from geomload.errors import OutputError
+
+    run = fakerun.make_run(("cruise",))
+    vtk.write_all_vtk(tmp_path, run)
+    (tmp_path / "mine.txt").write_text("the user's file\n")
+    (tmp_path / "shot.png").symlink_to(tmp_path / "mine.txt")
+    with pytest.raises(OutputError, match="symbolic link"):
+        render.view(tmp_path, screenshot=tmp_path / "shot.png")
+    assert (tmp_path / "mine.txt").read_text() == "the user's file\n"
+    with pytest.raises(OutputError, match="input"):  # nor onto the run's own files
+        render.view(tmp_path, screenshot=tmp_path / "surface.vtp")

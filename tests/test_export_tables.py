@@ -129,3 +129,19 @@ def test_aero_csv(tmp_path, run):
     np.testing.assert_allclose(a["cl"] * a["chord_m"], a["cl_c_m"], rtol=1e-8)   # cl*c = cl_c
     text = (tmp_path / "aero.csv").read_text()
     assert CAUTION in text and f"CL {sol.CL:.5f}" in text
+
+
+def test_numeric_csv_rows_format_like_each_cell():
+    # the row-at-once path must write exactly what per-cell f"{v:.10g}" writes (Python format
+    # spec 'g'), padding short columns with nan as before
+    from geomload.export.tables import _csv
+
+    rng = np.random.default_rng(3)
+    a = rng.normal(size=40) * 10.0 ** rng.integers(-12, 12, size=40)
+    b = np.array([0.0, -0.0, 1e-300, 1.5e300, np.inf, -np.inf, np.nan, 123456789.123456789])
+    text = _csv(["head"], {"a_m": a, "b_N": b})
+    rows = text.splitlines()[2:]
+    assert len(rows) == 40
+    for i, r in enumerate(rows):
+        bv = f"{b[i]:.10g}" if i < b.size else "nan"
+        assert r == f"{a[i]:.10g},{bv}"

@@ -5,7 +5,8 @@ Heavy libraries (matplotlib, pyvista, scipy) are imported inside the functions t
 Run folder layout written by `write_all`::
 
     stations.csv  summary.json  envelope.csv  vn.csv  loads/<case>.csv
-    lattice.vtp  load_axis.vtp  surface.vtp  report.html
+    lattice.vtp  load_axis.vtp  surface.vtp  report.html  geomload-run.json (the run marker,
+    written by run_folder.OutputDir on commit)
     plots/planform.png spanwise.png cl_alpha.png loads.png vn.png vn.svg
           surface_dcp.png lattice_overlay.png spar_bending.png
 """
@@ -16,7 +17,7 @@ from pathlib import Path
 
 
 def write_all(run, folder, inputs=(), render=True, progress=None, options=None,
-              run_time_s=None) -> dict:
+              run_time_s=None, parallel=None, full_surface=False) -> dict:
     """Write every output of `run` into `folder` (e.g. ``OutputDir(...).staging``).
 
     Parameters
@@ -28,6 +29,10 @@ def write_all(run, folder, inputs=(), render=True, progress=None, options=None,
     progress : records.Progress callback, called as progress("export", done, total).
     options : dict of extra options echoed in the report's inputs section.
     run_time_s : total run time shown in the report (default: the sum of run.timings).
+    parallel : render the 3-D pictures in a second process while the rest is written (None:
+        when a second CPU is available).
+    full_surface : surface.vtp with every CAD triangle (default: a decimated display surface
+        above vtk.MAX_DISPLAY_TRIANGLES).
 
     Returns
     -------
@@ -55,28 +60,38 @@ def write_all(run, folder, inputs=(), render=True, progress=None, options=None,
         files.append(Path(p).relative_to(f) if Path(p).is_absolute() else Path(p))
         tick()
 
-    rec(tables.write_stations_csv(f / "stations.csv", run.stations, run.frame, run.mesh.source,
-                                  run.mesh.units, inputs))
-    taken: set = set()
-    for cr in run.cases:
-        rel = Path("loads") / f"{safe_name(cr.name, taken)}.csv"
-        rec(tables.write_loads_csv(f / rel, cr, frame=run.frame, inputs=inputs))
-        loads[cr.name] = rel
-    if has_env:
-        rec(tables.write_envelope_csv(f / "envelope.csv", run.envelope, inputs))
-    if has_vn:
-        rec(tables.write_vn_csv(f / "vn.csv", run.vn, inputs))
-    rec(tables.write_summary_json(f / "summary.json", run, inputs))
-    surface = vtk.surface_polydata(run)  # built once: surface.vtp and the 3-D pictures
-    for p in vtk.write_all_vtk(f, run, inputs, surface):
-        rec(p)
-    images = plots.make_plots(run, f / "plots", inputs)
-    tick()
-    if render:
-        from geomload.export import render as rnd
+    surface = vtk.surface_data(run, full=full_surface)  # built once: surface.vtp and pictures
+    job = None
+    try:
+        if render:
+            from geomload.export import render as rnd
 
-        images.update(rnd.render_all(run, f / "plots", inputs, surface))
+            if parallel is None:
+                parallel = rnd.parallel_pays()
+            job = rnd.RenderProcess.start(run, surface) if parallel else None
+        rec(tables.write_stations_csv(f / "stations.csv", run.stations, run.frame, run.mesh.source,
+                                      run.mesh.units, inputs))
+        taken: set = set()
+        for cr in run.cases:
+            rel = Path("loads") / f"{safe_name(cr.name, taken)}.csv"
+            rec(tables.write_loads_csv(f / rel, cr, frame=run.frame, inputs=inputs))
+            loads[cr.name] = rel
+        if has_env:
+            rec(tables.write_envelope_csv(f / "envelope.csv", run.envelope, inputs))
+        if has_vn:
+            rec(tables.write_vn_csv(f / "vn.csv", run.vn, inputs))
+        rec(tables.write_summary_json(f / "summary.json", run, inputs))
+        for p in vtk.write_all_vtk(f, run, inputs, surface):
+            rec(p)
+        images = plots.make_plots(run, f / "plots", inputs)
         tick()
+        if render:
+            shots = job.result() if job is not None else rnd.render_images(run, surface)
+            images.update(rnd.write_images(shots, f / "plots", inputs))
+            tick()
+    finally:
+        if job is not None:
+            job.stop()
     for v in images.values():
         if isinstance(v, Path):
             files.append(v.relative_to(f))

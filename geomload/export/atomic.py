@@ -1,24 +1,30 @@
-"""Atomic output: files renamed into place, run folders staged and moved in only on success.
+"""Atomic single-file output: a temporary file beside the target, then a rename into place.
 
-Why: a run that fails part-way (bad case, crash, Ctrl-C) must leave no half-written file and no
-half-filled folder, and an input (CAD file, case file) must never be overwritten or deleted.
+Why: a write that fails part-way (full disk, read-only file system, Ctrl-C, a crash) must leave
+no half-written file, and a file geomload did not make must never be replaced through a trick
+path (a symlink, a device, a FIFO, an input reached through another name).
 
-- `atomic_path(path)` yields a temporary path in the same folder; on success it is `os.replace`d
-  onto `path` (an atomic rename on POSIX and Windows when both are on one file system).
+- `atomic_path(path, inputs)` yields a temporary path in the target's folder; when the block
+  succeeds it is renamed onto `path` (atomic on POSIX when both are on one file system).
 - `write_text_atomic`, `write_bytes_atomic` are the one-call forms.
-- `OutputDir` stages a whole run in a hidden sibling folder and moves it into place on `commit()`
-  (or on leaving its `with` block without an exception); on failure the staging folder is removed.
+- `check_target(path, inputs)` refuses a symlink, a device, a FIFO, a socket or a folder as the
+  target, and an input file (compared after resolving symlinks and by device/inode).
+- Every OSError while writing (ENOSPC, EROFS, EACCES...) becomes one OutputError line naming the
+  folder and the cause; inside a staged run folder the final folder's name is shown, not the
+  hidden staging folder's.
+
+Run folders (`OutputDir`) live in geomload.export.run_folder; the names are re-exported here.
 """
 
 from __future__ import annotations
 
 import contextlib
 import os
-import re
-import shutil
+import stat
 import tempfile
 from pathlib import Path
 
+from geomload import textsafe
 from geomload.errors import OutputError
 
 
@@ -30,41 +36,133 @@ def _umask() -> int:
 
 _UMASK = _umask()  # mkstemp/mkdtemp create private entries; outputs get the usual permissions
 
+_STAGING: dict = {}  # staging folder (str) -> final run folder (str), for messages only
+
 
 def _resolved(p) -> Path:
+    """Absolute, '~' expanded, not symlink-resolved (the name the user gave)."""
     return Path(os.path.abspath(os.path.expanduser(str(p))))
+
+
+def _real(p) -> Path:
+    """Absolute with every symlink resolved (as far as the path exists)."""
+    return Path(os.path.realpath(os.path.expanduser(str(p))))
+
+
+def shown(path) -> str:
+    """`path` as the user should read it: inside a staging folder, the final run folder's path;
+    control characters escaped (the name may come from the user)."""
+    p = str(path)
+    for st, fin in _STAGING.items():
+        if p == st or p.startswith(st + os.sep):
+            p = fin + p[len(st):]
+            break
+    return textsafe.printable(p)
+
+
+def _cause(exc: OSError) -> str:
+    return exc.strerror or str(exc) or type(exc).__name__
+
+
+def write_error(path, exc: OSError) -> OutputError:
+    """The one-line OutputError for an OSError while writing `path`: '<folder>: cannot write
+    <name> (<cause>)'."""
+    p = Path(shown(path))
+    return OutputError(f"{p.parent}: cannot write {p.name} ({_cause(exc)})")
+
+
+def _same(a, b) -> bool:
+    try:
+        return os.path.samefile(a, b)
+    except OSError:
+        return False
+
+
+def check_not_input(path, inputs) -> None:
+    """Raise OutputError if `path` is one of `inputs` or a folder holding one of them.
+
+    Compared after resolving symlinks (of the path and of every parent) and by device/inode,
+    so a hard link, a symlinked parent or a bind mount cannot hide an input.
+    """
+    p, pr = _resolved(path), _real(path)
+    for inp in inputs or ():
+        if inp is None or str(inp) == "":
+            continue
+        q, qr = _resolved(inp), _real(inp)
+        if p == q or pr == qr or _same(p, q):
+            raise OutputError(f"{shown(p)}: refusing to overwrite the input file {shown(q)}")
+        if pr in qr.parents or p in q.parents:
+            raise OutputError(f"{shown(p)}: output folder contains the input file {shown(q)}; "
+                              "choose another --out")
+
+
+def check_target(path, inputs=()) -> Path:
+    """Refuse a target that is a symlink, a device, a FIFO, a socket or a folder, or an input.
+    Returns the absolute target path."""
+    final = _resolved(path)
+    if str(path).strip() == "":
+        raise OutputError("output file name is empty")
+    check_not_input(final, inputs)
+    try:
+        st = os.lstat(final)
+    except FileNotFoundError:
+        return final
+    except OSError as exc:
+        raise write_error(final, exc) from None
+    if stat.S_ISLNK(st.st_mode):
+        raise OutputError(f"{shown(final)}: is a symbolic link; geomload does not write through "
+                          "links (give the real file name)")
+    if stat.S_ISDIR(st.st_mode):
+        raise OutputError(f"{shown(final)}: is a folder, not a file")
+    if not stat.S_ISREG(st.st_mode):
+        kind = ("a FIFO" if stat.S_ISFIFO(st.st_mode) else "a socket" if stat.S_ISSOCK(st.st_mode)
+                else "a device")
+        raise OutputError(f"{shown(final)}: is {kind}, not a regular file; refusing to write it")
+    return final
 
 
 @contextlib.contextmanager
 def atomic_path(path, inputs=()):
     """Yield a temporary path beside `path`; rename it onto `path` if the block succeeds.
 
-    The temporary name keeps the file's extension (writers such as VTK pick the format from it).
-    `inputs`: paths that must never be written; naming one raises OutputError.
+    The temporary name keeps the file's extension (writers may pick the format from it).
+    Refused targets: see `check_target`. Any OSError (in the block or the rename) becomes an
+    OutputError naming the folder and the cause; the temporary file is always removed.
     """
-    final = _resolved(path)
-    check_not_input(final, inputs)
-    final.parent.mkdir(parents=True, exist_ok=True)
-    suffix = "".join(final.suffixes[-1:])
-    fd, tmp = tempfile.mkstemp(prefix=f".{final.stem}.", suffix=".tmp" + suffix, dir=final.parent)
-    os.close(fd)
+    final = check_target(path, inputs)
+    try:
+        final.parent.mkdir(parents=True, exist_ok=True)
+        fd, tmp = tempfile.mkstemp(prefix=f".{final.stem[:60]}.", suffix=".tmp" + final.suffix[-12:],
+                                   dir=final.parent)
+        os.close(fd)
+    except OSError as exc:
+        raise write_error(final, exc) from None
     try:
         yield Path(tmp)
+        check_target(final, inputs)  # again: something may have appeared there meanwhile
         os.chmod(tmp, 0o666 & ~_UMASK)
-        os.replace(tmp, final)
+        os.rename(tmp, final)
+    except OSError as exc:
+        with contextlib.suppress(OSError):
+            os.unlink(tmp)
+        raise write_error(final, exc) from None
     except BaseException:
         with contextlib.suppress(OSError):
             os.unlink(tmp)
         raise
 
 
-def write_bytes_atomic(path, data: bytes, inputs=()) -> Path:
-    """Write `data` to `path` atomically (temporary file in the same folder, then rename)."""
+def write_bytes_atomic(path, data: bytes, inputs=(), fsync: bool = True) -> Path:
+    """Write `data` to `path` atomically (temporary file in the same folder, then rename).
+    Every byte is checked written (a short write raises); fsync before the rename."""
     with atomic_path(path, inputs) as tmp:
         with open(tmp, "wb") as fh:
-            fh.write(data)
+            n = fh.write(data)
+            if n != len(data):
+                raise OSError(28, f"short write ({n} of {len(data)} bytes)")
             fh.flush()
-            os.fsync(fh.fileno())
+            if fsync:
+                os.fsync(fh.fileno())
     return _resolved(path)
 
 
@@ -73,26 +171,11 @@ def write_text_atomic(path, text: str, inputs=()) -> Path:
     return write_bytes_atomic(path, text.encode("utf-8"), inputs)
 
 
-def check_not_input(path, inputs) -> None:
-    """Raise OutputError if `path` is one of `inputs` or a folder holding one of them."""
-    p = _resolved(path)
-    for inp in inputs or ():
-        if inp is None:
-            continue
-        q = _resolved(inp)
-        if p == q or (p.exists() and q.exists() and os.path.samefile(p, q)):
-            raise OutputError(f"{p}: refusing to overwrite the input file {q}")
-        if p in q.parents:
-            raise OutputError(f"{p}: output folder contains the input file {q}; choose another --out")
-
-
-_UNSAFE = re.compile(r"[^A-Za-z0-9_.+-]+")
-
-
 def safe_name(name: str, taken=None) -> str:
-    """A file-name-safe version of a user string (case name), unique within `taken` (a set)."""
-    base = _UNSAFE.sub("_", str(name)).strip("._") or "case"
-    base = base[:80]
+    """A file-name-safe ASCII version of a user string (case name), unique within `taken` (a set
+    of lower-case names already used). Accents are dropped from their letters; a name with no
+    ASCII left becomes 'case'."""
+    base = textsafe.ascii_key(name)[:80] or "case"
     out, k = base, 2
     if taken is not None:
         while out.lower() in taken:
@@ -101,97 +184,9 @@ def safe_name(name: str, taken=None) -> str:
     return out
 
 
-class OutputDir:
-    """A run folder filled atomically.
+def __getattr__(name):  # OutputDir and friends moved to run_folder; old imports keep working
+    if name in ("OutputDir", "MARKER", "read_marker"):
+        from geomload.export import run_folder
 
-    Parameters
-    ----------
-    path : the final folder. An existing non-empty folder is refused unless `force`; with
-        `force` the old folder is replaced only once the new run has succeeded.
-    force : allow replacing an existing folder.
-    inputs : input paths (CAD file, case file) that no output may overwrite; the final folder
-        may not contain them either (replacing it would delete them).
-
-    Use::
-
-        with OutputDir(out, force=True, inputs=[case_path, cad_path]) as od:
-            write_something(od.path("stations.csv"))
-        # here the folder is in place; on an exception nothing was written to `out`.
-    """
-
-    def __init__(self, path, force: bool = False, inputs=()):
-        self.final = _resolved(path)
-        self.force = bool(force)
-        self.inputs = [i for i in (inputs or ()) if i is not None]
-        self.staging: Path | None = None
-        self.committed = False
-
-    # -- life cycle
-    def open(self) -> "OutputDir":
-        f = self.final
-        if f.exists() and not f.is_dir():
-            raise OutputError(f"{f}: exists and is not a folder")
-        check_not_input(f, self.inputs)
-        if f.is_dir() and any(f.iterdir()) and not self.force:
-            raise OutputError(f"{f}: folder exists and is not empty (use --force to replace it)")
-        for anc in f.parents:
-            if anc.exists():
-                if not anc.is_dir():
-                    raise OutputError(f"{f}: cannot create output folder: {anc} is a file, "
-                                      "not a folder")
-                break
-        try:
-            f.parent.mkdir(parents=True, exist_ok=True)
-            self.staging = Path(tempfile.mkdtemp(prefix=f".{f.name}.partial-", dir=f.parent))
-        except OSError as exc:
-            raise OutputError(f"{f}: cannot create output folder ({exc.strerror or exc})") from None
-        return self
-
-    def path(self, rel) -> Path:
-        """Where to write the output `rel` (a path relative to the run folder) while staging."""
-        if self.staging is None:
-            raise OutputError(f"{self.final}: output folder is not open")
-        rel = Path(rel)
-        if rel.is_absolute() or ".." in rel.parts:
-            raise OutputError(f"{rel}: output path must be relative to the run folder")
-        check_not_input(self.final / rel, self.inputs)
-        p = self.staging / rel
-        p.parent.mkdir(parents=True, exist_ok=True)
-        return p
-
-    def commit(self) -> Path:
-        """Move the staged folder into place (replacing an old one when `force`)."""
-        if self.staging is None:
-            raise OutputError(f"{self.final}: output folder is not open")
-        f, old = self.final, None
-        try:
-            if f.exists():
-                old = Path(tempfile.mkdtemp(prefix=f".{f.name}.old-", dir=f.parent))
-                os.replace(f, old / f.name)
-            os.chmod(self.staging, 0o777 & ~_UMASK)
-            os.replace(self.staging, f)
-        except OSError as exc:
-            if old is not None and not f.exists() and (old / f.name).exists():
-                os.replace(old / f.name, f)  # put the previous run back
-            self.abort()
-            raise OutputError(f"{f}: cannot move the run into place ({exc.strerror or exc})") from None
-        if old is not None:
-            shutil.rmtree(old, ignore_errors=True)
-        self.staging, self.committed = None, True
-        return f
-
-    def abort(self) -> None:
-        """Remove the staging folder and everything in it."""
-        if self.staging is not None:
-            shutil.rmtree(self.staging, ignore_errors=True)
-            self.staging = None
-
-    def __enter__(self) -> "OutputDir":
-        return self.open()
-
-    def __exit__(self, exc_type, exc, tb) -> bool:
-        if exc_type is None:
-            self.commit()
-        else:
-            self.abort()
-        return False
+        return getattr(run_folder, name)
+    raise AttributeError(name)

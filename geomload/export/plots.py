@@ -15,6 +15,7 @@ import numpy as np
 
 from geomload.export import envelope_access as ea
 from geomload.export.atomic import write_bytes_atomic
+from geomload.textsafe import mpl_text
 
 MAX_CASE_LINES = 8  # beyond this, cases are drawn as thin grey lines (the envelope tells the story)
 
@@ -105,19 +106,19 @@ def plot_spanwise(run, case_result=None):
     fig, (a1, a2) = _figure(1, 2, size=(10, 4.0), margins=(0.07, 0.98, 0.12, 0.92))
     shown = [cr] + [c for c in run.cases if c is not cr][:MAX_CASE_LINES - 1]
     for c in shown:
-        a1.plot(c.aero.y, c.aero.cl, lw=1.2, label=c.name)
+        a1.plot(c.aero.y, c.aero.cl, lw=1.2, label=mpl_text(c.name))
     a1.set_xlabel("y, spanwise (m)")
     a1.set_ylabel("section lift coefficient cl (-)")
     more = f" ({len(shown)} of {len(run.cases)} cases)" if len(shown) < len(run.cases) else ""
     a1.set_title("Spanwise cl" + more)
     a1.legend(fontsize=7, loc="lower left")
     sh = spanload_shapes(run, cr)
-    a2.plot(sh["y"], sh["case"], "k-", marker=".", lw=1.5, label=f"lattice: {cr.name}")
+    a2.plot(sh["y"], sh["case"], "k-", marker=".", lw=1.5, label=mpl_text(f"lattice: {cr.name}"))
     a2.plot(sh["y_ref"], sh["elliptic"], "b--", lw=1.0, label="elliptic, same CL")
     a2.plot(sh["y_ref"], sh["schrenk"], "g-.", lw=1.0, label="Schrenk, same CL")
     a2.set_xlabel("y, spanwise (m)")
     a2.set_ylabel("cl·c / c_ref (-)")
-    a2.set_title(f"Span loading, CL = {cr.aero.CL:.3f}")
+    a2.set_title(mpl_text(f"Span loading, CL = {cr.aero.CL:.3f}, case: {cr.name}"))
     a2.legend(fontsize=7, loc="lower left")
     for ax in (a1, a2):
         ax.grid(alpha=0.3)
@@ -132,7 +133,7 @@ def plot_cl_alpha(run):
         al, cl = np.asarray(run.alpha_sweep, float).T
         ax.plot(al, cl, "k-", marker="o", ms=3, label="vortex lattice")
     for c in run.cases[:MAX_CASE_LINES]:
-        ax.plot(c.aero.alpha_deg, c.aero.CL, "s", ms=6, label=f"{c.name} (trim)")
+        ax.plot(c.aero.alpha_deg, c.aero.CL, "s", ms=6, label=mpl_text(f"{c.name} (trim)"))
     a0 = run.cases[0].aero if run.cases else None
     if a0 is not None:
         ax.set_title(f"CL against alpha: CL_alpha = {a0.CL_alpha_per_rad:.3f} /rad, "
@@ -151,13 +152,21 @@ LOADS = (("shear_N", "shear", "shear V (N)"), ("bending_Nm", "bending", "bending
 
 def plot_loads(run):
     """V, M, T against span: each case (limit), the envelope limit (solid) and ultimate (dashed)."""
+    from matplotlib.collections import LineCollection
+
     fig, axes = _figure(3, 1, size=(8, 9), margins=(0.11, 0.97, 0.06, 0.95), sharex=True)
     many = len(run.cases) > MAX_CASE_LINES
     env = ea.table(run.envelope) if run.envelope is not None else None
     for ax, (attr, q, label) in zip(axes, LOADS):
-        for c in run.cases:
-            kw = dict(color="0.7", lw=0.6) if many else dict(lw=1.2, label=c.name)
-            ax.plot(c.loads.y, getattr(c.loads, attr), **kw)
+        if many:  # one collection for all cases: drawing cost no longer grows per artist
+            segs = [np.column_stack([np.asarray(c.loads.y, float),
+                                     np.asarray(getattr(c.loads, attr), float)]) for c in run.cases]
+            ax.add_collection(LineCollection(segs, colors="0.7", linewidths=0.6,
+                                             label=f"{len(segs)} cases, limit"))
+            ax.autoscale_view()
+        else:
+            for c in run.cases:
+                ax.plot(c.loads.y, getattr(c.loads, attr), lw=1.2, label=mpl_text(c.name))
         if env is not None:
             for side in ("max", "min"):
                 ax.plot(env["y"], env[f"{q}_{side}"], "r-", lw=2.0,
@@ -193,11 +202,11 @@ def plot_vn(vn):
         for j, p in enumerate(ea.vn_points(d)):
             ax.plot(p["v_eas"], p["n"], "ko", ms=4)
             if k == 0:  # label the first diagram's points; alternate sides against overlap
-                ax.annotate(p["label"], (p["v_eas"], p["n"]), textcoords="offset points",
+                ax.annotate(mpl_text(p["label"]), (p["v_eas"], p["n"]), textcoords="offset points",
                             xytext=(5, 5 if j % 2 == 0 else -11), fontsize=7)
-    handles = [Line2D([], [], color=c, lw=1.4, label=n) for n, c in colours.items()]
+    handles = [Line2D([], [], color=c, lw=1.4, label=mpl_text(n)) for n, c in colours.items()]
     if len(diagrams) > 1:
-        handles += [Line2D([], [], color="k", ls=styles[k % 4], label=ea.vn_title(d, k))
+        handles += [Line2D([], [], color="k", ls=styles[k % 4], label=mpl_text(ea.vn_title(d, k)))
                     for k, d in enumerate(diagrams)]
     ax.legend(handles=handles, fontsize=7, loc="upper left", bbox_to_anchor=(1.01, 1.0))
     ax.set_xlim(0, 1.18 * vmax if vmax > 0 else None)

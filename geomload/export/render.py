@@ -14,7 +14,8 @@ import numpy as np
 from geomload.errors import InputError, OutputError
 from geomload.export import envelope_access as ea
 from geomload.export import vtk as gvtk
-from geomload.export.atomic import atomic_path
+from geomload.export.atomic import write_bytes_atomic
+from geomload.textsafe import printable
 
 WINDOW = (900, 600)
 
@@ -55,10 +56,38 @@ def _camera(p, bounds):
     p.camera.zoom(1.5)
 
 
+def png_bytes(img) -> bytes:
+    """PNG file bytes of an (h, w, 3 or 4) uint8 image (PNG specification, ISO/IEC 15948:
+    signature, IHDR, one zlib-compressed IDAT with filter byte 0 per row, IEND)."""
+    import struct
+    import zlib
+
+    a = np.ascontiguousarray(np.asarray(img, np.uint8))
+    h, w, c = a.shape
+    raw = np.zeros((h, 1 + w * c), np.uint8)
+    raw[:, 1:] = a.reshape(h, w * c)
+
+    def chunk(tag, data):
+        return (struct.pack(">I", len(data)) + tag + data
+                + struct.pack(">I", zlib.crc32(tag + data) & 0xFFFFFFFF))
+
+    ihdr = struct.pack(">IIBBBBB", w, h, 8, 6 if c == 4 else 2, 0, 0, 0)
+    return (b"\x89PNG\r\n\x1a\n" + chunk(b"IHDR", ihdr)
+            + chunk(b"IDAT", zlib.compress(raw.tobytes(), 6)) + chunk(b"IEND", b""))
+
+
+def _image(p) -> bytes:
+    """The plotter's picture as PNG bytes (rendered in memory; no file is written by VTK)."""
+    try:
+        img = p.screenshot(None, return_img=True)
+    finally:
+        p.close()
+    return png_bytes(img)
+
+
 def _shoot(p, path, inputs=()):
-    with atomic_path(path, inputs) as tmp:
-        p.screenshot(str(tmp))
-    p.close()
+    """Render `p` and write the PNG atomically through geomload's own writer."""
+    write_bytes_atomic(path, _image(p), inputs)
     return Path(path)
 
 
@@ -67,29 +96,28 @@ def _bar(title):
             "n_labels": 5, "fmt": "%.3g", "vertical": True, "position_x": 0.86, "position_y": 0.1}
 
 
-def render_surface_dcp(run, path, case=None, inputs=(), surface=None):
+def render_surface_dcp(run, path, case=None, inputs=(), surface=None, image_only=False):
     """The CAD surface coloured by delta-Cp (lower - upper, dimensionless) of one case.
 
     case: a case name; None -> the critical case (largest root |bending|).
     surface: a prebuilt vtk.surface_polydata(run) (saves rebuilding it per picture).
     """
     cr = ea.find_case(run, case)
-    surf = (surface if surface is not None else gvtk.surface_polydata(run)).copy()
-    near = surf.cell_data["panel"]
-    surf.cell_data["dcp"] = np.asarray(cr.aero.dcp, float)[near]
+    s = surface if surface is not None else gvtk.surface_data(run)
+    surf = gvtk.surface_polydata(run, s, {"dcp": np.asarray(cr.aero.dcp, float)[s.panel]})
     p = _plotter()
     p.add_mesh(surf, scalars="dcp", cmap="coolwarm", scalar_bar_args=_bar("delta-Cp (-)\nlower - upper"))
     _caution(p)
-    p.add_text(f"delta-Cp, case: {cr.name}  (x q = {cr.q_pa:.0f} Pa gives the pressure jump in Pa)",
+    p.add_text(f"delta-Cp, case: {printable(cr.name)}  (x q = {cr.q_pa:.0f} Pa gives the pressure jump in Pa)",
                font_size=9, color="black")
     _camera(p, surf.bounds)
-    return _shoot(p, path, inputs)
+    return _image(p) if image_only else _shoot(p, path, inputs)
 
 
-def render_lattice_overlay(run, path, inputs=(), surface=None):
+def render_lattice_overlay(run, path, inputs=(), surface=None, image_only=False):
     """The CAD surface (grey, translucent) with the vortex-lattice panels drawn over it."""
-    surf = surface if surface is not None else gvtk.surface_polydata(run)
-    lat = gvtk.lattice_polydata(run)
+    surf = gvtk.surface_polydata(run, surface)
+    lat = gvtk.lattice_polydata(run, with_cases=False)
     p = _plotter()
     p.add_mesh(surf, color="lightgrey", opacity=0.55)
     p.add_mesh(lat, style="wireframe", color="navy", line_width=1.5)
@@ -97,10 +125,10 @@ def render_lattice_overlay(run, path, inputs=(), surface=None):
                f"panels per side), wing frame, m", font_size=9, color="black")
     p.show_axes()
     _camera(p, surf.bounds)
-    return _shoot(p, path, inputs)
+    return _image(p) if image_only else _shoot(p, path, inputs)
 
 
-def render_spar_bending(run, path, case=None, inputs=(), surface=None):
+def render_spar_bending(run, path, case=None, inputs=(), surface=None, image_only=False):
     """The spar line as a tube coloured by the bending moment (N m), over the faint surface."""
     cr = ea.find_case(run, case)
     line = gvtk.spar_line(run, cr)
@@ -110,7 +138,7 @@ def render_spar_bending(run, path, case=None, inputs=(), surface=None):
     poly.point_data["bending_Nm"] = np.asarray(cr.loads.bending_Nm, float)
     span = float(np.ptp(line[:, 1])) or 1.0
     tube = poly.tube(radius=0.012 * span)
-    surf = surface if surface is not None else gvtk.surface_polydata(run)
+    surf = gvtk.surface_polydata(run, surface)
     p = _plotter()
     p.add_mesh(surf, color="lightgrey", opacity=0.3)
     p.add_mesh(tube, scalars="bending_Nm", cmap="viridis",
@@ -125,17 +153,21 @@ def render_spar_bending(run, path, case=None, inputs=(), surface=None):
     drops.lines = np.column_stack([np.full(n, 2), np.arange(n), np.arange(n) + n]).ravel()
     p.add_mesh(drops, color="darkred", line_width=1)
     _caution(p)
-    p.add_text(f"bending moment along the spar, case: {cr.name}; red line: M to scale",
+    p.add_text(f"bending moment along the spar, case: {printable(cr.name)}; red line: M to scale",
                font_size=9, color="black")
     _camera(p, surf.bounds)
-    return _shoot(p, path, inputs)
+    return _image(p) if image_only else _shoot(p, path, inputs)
 
 
 def render_stations_png(mesh, frame, stations, path, inputs=()):
     """The CAD mesh in the wing frame with each cut station's chord and camber line drawn."""
     import pyvista as pv
 
-    pts, tri = gvtk.surface_points_faces(mesh, frame)
+    if mesh.n_triangles > gvtk.MAX_DISPLAY_TRIANGLES:
+        cad, tri = gvtk.decimate_soup(mesh.triangles, gvtk.MAX_DISPLAY_TRIANGLES)
+        pts = frame.to_wing(cad)
+    else:
+        pts, tri = gvtk.surface_points_faces(mesh, frame)
     surf = pv.PolyData(pts, np.hstack([np.full((tri.shape[0], 1), 3), tri]).ravel())
     p = _plotter()
     p.add_mesh(surf, color="lightgrey", opacity=0.5)
@@ -161,21 +193,39 @@ RENDERS = {"surface_dcp": render_surface_dcp, "lattice_overlay": render_lattice_
            "spar_bending": render_spar_bending}
 
 
-def render_all(run, folder, inputs=(), surface=None) -> dict:
-    """folder/<name>.png for each of RENDERS; name -> Path, or the Exception if it failed.
-    `surface`: a prebuilt vtk.surface_polydata(run) (the one surface.vtp was written from)."""
+def render_images(run, surface=None) -> dict:
+    """name -> PNG bytes for each of RENDERS, or the Exception that stopped that picture (no
+    OpenGL, no display...). Writes no file, so it can run in another process."""
     out, surf = {}, surface
     if surf is None:
         try:
-            surf = gvtk.surface_polydata(run)
+            surf = gvtk.surface_data(run)
         except Exception:  # each picture below then reports its own failure
             pass
     for name, fn in RENDERS.items():
         try:
-            out[name] = fn(run, Path(folder) / f"{name}.png", inputs=inputs, surface=surf)
-        except Exception as exc:  # no OpenGL, no display, ... -> the report says so
-            out[name] = exc
+            out[name] = fn(run, None, surface=surf, image_only=True)
+        except Exception as exc:  # -> the report says "3D render unavailable: <reason>"
+            out[name] = RuntimeError(f"{type(exc).__name__}: {exc}")
     return out
+
+
+def write_images(images: dict, folder, inputs=()) -> dict:
+    """Write the PNG bytes of `images` as folder/<name>.png atomically; name -> Path, or the
+    Exception kept from rendering. A write failure (full disk...) raises OutputError."""
+    out = {}
+    for name, v in images.items():
+        if isinstance(v, (bytes, bytearray)):
+            out[name] = write_bytes_atomic(Path(folder) / f"{name}.png", bytes(v), inputs)
+        else:
+            out[name] = v
+    return out
+
+
+def render_all(run, folder, inputs=(), surface=None) -> dict:
+    """folder/<name>.png for each of RENDERS; name -> Path, or the Exception if it failed.
+    `surface`: a prebuilt vtk.surface_data(run) (the one surface.vtp was written from)."""
+    return write_images(render_images(run, surface), folder, inputs)
 
 
 def _case_key(mesh, case):
@@ -185,7 +235,8 @@ def _case_key(mesh, case):
         crit = np.atleast_1d(mesh.field_data.get("critical_case", [names[0] if names else ""]))
         case = str(crit[0])
     if case not in names:
-        raise InputError(f"--case {case!r}: not in this run (cases: {', '.join(names)})")
+        raise InputError(f"--case {printable(case)!r}: not in this run (cases: "
+                         f"{', '.join(printable(n) for n in names)})")
     return keys[names.index(case)], case
 
 
@@ -224,9 +275,13 @@ def view(run_dir, case=None, screenshot=None):
     off = screenshot is not None
     p = _plotter(off_screen=off, size=(1100, 750))
     surf = data["surface"]
-    sc = f"dcp_{key}" if f"dcp_{key}" in surf.cell_data else "dcp_critical"
-    actors = [p.add_mesh(surf, scalars=sc, cmap="coolwarm",
-                         scalar_bar_args=_bar("delta-Cp (-)\nlower - upper"))]
+    sc = f"pressure_jump_Pa_{key}"
+    if sc not in surf.cell_data:
+        sc = "pressure_jump_Pa_critical" if "pressure_jump_Pa_critical" in surf.cell_data \
+            else "dcp_critical"
+    title = ("lift per plan area (Pa)\nshare of the jump" if sc.startswith("pressure")
+             else "delta-Cp (-)\nlower - upper")
+    actors = [p.add_mesh(surf, scalars=sc, cmap="coolwarm", scalar_bar_args=_bar(title))]
     actors.append(p.add_mesh(data["lattice"], style="wireframe", color="navy", line_width=1))
     ax = data["load_axis"]
     span = float(np.ptp(ax.points[:, 1])) or 1.0
@@ -234,13 +289,13 @@ def view(run_dir, case=None, screenshot=None):
     bar_m = dict(_bar("bending M (N m)"), position_x=0.72)  # beside the delta-Cp bar, not on it
     actors.append(p.add_mesh(ax.tube(radius=0.01 * span), scalars=bk if bk in ax.point_data else None,
                              cmap="viridis", scalar_bar_args=bar_m))
-    p.add_text(f"case: {name}" + ("" if sc.endswith(key) else " (surface: critical case)"),
+    p.add_text(f"case: {printable(name)}" + ("" if sc.endswith(key) else " (surface: critical case)"),
                font_size=10, color="black")
     _caution(p)
     _camera(p, surf.bounds)
     if off:
         try:
-            return _shoot(p, screenshot)
+            return _shoot(p, screenshot, inputs=list(files.values()))
         except OSError as exc:
             raise OutputError(f"{screenshot}: cannot write the screenshot ({exc})") from None
     for i, (a, label) in enumerate(zip(actors, ("surface", "lattice", "load axis"))):
@@ -249,3 +304,98 @@ def view(run_dir, case=None, screenshot=None):
         p.add_text(label, position=(52, 18 + 45 * i), font_size=9, color="black")
     p.show(title=f"geomload view: {d.name}")
     return None
+
+
+# ------------------------------------------------------------------ pictures in another process
+def _render_child(conn, run, surface) -> None:  # pragma: no cover - runs in the child
+    import os
+    import signal
+
+    try:  # end with the parent: the kernel sends SIGTERM when the parent dies (Linux)
+        import ctypes
+
+        ctypes.CDLL(None, use_errno=True).prctl(1, signal.SIGTERM)  # PR_SET_PDEATHSIG
+    except Exception:  # noqa: BLE001 - not Linux: the parent still stops the child itself
+        pass
+    for s in (signal.SIGINT, signal.SIGTERM, signal.SIGHUP):
+        signal.signal(s, signal.SIG_DFL)
+    code = 0
+    try:
+        conn.send(render_images(run, surface))
+    except BaseException:  # noqa: BLE001 - the parent reports the pictures as unavailable
+        code = 1
+    finally:
+        conn.close()
+        os._exit(code)
+
+
+class RenderProcess:
+    """`render_images(run, surface)` in a forked child process, while the parent writes tables,
+    VTK files and plots. The child writes no file: it sends the PNG bytes back and the parent
+    writes them (so a full disk or an interrupt is handled in one place). A crash of the child
+    (VTK/OpenGL) costs only the pictures: `result()` then returns the reason for each.
+
+    Use ``job = RenderProcess.start(run, surface)`` (None where fork is unavailable), then
+    ``job.result()``; ``job.stop()`` in a finally block ends the child if still running.
+    """
+
+    def __init__(self, proc, conn):
+        self.proc, self.conn = proc, conn
+
+    @classmethod
+    def start(cls, run, surface=None):
+        import multiprocessing as mp
+
+        try:
+            ctx = mp.get_context("fork")
+        except ValueError:
+            return None
+        recv, send = ctx.Pipe(duplex=False)
+        proc = ctx.Process(target=_render_child, args=(send, run, surface), daemon=True)
+        proc.start()
+        send.close()
+        return cls(proc, recv)
+
+    def result(self) -> dict:
+        try:
+            out = self.conn.recv()
+        except (EOFError, OSError):
+            self.proc.join(5)
+            why = RuntimeError(f"the render process ended without pictures (exit code "
+                               f"{self.proc.exitcode})")
+            out = {name: why for name in RENDERS}
+        finally:
+            self.conn.close()
+        self.proc.join(5)
+        return out
+
+    def stop(self) -> None:
+        if self.proc.is_alive():
+            self.proc.terminate()
+            self.proc.join(5)
+            if self.proc.is_alive():
+                self.proc.kill()
+                self.proc.join(5)
+        with __import__("contextlib").suppress(OSError):
+            self.conn.close()
+
+
+BUSY_MARGIN = 0.5  # a CPU counts as free when the 1-minute load leaves at least half of it idle
+
+
+def parallel_pays() -> bool:
+    """Render in a second process only when a second CPU is free for it: at least two CPUs
+    for this process and a 1-minute load average below (CPUs - 1 + BUSY_MARGIN). On a busy
+    machine the two processes would only take turns (measured: no gain at load 10 on 2 CPUs)."""
+    import os
+
+    try:
+        ncpu = len(os.sched_getaffinity(0))
+    except AttributeError:
+        ncpu = os.cpu_count() or 1
+    if ncpu < 2:
+        return False
+    try:
+        return os.getloadavg()[0] < ncpu - 1 + BUSY_MARGIN
+    except OSError:
+        return True

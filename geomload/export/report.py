@@ -18,6 +18,7 @@ import numpy as np
 from geomload import CAUTION, __version__
 from geomload.export import envelope_access as ea
 from geomload.export.atomic import write_text_atomic
+from geomload.textsafe import printable
 
 SECTIONS = (("job", "The job"), ("geometry", "Geometry check"), ("aerodynamics", "Aerodynamics"),
             ("loads", "Spanwise loads"), ("vn", "V-n diagram"),
@@ -51,7 +52,8 @@ figcaption{font-size:.85em;color:#555}pre{background:#f6f6f6;padding:.6em;overfl
 
 
 def esc(s) -> str:
-    return html.escape(str(s), quote=True)
+    """HTML-escaped user text; control characters (terminal escapes) shown as backslash escapes."""
+    return html.escape(printable(s, keep_newlines=True), quote=True)
 
 
 def _fmt(v, nd=4) -> str:

@@ -4,7 +4,10 @@ Every CSV starts with '#' comment lines (units, sign convention, frame, source, 
 caution), then one row of unit-carrying column names, then the data: the caution is the first
 thing a reader sees. Read back with `read_csv_table`, pandas.read_csv(path, comment="#"), or
 numpy.genfromtxt(path, delimiter=",", names=True, skip_header=comment_lines(path)). Text cells
-never hold ',', '"' or '#' (replaced), so no quoting is needed.
+never hold ',', '"' or '#' (replaced), so no quoting is needed; a text cell beginning with
+=, +, - or @ gets a leading ' so that spreadsheets show it as text instead of running it as a
+formula (numbers are never changed; textsafe.csv_text_cell). summary.json is strict JSON: a
+number that is not finite is written as null.
 """
 
 from __future__ import annotations
@@ -15,6 +18,7 @@ import math
 import numpy as np
 
 from geomload import CAUTION, __version__
+from geomload import textsafe
 from geomload.export import envelope_access as ea
 from geomload.export.atomic import write_text_atomic
 
@@ -27,7 +31,7 @@ FRAME = ("wing frame: x aft along the root chord, y along the span (starboard po
 
 def _clean(s) -> str:
     """One line of text safe inside a '#' comment line."""
-    return " ".join(str(s).split())
+    return " ".join(textsafe.printable(s).split())
 
 
 def _csv(header_lines, columns: dict) -> str:
@@ -38,20 +42,25 @@ def _csv(header_lines, columns: dict) -> str:
     cols = [np.asarray(columns[k]) for k in names]
     n = max((c.size for c in cols), default=0)
     out = [f"# {_clean(h)}" for h in header_lines] + [",".join(names)]
+    text = [c.dtype == object or c.dtype.kind in "US" for c in cols]
+    if not any(text):  # all numbers: one %-format per row ('%.10g' is the same as f'{v:.10g}')
+        a = np.full((n, len(cols)), np.nan)
+        for j, c in enumerate(cols):
+            a[: c.size, j] = np.asarray(c, float).ravel()
+        fmt = ",".join(["%.10g"] * len(cols))
+        out.extend(fmt % tuple(r) for r in a.tolist())
+        return "\n".join(out) + "\n"
     for i in range(n):
         row = []
-        for c in cols:
+        for c, is_text in zip(cols, text):
             v = c[i] if i < c.size else float("nan")
-            if isinstance(v, (str, np.str_)) or c.dtype == object:
-                row.append(_cell_text(v))
-            else:
-                row.append(f"{float(v):.10g}")
+            row.append(_cell_text(v) if is_text else f"{float(v):.10g}")
         out.append(",".join(row))
     return "\n".join(out) + "\n"
 
 
 def _cell_text(v) -> str:
-    return _clean(v).replace(",", ";").replace('"', "'").replace("#", "_") or "-"
+    return textsafe.csv_text_cell(v)
 
 
 def frame_lines(frame) -> list:
@@ -125,7 +134,7 @@ def write_envelope_csv(path, envelope, inputs=()):
     head = [f"geomload {__version__} envelope of loads over all cases (one semi-span)", CAUTION,
             SIGNS, FRAME, "limit loads; *_ult_* = ultimate (each case's ultimate factor x limit, "
             "1.5 by 14 CFR 23.303 unless set); units: y m, shear N, moments N m",
-            "*_case columns: the case that governs the value before it"]
+            "*_case columns: the case that governs the value before it", textsafe.CSV_HEADER_NOTE]
     cols = {"y_m": e["y"]}
     for q, u in e["quantities"]:
         for side in ("max", "min"):
@@ -150,7 +159,7 @@ def write_vn_csv(path, vn, inputs=()):
     head = [f"geomload {__version__} V-n diagram (limit load factors)", CAUTION,
             "units: v_eas_m_s equivalent airspeed m/s; n load factor (-)",
             "kind: 'curve' rows trace a boundary line, 'point' rows are the named design points",
-            "diagram: the flying mass and altitude of the diagram"]
+            "diagram: the flying mass and altitude of the diagram", textsafe.CSV_HEADER_NOTE]
     cols = {"diagram": np.array(diag, dtype=object), "kind": np.array(kind, dtype=object), "name": np.array(name, dtype=object),
             "v_eas_m_s": np.array(v, float), "n": np.array(n, float)}
     return write_text_atomic(path, _csv(head, cols), inputs)
@@ -196,7 +205,8 @@ def summary(run) -> dict:
                "washout_deg")},
            "planform_units": "m, m^2, deg", "cases": cases, "envelope": None,
            "warnings": list(run.warnings), "timings_s": dict(run.timings),
-           "versions": dict(run.versions)}
+           "versions": dict(run.versions),
+           "null_means": "a number that is not finite (NaN or infinite) is written as null"}
     if run.envelope is not None:
         e = ea.table(run.envelope)
         env = {"y_m": e["y"].tolist()}
@@ -213,7 +223,9 @@ def summary(run) -> dict:
 
 def write_summary_json(path, run_result, inputs=()):
     """Write summary.json (see `summary`)."""
-    return write_text_atomic(path, json.dumps(summary(run_result), indent=1) + "\n", inputs)
+    text = json.dumps(textsafe.json_safe(summary(run_result)), indent=1, allow_nan=False,
+                      ensure_ascii=False)
+    return write_text_atomic(path, text + "\n", inputs)
 
 
 def write_aero_csv(path, solution, source="", inputs=()):

@@ -1,102 +1,122 @@
-"""VTK PolyData (.vtp) files for ParaView, written with pyvista (imported lazily), atomically.
+"""VTK PolyData (.vtp) files for ParaView, written without VTK (geomload.export.vtkxml), atomically.
 
 - lattice.vtp: the vortex-lattice panels as quads (wing frame); cell data per case
   ``gamma_<key>`` (circulation per unit speed, m), ``circulation_<key>`` (m^2/s, x V_TAS),
   ``dcp_<key>`` (pressure-coefficient jump lower - upper, -), plus ``strip`` and ``area_m2``.
 - load_axis.vtp: the spar line as one polyline; point data per case ``shear_N_<key>``,
   ``bending_Nm_<key>``, ``torsion_Nm_<key>`` (limit) and, with an envelope, ``*_max``/``*_min``.
-- surface.vtp: the CAD surface in the wing frame; cell data ``dcp_<key>`` per case (when at most
-  MAX_SURFACE_CASES cases) and always ``dcp_critical`` and ``pressure_jump_Pa_critical``, each
-  triangle taking the value of the nearest lattice panel in the (x, |y|) plan projection.
+- surface.vtp: the CAD surface in the wing frame (a decimated display surface above
+  MAX_DISPLAY_TRIANGLES, see `surface_data`); cell data ``panel`` (nearest lattice panel in the
+  (x, |y|) plan view), ``plan_area_m2`` (the cell's area projected on the wing x-y plane) and,
+  for every case, ``pressure_jump_Pa_<key>``: the case's lift per unit plan area carried by the
+  cell. Split rule: each lattice panel's share of its strip lift is spread over the cells
+  nearest that panel in proportion to their plan area, so a closed wing's upper and lower skins
+  carry about half each, and sum(pressure_jump_Pa * plan_area_m2) over the surface equals the
+  lift of the wing in the file (one semi-span for a half wing, both for a full one). Also
+  ``dcp_critical`` (the nearest panel's jump coefficient, for colour) and
+  ``pressure_jump_Pa_critical`` (= the critical case's ``pressure_jump_Pa_<key>``).
 
-``<key>`` is a file-safe form of the case name; field data ``case_names`` / ``case_keys`` (in the
-same order) map them back, and ``critical_case`` names the case painted by default.
+``<key>`` is an ASCII, file-safe form of the case name; field data ``case_names`` (String, UTF-8,
+any Unicode) and ``case_keys`` (same order) map them back, and ``critical_case`` names the case
+painted by default.
 """
 
 from __future__ import annotations
+
+from dataclasses import dataclass, field
 
 import numpy as np
 
 from geomload import CAUTION
 
 from geomload.export import envelope_access as ea
-from geomload.export.atomic import atomic_path, safe_name
+from geomload.export.atomic import safe_name
+from geomload.export.vtkxml import write_vtp
 
-MAX_SURFACE_CASES = 12
+MAX_DISPLAY_TRIANGLES = 100_000  # above this the display surface is decimated: a 2-D picture
+# and a ParaView overview gain nothing from more, and per-case arrays stay small (common
+# practice, no source)
+
+
+def loads_extra(loads, key, default=None):
+    """One place where exporters read values the loads stage stores beside its named fields
+    (today ``SpanLoads.extras``); switch here when they become typed fields."""
+    v = getattr(loads, key, None)
+    if v is not None:
+        return v
+    return (getattr(loads, "extras", None) or {}).get(key, default)
 
 
 def case_keys(run) -> list:
-    """File-safe unique key per case, in run order."""
+    """File-safe unique ASCII key per case, in run order."""
     taken: set = set()
     return [safe_name(c.name, taken) for c in run.cases]
 
 
-def _save(mesh, path, inputs=()):
-    with atomic_path(path, inputs) as tmp:
-        mesh.save(str(tmp), binary=True)
-    return path
-
-
-def _field(mesh, run, critical):
-    mesh.field_data["case_names"] = np.array([c.name for c in run.cases])
-    mesh.field_data["case_keys"] = np.array(case_keys(run))
-    mesh.field_data["critical_case"] = np.array([critical.name])
+def _field(run, critical) -> dict:
     # the way back to the CAD frame: p_cad = p_wing @ R + origin (R rows = wing axes in CAD);
     # in ParaView, a Transform filter with this matrix puts the data back on the CAD model
     r = np.asarray(run.frame.rotation, float)
-    mesh.field_data["wing_to_cad_matrix_4x4"] = np.block(
-        [[r.T, np.asarray(run.frame.origin, float)[:, None]], [np.zeros((1, 3)), np.ones((1, 1))]]
-    ).ravel()
-    mesh.field_data["units"] = np.array(["m"])
-    mesh.field_data["caution"] = np.array([CAUTION])
+    m = np.block([[r.T, np.asarray(run.frame.origin, float)[:, None]],
+                  [np.zeros((1, 3)), np.ones((1, 1))]]).ravel()
+    return {"case_names": [str(c.name) for c in run.cases], "case_keys": case_keys(run),
+            "critical_case": [str(critical.name)], "wing_to_cad_matrix_4x4": m,
+            "units": ["m"], "caution": [CAUTION]}
 
 
 def panel_centres(lattice) -> np.ndarray:
+    """(N, 3) panel centres (mean of the four corners), strip-major."""
     c = np.asarray(lattice.corners, float)
     return (0.25 * (c[:-1, :-1] + c[1:, :-1] + c[:-1, 1:] + c[1:, 1:])).reshape(-1, 3)
 
 
-def lattice_polydata(run):
-    """The lattice as a pyvista PolyData of quads (strip-major, matching AeroSolution.dcp)."""
-    import pyvista as pv
-
+def lattice_arrays(run, with_cases: bool = True):
+    """(points (P, 3), quads (N, 4), cell_data) of the lattice, strip-major like AeroSolution.dcp.
+    with_cases=False: only ``strip`` and ``area_m2`` (a wireframe needs no per-case arrays)."""
     lat = run.lattice
     c = np.asarray(lat.corners, float)
     ns, nc = c.shape[0] - 1, c.shape[1] - 1
     idx = np.arange((ns + 1) * (nc + 1)).reshape(ns + 1, nc + 1)
     quads = np.stack([idx[:-1, :-1], idx[1:, :-1], idx[1:, 1:], idx[:-1, 1:]], axis=-1).reshape(-1, 4)
-    faces = np.hstack([np.full((quads.shape[0], 1), 4), quads]).ravel()
-    mesh = pv.PolyData(c.reshape(-1, 3), faces)
-    mesh.cell_data["strip"] = np.repeat(np.arange(ns), nc)
-    mesh.cell_data["area_m2"] = np.asarray(lat.area, float)
-    for key, cr in zip(case_keys(run), run.cases):
+    cells = {"strip": np.repeat(np.arange(ns), nc), "area_m2": np.asarray(lat.area, float)}
+    for key, cr in zip(case_keys(run) if with_cases else (), run.cases):
         g = np.asarray(cr.aero.gamma, float)
-        mesh.cell_data[f"gamma_{key}"] = g
-        mesh.cell_data[f"circulation_{key}"] = g * float(cr.v_tas)
-        mesh.cell_data[f"dcp_{key}"] = np.asarray(cr.aero.dcp, float)
+        cells[f"gamma_{key}"] = g
+        cells[f"circulation_{key}"] = g * float(cr.v_tas)
+        cells[f"dcp_{key}"] = np.asarray(cr.aero.dcp, float)
+    return c.reshape(-1, 3), quads, cells
+
+
+def lattice_polydata(run, with_cases: bool = True):
+    """The lattice as a pyvista PolyData (for renders and `view`; imports pyvista)."""
+    import pyvista as pv
+
+    pts, quads, cells = lattice_arrays(run, with_cases)
+    mesh = pv.PolyData(pts, np.hstack([np.full((quads.shape[0], 1), 4), quads]).ravel())
+    for k, v in cells.items():
+        mesh.cell_data[k] = v
     return mesh
 
 
 def write_lattice_vtp(path, run, inputs=()):
     """Write lattice.vtp (see module docstring)."""
-    mesh = lattice_polydata(run)
-    _field(mesh, run, ea.critical_case(run))
-    mesh.field_data["mirrored"] = np.array([int(bool(run.lattice.mirrored))])
-    return _save(mesh, path, inputs)
+    pts, quads, cells = lattice_arrays(run)
+    fd = _field(run, ea.critical_case(run))
+    fd["mirrored"] = np.array([int(bool(run.lattice.mirrored))])
+    return write_vtp(path, pts, polys=quads, cell_data=cells, field_data=fd, inputs=inputs)
 
 
 def spar_line(run, case_result=None) -> np.ndarray:
     """(n, 3) spar-axis points at the load stations, wing frame (m).
 
-    Taken from ``loads.extras['spar_points_m']`` (what loads.beam stores), else the case's
+    Taken from the loads' ``spar_points_m`` (what loads.beam stores), else the case's
     ``spar.line`` polyline ((y, x, z), ...) or ``spar.chord_fraction`` (default 0.25) applied
     to the stations.
     """
     cr = case_result or run.cases[0]
     L, st = cr.loads, run.stations
     y = np.asarray(L.y, float)
-    ex = L.extras or {}
-    pts = ex.get("spar_points_m")
+    pts = loads_extra(L, "spar_points_m")
     if pts is not None and np.shape(pts) == (y.size, 3):
         return np.asarray(pts, float)
     spar = getattr(run.case, "spar", None)
@@ -112,35 +132,54 @@ def spar_line(run, case_result=None) -> np.ndarray:
     return np.column_stack([x, y, z])
 
 
-def load_axis_polydata(run):
-    import pyvista as pv
-
+def load_axis_arrays(run):
+    """(points (n, 3), point_data) of the spar line with every case's V, M, T and the envelope."""
     pts = spar_line(run)
     n = pts.shape[0]
-    line = pv.PolyData(pts, lines=np.concatenate([[n], np.arange(n)]))
-    line.point_data["y_m"] = pts[:, 1]
+    pdata = {"y_m": pts[:, 1]}
     for key, cr in zip(case_keys(run), run.cases):
         L = cr.loads
         for name, arr in (("shear_N", L.shear_N), ("bending_Nm", L.bending_Nm),
                           ("torsion_Nm", L.torsion_Nm)):
             a = np.asarray(arr, float)
             if a.size == n:
-                line.point_data[f"{name}_{key}"] = a
+                pdata[f"{name}_{key}"] = a
     if run.envelope is not None:
         e = ea.table(run.envelope)
         if e["y"].size == n:
             for q, u in e["quantities"]:
                 for side in ("max", "min"):
-                    line.point_data[f"{q}_{u}_{side}"] = e[f"{q}_{side}"]
-                    line.point_data[f"{q}_{u}_{side}_ult"] = e[f"{q}_{side}_ult"]
-    return line
+                    pdata[f"{q}_{u}_{side}"] = e[f"{q}_{side}"]
+                    pdata[f"{q}_{u}_{side}_ult"] = e[f"{q}_{side}_ult"]
+    return pts, pdata
 
 
 def write_load_axis_vtp(path, run, inputs=()):
     """Write load_axis.vtp (see module docstring)."""
-    line = load_axis_polydata(run)
-    _field(line, run, ea.critical_case(run))
-    return _save(line, path, inputs)
+    pts, pdata = load_axis_arrays(run)
+    return write_vtp(path, pts, lines=[np.arange(pts.shape[0])], point_data=pdata,
+                     field_data=_field(run, ea.critical_case(run)), inputs=inputs)
+
+
+# ------------------------------------------------------------------------------ the surface
+@dataclass(frozen=True)
+class Surface:
+    """The display surface, built once for surface.vtp and the 3-D pictures (wing frame, m).
+
+    points (n, 3); tri (m, 3) vertex indices; panel (m,) nearest lattice panel; side (m,) +1
+    starboard / -1 port (y < 0 of a full wing on a mirrored half lattice); plan_area_m2 (m,);
+    source_triangles: the triangle count of the CAD mesh; decimated: True when the surface was
+    simplified (vertex clustering) to at most about MAX_DISPLAY_TRIANGLES.
+    """
+
+    points: np.ndarray
+    tri: np.ndarray
+    panel: np.ndarray
+    side: np.ndarray
+    plan_area_m2: np.ndarray
+    source_triangles: int
+    decimated: bool
+    cell_data: dict = field(default_factory=dict)
 
 
 def surface_points_faces(mesh, frame):
@@ -149,6 +188,51 @@ def surface_points_faces(mesh, frame):
     rows = tri.view(np.dtype((np.void, 24))).ravel()  # one 24-byte key per vertex: fast unique
     _, first, inv = np.unique(rows, return_index=True, return_inverse=True)
     return frame.to_wing(tri[first]), inv.reshape(-1, 3)
+
+
+def decimate_soup(triangles, target: int):
+    """Vertex clustering of a triangle soup to about `target` triangles.
+
+    The vertices are snapped to a cubic grid whose cell h is chosen from the surface area A so
+    that about target / 2 cells are occupied (h = sqrt(2 A / target)); each occupied cell becomes
+    one vertex at the mean of its members; collapsed and repeated triangles are dropped.
+    Returns (points (n, 3), tri (m, 3)). Rossignac-Borrel vertex clustering (1993), the simplest
+    decimation; the shape is kept to within about h.
+    """
+    t = np.asarray(triangles, np.float64).reshape(-1, 3, 3)
+    step = max(1, t.shape[0] // 200_000)  # the area from a regular sample: it only sets h
+    ts = t[::step]
+    area = 0.5 * np.linalg.norm(np.cross(ts[:, 1] - ts[:, 0], ts[:, 2] - ts[:, 0]), axis=1).sum()
+    area *= t.shape[0] / ts.shape[0]
+    v = t.reshape(-1, 3)
+    lo, hi = np.array([v[:, k].min() for k in range(3)]), np.array([v[:, k].max() for k in range(3)])
+    h = max(float(np.sqrt(2.0 * area / max(target, 1))), 1e-12)
+    q = ((v - lo) * (1.0 / h)).astype(np.int64)  # non-negative: truncation is the floor
+    dims = np.floor((hi - lo) / h).astype(np.int64) + 2
+    key = (q[:, 0] * dims[1] + q[:, 1]) * dims[2] + q[:, 2]
+    n_cells = int(np.prod(dims))
+    if n_cells <= DENSE_GRID_MAX:  # a counting pass over a dense grid: no sort of the vertices
+        occupied = np.bincount(key, minlength=n_cells) > 0
+        inv = (np.cumsum(occupied) - 1)[key]
+        n = int(occupied.sum())
+    else:
+        _, inv = np.unique(key, return_inverse=True)
+        n = int(inv.max()) + 1
+    cnt = np.bincount(inv, minlength=n).astype(float)
+    pts = np.column_stack([np.bincount(inv, weights=v[:, k], minlength=n) / cnt for k in range(3)])
+    f = inv.reshape(-1, 3)
+    ok = (f[:, 0] != f[:, 1]) & (f[:, 1] != f[:, 2]) & (f[:, 0] != f[:, 2])
+    f = f[ok]
+    s = np.sort(f, axis=1).astype(np.int64)
+    if n ** 3 < 2 ** 62:
+        _, first = np.unique((s[:, 0] * n + s[:, 1]) * n + s[:, 2], return_index=True)
+    else:
+        _, first = np.unique(np.ascontiguousarray(s).view(np.dtype((np.void, 24))).ravel(),
+                             return_index=True)
+    return pts, f[np.sort(first)]
+
+
+DENSE_GRID_MAX = 40_000_000  # grid cells counted densely (320 MB of int64 at most)
 
 
 def map_to_panels(points_xy, lattice) -> np.ndarray:
@@ -162,34 +246,111 @@ def map_to_panels(points_xy, lattice) -> np.ndarray:
     return cKDTree(cen).query(q)[1]
 
 
-def surface_polydata(run):
+def surface_data(run, full: bool = False) -> Surface:
+    """The display surface of `run` (see Surface). full=True keeps every CAD triangle."""
+    m = run.mesh
+    if full or m.n_triangles <= MAX_DISPLAY_TRIANGLES:
+        pts, tri = surface_points_faces(m, run.frame)
+        dec = False
+    else:
+        cad_pts, tri = decimate_soup(m.triangles, MAX_DISPLAY_TRIANGLES)
+        pts, dec = run.frame.to_wing(cad_pts), True
+    c = pts[tri].mean(axis=1)
+    near = map_to_panels(c[:, :2], run.lattice)
+    side = np.where((c[:, 1] < 0) & bool(run.lattice.mirrored), -1, 1).astype(np.int8)
+    p0, p1, p2 = pts[tri[:, 0]], pts[tri[:, 1]], pts[tri[:, 2]]
+    nz = (p1[:, 0] - p0[:, 0]) * (p2[:, 1] - p0[:, 1]) - (p1[:, 1] - p0[:, 1]) * (p2[:, 0] - p0[:, 0])
+    return Surface(points=pts, tri=tri, panel=near, side=side, plan_area_m2=0.5 * np.abs(nz),
+                   source_triangles=m.n_triangles, decimated=dec)
+
+
+def panel_forces(run, case_result) -> np.ndarray:
+    """(N,) force (N) of each lattice panel such that each strip's panels sum to the strip's lift
+    (lift_per_q x q x width: the lift the loads integrate); the shape within a strip follows
+    dcp x area, corrected additively in proportion to |dcp x area| (exact for a one-signed strip,
+    and it keeps the shape of a strip whose net lift is about zero)."""
+    lat, a = run.lattice, case_result.aero
+    ns, nc = int(lat.n_span), int(lat.n_chord)
+    q = float(case_result.q_pa)
+    f = (np.asarray(a.dcp, float) * np.asarray(lat.area, float) * q).reshape(ns, nc)
+    target = np.asarray(a.lift_per_q, float) * q * np.asarray(lat.strip_width, float)
+    w = np.abs(f)
+    wsum = w.sum(axis=1, keepdims=True)
+    share = np.where(wsum > 0, w / np.where(wsum > 0, wsum, 1.0), 1.0 / nc)
+    return (f + (target - f.sum(axis=1))[:, None] * share).ravel()
+
+
+def pressure_jump(run, surface: Surface, case_result) -> np.ndarray:
+    """(m,) lift per unit plan area (Pa) each surface cell carries for one case (split rule in the
+    module docstring). Panels nearest to no cell hand their force to the nearest panel that has
+    cells (same side), so the surface total equals the lattice lift of the wing in the file."""
+    from scipy.spatial import cKDTree
+
+    n_pan = int(np.asarray(run.lattice.area).size)
+    fp = panel_forces(run, case_result)
+    bins = surface.panel + n_pan * (surface.side < 0)
+    sides = (1, -1) if np.any(surface.side < 0) else (1,)
+    force = np.zeros(2 * n_pan)
+    area = np.bincount(bins, weights=surface.plan_area_m2, minlength=2 * n_pan)
+    cen = panel_centres(run.lattice)[:, :2]
+    for k, sgn in enumerate(sides):
+        sl = slice(k * n_pan, (k + 1) * n_pan)
+        have = area[sl] > 0
+        if not have.any():
+            continue
+        dest = np.arange(n_pan)
+        if not have.all():
+            idx = np.flatnonzero(have)
+            dest[~have] = idx[cKDTree(cen[idx]).query(cen[~have])[1]]
+        force[sl] = np.bincount(dest, weights=fp, minlength=n_pan)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        per_area = np.where(area > 0, force / np.where(area > 0, area, 1.0), 0.0)
+    return per_area[bins]
+
+
+def surface_cell_data(run, surface: Surface) -> dict:
+    """The cell arrays of surface.vtp (see the module docstring)."""
+    crit = ea.critical_case(run)
+    cells = {"panel": surface.panel, "plan_area_m2": surface.plan_area_m2}
+    for key, cr in zip(case_keys(run), run.cases):
+        p = pressure_jump(run, surface, cr)
+        cells[f"pressure_jump_Pa_{key}"] = p.astype(np.float32) if len(run.cases) > 50 else p
+        if cr is crit:
+            cells["pressure_jump_Pa_critical"] = p
+    cells["dcp_critical"] = np.asarray(crit.aero.dcp, float)[surface.panel]
+    return cells
+
+
+def surface_polydata(run, surface: Surface | None = None, scalars: dict | None = None):
+    """A pyvista PolyData of the display surface (renders and `view` only; imports pyvista)."""
     import pyvista as pv
 
-    pts, tri = surface_points_faces(run.mesh, run.frame)
-    faces = np.hstack([np.full((tri.shape[0], 1), 3), tri]).ravel()
-    surf = pv.PolyData(pts, faces)
-    near = map_to_panels(pts[tri].mean(axis=1)[:, :2], run.lattice)
-    surf.cell_data["panel"] = near
-    crit = ea.critical_case(run)
-    if len(run.cases) <= MAX_SURFACE_CASES:
-        for key, cr in zip(case_keys(run), run.cases):
-            surf.cell_data[f"dcp_{key}"] = np.asarray(cr.aero.dcp, float)[near]
-    dcp = np.asarray(crit.aero.dcp, float)[near]
-    surf.cell_data["dcp_critical"] = dcp
-    surf.cell_data["pressure_jump_Pa_critical"] = dcp * float(crit.q_pa)
-    return surf
+    s = surface if surface is not None else surface_data(run)
+    mesh = pv.PolyData(s.points, np.hstack([np.full((s.tri.shape[0], 1), 3), s.tri]).ravel())
+    mesh.cell_data["panel"] = s.panel
+    for k, v in (scalars or {}).items():
+        mesh.cell_data[k] = v
+    return mesh
 
 
 def write_surface_vtp(path, run, inputs=(), surface=None):
-    """Write surface.vtp (see module docstring); `surface`: a prebuilt surface_polydata(run)."""
-    surf = surface if surface is not None else surface_polydata(run)
-    _field(surf, run, ea.critical_case(run))
-    return _save(surf, path, inputs)
+    """Write surface.vtp (see module docstring); `surface`: a prebuilt surface_data(run)."""
+    s = surface if isinstance(surface, Surface) else surface_data(run)
+    fd = _field(run, ea.critical_case(run))
+    fd["source_triangles"] = np.array([s.source_triangles])
+    fd["decimated"] = np.array([int(s.decimated)])
+    fd["pressure_jump_rule"] = [
+        "pressure_jump_Pa_<case>: lift per unit plan area carried by each cell; each lattice "
+        "panel's share of its strip lift is spread over its nearest cells in proportion to their "
+        "plan area (upper and lower skins about half each); sum(pressure_jump_Pa * plan_area_m2) "
+        "= the lift of the wing in this file"]
+    return write_vtp(path, s.points, polys=s.tri, cell_data=surface_cell_data(run, s),
+                     field_data=fd, inputs=inputs)
 
 
 def write_all_vtk(folder, run, inputs=(), surface=None):
     """lattice.vtp, load_axis.vtp and surface.vtp into `folder`; returns their paths.
-    `surface`: a prebuilt surface_polydata(run), shared with the renders."""
+    `surface`: a prebuilt surface_data(run), shared with the renders."""
     from pathlib import Path
 
     f = Path(folder)

@@ -205,6 +205,13 @@ def case_files() -> dict:
         "min_mass_above_max.toml": _edit(env, "v_dive = 50.0", "v_dive = 50.0\nmin_mass_kg = 25.0"),
         "custom_without_npos.toml": _edit(env, "n_pos = 4.0\n", ""),
         "rule_category_with_npos.toml": _edit(env, 'category = "custom"', 'category = "normal"'),
+        # names from users: Unicode, a maths-text '$', a spreadsheet formula, a negative sign and
+        # a terminal escape sequence (clear screen); all must run and show safely
+        "hostile_names.toml": b + "".join(
+            f"\n[[load_case]]\nname = {n}\nspeed = 28.0\nload_factor = {nz}\n"
+            for n, nz in (('"banked turn 60°"', 2.0), ('"Überziehen"', 1.5),
+                          ("'$\\alpha$ pull $'", 2.2), ('"=cmd|\' /C calc\'!A0"', 1.2),
+                          ('"-1g push"', -1.0), ('"\\u001b[2Jclear"', 1.1))),
         "envelope_altitude_too_high.toml": _edit(env, "v_dive = 50.0", "v_dive = 50.0\naltitudes = [0.0, 25000.0]"),
     }
 
