@@ -521,7 +521,9 @@ def airspeeds(lc: LoadCase, atmosphere: Optional[Callable] = None) -> tuple:
     atmosphere: callable h_m -> (rho, a); default :func:`default_atmosphere` (ISA).
     """
     rho, _ = (atmosphere or default_atmosphere)(lc.altitude_m)
-    ratio = math.sqrt(1.225 / rho)  # rho0 = 1.225 kg/m^3, ISA sea level
+    from .aero.atmosphere import RHO0  # ISA sea level, p0 / (R T0)
+
+    ratio = math.sqrt(RHO0 / rho)
     if lc.speed_type == "EAS":
         return lc.speed_m_s, lc.speed_m_s * ratio
     return lc.speed_m_s / ratio, lc.speed_m_s

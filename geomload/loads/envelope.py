@@ -23,7 +23,7 @@ LB = 0.45359237  # kg per pound mass, exact
 LBF = LB * 9.80665  # N per pound force, exact
 PSF = LBF / FOOT**2  # N/m^2 per lbf/ft^2 (47.880...)
 KNOT = 1852.0 / 3600.0  # m/s
-RHO0 = 1.225  # kg/m^3, ISA sea level
+from ..aero.atmosphere import RHO0  # noqa: E402  ISA sea level, p0 / (R T0) = 1.2250 kg/m^3
 G0 = 9.80665  # m/s^2
 QUANTITIES = ("shear_N", "bending_Nm", "torsion_Nm", "inplane_shear_N", "inplane_bending_Nm")
 
