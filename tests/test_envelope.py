@@ -14,13 +14,15 @@ from ambiance import Atmosphere
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from geomload.case import EnvelopeSpec
+from geomload.config.schema import FlightEnvelopeSpec as EnvelopeSpec
 from geomload.errors import CaseError
-from geomload.loads.envelope import (FOOT, KNOT, LB, PSF, QUANTITIES, critical_points, design_speeds,
-                                     envelope_of, gust_alleviation, gust_load_factor,
-                                     limit_load_factors, minimum_design_speeds, points_to_load_cases,
-                                     rule_gust_velocities, stall_speed, vn_diagram)
+from geomload.loads.envelope import QUANTITIES, envelope_of
+from geomload.loads.rules_part23 import (design_speeds, gust_alleviation, gust_load_factor,
+                                         limit_load_factors, minimum_design_speeds,
+                                         rule_gust_velocities, stall_speed)
+from geomload.loads.vn import critical_points, points_to_load_cases, vn_diagram
 from geomload.records import SpanLoads
+from geomload.units import FOOT, KNOT, PSF, POUND as LB
 from validation import check
 
 G = 9.80665
@@ -270,7 +272,6 @@ def test_custom_negative_factor_at_dive_and_low_gust_note(tmp_path):
     # a custom envelope may set its negative limit at V_D; the V-n corner takes it (definition
     # of the input); a gust below the 23.333(c)(1) value (50 ft/s = 15.24 m/s at V_C, read) is
     # accepted with a note
-    from geomload.case import EnvelopeSpec
     from geomload.loads.envelope import vn_diagram
 
     spec = EnvelopeSpec(category="custom", cl_max_pos=1.3, cl_max_neg=0.7, n_pos=4.0, n_neg=-2.0,

@@ -18,13 +18,7 @@ from dataclasses import dataclass
 
 
 from geomload.errors import InputError
-
-G0 = 9.80665  # m/s^2, standard gravity
-R_AIR = 287.05287  # J/(kg K), R* / M0 of the 1976 standard
-GAMMA = 1.4
-T0 = 288.15  # K
-P0 = 101325.0  # Pa
-RHO0 = P0 / (R_AIR * T0)  # 1.2250 kg/m^3
+from geomload.units import G0, GAMMA_AIR as GAMMA, P0_ISA as P0, R_AIR, RHO0_ISA as RHO0, T0_ISA as T0
 LAPSE = -0.0065  # K/m, 0..11 km geopotential
 H_TROPOPAUSE = 11000.0  # m geopotential
 T_TROPOPAUSE = T0 + LAPSE * H_TROPOPAUSE  # 216.65 K
@@ -120,7 +114,28 @@ def dynamic_pressure(v_tas: float, h_m: float) -> float:
     return 0.5 * isa(h_m).rho * _speed(v_tas, "TAS") ** 2
 
 
+def density_and_sound(h_m: float) -> tuple:
+    """(density kg/m^3, speed of sound m/s) at geopotential altitude h_m: the atmosphere form
+    the pipeline passes to the stages (a callable h -> (rho, a))."""
+    atm = isa(h_m)
+    return float(atm.rho), float(atm.a)
+
+
+def airspeeds(speed_m_s: float, speed_type: str, altitude_m: float, atmosphere=None) -> tuple:
+    """(v_eas, v_tas) in m/s of a speed of kind speed_type ("EAS" or "TAS") at altitude_m:
+    v_tas = v_eas sqrt(rho0 / rho(h)) (definition of equivalent airspeed).
+
+    atmosphere: callable h_m -> (rho, a); default :func:`density_and_sound` (ISA).
+    """
+    rho, _ = (atmosphere or density_and_sound)(altitude_m)
+    ratio = math.sqrt(RHO0 / rho)
+    if speed_type == "EAS":
+        return speed_m_s, speed_m_s * ratio
+    return speed_m_s / ratio, speed_m_s
+
+
 __all__ = [
+    "density_and_sound", "airspeeds",
     "Atmosphere", "isa", "tas_from_eas", "eas_from_tas", "mach", "dynamic_pressure",
     "geopotential_from_geometric", "geometric_from_geopotential", "RHO0", "G0",
 ]

@@ -11,40 +11,17 @@ Inertia (load factor n, standard gravity g0): n g0 m'(y) per span acting along -
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
-
 import numpy as np
 
-from ..case import FuelTank, WingMassSpec
-from ..errors import CaseError
-from ..records import PointMass
-from .beam import PointLoad
+from geomload.config.schema import FuelTank, WingMassSpec
+from geomload.errors import CaseError
+from geomload.units import G0
 
-G0 = 9.80665  # m/s^2, standard acceleration of gravity (CGPM 1901)
+from .records import MassDistribution, PointLoad, PointMass
 
 
 def _integral(y, f):
     return float(np.sum(0.5 * (f[1:] + f[:-1]) * np.diff(y)))
-
-
-@dataclass(frozen=True)
-class MassDistribution:
-    """Mass on one semi-span. kg_per_m: (n,) total distributed mass per span at y (kg/m);
-    x_m, z_m: (n,) its c.g. line (mass-weighted); parts: name -> (n,) kg/m of each item;
-    lumped: PointMass items (tanks too narrow for the station grid). Mirrored point masses are
-    not included (see :func:`inertia_loads`)."""
-
-    y: np.ndarray
-    kg_per_m: np.ndarray
-    x_m: np.ndarray
-    z_m: np.ndarray
-    parts: dict = field(default_factory=dict)
-    lumped: tuple = ()
-
-    @property
-    def semispan_mass_kg(self) -> float:
-        """Distributed plus lumped mass on this semi-span (kg)."""
-        return _integral(self.y, self.kg_per_m) + sum(p.mass for p in self.lumped)
 
 
 def wing_mass_per_span(y, chord, spec: WingMassSpec) -> np.ndarray:

@@ -1,0 +1,97 @@
+"""Factorised vortex-lattice models, one per Mach number, built on first use and shared.
+
+A model (:class:`geomload.aero.solve.AeroModel`) holds the LU factorisation of its influence
+matrix and two basis solutions; every angle of attack is their superposition. The pipeline asks
+this cache for the model at a case's Mach; a caller running many variants passes a dict-like
+``store`` so models of the same lattice and Mach are built once across runs.
+"""
+
+from __future__ import annotations
+
+import math
+
+from geomload.records import Lattice, no_progress
+
+MACH_BIN = 0.05  # width of the Mach bins cases are grouped into (see lattice_mach)
+
+
+def lattice_mach(mach: float) -> float:
+    """The Mach number the lattice is solved at for a case at ``mach``: the top of its MACH_BIN
+    bin (the conservative side for gusts), capped at 0.95 and at the case's own Mach above it."""
+    if mach <= 1e-9:
+        return 0.0
+    return min(math.ceil(mach / MACH_BIN - 1e-9) * MACH_BIN, mach if mach >= 0.95 else 0.95)
+
+
+class MachModels:
+    """One factorised AeroModel per lattice Mach, built on first use.
+
+    lattice: the Lattice; progress: callable(stage, done, total); store: optional dict-like
+    shared between runs, keyed by (key, Mach); key: a hashable that identifies the lattice (its
+    geometry and lattice specification), required with a store.
+    """
+
+    def __init__(self, lattice: Lattice, progress=no_progress, store=None, key=None):
+        if store is not None and key is None:
+            raise ValueError("MachModels: a shared store needs a lattice key")
+        self.lattice, self.progress = lattice, progress
+        self.models, self._cla, self._stall, self._drag = {}, {}, {}, {}
+        self._store, self._key = store, key
+        self.built = 0  # models factorised by this cache (not found in the store)
+
+    def get(self, mach: float):
+        """The model at the lattice Mach of ``mach``."""
+        key = round(lattice_mach(mach), 6)
+        if key not in self.models:
+            shared = None if self._store is None else self._store.get(("aero", self._key, key))
+            if shared is None:
+                from geomload.aero.solve import AeroModel
+
+                self.progress(f"lattice M={key:.2f}", 0, 1)
+                shared = AeroModel(self.lattice, mach=key)
+                self.built += 1
+                self.progress(f"lattice M={key:.2f}", 1, 1)
+                if self._store is not None:
+                    self._store[("aero", self._key, key)] = shared
+            self.models[key] = shared
+        return self.models[key]
+
+    def lift_slope(self, mach: float) -> float:
+        """Wing lift slope (per rad) at the lattice Mach of ``mach``."""
+        key = round(lattice_mach(mach), 6)
+        if key not in self._cla:
+            self._cla[key] = float(self.get(mach).solve(0.0).CL_alpha_per_rad)
+        return self._cla[key]
+
+    def stall_cl(self, mach: float, cl_max: float) -> dict:
+        """The model's stall-onset estimate for section ``cl_max`` (see AeroModel.stall)."""
+        key = (round(lattice_mach(mach), 6), float(cl_max))
+        if key not in self._stall:
+            self._stall[key] = self.get(mach).stall(cl_max)
+        return self._stall[key]
+
+    def induced_drag_form(self, mach: float) -> tuple:
+        """(Q_xx, Q_xz, Q_zz): CDi(alpha) = Q_xx cos^2 + 2 Q_xz cos sin + Q_zz sin^2.
+
+        The Trefftz-plane drag is a quadratic form of the circulation, which is the superposition
+        cos(a) G_x + sin(a) G_z of the model's two basis solutions; three solves fix the form
+        exactly, after which every angle costs three multiplications.
+        """
+        key = round(lattice_mach(mach), 6)
+        if key not in self._drag:
+            a = 30.0
+            d0, dp, dm = (s.CDi for s in self.get(mach).solve_many([0.0, a, -a]))
+            c2, cs = math.cos(math.radians(a)) ** 2, math.cos(math.radians(a)) * math.sin(math.radians(a))
+            s2 = 1.0 - c2
+            qxx = d0
+            qzz = (0.5 * (dp + dm) - c2 * qxx) / s2
+            qxz = (dp - dm) / (4.0 * cs)
+            self._drag[key] = (qxx, qxz, qzz)
+        return self._drag[key]
+
+    @property
+    def warnings(self) -> list:
+        out = []
+        for m in self.models.values():
+            out.extend(getattr(m, "warnings", []))
+        return out
