@@ -95,3 +95,36 @@ class MachModels:
         for m in self.models.values():
             out.extend(getattr(m, "warnings", []))
         return out
+
+
+def analyse_at_alpha(stations, alpha_deg: float, mach: float = 0.0, n_span: int = 40,
+                     n_chord: int = 10, cl_max=None, convergence: bool = False) -> dict:
+    """One vortex-lattice solution of a wing at an angle of attack (the `aero` command's job).
+
+    Returns dict(lattice, solution (AeroSolution), stall (dict of the stall-onset estimate with
+    the cl_max used), convergence (dict or None), messages (tuple of Message)). Without cl_max
+    the solver's default is used, with a warning.
+    """
+    from geomload.aero.lattice import build_lattice
+    from geomload.aero.solve import DEFAULT_CL_MAX, AeroModel, check_convergence
+    from geomload.errors import AeroError
+    from geomload.records import Message
+
+    if not math.isfinite(alpha_deg):
+        raise AeroError(f"--alpha: must be a finite number of degrees, got {alpha_deg}")
+    if n_span < 1 or n_chord < 1:
+        raise AeroError(f"--panels-span/--panels-chord: must be positive, got {n_span}/{n_chord}")
+    lattice = build_lattice(stations, n_span=n_span, n_chord=n_chord)
+    model = AeroModel(lattice, mach=mach)
+    sol = model.solve(alpha_deg)
+    messages = [Message("warning", w) for w in model.warnings]
+    if cl_max is None:
+        cl_max = DEFAULT_CL_MAX
+        messages.append(Message("warning", f"section cl_max not given; stall onset uses a default "
+                                           f"cl_max = {cl_max:g}"))
+    stall = dict(model.stall(cl_max), cl_max=cl_max)
+    messages += [Message("warning", w) for w in stall.pop("warnings", [])]
+    conv = (check_convergence(stations, alpha_deg, mach, n_span=n_span, n_chord=n_chord)
+            if convergence else None)
+    return dict(lattice=lattice, solution=sol, stall=stall, convergence=conv,
+                messages=tuple(messages))

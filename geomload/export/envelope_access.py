@@ -35,18 +35,11 @@ def table(envelope: LoadsEnvelope) -> dict:
 
 
 def critical_table(envelope: LoadsEnvelope) -> list:
-    """Rows per quantity and side: root value and its case, peak value over the span, where."""
-    e = table(envelope)
-    rows = []
-    for q, u in QUANTITIES:
-        for side in ("max", "min"):
-            v = e[f"{q}_{side}"]
-            k = int(np.argmax(v) if side == "max" else np.argmin(v))
-            rows.append({"quantity": f"{q} {side}", "unit": u.replace("Nm", "N m"),
-                         "root_limit": float(v[0]), "root_ultimate": float(e[f"{q}_{side}_ult"][0]),
-                         "root_case": e[f"{q}_{side}_case"][0], "peak_limit": float(v[k]),
-                         "peak_y_m": float(e["y"][k]), "peak_case": e[f"{q}_{side}_case"][k]})
-    return rows
+    """Rows per quantity and side: root value and its case, peak value over the span, where
+    (see geomload.loads.envelope.critical_rows)."""
+    from geomload.loads.envelope import critical_rows
+
+    return critical_rows(envelope)
 
 
 def vn_diagrams(vn) -> list:

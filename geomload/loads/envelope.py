@@ -50,3 +50,23 @@ def envelope_of(span_loads: Sequence[SpanLoads]) -> LoadsEnvelope:
             res[cmn][q] = tuple(names[i] for i in imin)
     rows = span_loads[0].output_rows
     return LoadsEnvelope(y=y.copy(), cases=names, output_rows=rows, **res)
+
+
+
+def critical_rows(envelope: LoadsEnvelope) -> list:
+    """Rows per quantity (shear, bending, torsion) and side (max, min): the root value
+    (limit and ultimate) and its case, the peak value over the span, where, and its case."""
+    rows = []
+    for q in QUANTITIES[:3]:
+        base, unit = q.rsplit("_", 1)
+        for side, lim, cases, ult in (("max", envelope.maximum, envelope.max_case,
+                                       envelope.ultimate_max),
+                                      ("min", envelope.minimum, envelope.min_case,
+                                       envelope.ultimate_min)):
+            v = lim[q]
+            k = int(np.argmax(v) if side == "max" else np.argmin(v))
+            rows.append({"quantity": f"{base} {side}", "unit": unit.replace("Nm", "N m"),
+                         "root_limit": float(v[0]), "root_ultimate": float(ult[q][0]),
+                         "root_case": cases[q][0], "peak_limit": float(v[k]),
+                         "peak_y_m": float(envelope.y[k]), "peak_case": cases[q][k]})
+    return rows
