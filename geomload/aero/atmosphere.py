@@ -94,24 +94,29 @@ def _speed(v, name: str) -> float:
     return v
 
 
-def tas_from_eas(v_eas: float, h_m: float) -> float:
-    """True airspeed (m/s) from equivalent airspeed (m/s): V = V_e sqrt(rho0 / rho)."""
-    return _speed(v_eas, "EAS") * math.sqrt(RHO0 / isa(h_m).rho)
+def _state(h_m: float, atmosphere=None) -> tuple:
+    return (atmosphere or density_and_sound)(h_m)
 
 
-def eas_from_tas(v_tas: float, h_m: float) -> float:
+def tas_from_eas(v_eas: float, h_m: float, atmosphere=None) -> float:
+    """True airspeed (m/s) from equivalent airspeed (m/s): V = V_e sqrt(rho0 / rho).
+    atmosphere: callable h_m -> (rho, a); default ISA."""
+    return _speed(v_eas, "EAS") * math.sqrt(RHO0 / _state(h_m, atmosphere)[0])
+
+
+def eas_from_tas(v_tas: float, h_m: float, atmosphere=None) -> float:
     """Equivalent airspeed (m/s) from true airspeed (m/s): V_e = V sqrt(rho / rho0)."""
-    return _speed(v_tas, "TAS") * math.sqrt(isa(h_m).rho / RHO0)
+    return _speed(v_tas, "TAS") * math.sqrt(_state(h_m, atmosphere)[0] / RHO0)
 
 
-def mach(v_tas: float, h_m: float) -> float:
+def mach(v_tas: float, h_m: float, atmosphere=None) -> float:
     """Mach number V / a at geopotential altitude h (m)."""
-    return _speed(v_tas, "TAS") / isa(h_m).a
+    return _speed(v_tas, "TAS") / _state(h_m, atmosphere)[1]
 
 
-def dynamic_pressure(v_tas: float, h_m: float) -> float:
+def dynamic_pressure(v_tas: float, h_m: float, atmosphere=None) -> float:
     """Dynamic pressure q = rho V^2 / 2 (Pa) from true airspeed (m/s)."""
-    return 0.5 * isa(h_m).rho * _speed(v_tas, "TAS") ** 2
+    return 0.5 * _state(h_m, atmosphere)[0] * _speed(v_tas, "TAS") ** 2
 
 
 def density_and_sound(h_m: float) -> tuple:
@@ -127,11 +132,9 @@ def airspeeds(speed_m_s: float, speed_type: str, altitude_m: float, atmosphere=N
 
     atmosphere: callable h_m -> (rho, a); default :func:`density_and_sound` (ISA).
     """
-    rho, _ = (atmosphere or density_and_sound)(altitude_m)
-    ratio = math.sqrt(RHO0 / rho)
     if speed_type == "EAS":
-        return speed_m_s, speed_m_s * ratio
-    return speed_m_s / ratio, speed_m_s
+        return speed_m_s, tas_from_eas(speed_m_s, altitude_m, atmosphere)
+    return eas_from_tas(speed_m_s, altitude_m, atmosphere), speed_m_s
 
 
 __all__ = [

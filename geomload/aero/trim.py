@@ -17,7 +17,8 @@ from geomload.errors import AeroError, CaseError
 from geomload.records import AeroSolution
 from geomload.units import G0
 
-from .atmosphere import airspeeds, density_and_sound
+from .atmosphere import airspeeds, density_and_sound, dynamic_pressure
+from .atmosphere import mach as mach_number
 from .models import MachModels, lattice_mach
 
 STALL_MARGIN = 1.005  # stall-corner points sit on the stall line by construction: keep them quiet
@@ -120,15 +121,14 @@ def stall_warning(cf_req: float, CL_req: float, mach: float, models: MachModels,
 def trim_case(lc, case, models: MachModels, atmosphere=density_and_sound) -> TrimmedCase:
     """Trim one LoadCase of a Case on the models' lattice; atmosphere: h -> (rho, a), the one
     atmosphere of the run (used for the airspeeds, the Mach number and q)."""
-    rho, a_sound = atmosphere(lc.altitude_m)
     v_eas, v_tas = airspeeds(lc.speed_m_s, lc.speed_type, lc.altitude_m, atmosphere)
-    mach = v_tas / a_sound
+    mach = mach_number(v_tas, lc.altitude_m, atmosphere)
     if not math.isfinite(mach) or mach >= 1.0:
         raise AeroError(f"{case.path}: load_case '{lc.name}': Mach {mach:.3f} >= 1 "
                         "(speed too high for linear subsonic theory)")
     if v_tas <= 0:
         raise CaseError(f"{case.path}: load_case '{lc.name}': speed must be > 0")
-    q = 0.5 * rho * v_tas ** 2
+    q = dynamic_pressure(v_tas, lc.altitude_m, atmosphere)
     mass = case.aircraft.gross_mass_kg if lc.mass_kg is None else lc.mass_kg
     force_req = lc.lift_share * lc.load_factor * mass * G0
     model = models.get(mach)

@@ -13,6 +13,7 @@ import numpy as np
 from geomload.config.schema import CATEGORIES, FlightEnvelopeSpec, LoadCase  # noqa: F401
 from geomload.errors import InputError
 
+from .beam import ultimate
 from .records import (QUANTITIES, DesignSpeeds, Envelope, FlightPoint, GustPoint,  # noqa: F401
                       LoadsEnvelope, SpanLoads, VnDiagram)
 from .rules_part23 import (design_speeds, gust_alleviation, gust_load_factor,  # noqa: F401
@@ -40,7 +41,7 @@ def envelope_of(span_loads: Sequence[SpanLoads]) -> LoadsEnvelope:
                            "ultimate_min", "ultimate_max_case", "ultimate_min_case")}
     for q in QUANTITIES:
         lim = np.array([getattr(s, q) for s in span_loads])
-        ult = lim * np.array([s.ultimate_factor for s in span_loads])[:, None]
+        ult = np.array([ultimate(s)[q] for s in span_loads])
         for arr, mx, mn, cmx, cmn in ((lim, "maximum", "minimum", "max_case", "min_case"),
                                       (ult, "ultimate_max", "ultimate_min", "ultimate_max_case",
                                        "ultimate_min_case")):
