@@ -285,7 +285,20 @@ def _parse(path: str) -> dict:
     except tomllib.TOMLDecodeError as exc:
         raise CaseError(f"{path}: invalid TOML: {exc}") from None
     except RecursionError:
-        raise CaseError(f"{path}: invalid TOML: tables or arrays nested too deeply") from None
+        raise CaseError(f"{path}: {_deepest_key(text)}: invalid TOML: tables or arrays nested "
+                        "too deeply") from None
+
+
+def _deepest_key(text: str) -> str:
+    """The key (or line) whose value opens the most brackets: where a too-deep nesting is."""
+    best, where = -1, "line 1"
+    for i, line in enumerate(text.splitlines()):
+        depth = line.count("[") + line.count("{")
+        if depth > best:
+            best = depth
+            key = line.split("=", 1)[0].strip() if "=" in line else ""
+            where = key if key and len(key) < 80 else f"line {i + 1}"
+    return where
 
 
 def _read_case_file(path) -> Case:
