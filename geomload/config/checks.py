@@ -4,6 +4,8 @@ the flying masses against the mass the wing itself carries. Each raises CaseErro
 
 from __future__ import annotations
 
+import numpy as np
+
 from geomload.errors import CaseError
 
 from .schema import Case
@@ -31,3 +33,39 @@ def check_against_wing(case: Case, stations) -> None:
     if table_y and table_y[-1] > semispan + tol:
         raise CaseError(f"{case.path}: wing_mass.table: y {table_y[-1]:g} m is "
                         f"outside {span}")
+    if table_y and table_y[-1] < semispan - tol:
+        # held constant to the tip it would move mass outboard and overstate the weight relief
+        raise CaseError(f"{case.path}: wing_mass.table: it stops at y {table_y[-1]:g} m, short of "
+                        f"the tip ({semispan:.4g} m); give rows from the root to the tip")
+    root = float(getattr(stations, "y", [0.0])[0]) if hasattr(stations, "y") else 0.0
+    if table_y and table_y[0] > root + tol:
+        raise CaseError(f"{case.path}: wing_mass.table: it starts at y {table_y[0]:g} m, outboard "
+                        f"of the root station ({root:.4g} m); give rows from the root to the tip")
+    for r in case.spar.rib_y_m:
+        if r > semispan + tol:
+            raise CaseError(f"{case.path}: spar.rib_y_m: {r:g} m is outside {span}")
+    if hasattr(stations, "y"):
+        check_spar_inside(case, stations)
+
+
+SPAR_INSIDE_TOL = 1e-3  # x chord: a spar on the leading or trailing edge is still inside
+
+
+def check_spar_inside(case: Case, stations) -> None:
+    """Raise CaseError when the spar polyline ([spar] line) leaves the section (chordwise, x
+    outside the leading to trailing edge) at any station."""
+    line = case.spar.line
+    if not line:
+        return  # a chord fraction in 0..1 lies on the chord by construction
+    from geomload.loads.beam import spar_line
+
+    sx, _ = spar_line(stations.y, stations.x_le, stations.x_te, stations.z_le, stations.z_te,
+                      None, line)
+    lo = np.minimum(stations.x_le, stations.x_te) - SPAR_INSIDE_TOL * stations.chord
+    hi = np.maximum(stations.x_le, stations.x_te) + SPAR_INSIDE_TOL * stations.chord
+    bad = np.nonzero((sx < lo) | (sx > hi))[0]
+    if bad.size:
+        k = int(bad[0])
+        raise CaseError(f"{case.path}: spar.line: at y {stations.y[k]:.4g} m the spar x "
+                        f"{sx[k]:.4g} m is outside the section (leading edge {stations.x_le[k]:.4g} "
+                        f"m, trailing edge {stations.x_te[k]:.4g} m)")

@@ -182,9 +182,10 @@ def _fuel_tank(t: _Table, i: int) -> FuelTank:
 
 
 def _spar(t: _Table) -> SparSpec:
+    ribs = _ribs(t)
     line = t.get("line", list)
     if line is None:
-        return SparSpec(t.fraction("chord_fraction", 0.25))
+        return SparSpec(t.fraction("chord_fraction", 0.25), rib_y_m=ribs)
     t.used.add("chord_fraction")
     if "chord_fraction" in t.data:
         t.fail("chord_fraction", "give either chord_fraction or line, not both")
@@ -192,9 +193,25 @@ def _spar(t: _Table) -> SparSpec:
         arr = np.array(line, dtype=float)
     except (TypeError, ValueError):
         t.fail("line", "must be a list of [y_m, x_m, z_m] points")
-    if arr.ndim != 2 or arr.shape[1] != 3 or arr.shape[0] < 2 or np.any(np.diff(arr[:, 0]) <= 0):
+    if (arr.ndim != 2 or arr.shape[1] != 3 or arr.shape[0] < 2 or not np.all(np.isfinite(arr))
+            or np.any(np.diff(arr[:, 0]) <= 0)):
         t.fail("line", "must be at least two [y_m, x_m, z_m] points with y increasing")
-    return SparSpec(None, tuple(map(tuple, arr)))
+    return SparSpec(None, tuple(map(tuple, arr)), rib_y_m=ribs)
+
+
+def _ribs(t: _Table) -> tuple:
+    ribs = t.get("rib_y_m", list)
+    if ribs is None:
+        return ()
+    if not ribs or not all(isinstance(v, (int, float)) and not isinstance(v, bool) for v in ribs):
+        t.fail("rib_y_m", "must be a non-empty list of spanwise positions in metres")
+    try:
+        arr = np.array(ribs, dtype=float)
+    except OverflowError:
+        t.fail("rib_y_m", "holds a number too large")
+    if not np.all(np.isfinite(arr)) or np.any(np.diff(arr) <= 0) or arr[0] < 0:
+        t.fail("rib_y_m", "must be finite, >= 0 and increase strictly")
+    return tuple(float(v) for v in arr)
 
 
 def _load_case(t: _Table, i: int, gross: float) -> LoadCase:
@@ -373,11 +390,18 @@ def _read_case_file(path) -> Case:
     nax = t.choice("load_factor_axis", ("body", "flight-path"), "body")
     t.done()
     top.done()
-    carried = (wing_mass.total_kg if wing_mass else 0.0) + 2 * sum(p.mass for p in points) + sum(
-        k.mass_kg for k in tanks)
+    structure = (wing_mass.total_kg if wing_mass else 0.0) + 2 * sum(p.mass for p in points)
+    carried = structure + sum(k.mass_kg for k in tanks)
     if carried > aircraft.gross_mass_kg:
         raise CaseError(f"{path}: aircraft.gross_mass_kg: {aircraft.gross_mass_kg:g} kg is less than "
                         f"the wing, point (x2, mirrored) and fuel masses ({carried:g} kg)")
+    flying = [(f"load_case[{i + 1}].mass_kg", c.mass_kg) for i, c in enumerate(cases)]
+    if envelope is not None:
+        flying.append(("envelope.min_mass_kg", envelope.min_mass_kg))
+    for key, m in flying:
+        if m is not None and m < structure:
+            raise CaseError(f"{path}: {key}: {m:g} kg is less than the wing structure and point "
+                            f"masses (x2, mirrored) it carries ({structure:g} kg)")
     return Case(path=str(Path(path).resolve()), title=title, geometry=geometry, aircraft=aircraft,
                 wing_mass=wing_mass, point_masses=tuple(points), fuel_tanks=tuple(tanks), spar=spar,
                 moment_reference=ref, load_cases=tuple(cases), envelope=envelope, lattice=lattice,
