@@ -139,9 +139,10 @@ def compute(case, progress=None, cache=None) -> RunResult:
         raise CaseError(f"{case.path}: no load_case and no [envelope]: nothing to run")
     _check_names(case, load_cases)
     jumps = [float(p.position[1]) for p in case.point_masses]
-    jumps += [float(v) for t in case.fuel_tanks for v in (t.y_from_m, t.y_to_m)]
+    jumps += [float(t.y_from_m) for t in case.fuel_tanks]
     grid = load_grid(lattice, jumps, case.spar.chord_fraction if case.spar.chord_fraction
-                     is not None else 0.25, case.spar.line, case.spar.rib_y_m)
+                     is not None else 0.25, case.spar.line, case.spar.rib_y_m,
+                     ends=[float(t.y_to_m) for t in case.fuel_tanks])
     ctx = CaseContext(case, stations, models, grid, atmosphere, {})
     results = []
     for i, lc in enumerate(load_cases):

@@ -33,11 +33,14 @@ def lattice_edges(lattice: Lattice) -> tuple:
     return np.clip(y[keep], 0.0, None), le[keep], te[keep]
 
 
-def load_grid(lattice: Lattice, jumps=(), chord_fraction=0.25, spar_polyline=(), ribs=()) -> LoadGrid:
+def load_grid(lattice: Lattice, jumps=(), chord_fraction=0.25, spar_polyline=(), ribs=(),
+              ends=()) -> LoadGrid:
     """The LoadGrid of a lattice (m).
 
-    jumps: spanwise positions of point loads and tank ends; each adds two grid points (at the
-    position and STEP_GAP_REL x semi-span outboard of it). ribs: the structure's stations (m);
+    jumps: spanwise positions of point loads and inboard tank ends; each adds two grid points
+    (at the position and STEP_GAP_REL x semi-span outboard of it). ends: outboard ends of
+    distributed items (tanks); each adds the position and a point the same gap inboard of it, so
+    a distribution can step at both its ends without reaching past them. ribs: the structure's stations (m);
     they are added to the grid and become its only reported rows (both points of a step that
     falls on a rib). The spar axis is the chord_fraction point of every section, or the polyline
     ((y, x, z), ...) when given.
@@ -45,10 +48,9 @@ def load_grid(lattice: Lattice, jumps=(), chord_fraction=0.25, spar_polyline=(),
     y, le, te = lattice_edges(lattice)
     tip = float(y[-1])
     eps = STEP_GAP_REL * tip
-    extra = []
-    for yj in jumps:
-        if 0.0 < yj < tip - 2 * eps:
-            extra += [yj, yj + eps]
+    steps = [(yj, yj + eps) for yj in jumps if 0.0 < yj < tip - 2 * eps]
+    steps += [(yj - eps, yj) for yj in ends if 2 * eps < yj < tip - eps]
+    extra = [v for pair in steps for v in pair]
     ribs = np.asarray(ribs, float)
     if ribs.size and (ribs.min() < -eps or ribs.max() > tip + eps):
         bad = ribs[(ribs < -eps) | (ribs > tip + eps)][0]
@@ -69,10 +71,10 @@ def load_grid(lattice: Lattice, jumps=(), chord_fraction=0.25, spar_polyline=(),
         for r in ribs:
             k = int(np.argmin(np.abs(y - r)))
             rows[k] = True
-            # a load step on the rib: report the point just outboard too (the value after the step)
-            if k + 1 < y.size and y[k + 1] - y[k] <= 1.5 * eps and any(
-                    abs(j - y[k]) <= 0.5 * eps for j in extra[::2]):
-                rows[k + 1] = True
+            # a step on the rib: report both of its points (the values either side of it)
+            for a, b in steps:
+                if min(abs(a - y[k]), abs(b - y[k])) <= 0.5 * eps:
+                    rows[np.argmin(np.abs(y - a))] = rows[np.argmin(np.abs(y - b))] = True
     return LoadGrid(y=y, le=le, te=te, chord=chord, spar_x=sx, spar_z=sz,
                     load_x=le[:, 0] + QUARTER_CHORD * (te[:, 0] - le[:, 0]),
                     load_z=le[:, 2] + QUARTER_CHORD * (te[:, 2] - le[:, 2]), output_rows=rows)

@@ -38,17 +38,23 @@ def wing_mass_per_span(y, chord, spec: WingMassSpec) -> np.ndarray:
     return shape * (0.5 * spec.total_kg / area)
 
 
+TANK_END_TOL_REL = 1e-9  # x span of the grid: a grid point this close to a tank end is the end
+
+
 def tank_mass_per_span(y, chord, tank: FuelTank, fraction: float = 1.0):
     """Per-side fuel mass per span (kg/m) at y over the tank's span range, its integral equal
-    to fraction * mass_kg / 2; None when fewer than two stations fall in the range. Being
-    piecewise linear on the stations, the ends ramp to zero over the neighbouring segments."""
+    to fraction * mass_kg / 2; None when fewer than two grid points lie strictly inside it.
+
+    Piecewise linear on the grid, the distribution is zero at the tank's ends and full at the
+    grid points inside: no mass lies inboard of y_from_m or outboard of y_to_m. The load grid
+    puts points a small gap inside each end (geomload.loads.grid), so the ramps are that short.
+    """
     y, c = np.asarray(y, float), np.asarray(chord, float)
-    inside = (y >= tank.y_from_m - 1e-12) & (y <= tank.y_to_m + 1e-12)
+    tol = TANK_END_TOL_REL * max(float(y[-1] - y[0]), 1e-300)
+    inside = (y > tank.y_from_m + tol) & (y < tank.y_to_m - tol)
     if inside.sum() < 2:
         return None
     shape = np.where(inside, c if tank.distribution == "chord" else 1.0, 0.0)
-    # piecewise linear on the stations, the beam integrates the ramps into the neighbouring
-    # segments too, so the scale uses the same trapezoid integral (mass exact, ends smeared)
     return shape * (0.5 * fraction * tank.mass_kg / _integral(y, shape))
 
 
