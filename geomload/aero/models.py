@@ -12,15 +12,23 @@ import math
 
 from geomload.records import Lattice, no_progress
 
-MACH_BIN = 0.05  # width of the Mach bins cases are grouped into (see lattice_mach)
+MACH_BIN_LOG = 0.004  # bin width in ln(1/beta): the lattice's Prandtl-Glauert factor is at
+# most exp(0.004) - 1 = 0.40 % above the case's own (below the 0.5 % aimed at), so the lift slope
+# is too; a low-speed aircraft (M < 0.3) needs about a dozen models
+MACH_TOP = 0.95  # above this the case's own Mach is used (one model per case; warned anyway)
 
 
 def lattice_mach(mach: float) -> float:
-    """The Mach number the lattice is solved at for a case at ``mach``: the top of its MACH_BIN
-    bin (the conservative side for gusts), capped at 0.95 and at the case's own Mach above it."""
+    """The Mach number the lattice is solved at for a case at ``mach``: the top of its bin in
+    ln(1/beta) (beta = sqrt(1 - M^2), the Prandtl-Glauert factor), the conservative side for
+    gusts; the case's own Mach above MACH_TOP."""
     if mach <= 1e-9:
         return 0.0
-    return min(math.ceil(mach / MACH_BIN - 1e-9) * MACH_BIN, mach if mach >= 0.95 else 0.95)
+    if mach >= MACH_TOP:
+        return float(mach)
+    u = -0.5 * math.log1p(-mach * mach)
+    top = math.ceil(u / MACH_BIN_LOG - 1e-9) * MACH_BIN_LOG
+    return min(math.sqrt(-math.expm1(-2.0 * top)), MACH_TOP)
 
 
 class MachModels:
