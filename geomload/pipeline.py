@@ -208,6 +208,30 @@ def _versions() -> dict:
     return out
 
 
+def write_run(result: RunResult, out_dir, *, force=False, render=True, progress=None,
+              run_time_s=None) -> list:
+    """Write every output of a computed run into ``out_dir``, whole or not at all (a staging
+    folder moved into place at the end). Returns the list of files written."""
+    from geomload.export import write_all
+    from geomload.export.atomic import OutputDir
+
+    progress = progress or no_progress
+    inputs = [result.case_path, result.case.geometry.file]
+    od = OutputDir(out_dir, force=force, inputs=inputs)
+    od.open()
+    try:
+        t_exp = time.perf_counter()
+        written = write_all(result, od.staging, inputs=inputs, render=render, progress=progress,
+                            options={"render": render, "force": force},
+                            run_time_s=run_time_s if run_time_s is not None else 0.0)
+        result.timings["export"] = time.perf_counter() - t_exp
+        od.commit()
+    except BaseException:
+        od.abort()
+        raise
+    return written["files"]
+
+
 def run_case_file(case_path, out_dir, force=False, render=True, progress=None):
     """Read, compute and write a run. Returns (RunResult, list of files written)."""
     from geomload.config.parse import read_case_file
@@ -238,4 +262,4 @@ def run_case_file(case_path, out_dir, force=False, render=True, progress=None):
     return result, written["files"]
 
 
-__all__ = ["compute", "run_case_file", "solve_case", "CaseContext", "GeomloadError"]
+__all__ = ["compute", "write_run", "run_case_file", "solve_case", "CaseContext", "GeomloadError"]
