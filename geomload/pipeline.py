@@ -26,7 +26,6 @@ from geomload.errors import CaseError, GeomloadError
 from geomload.records import CaseResult, Message, RunResult, no_progress
 
 SWEEP_DEG = np.arange(-6.0, 16.01, 1.0)  # the alpha sweep shown in the report (deg)
-STALL_MARGIN = 1.005  # as geomload.aero.trim: an envelope CLmax within 0.5 % of onset is quiet
 
 
 @dataclass(frozen=True)
@@ -57,21 +56,6 @@ def _wing(case, progress, cache):
     if cache is not None:
         cache[key] = wing
     return key, wing
-
-
-def _lattice(case, stations, wing_key, cache):
-    from geomload.aero.lattice import build_lattice
-
-    lat = case.lattice
-    ref = None if case.moment_reference is None else tuple(float(v) for v in case.moment_reference)
-    key = ("lattice", wing_key, lat, ref)
-    if cache is not None and key in cache:
-        return key, cache[key]
-    lattice = build_lattice(stations, n_span=lat.n_span, n_chord=lat.n_chord, spacing=lat.spacing,
-                            x_ref=case.moment_reference)
-    if cache is not None:
-        cache[key] = lattice
-    return key, lattice
 
 
 def solve_case(lc, ctx: CaseContext) -> CaseResult:
@@ -108,7 +92,8 @@ def compute(case, progress=None, cache=None) -> RunResult:
     compute of the same geometry and lattice with the same cache reads and factorises nothing.
     """
     from geomload.aero.atmosphere import density_and_sound
-    from geomload.aero.models import MachModels
+    from geomload.aero.models import MachModels, cached_lattice
+    from geomload.aero.trim import stall_messages
     from geomload.config.checks import check_against_wing
     from geomload.geometry.read import SPAN_TOO_BIG_M, SPAN_TOO_SMALL_M
     from geomload.loads.envelope import envelope_of
@@ -126,7 +111,8 @@ def compute(case, progress=None, cache=None) -> RunResult:
                         "\"m\", \"in\" or \"ft\")")
     check_against_wing(case, stations)
     t1 = time.perf_counter()
-    lattice_key, lattice = _lattice(case, stations, wing_key, cache)
+    lattice_key, lattice = cached_lattice(case.lattice, case.moment_reference, stations,
+                                          wing_key, cache)
     models = MachModels(lattice, progress, store=cache, key=lattice_key)
     atmosphere = density_and_sound  # the one atmosphere of the run
     load_cases, vn = list(case.load_cases), None
@@ -157,7 +143,7 @@ def compute(case, progress=None, cache=None) -> RunResult:
                  if r.stall_warning]
     messages += [Message.from_prefixed(n) for n in
                  list(mesh.notes) + list(frame.notes) + list(stations.notes)]
-    messages += _stall_messages(case, models, results[0].mach)
+    messages += stall_messages(case, models, results[0].mach)
     return RunResult(case_path=case.path, case_text=Path(case.path).read_text(errors="replace"),
                      case=case, mesh=mesh, frame=frame, stations=stations, planform=planform,
                      lattice=lattice, cases=tuple(results), envelope=envelope, vn=vn,
@@ -176,24 +162,6 @@ def _masses(ctx, fuel_fraction):
     return ctx.masses[fuel_fraction]
 
 
-def _stall_messages(case, models, mach) -> list:
-    cl_sec = case.aircraft.cl_max
-    if cl_sec is None:
-        return []
-    st, out = models.stall_cl(mach, cl_sec), []
-    if not math.isfinite(st["CL_at_onset"]):
-        return out
-    if case.envelope is not None and case.envelope.cl_max_pos > st["CL_at_onset"] * STALL_MARGIN:
-        out.append(Message("warning", f"envelope.cl_max_pos {case.envelope.cl_max_pos:g} is above "
-                                      f"the wing CL {st['CL_at_onset']:.3f} at which the section "
-                                      f"cl_max {cl_sec:g} is first reached: the stall line may be "
-                                      "optimistic"))
-    out.append(Message("note", f"stall onset: section cl_max {cl_sec:g} is first reached at y = "
-                               f"{st['first_station_y']:.2f} m at wing CL {st['CL_at_onset']:.3f} "
-                               f"(alpha {st['alpha_at_onset']:.1f} deg)"))
-    return out
-
-
 def _versions() -> dict:
     import importlib.metadata as md
     import platform
@@ -208,47 +176,34 @@ def _versions() -> dict:
     return out
 
 
-def write_run(result: RunResult, out_dir, *, force=False, render=True, progress=None,
-              run_time_s=None) -> list:
+def write_run(result: RunResult, out_dir, *, force=False, render=True, progress=None) -> list:
     """Write every output of a computed run into ``out_dir``, whole or not at all (a staging
     folder moved into place at the end). Returns the list of files written."""
-    from geomload.export import write_all
+    out = _output_dir(result.case_path, result.case.geometry.file, out_dir, force)
+    return _write(result, out, force, render, progress or no_progress, time.perf_counter())[1]
+
+
+def _output_dir(case_path, geometry_file, out_dir, force):
     from geomload.export.atomic import OutputDir
 
-    progress = progress or no_progress
-    inputs = [result.case_path, result.case.geometry.file]
-    od = OutputDir(out_dir, force=force, inputs=inputs)
-    od.open()
-    try:
-        t_exp = time.perf_counter()
-        written = write_all(result, od.staging, inputs=inputs, render=render, progress=progress,
-                            options={"render": render, "force": force},
-                            run_time_s=run_time_s if run_time_s is not None else 0.0)
-        result.timings["export"] = time.perf_counter() - t_exp
-        od.commit()
-    except BaseException:
-        od.abort()
-        raise
-    return written["files"]
-
-
-def run_case_file(case_path, out_dir, force=False, render=True, progress=None):
-    """Read, compute and write a run. Returns (RunResult, list of files written)."""
-    from geomload.config.parse import read_case_file
-    from geomload.export import write_all
-    from geomload.export.atomic import OutputDir
-
-    progress = progress or no_progress
-    t0 = time.perf_counter()
-    case = read_case_file(case_path)
-    inputs = [case.path, case.geometry.file]
+    inputs = [case_path, geometry_file]
     od = OutputDir(out_dir, force=force, inputs=inputs)
     od.open()  # refuse a bad output folder before the heavy work
+    return od, inputs
+
+
+def _write(result, out, force, render, progress, t0, compute_first=None) -> tuple:
+    """(RunResult, files written) into the opened output folder ``out`` = (OutputDir, inputs);
+    compute_first: a callable computing the result inside the folder's cleanup."""
+    from geomload.export import write_all
+
+    od, inputs = out
     try:
-        result = compute(case, progress)
+        if compute_first is not None:
+            result = compute_first()
         t_exp = time.perf_counter()
-        written = write_all(result, od.staging, inputs=inputs, render=render, progress=progress,
-                            options={"render": render, "force": force},
+        written = write_all(result, od.staging, inputs=inputs, render=render,
+                            progress=progress, options={"render": render, "force": force},
                             run_time_s=time.perf_counter() - t0)
         result.timings["export"] = time.perf_counter() - t_exp
         od.commit()
@@ -260,6 +215,17 @@ def run_case_file(case_path, out_dir, force=False, render=True, progress=None):
         if callable(close):
             close()
     return result, written["files"]
+
+
+def run_case_file(case_path, out_dir, force=False, render=True, progress=None):
+    """Read, compute and write a run. Returns (RunResult, list of files written)."""
+    from geomload.config.parse import read_case_file
+
+    progress = progress or no_progress
+    t0 = time.perf_counter()
+    case = read_case_file(case_path)
+    od = _output_dir(case.path, case.geometry.file, out_dir, force)
+    return _write(None, od, force, render, progress, t0, lambda: compute(case, progress))
 
 
 __all__ = ["compute", "write_run", "run_case_file", "solve_case", "CaseContext", "GeomloadError"]

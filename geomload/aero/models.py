@@ -31,6 +31,22 @@ def lattice_mach(mach: float) -> float:
     return min(math.sqrt(-math.expm1(-2.0 * top)), MACH_TOP)
 
 
+def cached_lattice(spec, moment_reference, stations, wing_key, cache=None) -> tuple:
+    """(key, Lattice) of a LatticeSpec on the wing's stations, from ``cache`` when it holds the
+    same wing (wing_key), lattice specification and moment reference."""
+    from geomload.aero.lattice import build_lattice
+
+    ref = None if moment_reference is None else tuple(float(v) for v in moment_reference)
+    key = ("lattice", wing_key, spec, ref)
+    if cache is not None and key in cache:
+        return key, cache[key]
+    lattice = build_lattice(stations, n_span=spec.n_span, n_chord=spec.n_chord,
+                            spacing=spec.spacing, x_ref=moment_reference)
+    if cache is not None:
+        cache[key] = lattice
+    return key, lattice
+
+
 class MachModels:
     """One factorised AeroModel per lattice Mach, built on first use.
 

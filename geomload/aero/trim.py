@@ -148,3 +148,25 @@ def trim_case(lc, case, models: MachModels, atmosphere=density_and_sound) -> Tri
                        force_required_N=force_req, cf_required=cf_req, CL_required=CL_req,
                        alpha_deg=alpha, cd0=cd0, body_axis=body_axis, solution=sol,
                        stall_warning=warn)
+
+
+def stall_messages(case, models: MachModels, mach: float) -> list:
+    """Messages on the wing's stall onset at ``mach`` for the run: a note where the section
+    cl_max is first reached, a warning when the flight envelope's CLmax lies above it."""
+    from geomload.records import Message
+
+    cl_sec = case.aircraft.cl_max
+    if cl_sec is None:
+        return []
+    st, out = models.stall_cl(mach, cl_sec), []
+    if not math.isfinite(st["CL_at_onset"]):
+        return out
+    if case.envelope is not None and case.envelope.cl_max_pos > st["CL_at_onset"] * STALL_MARGIN:
+        out.append(Message("warning", f"envelope.cl_max_pos {case.envelope.cl_max_pos:g} is above "
+                                      f"the wing CL {st['CL_at_onset']:.3f} at which the section "
+                                      f"cl_max {cl_sec:g} is first reached: the stall line may be "
+                                      "optimistic"))
+    out.append(Message("note", f"stall onset: section cl_max {cl_sec:g} is first reached at y = "
+                               f"{st['first_station_y']:.2f} m at wing CL {st['CL_at_onset']:.3f} "
+                               f"(alpha {st['alpha_at_onset']:.1f} deg)"))
+    return out
