@@ -22,7 +22,17 @@ from pathlib import Path
 
 import numpy as np
 
+from geomload.aero.atmosphere import density_and_sound
+from geomload.aero.models import MachModels, cached_lattice
+from geomload.aero.trim import stall_messages, trim_case
+from geomload.config.checks import check_against_wing
+from geomload.config.parse import read_case_file
 from geomload.errors import CaseError, GeomloadError
+from geomload.loads.envelope import envelope_of
+from geomload.loads.flight_case import applied_loads, case_loads
+from geomload.loads.grid import load_grid
+from geomload.loads.masses import mass_distribution
+from geomload.loads.vn import flight_envelope_cases
 from geomload.records import CaseResult, Message, RunResult, no_progress
 
 SWEEP_DEG = np.arange(-6.0, 16.01, 1.0)  # the alpha sweep shown in the report (deg)
@@ -60,8 +70,6 @@ def _wing(case, progress, cache):
 
 def solve_case(lc, ctx: CaseContext) -> CaseResult:
     """Trim one LoadCase and integrate its loads. Returns a CaseResult."""
-    from geomload.aero.trim import trim_case
-    from geomload.loads.flight_case import applied_loads, case_loads
     case, grid = ctx.case, ctx.grid
     trimmed = trim_case(lc, case, ctx.models, ctx.atmosphere)
     applied = applied_loads(grid, trimmed, ctx.models.lattice.strip_width,
@@ -91,14 +99,7 @@ def compute(case, progress=None, cache=None) -> RunResult:
     lattice specification, each factorised aero model under the lattice and its Mach. A second
     compute of the same geometry and lattice with the same cache reads and factorises nothing.
     """
-    from geomload.aero.atmosphere import density_and_sound
-    from geomload.aero.models import MachModels, cached_lattice
-    from geomload.aero.trim import stall_messages
-    from geomload.config.checks import check_against_wing
     from geomload.geometry.read import SPAN_TOO_BIG_M, SPAN_TOO_SMALL_M
-    from geomload.loads.envelope import envelope_of
-    from geomload.loads.grid import load_grid
-    from geomload.loads.vn import flight_envelope_cases
 
     progress = progress or no_progress
     timings, messages = {}, []
@@ -152,7 +153,6 @@ def compute(case, progress=None, cache=None) -> RunResult:
 
 
 def _masses(ctx, fuel_fraction):
-    from geomload.loads.masses import mass_distribution
 
     g = ctx.grid
     if fuel_fraction not in ctx.masses:
@@ -219,7 +219,6 @@ def _write(result, out, force, render, progress, t0, compute_first=None) -> tupl
 
 def run_case_file(case_path, out_dir, force=False, render=True, progress=None):
     """Read, compute and write a run. Returns (RunResult, list of files written)."""
-    from geomload.config.parse import read_case_file
 
     progress = progress or no_progress
     t0 = time.perf_counter()
