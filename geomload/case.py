@@ -6,9 +6,9 @@ airspeed physics from :mod:`geomload.aero.atmosphere`."""
 from __future__ import annotations
 
 from .config.parse import LENGTH_UNITS, TOP_LEVEL_KEYS, read_case_file  # noqa: F401
-from .config.schema import (CATEGORIES,  # noqa: F401 MAX_ALTITUDE_M, AircraftSpec, Case, EnvelopeSpec,
-                            FlightEnvelopeSpec, FuelTank, GeometrySpec, LatticeSpec, LoadCase,
-                            SparSpec, WingMassSpec)
+from .config.schema import (CATEGORIES, MAX_ALTITUDE_M, AircraftSpec, Case,  # noqa: F401
+                            EnvelopeSpec, FlightEnvelopeSpec, FuelTank, GeometrySpec, LatticeSpec,
+                            LoadCase, SparSpec, WingMassSpec)
 from .config.template import case_template
 from .units import FOOT, GUST_UNITS, KNOT, SPEED_UNITS  # noqa: F401
 
