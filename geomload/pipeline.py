@@ -17,6 +17,7 @@ from __future__ import annotations
 import math
 import os
 import time
+import dataclasses
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -205,8 +206,9 @@ def _write(result, out, force, render, progress, t0, compute_first=None) -> tupl
         written = write_all(result, od.staging, inputs=inputs, render=render,
                             progress=progress, options={"render": render, "force": force},
                             run_time_s=time.perf_counter() - t0)
-        result.timings["export"] = time.perf_counter() - t_exp
         od.commit()
+        result = dataclasses.replace(  # a record is never changed: a new one with the timing
+            result, timings={**result.timings, "export": time.perf_counter() - t_exp})
     except BaseException:
         od.abort()
         raise
