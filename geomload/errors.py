@@ -29,3 +29,13 @@ class AeroError(InputError):
 
 class OutputError(GeomloadError):
     """An output cannot be written (directory exists without --force, not writable, ...)."""
+
+
+class Interrupted(KeyboardInterrupt):
+    """The run was stopped by a signal (SIGINT, SIGTERM, SIGHUP). Raised from the signal
+    handler, it unwinds through the normal cleanup path (staging folder removed, nothing
+    partial left); the CLI exits with 128 + the signal number (130, 143, 129)."""
+
+    def __init__(self, signum: int = 2):
+        super().__init__(f"interrupted by signal {signum}")
+        self.signum = int(signum)

@@ -218,41 +218,38 @@ class AeroSolution:
 
 
 # ------------------------------------------------------------------------------------------ loads
-@dataclass(frozen=True)
-class PointMass:
-    """A concentrated mass (kg) at a wing-frame position (m), on the starboard side (y >= 0)."""
-
-    name: str
-    mass: float
-    position: np.ndarray
+# The loads stage's records live in geomload.loads.records; they are part of this contract too.
+from geomload.loads.records import (AppliedLoads, Equilibrium, LoadGrid,  # noqa: E402,F401
+                                    LoadsEnvelope, MassDistribution, PointLoad, PointMass,
+                                    SpanLoads, TrimState, VnDiagram)
 
 
 @dataclass(frozen=True)
-class SpanLoads:
-    """Loads along one semi-span for one flight case, limit values, root to tip (wing frame).
+class Message:
+    """A message for the user: kind "warning" (something that can change a number: a guessed
+    unit, a case beyond stall, an extrapolated table) or "note" (a fact that cannot); text: one
+    line, without a prefix. The library returns these; the CLI prints them."""
 
-    y: (n,) stations (m); lift_N_per_m, drag_N_per_m, pitch_Nm_per_m (about the spar axis,
-    nose-up positive); inertia_N_per_m (downward weight relief n*g*m'(y), positive down);
-    shear_N, bending_Nm, torsion_Nm (out-of-plane, local spar frame; signs: shear positive up,
-    bending positive tip-up, torsion nose-up); inplane_shear_N, inplane_bending_Nm (chordwise);
-    schrenk_lift_N_per_m: Schrenk distribution of the same total lift (cross-check).
-    ultimate_factor: multiply limit values by it for ultimate loads.
-    """
+    kind: str
+    text: str
 
-    case: str
-    y: np.ndarray
-    lift_N_per_m: np.ndarray
-    drag_N_per_m: np.ndarray
-    pitch_Nm_per_m: np.ndarray
-    inertia_N_per_m: np.ndarray
-    shear_N: np.ndarray
-    bending_Nm: np.ndarray
-    torsion_Nm: np.ndarray
-    inplane_shear_N: np.ndarray
-    inplane_bending_Nm: np.ndarray
-    schrenk_lift_N_per_m: np.ndarray
-    ultimate_factor: float = 1.5
-    extras: dict = field(default_factory=dict)
+    def __post_init__(self):
+        if self.kind not in ("warning", "note"):
+            raise ValueError(f"warning kind must be 'warning' or 'note', got {self.kind!r}")
+
+    def __str__(self) -> str:
+        return f"{self.kind}: {self.text}"
+
+    @classmethod
+    def from_prefixed(cls, text: str) -> "Message":
+        """From the prefixed form ("warning: ...", "note: ..."; bare text is a note) that the
+        geometry stage still returns: the one place such prefixes are read."""
+        for kind in ("warning", "note"):
+            if text.startswith(kind + ": "):
+                return cls(kind, text[len(kind) + 2:])
+        return cls("note", text)
+
+
 
 
 # ------------------------------------------------------------------------------------------- run
@@ -285,25 +282,49 @@ class CaseResult:
 class RunResult:
     """Everything `geomload run` computed, handed to the exporters.
 
-    case_path: the case file; case_text: its text (echoed in the report); case: the parsed Case
-    (geomload.case.Case); mesh, frame, stations, planform, lattice; cases: list of CaseResult;
-    envelope: geomload.loads.envelope.Envelope or None; vn: geomload.loads.envelope.VnDiagram or
-    None; alpha_sweep: list of (alpha_deg, CL) from the lattice at the first case's Mach;
-    warnings: list of one-line warnings; timings: dict step -> seconds; versions: dict pkg -> str.
+    case_path: the case file; case_text: its text (echoed in the report); case: the Case records
+    (geomload.config.schema.Case); mesh, frame, stations, planform, lattice; cases: tuple of
+    CaseResult; envelope: the envelope of loads (LoadsEnvelope); vn: tuple of VnDiagram (empty
+    without an [envelope]); alpha_sweep: tuple of (alpha_deg, CL) from the lattice at the first
+    case's Mach; messages: tuple of Message (kind, text); timings: step -> seconds; versions:
+    package -> version.
     """
 
     case_path: str
     case_text: str
-    case: object
+    case: "Case"
     mesh: WingMesh
     frame: WingFrame
     stations: Stations
     planform: Planform
     lattice: Lattice
-    cases: list
-    envelope: object = None
-    vn: object = None
-    alpha_sweep: list = field(default_factory=list)
-    warnings: list = field(default_factory=list)
+    cases: tuple
+    envelope: Optional[LoadsEnvelope] = None
+    vn: Optional[tuple] = None
+    alpha_sweep: tuple = ()
+    messages: tuple = ()
     timings: dict = field(default_factory=dict)
     versions: dict = field(default_factory=dict)
+
+    def __post_init__(self):
+        object.__setattr__(self, "cases", tuple(self.cases))
+        if not all(isinstance(c, CaseResult) for c in self.cases):
+            raise TypeError("RunResult.cases: CaseResult records only")
+        if self.envelope is not None and not isinstance(self.envelope, LoadsEnvelope):
+            raise TypeError("RunResult.envelope: a LoadsEnvelope or None")
+        if self.vn is not None:
+            object.__setattr__(self, "vn", tuple(self.vn))
+            if not all(isinstance(d, VnDiagram) for d in self.vn):
+                raise TypeError("RunResult.vn: VnDiagram records only")
+        object.__setattr__(self, "messages", tuple(self.messages))
+        if not all(isinstance(m, Message) for m in self.messages):
+            raise TypeError("RunResult.messages: Message records only")
+
+    @property
+    def warnings(self) -> list:
+        """The messages in the earlier string form: "note: ..." for notes, bare text for
+        warnings."""
+        return [f"note: {m.text}" if m.kind == "note" else m.text for m in self.messages]
+
+
+from geomload.config.schema import Case  # noqa: E402  (typing of RunResult.case)

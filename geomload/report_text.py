@@ -176,7 +176,7 @@ def run_table(result) -> str:
         lines.append(f"{c.name[:32]:<32} {c.aero.alpha_deg:9.3f} {c.aero.CL:7.4f} "
                      f"{ld.shear_N[0]:13.1f} {ld.bending_Nm[0]:16.1f} {ld.torsion_Nm[0]:16.2f}")
     if result.envelope is not None:
-        from geomload.export.envelope_access import critical_table
+        from geomload.loads.envelope import critical_rows as critical_table
 
         lines.append("")
         lines.append("Critical cases (envelope of limit loads at the root; ultimate = "

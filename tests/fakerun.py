@@ -14,11 +14,10 @@ aircraft is the Quillmoor Aerial Works QM-36 Pellin survey UAV.
 
 from __future__ import annotations
 
-from types import SimpleNamespace
 
 import numpy as np
 
-from geomload.records import (AeroSolution, CaseResult, Lattice, Planform, RunResult, SpanLoads,
+from geomload.records import (AeroSolution, CaseResult, Lattice, Message, Planform, RunResult, SpanLoads,
                               Stations, WingFrame, WingMesh)
 
 G = 9.80665  # standard gravity (CGPM 1901)
@@ -212,7 +211,7 @@ def make_case(name, v_eas, n, stations, lattice, planform, altitude=1000.0):
                       inertia_N_per_m=inertia, shear_N=shear, bending_Nm=bend, torsion_Nm=tors,
                       inplane_shear_N=ips, inplane_bending_Nm=_cumtrapz_from_tip(y, ips),
                       schrenk_lift_N_per_m=schrenk, ultimate_factor=1.5,
-                      extras={"spar_points_m": np.column_stack([stations.x_qc, y, stations.z_qc])})
+                      spar_points_m=np.column_stack([stations.x_qc, y, stations.z_qc]))
     total = np.sum(0.5 * ((lift - inertia)[1:] + (lift - inertia)[:-1]) * np.diff(y))
     resid = abs(shear[0] - total) / max(abs(total), 1e-12)
     warn = "required CL beyond the stall estimate" if CL > 1.4 else ""
@@ -240,33 +239,6 @@ def make_vn(planform):
                        lift_slope(planform), mass_kg=m) for m in (MASS_KG, 18.0)]
 
 
-def make_envelope_ns(cases):
-    """The documented duck-typed form: flat attributes, station-wise max/min over the cases."""
-    y = cases[0].loads.y
-    names = np.array([c.name for c in cases], dtype=object)
-    env = SimpleNamespace(y=y, ultimate_factor=1.5, case_names=list(names))
-    for key, attr in (("shear", "shear_N"), ("bending", "bending_Nm"), ("torsion", "torsion_Nm")):
-        stack = np.array([getattr(c.loads, attr) for c in cases])
-        unit = attr.split("_", 1)[1]
-        setattr(env, f"{key}_max_{unit}", stack.max(axis=0))
-        setattr(env, f"{key}_min_{unit}", stack.min(axis=0))
-        setattr(env, f"{key}_max_case", list(names[stack.argmax(axis=0)]))
-        setattr(env, f"{key}_min_case", list(names[stack.argmin(axis=0)]))
-    return env
-
-
-def make_vn_ns():
-    """The documented duck-typed V-n form: curves and (name, v_eas, n) points."""
-    vs = np.linspace(0, 45, 30)
-    curves = {"stall +": (vs, np.minimum((vs / 16.0) ** 2, 3.8)),
-              "stall -": (vs, -np.minimum((vs / 20.0) ** 2, 1.52)),
-              "gust V_C": (np.array([0, 32.0]), np.array([1, 3.1])),
-              "dive": (np.array([45.0, 45.0]), np.array([-0.0, 3.8]))}
-    pts = [SimpleNamespace(name=n, v_eas=v, n=f) for n, v, f in
-           (("A", 31.2, 3.8), ("C", 32.0, 3.8), ("D", 45.0, 3.8), ("G", 26.6, -1.52), ("E", 45.0, 0.0))]
-    return SimpleNamespace(curves=curves, points=pts)
-
-
 def make_run(case_names=("cruise 1g", "pull-up +3.8g", "push -1.5g"), n_stations=12):
     """The whole synthetic RunResult; case_names may include hostile strings."""
     frame = make_frame()
@@ -277,12 +249,17 @@ def make_run(case_names=("cruise 1g", "pull-up +3.8g", "push -1.5g"), n_stations
     specs = [(30.0, 1.0), (32.0, 3.8), (26.0, -1.5), (40.0, 2.5), (45.0, 1.2)]
     cases = [make_case(nm, v, n, st, lat, pf) for nm, (v, n) in zip(case_names, specs * 10)]
     sweep = [(a, make_aero(a, lat, pf).CL) for a in np.linspace(-4, 12, 9)]
-    case = SimpleNamespace(title="QM-36 Pellin test", spar=SimpleNamespace(chord_fraction=0.25, line=()),
-                           geometry=SimpleNamespace(file=mesh.source, units="mm", body=None,
-                                                    span_axis=None, up_axis=None, n_stations=n_stations))
+    from geomload.config.schema import (AircraftSpec, Case, GeometrySpec, LatticeSpec,
+                                        SparSpec)
+
+    case = Case(path="/nonexistent/pellin_case.toml", title="QM-36 Pellin test",
+                geometry=GeometrySpec(file=mesh.source, units="mm", n_stations=n_stations),
+                aircraft=AircraftSpec(MASS_KG), wing_mass=None, point_masses=(), fuel_tanks=(),
+                spar=SparSpec(0.25), moment_reference=None, load_cases=(), envelope=None,
+                lattice=LatticeSpec())
     return RunResult(case_path="/nonexistent/pellin_case.toml", case_text=CASE_TEXT, case=case,
                      mesh=mesh, frame=frame, stations=st, planform=pf, lattice=lat, cases=cases,
                      envelope=make_envelope(cases), vn=make_vn(pf), alpha_sweep=sweep,
-                     warnings=["synthetic data: not a real analysis"],
+                     messages=(Message("warning", "synthetic data: not a real analysis"),),
                      timings={"geometry": 0.12, "aero": 0.30, "loads": 0.05},
                      versions={"geomload": "0.1.0", "numpy": np.__version__})

@@ -14,13 +14,15 @@ from ambiance import Atmosphere
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from geomload.case import EnvelopeSpec
+from geomload.config.schema import FlightEnvelopeSpec as EnvelopeSpec
 from geomload.errors import CaseError
-from geomload.loads.envelope import (FOOT, KNOT, LB, PSF, QUANTITIES, critical_points, design_speeds,
-                                     envelope_of, gust_alleviation, gust_load_factor,
-                                     limit_load_factors, minimum_design_speeds, points_to_load_cases,
-                                     rule_gust_velocities, stall_speed, vn_diagram)
+from geomload.loads.envelope import QUANTITIES, envelope_of
+from geomload.loads.rules_part23 import (design_speeds, gust_alleviation, gust_load_factor,
+                                         limit_load_factors, minimum_design_speeds,
+                                         rule_gust_velocities, stall_speed)
+from geomload.loads.vn import critical_points, points_to_load_cases, vn_diagram
 from geomload.records import SpanLoads
+from geomload.units import FOOT, KNOT, PSF, POUND as LB
 from validation import check
 
 G = 9.80665
@@ -89,11 +91,11 @@ def test_derived_design_speeds_and_maneuver_speed():
     spec = EnvelopeSpec("utility", 1.5, 0.9)
     m, s = 1000.0, 15.0
     sp = design_speeds(spec, m, s)
-    vs = math.sqrt(2 * m * G / (1.225 * s * 1.5))
+    vs = math.sqrt(2 * m * G / (1.225 * s * 1.5))  # rho0 tabulated as 1.2250: agree to 1e-7
     check("W = 1/2 rho0 V^2 S CLmax", "stall speed, 1000 kg, 15 m^2, CLmax 1.5 (m/s EAS)", vs,
-          stall_speed(m, s, 1.5), rel=1e-12)
+          stall_speed(m, s, 1.5), rel=1e-7)
     check("14 CFR 23.335(c), from memory", "V_A = V_S sqrt(n), utility, capped at V_C (m/s EAS)",
-          min(vs * math.sqrt(4.4), sp.v_cruise), sp.v_maneuver, rel=1e-12)
+          min(vs * math.sqrt(4.4), sp.v_cruise), sp.v_maneuver, rel=1e-7)
     assert sp.v_dive >= 1.25 * sp.v_cruise  # 14 CFR 23.335(b)(1): V_D >= 1.25 V_C, from memory
 
 
@@ -150,7 +152,7 @@ def test_vn_diagram_corners_lie_on_the_stall_and_limit_lines():
     q = 0.5 * 1.225 * pts["pos-stall-corner"].v_eas ** 2
     # the positive corner is where the stall curve q S CLmax / W reaches n_pos
     check("stall line n = q S CLmax / W", "n at the positive stall corner = n_pos (-)", d.n_pos,
-          q * s * 1.4 / (m * G), rel=1e-12)
+          q * s * 1.4 / (m * G), rel=1e-7)  # rho0 tabulated as 1.2250
     # the corners sit on the envelope's own lines (23.333(b) shape, from memory)
     assert pts["pos-limit-dive"].v_eas == pytest.approx(d.speeds.v_dive)
     assert pts["neg-limit-cruise"].n == pytest.approx(d.n_neg)
@@ -270,7 +272,6 @@ def test_custom_negative_factor_at_dive_and_low_gust_note(tmp_path):
     # a custom envelope may set its negative limit at V_D; the V-n corner takes it (definition
     # of the input); a gust below the 23.333(c)(1) value (50 ft/s = 15.24 m/s at V_C, read) is
     # accepted with a note
-    from geomload.case import EnvelopeSpec
     from geomload.loads.envelope import vn_diagram
 
     spec = EnvelopeSpec(category="custom", cl_max_pos=1.3, cl_max_neg=0.7, n_pos=4.0, n_neg=-2.0,

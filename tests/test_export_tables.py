@@ -89,18 +89,6 @@ def test_vn_csv(tmp_path, run):
     assert {str(t) for t in a["diagram"]} == {"25 kg at 0 m", "18 kg at 0 m"}
 
 
-def test_duck_typed_envelope_and_vn(tmp_path, run):
-    # the flat-attribute envelope and a points-only V-n give the same table as the real records
-    env_ns = fakerun.make_envelope_ns(run.cases)
-    a = _read(tables.write_envelope_csv(tmp_path / "e1.csv", env_ns))
-    b = _read(tables.write_envelope_csv(tmp_path / "e2.csv", run.envelope))
-    for col in ("bending_max_Nm", "bending_max_ult_Nm", "torsion_min_Nm", "shear_min_ult_N"):
-        np.testing.assert_allclose(a[col], b[col], rtol=1e-12, atol=1e-12)
-    assert list(a["bending_max_case"]) == list(b["bending_max_case"])
-    v = _read(tables.write_vn_csv(tmp_path / "v.csv", fakerun.make_vn_ns()))
-    assert [str(x) for x in v[v["kind"] == "point"]["name"]] == ["A", "C", "D", "G", "E"]
-
-
 def test_summary_json(tmp_path, run):
     p = tables.write_summary_json(tmp_path / "summary.json", run)
     d = json.loads(p.read_text())

@@ -49,12 +49,29 @@ def test_fuel_tank_over_a_span_range():
     m = tank_mass_per_span(Y, CHORD, tank, fraction=0.5)
     check(MASS, "semi-span integral of a 4 kg tank, half full (kg)", 0.5 * 0.5 * 4.0, _trapz(Y, m),
           rel=1e-12)
-    inside = (Y >= 0.4 - 1e-9) & (Y <= 1.2 + 1e-9)
-    # a tank carries mass only over its span range, uniform or chord-shaped (its definition)
+    inside = (Y > 0.4 + 1e-9) & (Y < 1.2 - 1e-9)
+    # a tank carries mass only over its span range, uniform or chord-shaped (its definition):
+    # zero at its ends (so nothing reaches past them), uniform at the points inside
     assert np.all(m[~inside] == 0.0)
     np.testing.assert_allclose(m[inside], m[inside][0])  # uniform per span
     mc = tank_mass_per_span(Y, CHORD, FuelTank("inner", 4.0, 0.4, 1.2, "chord"))
     np.testing.assert_allclose(mc[inside] / CHORD[inside], mc[inside][0] / CHORD[inside][0])
+    # project behaviour: a tank narrower than a station gap is not spread (it is lumped)
+    assert tank_mass_per_span(Y, CHORD, FuelTank("tiny", 1.0, 0.41, 0.5)) is None
+
+
+def test_fuel_tank_ends_are_exact_on_a_grid_with_step_points():
+    # the load grid adds a point a small gap inside each tank end: the mass then lies inside
+    # [y_from, y_to] and its centroid is the range's mid-point (centroid of a uniform load)
+    gap = 1e-6 * 1.6
+    y = np.unique(np.concatenate([np.linspace(0.0, 1.6, 9), [0.3, 0.3 + gap, 1.1 - gap, 1.1]]))
+    c = np.interp(y, Y, CHORD)
+    m = tank_mass_per_span(y, c, FuelTank("inner", 4.0, 0.3, 1.1))
+    assert np.all(m[(y <= 0.3) | (y >= 1.1)] == 0.0)
+    check(MASS, "semi-span integral of a 4 kg tank (kg)", 2.0, _trapz(y, m), rel=1e-12)
+    centroid = _trapz(y, m * y) / _trapz(y, m)
+    check("centroid of a uniform span range", "y of a uniform tank 0.3-1.1 m (m)", 0.7, centroid,
+          rel=1e-6)
     # project behaviour: a tank narrower than a station gap is not spread (it is lumped)
     assert tank_mass_per_span(Y, CHORD, FuelTank("tiny", 1.0, 0.41, 0.5)) is None
 

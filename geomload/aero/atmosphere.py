@@ -18,13 +18,7 @@ from dataclasses import dataclass
 
 
 from geomload.errors import InputError
-
-G0 = 9.80665  # m/s^2, standard gravity
-R_AIR = 287.05287  # J/(kg K), R* / M0 of the 1976 standard
-GAMMA = 1.4
-T0 = 288.15  # K
-P0 = 101325.0  # Pa
-RHO0 = P0 / (R_AIR * T0)  # 1.2250 kg/m^3
+from geomload.units import G0, GAMMA_AIR as GAMMA, P0_ISA as P0, R_AIR, RHO0_ISA as RHO0, T0_ISA as T0
 LAPSE = -0.0065  # K/m, 0..11 km geopotential
 H_TROPOPAUSE = 11000.0  # m geopotential
 T_TROPOPAUSE = T0 + LAPSE * H_TROPOPAUSE  # 216.65 K
@@ -100,27 +94,51 @@ def _speed(v, name: str) -> float:
     return v
 
 
-def tas_from_eas(v_eas: float, h_m: float) -> float:
-    """True airspeed (m/s) from equivalent airspeed (m/s): V = V_e sqrt(rho0 / rho)."""
-    return _speed(v_eas, "EAS") * math.sqrt(RHO0 / isa(h_m).rho)
+def _state(h_m: float, atmosphere=None) -> tuple:
+    return (atmosphere or density_and_sound)(h_m)
 
 
-def eas_from_tas(v_tas: float, h_m: float) -> float:
+def tas_from_eas(v_eas: float, h_m: float, atmosphere=None) -> float:
+    """True airspeed (m/s) from equivalent airspeed (m/s): V = V_e sqrt(rho0 / rho).
+    atmosphere: callable h_m -> (rho, a); default ISA."""
+    return _speed(v_eas, "EAS") * math.sqrt(RHO0 / _state(h_m, atmosphere)[0])
+
+
+def eas_from_tas(v_tas: float, h_m: float, atmosphere=None) -> float:
     """Equivalent airspeed (m/s) from true airspeed (m/s): V_e = V sqrt(rho / rho0)."""
-    return _speed(v_tas, "TAS") * math.sqrt(isa(h_m).rho / RHO0)
+    return _speed(v_tas, "TAS") * math.sqrt(_state(h_m, atmosphere)[0] / RHO0)
 
 
-def mach(v_tas: float, h_m: float) -> float:
+def mach(v_tas: float, h_m: float, atmosphere=None) -> float:
     """Mach number V / a at geopotential altitude h (m)."""
-    return _speed(v_tas, "TAS") / isa(h_m).a
+    return _speed(v_tas, "TAS") / _state(h_m, atmosphere)[1]
 
 
-def dynamic_pressure(v_tas: float, h_m: float) -> float:
+def dynamic_pressure(v_tas: float, h_m: float, atmosphere=None) -> float:
     """Dynamic pressure q = rho V^2 / 2 (Pa) from true airspeed (m/s)."""
-    return 0.5 * isa(h_m).rho * _speed(v_tas, "TAS") ** 2
+    return 0.5 * _state(h_m, atmosphere)[0] * _speed(v_tas, "TAS") ** 2
+
+
+def density_and_sound(h_m: float) -> tuple:
+    """(density kg/m^3, speed of sound m/s) at geopotential altitude h_m: the atmosphere form
+    the pipeline passes to the stages (a callable h -> (rho, a))."""
+    atm = isa(h_m)
+    return float(atm.rho), float(atm.a)
+
+
+def airspeeds(speed_m_s: float, speed_type: str, altitude_m: float, atmosphere=None) -> tuple:
+    """(v_eas, v_tas) in m/s of a speed of kind speed_type ("EAS" or "TAS") at altitude_m:
+    v_tas = v_eas sqrt(rho0 / rho(h)) (definition of equivalent airspeed).
+
+    atmosphere: callable h_m -> (rho, a); default :func:`density_and_sound` (ISA).
+    """
+    if speed_type == "EAS":
+        return speed_m_s, tas_from_eas(speed_m_s, altitude_m, atmosphere)
+    return eas_from_tas(speed_m_s, altitude_m, atmosphere), speed_m_s
 
 
 __all__ = [
+    "density_and_sound", "airspeeds",
     "Atmosphere", "isa", "tas_from_eas", "eas_from_tas", "mach", "dynamic_pressure",
     "geopotential_from_geometric", "geometric_from_geopotential", "RHO0", "G0",
 ]

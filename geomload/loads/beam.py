@@ -17,12 +17,11 @@ For an unswept, flat wing these are F_z, M_x, M_y, F_x and -M_z of the wing fram
 
 from __future__ import annotations
 
-from dataclasses import dataclass
-
 import numpy as np
 
-from ..errors import InputError
-from ..records import SpanLoads
+from geomload.errors import InputError
+
+from .records import AppliedLoads, Equilibrium, LoadGrid, PointLoad, SpanLoads  # noqa: F401
 
 SIGN_CONVENTION = (
     "shear positive up (net upward load outboard of the station); bending positive tip-up; "
@@ -30,15 +29,6 @@ SIGN_CONVENTION = (
     "bending positive tip-aft; local spar frame (s along the spar outboard, b chordwise aft "
     "normal to s, n = b x s up); limit loads unless marked ultimate"
 )
-
-
-@dataclass(frozen=True)
-class PointLoad:
-    """A concentrated force on the semi-span. position (3,) m, force (3,) N, wing frame."""
-
-    name: str
-    position: np.ndarray
-    force: np.ndarray
 
 
 def _col(a, n, name, default=0.0):
@@ -127,54 +117,85 @@ def integrate_loads(y, spar_x, spar_z, lift_N_per_m, *, drag_N_per_m=None, side_
     Returns
     -------
     SpanLoads with the sign convention of :data:`SIGN_CONVENTION`; ``pitch_Nm_per_m`` is the
-    aerodynamic moment per span about the spar axis. extras: ``force_N`` and ``moment_Nm``
-    ((n, 3), outboard resultant about the spar point, wing frame), ``axis_s``, ``axis_b``,
-    ``axis_n`` ((n, 3) local frame), ``spar_points_m`` ((n, 3)), ``point_loads`` (the tuple
-    given), ``sign_convention``.
+    aerodynamic moment per span about the spar axis; ``force_N`` and ``moment_Nm`` ((n, 3),
+    outboard resultant about the spar point, wing frame), ``axis_s``, ``axis_b``, ``axis_n``
+    ((n, 3) local frame), ``spar_points_m`` ((n, 3)) and ``applied`` (the loads given).
     """
     y = np.asarray(y, dtype=float)
     n = y.size
     if n < 2 or not np.all(np.isfinite(y)) or np.any(np.diff(y) <= 0):
         raise InputError("integrate_loads: y must hold >= 2 finite stations increasing root to tip")
     sx, sz = _col(spar_x, n, "spar_x"), _col(spar_z, n, "spar_z")
-    lift = _col(lift_N_per_m, n, "lift_N_per_m")
-    drag = _col(drag_N_per_m, n, "drag_N_per_m")
-    side = _col(side_N_per_m, n, "side_N_per_m")
-    pitch = _col(pitch_Nm_per_m, n, "pitch_Nm_per_m")
-    ax = sx if load_x is None else _col(load_x, n, "load_x")
-    az = sz if load_z is None else _col(load_z, n, "load_z")
-    q = _col(inertia_N_per_m, n, "inertia_N_per_m")
-    ix = sx if inertia_x is None else _col(inertia_x, n, "inertia_x")
-    iz = sz if inertia_z is None else _col(inertia_z, n, "inertia_z")
+    alpha = float(alpha_deg)
+    applied = AppliedLoads(
+        lift_N_per_m=_col(lift_N_per_m, n, "lift_N_per_m"),
+        drag_N_per_m=_col(drag_N_per_m, n, "drag_N_per_m"),
+        side_N_per_m=_col(side_N_per_m, n, "side_N_per_m"),
+        pitch_Nm_per_m=_col(pitch_Nm_per_m, n, "pitch_Nm_per_m"),
+        load_x_m=sx if load_x is None else _col(load_x, n, "load_x"),
+        load_z_m=sz if load_z is None else _col(load_z, n, "load_z"),
+        inertia_N_per_m=_col(inertia_N_per_m, n, "inertia_N_per_m"),
+        inertia_x_m=sx if inertia_x is None else _col(inertia_x, n, "inertia_x"),
+        inertia_z_m=sz if inertia_z is None else _col(inertia_z, n, "inertia_z"),
+        point_loads=tuple(point_loads), alpha_deg=alpha,
+        inertia_alpha_deg=alpha if inertia_alpha_deg is None else float(inertia_alpha_deg))
+    return integrate(y, sx, sz, applied, case=case, ultimate_factor=ultimate_factor,
+                     schrenk_lift_N_per_m=schrenk_lift_N_per_m)
+
+
+def _reverse_cumsum(a):
+    """out[i] = sum of a[i:] along axis 0, with one zero row appended (the tip)."""
+    out = np.zeros((a.shape[0] + 1,) + a.shape[1:])
+    out[:-1] = np.cumsum(a[::-1], axis=0)[::-1]
+    return out
+
+
+def integrate(y, spar_x, spar_z, applied: AppliedLoads, *, case: str = "",
+              ultimate_factor: float = 1.5, schrenk_lift_N_per_m=None) -> SpanLoads:
+    """Integrate one semi-span's AppliedLoads from tip to root on the stations y (m), with the
+    spar axis (spar_x, spar_z) (m); see :func:`integrate_loads` for the meaning of each load.
+
+    The resultant about each spar point P_i sums, over the segments j outboard of it, the
+    segment's own moment about P_j plus (P_j - P_i) x its force: with cumulative sums from the
+    tip, M_i = S_m,i + S_pf,i - P_i x F_i (positions taken relative to the tip point, so the
+    subtraction loses nothing near the tip).
+    """
+    y = np.asarray(y, dtype=float)
+    n = y.size
+    a = applied
+    sx, sz = np.asarray(spar_x, float), np.asarray(spar_z, float)
+    if a.lift_N_per_m.size != n:
+        raise InputError(f"integrate: applied loads have {a.lift_N_per_m.size} points, grid {n}")
+    lift, drag, side, pitch, q = (a.lift_N_per_m, a.drag_N_per_m, a.side_N_per_m,
+                                  a.pitch_Nm_per_m, a.inertia_N_per_m)
+    ax, az, ix, iz = a.load_x_m, a.load_z_m, a.inertia_x_m, a.inertia_z_m
     zero = np.zeros(n)
     p = np.column_stack([sx, y, sz])
 
-    ca, sa = np.cos(np.radians(float(alpha_deg))), np.sin(np.radians(float(alpha_deg)))
+    ca, sa = np.cos(np.radians(a.alpha_deg)), np.sin(np.radians(a.alpha_deg))
     fx_aero, fz_aero = drag * ca - lift * sa, lift * ca + drag * sa
     fa, ma = _segment_moments(y, p, np.column_stack([ax, y, az]),
                               np.column_stack([fx_aero, side, fz_aero]))
-    bi = np.radians(float(alpha_deg if inertia_alpha_deg is None else inertia_alpha_deg))
+    bi = np.radians(a.inertia_alpha_deg)
     fi, mi = _segment_moments(y, p, np.column_stack([ix, y, iz]),
                               np.column_stack([q * np.sin(bi), zero, -q * np.cos(bi)]))
     couple = np.zeros((n - 1, 3))
     couple[:, 1] = 0.5 * np.diff(y) * (pitch[:-1] + pitch[1:])  # about axes parallel to y
     seg_f = fa + fi
     seg_m = ma + mi + couple
-    # tip to root: M_i = sum_{j>=i} [m_j + (P_j - P_i) x f_j], evaluated relative to P_i
-    force = np.zeros((n, 3))
-    moment = np.zeros((n, 3))
-    for i in range(n - 2, -1, -1):
-        force[i] = force[i + 1] + seg_f[i]
-        moment[i] = moment[i + 1] + np.cross(p[i + 1] - p[i], force[i + 1]) + seg_m[i]
+    rel = p - p[-1]
+    force = _reverse_cumsum(seg_f)
+    moment = (_reverse_cumsum(seg_m) + _reverse_cumsum(np.cross(rel[:-1], seg_f))
+              - np.cross(rel, force))
     tol = 1e-12 * max(1.0, float(y[-1] - y[0]))
-    for pl in point_loads:
-        r, fv = np.asarray(pl.position, float), np.asarray(pl.force, float)
+    for pl in a.point_loads:
+        r, fv = pl.position, pl.force
         on = y <= r[1] + tol
         force[on] += fv
         moment[on] += np.cross(r[None, :] - p[on], fv[None, :])
 
     s, b, nrm = spar_frame(y, sx, sz)
-    dot = lambda a, e: np.einsum("ij,ij->i", a, e)  # noqa: E731
+    dot = lambda u, e: np.einsum("ij,ij->i", u, e)  # noqa: E731
     pitch_spar = pitch + (az - sz) * fx_aero - (ax - sx) * fz_aero
     return SpanLoads(
         case=case, y=y, lift_N_per_m=lift, drag_N_per_m=drag, pitch_Nm_per_m=pitch_spar,
@@ -183,14 +204,8 @@ def integrate_loads(y, spar_x, spar_z, lift_N_per_m, *, drag_N_per_m=None, side_
         inplane_bending_Nm=-dot(moment, nrm),
         schrenk_lift_N_per_m=(np.full(n, np.nan) if schrenk_lift_N_per_m is None
                               else _col(schrenk_lift_N_per_m, n, "schrenk_lift_N_per_m")),
-        ultimate_factor=float(ultimate_factor),
-        extras={"force_N": force, "moment_Nm": moment, "axis_s": s, "axis_b": b, "axis_n": nrm,
-                "side_N_per_m": side, "load_z_m": az, "load_x_m": ax, "alpha_deg": float(alpha_deg),
-                "inertia_alpha_deg": float(np.degrees(bi)), "inertia_x_m": ix, "inertia_z_m": iz,
-                "pitch_about_load_line_Nm_per_m": pitch,
-                "point_loads": tuple(point_loads), "spar_points_m": p,
-                "sign_convention": SIGN_CONVENTION},
-    )
+        ultimate_factor=float(ultimate_factor), force_N=force, moment_Nm=moment, axis_s=s,
+        axis_b=b, axis_n=nrm, spar_points_m=p, applied=applied)
 
 
 def ultimate(loads: SpanLoads) -> dict:
@@ -213,7 +228,7 @@ def _lin_product(y, a, b):
                                    + 2 * a[1:] * b[1:])))
 
 
-def equilibrium_residual(loads: SpanLoads) -> dict:
+def equilibrium_residual(loads: SpanLoads) -> Equilibrium:
     """Root equilibrium check, computed independently of the tip-to-root recursion.
 
     The whole semi-span's loads are summed directly about the root spar point p0: force = the
@@ -222,50 +237,46 @@ def equilibrium_residual(loads: SpanLoads) -> dict:
     (r - p0) x f (closed form for products of linear functions) plus the section moments and the
     point-load moments. Compared, as vectors, with the root resultant of the recursion.
 
-    Returns dict: total_vertical_N (z of the summed force), first_moment_Nm (x of the summed
-    moment), shear_residual_rel, bending_residual_rel (vector differences relative to the size of
-    the loads carried, so a case whose net load is about zero is judged fairly).
+    Returns an Equilibrium record: total_vertical_N (z of the summed force), first_moment_Nm (x of
+    the summed moment), shear_residual_rel, bending_residual_rel (vector differences relative to
+    the size of the loads carried, so a case whose net load is about zero is judged fairly).
     """
-    ex = loads.extras
+    a = loads.applied
+    if a is None or loads.spar_points_m is None or loads.force_N is None:
+        raise InputError(f"equilibrium_residual: case {loads.case!r} carries no beam detail")
     y = loads.y
-    p0 = ex["spar_points_m"][0]
-    al = np.radians(ex.get("alpha_deg", 0.0))
-    bi = np.radians(ex.get("inertia_alpha_deg", ex.get("alpha_deg", 0.0)))
-    lift, drag, q = loads.lift_N_per_m, loads.drag_N_per_m, loads.inertia_N_per_m
-    side = ex.get("side_N_per_m", np.zeros_like(y))
+    p0 = loads.spar_points_m[0]
+    al, bi = np.radians(a.alpha_deg), np.radians(a.inertia_alpha_deg)
+    lift, drag, q, side = a.lift_N_per_m, a.drag_N_per_m, a.inertia_N_per_m, a.side_N_per_m
     zero = np.zeros_like(y)
     fa = np.column_stack([drag * np.cos(al) - lift * np.sin(al), side,
                           lift * np.cos(al) + drag * np.sin(al)])
     fi = np.column_stack([q * np.sin(bi), zero, -q * np.cos(bi)])
-    ra = np.column_stack([ex.get("load_x_m", ex["spar_points_m"][:, 0]), y,
-                          ex.get("load_z_m", ex["spar_points_m"][:, 2])]) - p0
-    ri = np.column_stack([ex.get("inertia_x_m", ex["spar_points_m"][:, 0]), y,
-                          ex.get("inertia_z_m", ex["spar_points_m"][:, 2])]) - p0
+    ra = np.column_stack([a.load_x_m, y, a.load_z_m]) - p0
+    ri = np.column_stack([a.inertia_x_m, y, a.inertia_z_m]) - p0
     force = np.array([_trapz(y, f[:, k]) for f in (fa, fi) for k in range(3)]).reshape(2, 3).sum(0)
     moment = np.zeros(3)
     for r, f in ((ra, fa), (ri, fi)):  # (r x f) components, each a product of linear functions
         moment += [_lin_product(y, r[:, 1], f[:, 2]) - _lin_product(y, r[:, 2], f[:, 1]),
                    _lin_product(y, r[:, 2], f[:, 0]) - _lin_product(y, r[:, 0], f[:, 2]),
                    _lin_product(y, r[:, 0], f[:, 1]) - _lin_product(y, r[:, 1], f[:, 0])]
-    pitch = ex.get("pitch_about_load_line_Nm_per_m")
-    if pitch is not None:
-        moment[1] += _trapz(y, pitch)
+    moment[1] += _trapz(y, a.pitch_Nm_per_m)
     tol = 1e-12 * max(1.0, float(y[-1] - y[0]))
     gross = float(np.sum(0.5 * np.diff(y) * (np.abs(lift[1:]) + np.abs(lift[:-1]) + np.abs(q[1:])
                                              + np.abs(q[:-1]) + np.abs(drag[1:]) + np.abs(drag[:-1]))))
-    for pl in ex.get("point_loads", ()):
-        r, fv = np.asarray(pl.position, float) - p0, np.asarray(pl.force, float)
+    for pl in a.point_loads:
+        r, fv = pl.position - p0, pl.force
         if r[1] >= -tol:
             force += fv
             moment += np.cross(r, fv)
         gross += float(np.abs(fv).sum())
-    f0, m0 = ex["force_N"][0], ex["moment_Nm"][0]
+    f0, m0 = loads.force_N[0], loads.moment_Nm[0]
     span = float(y[-1] - y[0]) or 1.0
     f_ref = max(float(np.linalg.norm(force)), gross, 1e-300)
     m_ref = max(float(np.linalg.norm(moment)), gross * span, 1e-300)
-    return {"total_vertical_N": float(force[2]), "first_moment_Nm": float(moment[0]),
-            "shear_residual_rel": float(np.linalg.norm(f0 - force)) / f_ref,
-            "bending_residual_rel": float(np.linalg.norm(m0 - moment)) / m_ref}
+    return Equilibrium(total_vertical_N=float(force[2]), first_moment_Nm=float(moment[0]),
+                       shear_residual_rel=float(np.linalg.norm(f0 - force)) / f_ref,
+                       bending_residual_rel=float(np.linalg.norm(m0 - moment)) / m_ref)
 
 
 def schrenk(y, chord, semispan, total_lift_half):

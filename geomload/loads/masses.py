@@ -11,40 +11,17 @@ Inertia (load factor n, standard gravity g0): n g0 m'(y) per span acting along -
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
-
 import numpy as np
 
-from ..case import FuelTank, WingMassSpec
-from ..errors import CaseError
-from ..records import PointMass
-from .beam import PointLoad
+from geomload.config.schema import FuelTank, WingMassSpec
+from geomload.errors import CaseError
+from geomload.units import G0
 
-G0 = 9.80665  # m/s^2, standard acceleration of gravity (CGPM 1901)
+from .records import MassDistribution, PointLoad, PointMass
 
 
 def _integral(y, f):
     return float(np.sum(0.5 * (f[1:] + f[:-1]) * np.diff(y)))
-
-
-@dataclass(frozen=True)
-class MassDistribution:
-    """Mass on one semi-span. kg_per_m: (n,) total distributed mass per span at y (kg/m);
-    x_m, z_m: (n,) its c.g. line (mass-weighted); parts: name -> (n,) kg/m of each item;
-    lumped: PointMass items (tanks too narrow for the station grid). Mirrored point masses are
-    not included (see :func:`inertia_loads`)."""
-
-    y: np.ndarray
-    kg_per_m: np.ndarray
-    x_m: np.ndarray
-    z_m: np.ndarray
-    parts: dict = field(default_factory=dict)
-    lumped: tuple = ()
-
-    @property
-    def semispan_mass_kg(self) -> float:
-        """Distributed plus lumped mass on this semi-span (kg)."""
-        return _integral(self.y, self.kg_per_m) + sum(p.mass for p in self.lumped)
 
 
 def wing_mass_per_span(y, chord, spec: WingMassSpec) -> np.ndarray:
@@ -61,17 +38,23 @@ def wing_mass_per_span(y, chord, spec: WingMassSpec) -> np.ndarray:
     return shape * (0.5 * spec.total_kg / area)
 
 
+TANK_END_TOL_REL = 1e-9  # x span of the grid: a grid point this close to a tank end is the end
+
+
 def tank_mass_per_span(y, chord, tank: FuelTank, fraction: float = 1.0):
     """Per-side fuel mass per span (kg/m) at y over the tank's span range, its integral equal
-    to fraction * mass_kg / 2; None when fewer than two stations fall in the range. Being
-    piecewise linear on the stations, the ends ramp to zero over the neighbouring segments."""
+    to fraction * mass_kg / 2; None when fewer than two grid points lie strictly inside it.
+
+    Piecewise linear on the grid, the distribution is zero at the tank's ends and full at the
+    grid points inside: no mass lies inboard of y_from_m or outboard of y_to_m. The load grid
+    puts points a small gap inside each end (geomload.loads.grid), so the ramps are that short.
+    """
     y, c = np.asarray(y, float), np.asarray(chord, float)
-    inside = (y >= tank.y_from_m - 1e-12) & (y <= tank.y_to_m + 1e-12)
+    tol = TANK_END_TOL_REL * max(float(y[-1] - y[0]), 1e-300)
+    inside = (y > tank.y_from_m + tol) & (y < tank.y_to_m - tol)
     if inside.sum() < 2:
         return None
     shape = np.where(inside, c if tank.distribution == "chord" else 1.0, 0.0)
-    # piecewise linear on the stations, the beam integrates the ramps into the neighbouring
-    # segments too, so the scale uses the same trapezoid integral (mass exact, ends smeared)
     return shape * (0.5 * fraction * tank.mass_kg / _integral(y, shape))
 
 

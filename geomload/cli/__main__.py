@@ -1,0 +1,5 @@
+"""`python -m geomload.cli`."""
+
+from geomload.cli import main
+
+main()

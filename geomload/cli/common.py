@@ -1,0 +1,121 @@
+"""What every command shares: error-to-exit-code mapping, signal handling, the geometry
+options, console text (messages, progress)."""
+
+from __future__ import annotations
+
+import functools
+import os
+import signal
+import sys
+
+import click
+
+from geomload.errors import GeomloadError, Interrupted
+
+EXIT_OK, EXIT_INPUT, EXIT_USAGE, EXIT_INTERNAL = 0, 1, 2, 3
+EXIT_SIGNAL_BASE = 128  # a run stopped by signal N exits 128 + N: 130 SIGINT, 143 SIGTERM, 129 SIGHUP
+EXIT_INTERRUPTED = EXIT_SIGNAL_BASE + signal.SIGINT
+REPORT_HINT = "this is a bug in geomload; please report it with the command line and input files"
+HANDLED_SIGNALS = tuple(getattr(signal, n) for n in ("SIGTERM", "SIGHUP") if hasattr(signal, n))
+
+
+def echo_err(msg: str) -> None:
+    click.echo(msg, err=True)
+
+
+def print_messages(messages) -> None:
+    """Print Message records (kind, text) on stderr, one line each."""
+    for m in messages:
+        echo_err(f"geomload: {m.kind}: {m.text}")
+
+
+def _raise_interrupted(signum, frame):  # noqa: ARG001 - signal handler signature
+    raise Interrupted(signum)
+
+
+def install_signal_handlers() -> None:
+    """Make SIGTERM and SIGHUP stop a run the way Ctrl-C (SIGINT) does: an exception that
+    unwinds through every cleanup (the staging folder is removed), then exit 128 + signal."""
+    for sig in HANDLED_SIGNALS:
+        try:
+            signal.signal(sig, _raise_interrupted)
+        except (ValueError, OSError):  # not the main thread, or not allowed here
+            pass
+
+
+def guarded(fn):
+    """Turn library errors into one line on stderr and an exit code, never a traceback."""
+
+    @functools.wraps(fn)
+    def wrapper(*args, **kwargs):
+        try:
+            return fn(*args, **kwargs)
+        except GeomloadError as exc:
+            echo_err(f"geomload: error: {exc}")
+            sys.exit(getattr(exc, "exit_code", EXIT_INPUT))
+        except KeyboardInterrupt as exc:
+            echo_err("geomload: interrupted; no output was written")
+            sys.exit(EXIT_SIGNAL_BASE + getattr(exc, "signum", signal.SIGINT))
+        except (click.exceptions.Exit, click.ClickException, click.Abort):
+            raise
+        except MemoryError:
+            echo_err("geomload: error: out of memory (try fewer stations or panels)")
+            sys.exit(EXIT_INPUT)
+        except Exception as exc:  # noqa: BLE001 - the last line of defence
+            if os.environ.get("GEOMLOAD_DEBUG", "") not in ("", "0"):
+                raise
+            echo_err(f"geomload: internal error: {type(exc).__name__}: {exc} ({REPORT_HINT}; "
+                     "set GEOMLOAD_DEBUG=1 for a traceback)")
+            sys.exit(EXIT_INTERNAL)
+
+    return wrapper
+
+
+def progress_bar():
+    from geomload.progress import make_progress
+
+    return make_progress()
+
+
+def geometry_options(fn):
+    """Options shared by every command that reads a CAD wing."""
+    opts = [
+        click.option("--units", type=click.Choice(["m", "cm", "mm", "in", "ft"]), default=None,
+                     help="Length unit of a unit-less mesh file (STL, OBJ, PLY...). Default m. "
+                          "STEP/IGES carry their own units."),
+        click.option("--span-axis", default=None, metavar="AXIS",
+                     help="CAD axis along the span, e.g. y, +z, -x (default: detected)."),
+        click.option("--up-axis", default=None, metavar="AXIS",
+                     help="CAD axis pointing up (default: detected)."),
+        click.option("--stations", "n_stations", type=int, default=20, show_default=True,
+                     help="Number of cutting stations along the semi-span."),
+        click.option("--spacing", type=click.Choice(["cosine", "uniform"]), default="cosine",
+                     show_default=True, help="Station spacing along the span."),
+        click.option("--body", type=int, default=None, metavar="N",
+                     help="Which body of a multi-body file is the wing (numbered from 1; default: the "
+                          "largest by area)."),
+    ]
+    for opt in reversed(opts):
+        fn = opt(fn)
+    return fn
+
+
+import_options = geometry_options  # the earlier name
+
+
+def load_geometry(geometry, units, span_axis, up_axis, n_stations, spacing, body):
+    """(mesh, frame, stations, planform) of a CAD wing read with the shared options."""
+    from geomload.geometry import load_wing
+
+    if n_stations is not None and n_stations < 3:
+        raise GeomloadError(f"--stations: need at least 3 stations, got {n_stations}")
+    return load_wing(geometry, units=units, body=body, span_axis=span_axis, up_axis=up_axis,
+                     n_stations=n_stations, spacing=spacing, progress=progress_bar())
+
+
+def geometry_messages(mesh, frame, stations) -> list:
+    """The geometry stage's prefixed notes as Message records."""
+    from geomload.records import Message
+
+    return [Message.from_prefixed(n) for n in
+            list(mesh.notes) + list(frame.notes) + list(stations.notes)]

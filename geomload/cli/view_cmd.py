@@ -1,0 +1,22 @@
+"""`geomload view`: a finished run in a 3D window (or an offscreen screenshot)."""
+
+from __future__ import annotations
+
+import click
+
+from .common import guarded
+
+
+@click.command()
+@click.argument("run_dir", type=click.Path(file_okay=False))
+@click.option("--case", "case_name", default=None, help="Case to colour by (default: critical).")
+@click.option("--screenshot", type=click.Path(dir_okay=False), default=None,
+              help="Render offscreen to this PNG instead of opening a window.")
+@guarded
+def view(run_dir, case_name, screenshot):
+    """Open the CAD surface, lattice and load axis of a finished run in a 3D window."""
+    from geomload.export.render import view as _view
+
+    _view(run_dir, case=case_name, screenshot=screenshot)
+    if screenshot:
+        click.echo(f"Wrote {screenshot}")

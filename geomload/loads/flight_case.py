@@ -1,0 +1,78 @@
+"""One trimmed flight case -> the loads applied to one semi-span -> its span loads.
+
+Directions: lift normal to the free stream, drag along it, resolved into the wing frame at the
+trimmed alpha; inertia n g m'(y) along -z (normal to the longitudinal axis, n_x = 0: thrust
+balances the chordwise force), or opposite the lift with load_factor_axis = "flight-path".
+The lattice force is normal to the local (dihedral) surface: its y component per span is
+-lift dz/dy of the lift line, so the shear normal to a dihedral spar is lift / cos(dihedral).
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+
+import numpy as np
+
+from .beam import equilibrium_residual, integrate, schrenk
+from .grid import strip_to_grid
+from .masses import inertia_loads
+from .records import (AppliedLoads, LoadGrid, MassDistribution, PointLoad, SpanLoads,
+                      TrimState)
+
+
+def applied_loads(grid: LoadGrid, trimmed, strip_width, masses: MassDistribution,
+                  point_masses=()) -> AppliedLoads:
+    """The AppliedLoads of a TrimmedCase (geomload.aero.trim) on the grid.
+
+    strip_width: (ns,) the lattice strip widths (m); masses: the case's MassDistribution on the
+    grid; point_masses: PointMass items (starboard, full mass each).
+    """
+    sol, q = trimmed.solution, trimmed.q_pa
+    y = grid.y
+    keep = np.asarray(sol.y) >= 0  # a full-span lattice: the starboard strips
+    ys, ws = np.asarray(sol.y)[keep], np.asarray(strip_width)[keep]
+    order = np.argsort(ys)
+    ys, ws = ys[order], ws[order]
+
+    def pick(a):
+        return np.asarray(a)[keep][order]
+
+    lift_s = pick(sol.lift_per_q) * q
+    drag_s = pick(sol.drag_per_q) * q + trimmed.cd0 * q * pick(sol.chord)
+    pitch_s = pick(sol.moment_per_q) * q
+    lift = strip_to_grid(y, ys, lift_s, ws)
+    drag = strip_to_grid(y, ys, drag_s, ws)
+    pitch = strip_to_grid(y, ys, pitch_s, ws)
+    inertia, point_loads = inertia_loads(masses, trimmed.load_factor, point_masses)
+    # inertia along the load factor: normal to the longitudinal axis (body, 14 CFR 23.321(a)),
+    # or opposite the lift (flight path)
+    tilt = 0.0 if trimmed.body_axis else trimmed.alpha_deg
+    ca, sa = math.cos(math.radians(tilt)), math.sin(math.radians(tilt))
+    point_loads = tuple(PointLoad(p.name, p.position,
+                                  np.array([-p.force[2] * sa, 0.0, p.force[2] * ca]))
+                        for p in point_loads)
+    side = -lift * np.gradient(grid.load_z, y)
+    return AppliedLoads(lift_N_per_m=lift, drag_N_per_m=drag, side_N_per_m=side,
+                        pitch_Nm_per_m=pitch, load_x_m=grid.load_x, load_z_m=grid.load_z,
+                        inertia_N_per_m=inertia, inertia_x_m=masses.x_m, inertia_z_m=masses.z_m,
+                        point_loads=point_loads, alpha_deg=trimmed.alpha_deg,
+                        inertia_alpha_deg=tilt)
+
+
+def case_loads(grid: LoadGrid, trimmed, applied: AppliedLoads, semispan: float,
+               ultimate_factor: float) -> SpanLoads:
+    """Integrate the applied loads of a TrimmedCase: SpanLoads with its trim state, the
+    equilibrium check, Schrenk's cross-check and the grid's reported rows."""
+    y, lift = grid.y, applied.lift_N_per_m
+    half_lift = float(np.sum(0.5 * (lift[1:] + lift[:-1]) * np.diff(y)))
+    loads = integrate(y, grid.spar_x, grid.spar_z, applied, case=trimmed.name,
+                      ultimate_factor=ultimate_factor,
+                      schrenk_lift_N_per_m=schrenk(y, grid.chord, semispan, half_lift))
+    trim = TrimState(CL_required=trimmed.CL_required, q_pa=trimmed.q_pa,
+                     load_factor_axis="body" if trimmed.body_axis else "flight-path",
+                     force_required_N=trimmed.force_required_N, lift_total_N=2.0 * half_lift,
+                     mach_lattice=trimmed.mach_lattice)
+    return dataclasses.replace(loads, trim=trim, equilibrium=equilibrium_residual(loads),
+                               chord_m=grid.chord,
+                               output_rows=None if grid.output_rows.all() else grid.output_rows)

@@ -1,0 +1,424 @@
+"""The loads stage's records: masses, the load grid, the applied loads, the span loads, the
+flight envelope's points and diagrams, the envelope of loads.
+
+Frozen dataclasses of numpy arrays in SI, wing frame (x aft, y starboard, z up), one semi-span
+root to tip. Each checks its arrays' shapes when built and is never changed after (a later
+stage that adds information builds a new record with ``dataclasses.replace``).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+from types import MappingProxyType
+from typing import Mapping, Optional
+
+import numpy as np
+
+from geomload.errors import InputError
+
+QUANTITIES = ("shear_N", "bending_Nm", "torsion_Nm", "inplane_shear_N", "inplane_bending_Nm")
+"""The section results an envelope is taken over (SpanLoads field names)."""
+
+
+def _vector(name: str, a, n: int, *, finite: bool = True, width: Optional[int] = None):
+    a = np.asarray(a, dtype=float)
+    shape = (n,) if width is None else (n, width)
+    if a.shape != shape:
+        raise InputError(f"{name}: expected shape {shape}, got {a.shape}")
+    if finite and not np.all(np.isfinite(a)):
+        raise InputError(f"{name}: must be finite")
+    return a
+
+
+def _set(obj, name, value):
+    object.__setattr__(obj, name, value)
+
+
+# ---------------------------------------------------------------------------------- masses
+@dataclass(frozen=True)
+class PointMass:
+    """A concentrated mass (kg) at a wing-frame position (m), on the starboard side (y >= 0)."""
+
+    name: str
+    mass: float
+    position: np.ndarray
+
+    def __post_init__(self):
+        _set(self, "position", _vector(f"point mass {self.name!r} position", self.position, 3))
+        if not (math.isfinite(self.mass) and self.mass >= 0):
+            raise InputError(f"point mass {self.name!r}: mass must be finite and >= 0")
+
+
+@dataclass(frozen=True)
+class PointLoad:
+    """A concentrated force on the semi-span. position (3,) m, force (3,) N, wing frame."""
+
+    name: str
+    position: np.ndarray
+    force: np.ndarray
+
+    def __post_init__(self):
+        _set(self, "position", _vector(f"point load {self.name!r} position", self.position, 3))
+        _set(self, "force", _vector(f"point load {self.name!r} force", self.force, 3))
+
+
+@dataclass(frozen=True)
+class MassDistribution:
+    """Mass on one semi-span. kg_per_m: (n,) total distributed mass per span at y (kg/m);
+    x_m, z_m: (n,) its c.g. line (mass-weighted); parts: name -> (n,) kg/m of each item;
+    lumped: PointMass items (tanks too narrow for the grid). Mirrored point masses are not
+    included (see :func:`geomload.loads.masses.inertia_loads`)."""
+
+    y: np.ndarray
+    kg_per_m: np.ndarray
+    x_m: np.ndarray
+    z_m: np.ndarray
+    parts: Mapping[str, np.ndarray] = field(default_factory=dict)
+    lumped: tuple = ()
+
+    def __post_init__(self):
+        n = np.asarray(self.y).size
+        for k in ("y", "kg_per_m", "x_m", "z_m"):
+            _set(self, k, _vector(f"mass distribution {k}", getattr(self, k), n))
+        _set(self, "parts", MappingProxyType({k: _vector(f"mass part {k!r}", v, n)
+                                              for k, v in dict(self.parts).items()}))
+        if not all(isinstance(p, PointMass) for p in self.lumped):
+            raise InputError("mass distribution: lumped items must be PointMass records")
+
+    @property
+    def semispan_mass_kg(self) -> float:
+        """Distributed plus lumped mass on this semi-span (kg)."""
+        y, m = self.y, self.kg_per_m
+        return float(np.sum(0.5 * (m[1:] + m[:-1]) * np.diff(y))) + sum(p.mass for p in self.lumped)
+
+
+# ------------------------------------------------------------------------------- the grid
+@dataclass(frozen=True)
+class LoadGrid:
+    """The spanwise points loads are integrated on, one semi-span root to tip (m).
+
+    y (n,) strictly increasing; le, te (n, 3) leading/trailing-edge points; chord (n,);
+    spar_x, spar_z (n,) the load (spar) axis; load_x, load_z (n,) the line lift and drag act on
+    (the quarter chord). output_rows (n,) bool: the rows every loads table reports (all, or the
+    structure's own rib stations; both sides of a point-load step at a rib).
+    """
+
+    y: np.ndarray
+    le: np.ndarray
+    te: np.ndarray
+    chord: np.ndarray
+    spar_x: np.ndarray
+    spar_z: np.ndarray
+    load_x: np.ndarray
+    load_z: np.ndarray
+    output_rows: Optional[np.ndarray] = None
+
+    def __post_init__(self):
+        y = _vector("load grid y", self.y, np.asarray(self.y).size)
+        if y.size < 2 or np.any(np.diff(y) <= 0):
+            raise InputError("load grid: y must hold >= 2 stations increasing root to tip")
+        n = y.size
+        _set(self, "y", y)
+        for k in ("le", "te"):
+            _set(self, k, _vector(f"load grid {k}", getattr(self, k), n, width=3))
+        for k in ("chord", "spar_x", "spar_z", "load_x", "load_z"):
+            _set(self, k, _vector(f"load grid {k}", getattr(self, k), n))
+        rows = np.ones(n, bool) if self.output_rows is None else np.asarray(self.output_rows, bool)
+        if rows.shape != (n,) or not rows.any():
+            raise InputError("load grid: output_rows must be (n,) booleans, at least one True")
+        _set(self, "output_rows", rows)
+
+    @property
+    def n(self) -> int:
+        return int(self.y.size)
+
+
+@dataclass(frozen=True)
+class AppliedLoads:
+    """One case's loads on a LoadGrid (limit, one semi-span, wing frame).
+
+    lift_N_per_m normal to the free stream, drag_N_per_m along it (at alpha_deg); side_N_per_m
+    along +y; pitch_Nm_per_m about the load line (nose-up); load_x_m, load_z_m (n,) the line lift
+    and drag act on; inertia_N_per_m n g m'(y) along
+    (sin b, 0, -cos b), b = inertia_alpha_deg, acting on the line (inertia_x_m, inertia_z_m);
+    point_loads: PointLoad forces (N).
+    """
+
+    lift_N_per_m: np.ndarray
+    drag_N_per_m: np.ndarray
+    side_N_per_m: np.ndarray
+    pitch_Nm_per_m: np.ndarray
+    load_x_m: np.ndarray
+    load_z_m: np.ndarray
+    inertia_N_per_m: np.ndarray
+    inertia_x_m: np.ndarray
+    inertia_z_m: np.ndarray
+    point_loads: tuple = ()
+    alpha_deg: float = 0.0
+    inertia_alpha_deg: float = 0.0
+
+    def __post_init__(self):
+        n = np.asarray(self.lift_N_per_m).size
+        for k in ("lift_N_per_m", "drag_N_per_m", "side_N_per_m", "pitch_Nm_per_m",
+                  "load_x_m", "load_z_m", "inertia_N_per_m", "inertia_x_m", "inertia_z_m"):
+            _set(self, k, _vector(f"applied loads {k}", getattr(self, k), n))
+        _set(self, "point_loads", tuple(self.point_loads))
+        if not all(isinstance(p, PointLoad) for p in self.point_loads):
+            raise InputError("applied loads: point_loads must be PointLoad records")
+
+
+@dataclass(frozen=True)
+class TrimState:
+    """How a case was trimmed: CL_required (wing lift coefficient), q_pa (Pa), load_factor_axis
+    ("body" or "flight-path"), force_required_N (the wing's share of n W), lift_total_N (both
+    sides), mach_lattice (the Mach the lattice was solved at)."""
+
+    CL_required: float
+    q_pa: float
+    load_factor_axis: str
+    force_required_N: float
+    lift_total_N: float
+    mach_lattice: float
+
+
+@dataclass(frozen=True)
+class Equilibrium:
+    """Root equilibrium check of a beam integration: the summed vertical force (N) and first
+    moment about x (N m), and the relative residuals of the force and moment vectors."""
+
+    total_vertical_N: float
+    first_moment_Nm: float
+    shear_residual_rel: float
+    bending_residual_rel: float
+
+    @property
+    def residual(self) -> float:
+        return max(self.shear_residual_rel, self.bending_residual_rel)
+
+    def __getitem__(self, key):  # the earlier dict form: equilibrium["shear_residual_rel"]
+        return getattr(self, key)
+
+
+# ------------------------------------------------------------------------------ span loads
+@dataclass(frozen=True)
+class SpanLoads:
+    """Loads along one semi-span for one flight case, limit values, root to tip (wing frame).
+
+    y: (n,) stations (m); lift_N_per_m, drag_N_per_m, pitch_Nm_per_m (about the spar axis,
+    nose-up positive); inertia_N_per_m (downward weight relief n*g*m'(y), positive down);
+    shear_N, bending_Nm, torsion_Nm (out-of-plane, local spar frame; signs: shear positive up,
+    bending positive tip-up, torsion nose-up); inplane_shear_N, inplane_bending_Nm (chordwise);
+    schrenk_lift_N_per_m: Schrenk distribution of the same total lift (cross-check, may be NaN).
+    ultimate_factor: multiply limit values by it for ultimate loads.
+    Beam detail (None when not computed): force_N, moment_Nm (n, 3) outboard resultant about the
+    spar point; axis_s, axis_b, axis_n (n, 3) local spar frame; spar_points_m (n, 3).
+    applied: the AppliedLoads integrated; trim: TrimState; equilibrium: Equilibrium;
+    chord_m (n,); output_rows (n,) bool: the rows tables report (None = all).
+    """
+
+    case: str
+    y: np.ndarray
+    lift_N_per_m: np.ndarray
+    drag_N_per_m: np.ndarray
+    pitch_Nm_per_m: np.ndarray
+    inertia_N_per_m: np.ndarray
+    shear_N: np.ndarray
+    bending_Nm: np.ndarray
+    torsion_Nm: np.ndarray
+    inplane_shear_N: np.ndarray
+    inplane_bending_Nm: np.ndarray
+    schrenk_lift_N_per_m: np.ndarray
+    ultimate_factor: float = 1.5
+    force_N: Optional[np.ndarray] = None
+    moment_Nm: Optional[np.ndarray] = None
+    axis_s: Optional[np.ndarray] = None
+    axis_b: Optional[np.ndarray] = None
+    axis_n: Optional[np.ndarray] = None
+    spar_points_m: Optional[np.ndarray] = None
+    applied: Optional[AppliedLoads] = None
+    trim: Optional[TrimState] = None
+    equilibrium: Optional[Equilibrium] = None
+    chord_m: Optional[np.ndarray] = None
+    output_rows: Optional[np.ndarray] = None
+
+    def __post_init__(self):
+        n = np.asarray(self.y).size
+        _set(self, "y", _vector(f"span loads {self.case!r} y", self.y, n))
+        for k in ("lift_N_per_m", "drag_N_per_m", "pitch_Nm_per_m", "inertia_N_per_m") + QUANTITIES:
+            _set(self, k, _vector(f"span loads {self.case!r} {k}", getattr(self, k), n))
+        _set(self, "schrenk_lift_N_per_m", _vector(f"span loads {self.case!r} schrenk",
+                                                   self.schrenk_lift_N_per_m, n, finite=False))
+        for k in ("force_N", "moment_Nm", "axis_s", "axis_b", "axis_n", "spar_points_m"):
+            if getattr(self, k) is not None:
+                _set(self, k, _vector(f"span loads {self.case!r} {k}", getattr(self, k), n, width=3))
+        if self.chord_m is not None:
+            _set(self, "chord_m", _vector(f"span loads {self.case!r} chord_m", self.chord_m, n))
+        if self.output_rows is not None:
+            rows = np.asarray(self.output_rows, bool)
+            if rows.shape != (n,):
+                raise InputError(f"span loads {self.case!r}: output_rows must be ({n},) booleans")
+            _set(self, "output_rows", rows)
+        if not (math.isfinite(self.ultimate_factor) and self.ultimate_factor >= 1.0):
+            raise InputError(f"span loads {self.case!r}: ultimate_factor must be >= 1")
+
+    @property
+    def rows(self) -> np.ndarray:
+        """Boolean mask of the rows a table reports (every row unless ribs were given)."""
+        return np.ones(self.y.size, bool) if self.output_rows is None else self.output_rows
+
+    @property
+    def extras(self) -> Mapping:
+        """Read-only view in the earlier dict form (``extras["spar_points_m"]`` ...), for code
+        written before the typed fields; new code reads the fields."""
+        out = {k: getattr(self, k) for k in ("force_N", "moment_Nm", "axis_s", "axis_b", "axis_n",
+                                             "spar_points_m", "chord_m")
+               if getattr(self, k) is not None}
+        a = self.applied
+        if a is not None:
+            out.update({"side_N_per_m": a.side_N_per_m, "load_x_m": a.load_x_m, "load_z_m": a.load_z_m,
+                        "alpha_deg": a.alpha_deg, "inertia_alpha_deg": a.inertia_alpha_deg,
+                        "inertia_x_m": a.inertia_x_m, "inertia_z_m": a.inertia_z_m,
+                        "pitch_about_load_line_Nm_per_m": a.pitch_Nm_per_m,
+                        "point_loads": a.point_loads})
+        if self.trim is not None:
+            out.update({k: getattr(self.trim, k) for k in TrimState.__dataclass_fields__})
+        if self.equilibrium is not None:
+            out["equilibrium"] = {k: getattr(self.equilibrium, k)
+                                  for k in Equilibrium.__dataclass_fields__}
+        return MappingProxyType(out)
+
+
+# ---------------------------------------------------------------------- flight envelope
+@dataclass(frozen=True)
+class FlightPoint:
+    """A point of the V-n diagram run as a load case: v_eas (m/s), altitude (m), n, mass (kg).
+    label: the point's kind ("pos-limit-dive", ...); name adds mass and altitude."""
+
+    name: str
+    v_eas: float
+    altitude: float
+    n: float
+    mass: float
+    label: str = ""
+    fuel_fraction: float = 1.0
+
+
+@dataclass(frozen=True)
+class DesignSpeeds:
+    """Design speeds, EAS m/s: cruise, dive, maneuver; the rule minimums (None for custom)."""
+
+    v_cruise: float
+    v_dive: float
+    v_maneuver: float
+    v_cruise_min: Optional[float]
+    v_dive_min: Optional[float]
+    notes: tuple = ()
+
+
+@dataclass(frozen=True)
+class GustPoint:
+    """Gust values at one speed (23.341): alleviation factor Kg, mass ratio mu, the wing lift
+    slope used (per rad), and the load factors of an up and a down gust."""
+
+    kg: float
+    mu: float
+    lift_slope_per_rad: float
+    n_up: float
+    n_down: float
+
+    def __iter__(self):  # the earlier tuple form (Kg, mu, a, n up, n down)
+        return iter((self.kg, self.mu, self.lift_slope_per_rad, self.n_up, self.n_down))
+
+    def __getitem__(self, i):
+        return tuple(self)[i]
+
+
+@dataclass(frozen=True)
+class VnDiagram:
+    """V-n diagram at one mass and altitude. Speeds EAS m/s. curves: name -> (v, n) arrays for
+    plotting ("stall-pos", "stall-neg", "maneuver" closed outline, "gust-up", "gust-down").
+    corners: FlightPoint per critical point; gust_cruise, gust_dive: GustPoint."""
+
+    category: str
+    mass_kg: float
+    altitude_m: float
+    n_pos: float
+    n_neg: float
+    n_neg_dive: float
+    v_stall_pos: float
+    v_stall_neg: float
+    speeds: DesignSpeeds
+    gust_cruise: GustPoint
+    gust_dive: GustPoint
+    curves: Mapping[str, tuple]
+    corners: tuple
+    notes: tuple = ()
+
+    def __post_init__(self):
+        _set(self, "curves", MappingProxyType(dict(self.curves)))
+
+    @property
+    def title(self) -> str:
+        """'22 kg at 0 m': the flying mass and altitude of the diagram."""
+        return f"{self.mass_kg:g} kg at {self.altitude_m:g} m"
+
+
+# ----------------------------------------------------------------------- loads envelope
+@dataclass(frozen=True)
+class LoadsEnvelope:
+    """Station-wise extremes over the cases (the envelope of loads, not the flight envelope).
+
+    For each quantity of QUANTITIES: maximum/minimum (limit), max_case/min_case (governing case
+    names), ultimate_max/ultimate_min (each case's ultimate_factor x limit) with
+    ultimate_max_case/ultimate_min_case. output_rows: (n,) bool, the rows tables report.
+    """
+
+    y: np.ndarray
+    cases: tuple
+    maximum: Mapping[str, np.ndarray]
+    minimum: Mapping[str, np.ndarray]
+    max_case: Mapping[str, tuple]
+    min_case: Mapping[str, tuple]
+    ultimate_max: Mapping[str, np.ndarray]
+    ultimate_min: Mapping[str, np.ndarray]
+    ultimate_max_case: Mapping[str, tuple]
+    ultimate_min_case: Mapping[str, tuple]
+    output_rows: Optional[np.ndarray] = None
+
+    def __post_init__(self):
+        n = np.asarray(self.y).size
+        for k in ("maximum", "minimum", "ultimate_max", "ultimate_min"):
+            d = dict(getattr(self, k))
+            if set(d) != set(QUANTITIES):
+                raise InputError(f"loads envelope {k}: needs every quantity {QUANTITIES}")
+            _set(self, k, MappingProxyType({q: _vector(f"loads envelope {k} {q}", v, n)
+                                            for q, v in d.items()}))
+        for k in ("max_case", "min_case", "ultimate_max_case", "ultimate_min_case"):
+            d = {q: tuple(v) for q, v in dict(getattr(self, k)).items()}
+            if set(d) != set(QUANTITIES) or any(len(v) != n for v in d.values()):
+                raise InputError(f"loads envelope {k}: needs {n} case names per quantity")
+            _set(self, k, MappingProxyType(d))
+        if self.output_rows is not None:
+            _set(self, "output_rows", np.asarray(self.output_rows, bool))
+
+    @property
+    def rows(self) -> np.ndarray:
+        return np.ones(self.y.size, bool) if self.output_rows is None else self.output_rows
+
+    def columns(self) -> dict:
+        """Ordered columns for a table: y_m, then <q>_max_<unit>, <q>_max_case, <q>_min_...,
+        and the ultimate pairs (e.g. bending_max_Nm, bending_max_ult_Nm), as in envelope.csv."""
+        out = {"y_m": self.y}
+        for q in QUANTITIES:
+            base, unit = q.rsplit("_", 1)
+            out[f"{base}_max_{unit}"] = self.maximum[q]
+            out[f"{base}_max_case"] = list(self.max_case[q])
+            out[f"{base}_min_{unit}"] = self.minimum[q]
+            out[f"{base}_min_case"] = list(self.min_case[q])
+            out[f"{base}_max_ult_{unit}"] = self.ultimate_max[q]
+            out[f"{base}_min_ult_{unit}"] = self.ultimate_min[q]
+        return out
+
+
+Envelope = LoadsEnvelope  # the earlier name
