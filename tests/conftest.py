@@ -100,19 +100,3 @@ def small_tmpfs(tmp_path):
         subprocess.run(["umount", "-l", str(d)], capture_output=True)
 
 
-# A test outside the export area that still asserts the old behaviour (`--force` replacing a
-# folder that geomload did not make, which is exactly the loss the run-folder rules forbid).
-# Strict: once the test is rewritten (run once, then --force over that run) it passes, the
-# strict xfail turns red, and this entry must be deleted.
-OLD_BEHAVIOUR = {
-    "tests/test_cli.py::test_forced_run_replaces_the_folder":
-        "asserts that --force deletes a folder without a geomload run marker; rewrite it to "
-        "replace an earlier geomload run (see geomload.export.run_folder), then delete this entry",
-}
-
-
-def pytest_collection_modifyitems(config, items):
-    for item in items:
-        why = OLD_BEHAVIOUR.get(item.nodeid)
-        if why:
-            item.add_marker(pytest.mark.xfail(strict=True, reason=why))

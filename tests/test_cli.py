@@ -158,14 +158,23 @@ def test_failed_forced_run_keeps_the_previous_run(corpus, tmp_path, monkeypatch)
     assert not _leftovers(tmp_path)
 
 
-def test_forced_run_replaces_the_folder(corpus, tmp_path):
+def test_forced_run_replaces_an_earlier_run_only(corpus, tmp_path):
     out = tmp_path / "out"
-    out.mkdir()
-    (out / "stale.txt").write_text("from an older run\n")
+    r = _run(["run", corpus / "good.toml", "--out", out, "--no-render"])
+    assert r.exit_code == 0, r.stderr
+    first = (out / "summary.json").read_bytes()
     r = _run(["run", corpus / "good.toml", "--out", out, "--no-render", "--force"])
     assert r.exit_code == 0, r.stderr
-    assert not (out / "stale.txt").exists() and (out / "summary.json").is_file()
+    assert (out / "summary.json").is_file() and (out / "geomload-run.json").is_file()
     assert not _leftovers(tmp_path)
+    # a folder geomload did not make is refused even with --force, and survives byte for byte
+    mine = tmp_path / "mine"
+    mine.mkdir()
+    (mine / "notes.txt").write_text("my own notes\n")
+    r = _run(["run", corpus / "good.toml", "--out", mine, "--no-render", "--force"])
+    assert r.exit_code == 1
+    assert (mine / "notes.txt").read_text() == "my own notes\n"
+    assert first
 
 
 # -------------------------------------------------------------------------- exit code 130

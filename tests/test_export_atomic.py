@@ -353,17 +353,11 @@ def test_interrupted_run_leaves_nothing(tmp_path):
     assert not out.exists() and leftovers(tmp_path) == []
 
 
-@pytest.mark.xfail(strict=True, reason="integration: the CLI must turn SIGTERM into the normal "
-                   "cleanup path (exit 128 + 15 or 130); today the default action kills the run "
-                   "and leaves the hidden staging folder and the lock file")
 def test_terminated_run_leaves_nothing(tmp_path):
     code, err, out = _interrupt_real_run(tmp_path, "SIGTERM")
-    left = leftovers(tmp_path)
-    for p in left:  # clean up for the suite-wide check; the assertion below still fails
-        import shutil
-
-        shutil.rmtree(p, ignore_errors=True) if os.path.isdir(p) else os.unlink(p)
-    assert code in (130, 143) and not out.exists() and left == [], (code, left)
+    assert code == 128 + 15, err  # exit 128 + signal number (README exit codes)
+    assert "Traceback" not in err
+    assert not out.exists() and leftovers(tmp_path) == []
 
 
 def test_staging_of_a_killed_run_is_removed_by_the_next_run(tmp_path, project):

@@ -72,7 +72,7 @@ def test_sample_critical_case_root_reaction_by_ccx(sample_run, critical, tmp_pat
     assert deck.text.splitlines()[0] == "** " + CAUTION
     rf, rm = fe.root_reaction(deck, solve(deck, tmp_path), sample_run.frame)
     force, moment = -rf, -rm  # the load the root carries = minus the support's reaction
-    s, b, n = L.extras["axis_s"][0], L.extras["axis_b"][0], L.extras["axis_n"][0]
+    s, b, n = L.axis_s[0], L.axis_b[0], L.axis_n[0]
     src = "CalculiX ccx 2.x static solution of the written beam deck (real FE solver)"
     check(src, f"root shear, case {L.case} (N)", L.shear_N[0], force @ n, rel=1e-3)
     check(src, f"root bending, case {L.case} (N m)", L.bending_Nm[0], moment @ b, rel=1e-3)
@@ -111,9 +111,9 @@ def test_every_deck_sums_to_the_case_loads_and_recovers_the_csv(sample_run, tmp_
         tot_m = (nl.moment_Nm + np.cross(nl.points_m - P0, nl.force_N)).sum(0)
         fref, mref = np.abs(tot_f).max(), np.abs(tot_m).max()
         worst["force"] = max(worst["force"], abs(tot_f[2] - eq["total_vertical_N"]) / fref,
-                             np.abs(tot_f - L.extras["force_N"][0]).max() / fref)
+                             np.abs(tot_f - L.force_N[0]).max() / fref)
         worst["moment"] = max(worst["moment"], abs(tot_m[0] - eq["first_moment_Nm"]) / mref,
-                              np.abs(tot_m - L.extras["moment_Nm"][0]).max() / mref)
+                              np.abs(tot_m - L.moment_Nm[0]).max() / mref)
         # the deck's CSV (CAD frame and unit, 17 digits) sums to the same totals
         path = tmp_path / f"case{k}_nodal_loads.csv"
         path.write_text(fe.nodal_loads_csv(nl, sample_run.frame, scale, sample_run.mesh.units))
@@ -211,7 +211,7 @@ def test_write_fe_decks_writes_both_files_with_caution(sample_run, tmp_path):
     for p in paths:
         first = p.read_text().splitlines()[:3]
         assert any(CAUTION in line for line in first)
-    bad = replace(loads[0], extras={})
+    bad = replace(loads[0], force_N=None)
     with pytest.raises(fe.InputError, match="force_N"):
         fe.write_fe_decks(tmp_path / "x", [loads[1], bad])
     assert not (tmp_path / "x").exists()
@@ -251,7 +251,7 @@ def test_deck_in_a_turned_cad_frame_by_ccx(tmp_path):
     deck = fe.beam_deck(nl, frame, inch, "in")
     rf, rm = fe.root_reaction(deck, solve(deck, tmp_path), frame)
     src = "CalculiX ccx static solution, deck in a turned CAD frame (inch)"
-    s, b, nn = loads.extras["axis_s"][0], loads.extras["axis_b"][0], loads.extras["axis_n"][0]
+    s, b, nn = loads.axis_s[0], loads.axis_b[0], loads.axis_n[0]
     check(src, "root shear (N)", loads.shear_N[0], -rf @ nn, rel=1e-3)
     check(src, "root bending (N m)", loads.bending_Nm[0], -rm @ b, rel=1e-3)
     check(src, "root torsion (N m)", loads.torsion_Nm[0], -rm @ s, rel=1e-3)

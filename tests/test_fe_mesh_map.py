@@ -236,7 +236,7 @@ def test_mapped_cload_file_solved_by_ccx_with_the_mesh(run, tmp_path):
            + sum(np.cross(pw[k - 1001] - P0, R @ ml.force_N[k - 1001]) for k in held))
     src = "CalculiX ccx static solution of the mapped *CLOAD on the shell mesh (real FE solver)"
     L = cr.loads
-    s, b, n = L.extras["axis_s"][0], L.extras["axis_b"][0], L.extras["axis_n"][0]
+    s, b, n = L.axis_s[0], L.axis_b[0], L.axis_n[0]
     check(src, "shell mesh: root shear from the reactions (N)", L.shear_N[0], f_t @ n, rel=1e-3)
     check(src, "shell mesh: root bending from the reactions (N m)", L.bending_Nm[0], m_t @ b,
           rel=1e-3)

@@ -162,7 +162,7 @@ def test_root_shear_equals_lift_minus_inertia_minus_point_loads(sample_run):
         # aerodynamic normal force L cos a + D sin a against inertia n g m along -z
         vertical = (trapz(y, normal_per_span(col, cr.aero.alpha_deg))
                     - n * G0 * (wing_half + ff * fuel_half) - n * G0 * points)
-        f0 = cr.loads.extras["force_N"][0]
+        f0 = cr.loads.force_N[0]
         if cr is result.cases[0]:
             check("cantilever statics: root force = sum of the outboard loads",
                   f"sample root normal force, {cr.name} (N)", vertical, f0[2], rel=REL)
@@ -245,7 +245,7 @@ def test_flat_wing_root_bending_is_the_first_moment(tmp_path):
         pts = [(p.position[1], -n * G0 * p.mass) for p in case.point_masses]
         vertical = trapz(y, w) + sum(fz for _, fz in pts)
         moment = first_moment(y, w) + sum((yp - y[0]) * fz for yp, fz in pts)
-        force, mom = cr.loads.extras["force_N"], cr.loads.extras["moment_Nm"]
+        force, mom = cr.loads.force_N, cr.loads.moment_Nm
         # 1e-7: the CSV's 10 digits and the float32 STL's z noise (a tiny dihedral side force)
         assert force[0][2] == pytest.approx(vertical, rel=1e-7)
         assert mom[0][0] == pytest.approx(moment, rel=1e-7)  # M_x = int (y - y0) f_z dy
@@ -418,7 +418,7 @@ def test_elliptic_wing_root_bending(tmp_path):
         assert normal == pytest.approx(0.5 * cr.load_factor * 20.0 * G0, rel=1e-3)
         expect = half * 4 * s / (3 * math.pi)
         ca, sa, n_w = wind_axes(cr.aero.alpha_deg)
-        m_lift = L.extras["moment_Nm"][0] @ np.array([ca, 0.0, sa])  # about the wind x axis
+        m_lift = L.moment_Nm[0] @ np.array([ca, 0.0, sa])  # about the wind x axis
         check("elliptic load centroid 4s/(3 pi) (VALIDATION.md 8), whole pipeline",
               f"root bending of the lift of an elliptic wing, case {cr.name} (N m)", expect,
               m_lift, rel=0.015)
@@ -427,7 +427,7 @@ def test_elliptic_wing_root_bending(tmp_path):
         assert L.bending_Nm[0] == pytest.approx(
             ca * m_lift + sa * first_moment(L.y, L.drag_N_per_m), rel=1e-6)
         # no masses: the root normal force is the lift (wind-axis normal n_w)
-        assert L.extras["force_N"][0] @ n_w == pytest.approx(half, rel=1e-9)
+        assert L.force_N[0] @ n_w == pytest.approx(half, rel=1e-9)
         # the spanwise load itself is close to the ellipse (lifting-line theory)
         ell = 4 * half / (math.pi * s) * np.sqrt(np.clip(1 - (L.y / s) ** 2, 0, None))
         inner = L.y < 0.8 * s
@@ -452,7 +452,7 @@ def test_flight_path_load_factor_axis(tmp_path):
         ca, sa, n_w = wind_axes(cr.aero.alpha_deg)
         pts = sum(-cr.load_factor * G0 * p.mass for p in case.point_masses)
         expect = trapz(L.y, L.lift_N_per_m - L.inertia_N_per_m) + pts
-        assert L.extras["force_N"][0] @ n_w == pytest.approx(expect, rel=1e-9)
+        assert L.force_N[0] @ n_w == pytest.approx(expect, rel=1e-9)
 
 
 def test_zero_load_factor_keeps_the_lift_shape(sample_run):

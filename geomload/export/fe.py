@@ -81,19 +81,18 @@ class NodalLoads:
 def nodal_loads(loads) -> NodalLoads:
     """Lump one SpanLoads onto its stations (see the module docstring for the scheme).
 
-    Uses ``loads.extras`` ``force_N``, ``moment_Nm`` (outboard resultants about the spar points)
-    and ``spar_points_m``, as written by loads.beam.integrate_loads. Stations at the same y
+    Uses ``loads.force_N``, ``loads.moment_Nm`` (outboard resultants about the spar points)
+    and ``loads.spar_points_m``, as written by the beam integration. Stations at the same y
     closer than MERGE_FRACTION x span (both sides of a point-load step) share the inboard one's node;
     the loads moved there carry their transfer moment, so the statics stay exact.
     """
-    ex = getattr(loads, "extras", {}) or {}
-    try:
-        F = np.asarray(ex["force_N"], float)
-        M = np.asarray(ex["moment_Nm"], float)
-        P = np.asarray(ex["spar_points_m"], float)
-    except KeyError as e:
-        raise InputError(f"FE deck of case '{loads.case}': the loads carry no {e.args[0]} "
-                         "(made by loads.beam.integrate_loads)") from None
+    for name in ("force_N", "moment_Nm", "spar_points_m"):
+        if getattr(loads, name) is None:
+            raise InputError(f"FE deck of case '{loads.case}': the loads carry no {name} "
+                             "(made by the beam integration)")
+    F = np.asarray(loads.force_N, float)
+    M = np.asarray(loads.moment_Nm, float)
+    P = np.asarray(loads.spar_points_m, float)
     n = P.shape[0]
     if n < 2 or F.shape != (n, 3) or M.shape != (n, 3) or not np.all(np.isfinite(F)) \
             or not np.all(np.isfinite(M)):
@@ -119,7 +118,7 @@ def nodal_loads(loads) -> NodalLoads:
     fs, ms = np.zeros((k, 3)), np.zeros((k, 3))
     np.add.at(fs, group, f)
     np.add.at(ms, group, m + np.cross(P - anchor, f))
-    ax = {a: np.asarray(ex.get(a), float)[keep] if ex.get(a) is not None else None
+    ax = {a: np.asarray(getattr(loads, a), float)[keep] if getattr(loads, a) is not None else None
           for a in ("axis_s", "axis_b", "axis_n")}
     if any(v is None for v in ax.values()):
         from geomload.loads.beam import spar_frame

@@ -38,13 +38,6 @@ MAX_DISPLAY_TRIANGLES = 100_000  # above this the display surface is decimated: 
 # practice, no source)
 
 
-def loads_extra(loads, key, default=None):
-    """One place where exporters read values the loads stage stores beside its named fields
-    (today ``SpanLoads.extras``); switch here when they become typed fields."""
-    v = getattr(loads, key, None)
-    if v is not None:
-        return v
-    return (getattr(loads, "extras", None) or {}).get(key, default)
 
 
 def case_keys(run) -> list:
@@ -116,7 +109,7 @@ def spar_line(run, case_result=None) -> np.ndarray:
     cr = case_result or run.cases[0]
     L, st = cr.loads, run.stations
     y = np.asarray(L.y, float)
-    pts = loads_extra(L, "spar_points_m")
+    pts = L.spar_points_m
     if pts is not None and np.shape(pts) == (y.size, 3):
         return np.asarray(pts, float)
     spar = getattr(run.case, "spar", None)

@@ -267,26 +267,6 @@ class SpanLoads:
         """Boolean mask of the rows a table reports (every row unless ribs were given)."""
         return np.ones(self.y.size, bool) if self.output_rows is None else self.output_rows
 
-    @property
-    def extras(self) -> Mapping:
-        """Read-only view in the earlier dict form (``extras["spar_points_m"]`` ...), for code
-        written before the typed fields; new code reads the fields."""
-        out = {k: getattr(self, k) for k in ("force_N", "moment_Nm", "axis_s", "axis_b", "axis_n",
-                                             "spar_points_m", "chord_m")
-               if getattr(self, k) is not None}
-        a = self.applied
-        if a is not None:
-            out.update({"side_N_per_m": a.side_N_per_m, "load_x_m": a.load_x_m, "load_z_m": a.load_z_m,
-                        "alpha_deg": a.alpha_deg, "inertia_alpha_deg": a.inertia_alpha_deg,
-                        "inertia_x_m": a.inertia_x_m, "inertia_z_m": a.inertia_z_m,
-                        "pitch_about_load_line_Nm_per_m": a.pitch_Nm_per_m,
-                        "point_loads": a.point_loads})
-        if self.trim is not None:
-            out.update({k: getattr(self.trim, k) for k in TrimState.__dataclass_fields__})
-        if self.equilibrium is not None:
-            out["equilibrium"] = {k: getattr(self.equilibrium, k)
-                                  for k in Equilibrium.__dataclass_fields__}
-        return MappingProxyType(out)
 
 
 # ---------------------------------------------------------------------- flight envelope
