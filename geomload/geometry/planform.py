@@ -14,7 +14,7 @@ from __future__ import annotations
 import numpy as np
 
 from ..errors import GeometryError
-from ..records import Planform, Stations
+from .records import Planform, Stations
 
 
 def _extend(y, f, y0, y1):
@@ -34,7 +34,7 @@ def _slope_deg(y, v):
     return float(np.degrees(np.arctan(np.polyfit(y, v, 1)[0])))
 
 
-def summarize(stations: Stations) -> Planform:
+def summarize(stations: Stations, y_root: float = 0.0) -> Planform:
     """Planform of the whole wing (both sides by symmetry) from the starboard `Stations`.
 
     Lengths m, area m^2, angles deg. Raises GeometryError with fewer than 3 stations.
