@@ -34,6 +34,15 @@ from .spanindex import SpanIndex
 from .stations import INSET
 
 _AXES = {"x": 0, "y": 1, "z": 2}
+# Thresholds of the frame detection (common practice, no source):
+# a mean-line height above 0.2 % of the chord is camber, not faceting noise (NACA 1xxx sections
+# have 1 %, and a 100-point contour misplaces the mean line by under 0.05 % c)
+CAMBER_DECIDES = 0.002
+# tips more than 0.5 deg of dihedral above the root: the dihedral says which way is up
+DIHEDRAL_DECIDES_DEG = 0.5
+# a root further than 0.1 % of the span from the CAD plane and no further than half the span
+# (fuselage half-widths are a fraction of the semi-span) is an exposed wing's root
+EXPOSED_MIN, EXPOSED_MAX = 1e-3, 0.5
 _PROFILE = np.linspace(0.04, 0.96, 9)
 
 
@@ -81,6 +90,9 @@ def detect_frame_indexed(mesh, span_axis=None, up_axis=None, side=None):
     evals, evecs = np.linalg.eigh((dev.T * w) @ dev / w.sum())
     e_span, e_chord, e_up = evecs[:, 2], evecs[:, 1], evecs[:, 0]
     s_given = u_given = None
+    u_signed = False
+    if side not in (None, "port", "starboard"):
+        raise InputError(f"side {side!r} not one of port, starboard")
     if span_axis is not None:
         i, sg = parse_axis(span_axis, "span axis")
         e_span = np.eye(3)[i] * (sg or 1.0)
@@ -88,7 +100,7 @@ def detect_frame_indexed(mesh, span_axis=None, up_axis=None, side=None):
     if up_axis is not None:
         i, sg = parse_axis(up_axis, "up axis")
         e_up = np.eye(3)[i] * (sg or 1.0)
-        u_given = e_up
+        u_given, u_signed = e_up, sg is not None
         if span_axis is not None and abs(e_up @ e_span) > 0.5:
             raise InputError(f"up axis {up_axis!r} is the same as span axis {span_axis!r}")
     if span_axis is None and up_axis is not None:  # largest spread in the plane normal to up
@@ -174,11 +186,12 @@ def detect_frame_indexed(mesh, span_axis=None, up_axis=None, side=None):
     R1 = _basis(y_hat, e_chord)
     o1 = y_hat * y_root
     levels = [root_level] if full else [root_level, 3 * root_level]
-    sps = []
+    sps, loops = [], []
     for loop, _, _ in slice_indexed(index, R1, o1, levels):
         if loop is None:
             raise GeometryError(f"{src}: the root section is not a closed loop (hole in the mesh?)")
         sps.append(section_properties(loop))
+        loops.append(loop)
     sp = sps[0]
     if sp["thickness_ratio"] > 0.5:
         raise GeometryError(f"{src}: does not look like a wing (root section is "
@@ -193,36 +206,130 @@ def detect_frame_indexed(mesh, span_axis=None, up_axis=None, side=None):
         origin = le3 + (le3 - le3b) * 0.5
     # up direction
     if full:
-        flip, why = _full_wing_up(index, R, origin, semispan, u_given, sp["camber_ratio"])
+        flip, why = _full_wing_up(index, R, origin, semispan, u_given, u_signed, sp["camber_ratio"])
         if flip:
             R = np.vstack([R[0], -R[1], -R[2]])
         notes.append(f"z up from {why}")
+        side_found, mirrored = "full", False
     else:
-        if u_given is not None and R[2] @ u_given < 0:
-            raise GeometryError(f"{src}: with up axis {up_axis!r} this half wing is a port (left) wing; "
-                                f"mirror it to starboard")
         camber = 0.5 * (sps[0]["camber_ratio"] + sps[1]["camber_ratio"])  # same in R1 and R
-        if camber < -0.002:
-            notes.append("sections show negative camber in the detected frame: a port (left) or "
-                         "upside-down half wing? (give --up-axis)")
+        hand = _winding(loops[0])
+        up, why, guessed = _half_wing_up(index, R, origin, semispan, u_given, u_signed, side, camber,
+                                         hand, src)
+        mirrored = up < 0
+        if mirrored:
+            R = np.vstack([R[0], R[1], -R[2]])  # a reflection: det -1, maps back exactly
+        side_found = _side_text(mirrored, hand)
+        text = (f"z up from {why}; {side_found} half wing"
+                + (" (mesh normals point inward in right-handed axes: a mirrored, left-handed "
+                   "CAD frame)" if hand < 0 else ""))
+        if mirrored:
+            how = "mirrored onto the starboard side" if hand > 0 else "reflected into the right-handed wing frame"
+            notes.append(f"warning: side: {text}: {how} (wing y = CAD "
+                         f"{axis_label(R[1])}, up = CAD {axis_label(R[2])}); the transform "
+                         f"is a reflection (det -1)")
+        elif guessed:
+            notes.append(f"warning: up: {text}; give up_axis (e.g. \"-y\") or side if wrong")
+        else:
+            notes.append(text)
+        if guessed and mirrored:
+            notes.append("warning: up: the sections are symmetric, so up versus down was not "
+                         "decided by the airfoil; give up_axis or side if wrong")
+        side_found = "port" if mirrored == (hand > 0) else "starboard"
+    y_root = 0.0
+    if not full and snapped and s_given is None:
+        y_root = _exposed_root(y_hat, yv_min, semispan)
+        if y_root > 0.0:
+            origin = origin - y_hat * y_root
+            notes.append(f"warning: exposed: the root lies {y_root:.4g} m off the CAD's plane "
+                         f"{axis_label(y_hat)[1]} = 0, which is kept as the plane of symmetry "
+                         f"(y = 0); the planform reports the exposed and the gross wing")
     asym = _asymmetry(index, R, origin, semispan) if full else 0.0
     return WingFrame(rotation=R, origin=origin, full_span=bool(full), span_axis=axis_label(R[1]),
-                     up_axis=axis_label(R[2]), asymmetry=asym, notes=tuple(notes)), index
+                     up_axis=axis_label(R[2]), asymmetry=asym, notes=tuple(notes),
+                     mirrored=bool(mirrored), side=side_found, y_root=float(y_root)), index
 
 
-def _full_wing_up(index, R, origin, semispan, u_given, cam):
+def _full_wing_up(index, R, origin, semispan, u_given, u_signed, cam):
     """Should y and z be flipped so that z is up? Returns (flip, reason)."""
+    if u_given is not None and u_signed:
+        return bool(R[2] @ u_given < 0), "the given up axis"
+    if abs(cam) > CAMBER_DECIDES:
+        return cam < 0, "positive camber"
     if u_given is not None:
         return bool(R[2] @ u_given < 0), "the given up axis"
-    if abs(cam) > 0.002:
-        return cam < 0, "positive camber"
-    cuts = slice_indexed(index, R, origin, semispan * np.array([0.0, 0.9]))
-    if cuts[0][0] is not None and cuts[1][0] is not None:
-        dz = cuts[1][0][:, 1].mean() - cuts[0][0][:, 1].mean()
-        if abs(dz) > np.tan(np.radians(0.5)) * 0.9 * semispan:
-            return dz < 0, "positive dihedral (symmetric sections)"
+    dz = _tip_rise(index, R, origin, semispan)
+    if dz is not None and abs(dz) > np.tan(np.radians(DIHEDRAL_DECIDES_DEG)) * 0.9 * semispan:
+        return dz < 0, "positive dihedral (symmetric sections)"
     i = int(np.argmax(np.abs(R[2])))
     return bool(R[2][i] < 0), "the positive CAD axis (no camber or dihedral to tell)"
+
+
+def _tip_rise(index, R, origin, semispan):
+    """Height (along R[2]) of the section at 90 % semi-span above the root's, or None."""
+    cuts = slice_indexed(index, R, origin, semispan * np.array([INSET, 0.9]))
+    if cuts[0][0] is None or cuts[1][0] is None:
+        return None
+    return float(cuts[1][0][:, 1].mean() - cuts[0][0][:, 1].mean())
+
+
+def _winding(loop):
+    """+1 when a root cut's loop runs as an outward-wound surface's does in right-handed axes.
+
+    The cut orients each segment from the triangle's up-crossing edge to its down-crossing edge
+    (see `slicing`); for a closed surface with outward normals in right-handed axes that loop
+    is counter-clockwise in (x, z) (positive signed area; checked on the lofted NACA wings,
+    whose faces are wound outward).
+    """
+    p = np.asarray(loop, float)
+    q = np.roll(p, -1, 0)
+    area = 0.5 * float((p[:, 0] * q[:, 1] - q[:, 0] * p[:, 1]).sum())
+    return 1 if area > 0 else -1
+
+
+def _half_wing_up(index, R, origin, semispan, u_given, u_signed, side, camber, hand, src):
+    """(+1 or -1, reason, guessed): is the wing's up R[2] (+1) or -R[2] (-1)?
+
+    R has rows (chord aft, root -> tip, their cross product). Decided by, in this order: a
+    signed up axis given; the side given (with the handedness the mesh normals show); the
+    camber of the root sections (an airfoil's mean line bulges up); an unsigned up axis; the
+    dihedral (tips above the root: guessed); the positive CAD axis (guessed).
+    """
+    if u_given is not None and u_signed:
+        return (1 if R[2] @ u_given > 0 else -1), "the given up axis", False
+    if side is not None:
+        return (hand if side == "starboard" else -hand), f"the given side ({side})", False
+    if abs(camber) > CAMBER_DECIDES:
+        return (1 if camber > 0 else -1), f"the camber of the sections ({100 * abs(camber):.2f} % c)", False
+    if u_given is not None:
+        return (1 if R[2] @ u_given > 0 else -1), "the given up axis", False
+    dz = _tip_rise(index, R, origin, semispan)
+    if dz is not None and abs(dz) > np.tan(np.radians(DIHEDRAL_DECIDES_DEG)) * 0.9 * semispan:
+        return (1 if dz > 0 else -1), "the dihedral (symmetric sections; tip taken above the root)", True
+    i = int(np.argmax(np.abs(R[2])))
+    return (1 if R[2][i] > 0 else -1), "the positive CAD axis (symmetric sections, no dihedral)", True
+
+
+def _side_text(mirrored, hand):
+    if hand > 0:
+        return "a port" if mirrored else "a starboard"
+    return "a starboard" if mirrored else "a port"
+
+
+def _exposed_root(y_hat, yv_min, semispan):
+    """Distance of the root from the CAD's plane normal to a CAD-axis span (0: keep the root).
+
+    A root between 0.1 % and EXPOSED_MAX of the wing's own span outboard of the CAD plane is an
+    exposed-wing export: the CAD plane is its plane of symmetry (common practice, no source).
+    """
+    i = int(np.argmax(np.abs(y_hat)))
+    if abs(y_hat[i]) != 1.0:
+        return 0.0
+    reach = float(yv_min)  # y_hat . p at the root; the CAD plane is y_hat . p = 0
+    span = float(semispan)
+    if EXPOSED_MIN * span < reach <= EXPOSED_MAX * span:
+        return reach
+    return 0.0
 
 
 def _asymmetry(index, R, origin, semispan):

@@ -38,6 +38,9 @@ def summarize(stations: Stations, y_root: float = 0.0) -> Planform:
     """Planform of the whole wing (both sides by symmetry) from the starboard `Stations`.
 
     Lengths m, area m^2, angles deg. Raises GeometryError with fewer than 3 stations.
+    y_root: the root of the geometry (an exposed wing's root off y = 0); the gross planform is
+    carried through to y = 0 by extending the leading and trailing edges, the exposed one
+    starts at y_root. span_surface is measured along the quarter-chord line in y-z.
     """
     st = stations
     if st.n < 3:
@@ -59,7 +62,17 @@ def summarize(stations: Stations, y_root: float = 0.0) -> Planform:
     mac = 2.0 / area * _int_prod(ye, c, c)
     y_mac = 2.0 / area * _int_prod(ye, c, ye)
     x_mac_le = 2.0 / area * _int_prod(ye, c, xle)
-    return Planform(area=area, span=span, aspect_ratio=span**2 / area, taper=float(c[-1] / c[0]),
+    zqc = _extend(y, st.z_qc, y0, y1)
+    span_surface = 2.0 * float(np.hypot(np.diff(ye), np.diff(zqc)).sum())
+    if y_root > 0.0:  # exposed wing: the part outboard of its own root
+        ys = np.concatenate([[y_root], y[y > y_root], [y1]])
+        cs = np.maximum(np.interp(ys, ye, c), 0.0)
+        exposed_area = 2.0 * _int_prod(ys, cs, np.ones_like(ys))
+        exposed_span = 2.0 * (s - y_root)
+    else:
+        exposed_area, exposed_span = area, span
+    return Planform(span_surface=span_surface, exposed_area=exposed_area, exposed_span=exposed_span,
+                    area=area, span=span, aspect_ratio=span**2 / area, taper=float(c[-1] / c[0]),
                     root_chord=float(c[0]), tip_chord=float(c[-1]), mac=mac, x_mac_le=x_mac_le,
                     y_mac=y_mac, sweep_le_deg=_slope_deg(y, st.x_le), sweep_qc_deg=_slope_deg(y, st.x_qc),
                     dihedral_deg=_slope_deg(y, st.z_qc), washout_deg=float(tw[0] - tw[-1]))

@@ -60,8 +60,9 @@ def cut_stations(mesh, frame, n=20, spacing="cosine", progress=None, index=None)
     semispan = float(s_max - r1 @ frame.origin)
     if semispan <= 0:
         raise GeometryError(f"{mesh.source}: no geometry on the starboard side of the root plane")
-    y0 = 0.0 if frame.full_span else INSET * semispan
-    ys = station_levels(y0, semispan * (1 - INSET), int(n), spacing)
+    y_root = float(getattr(frame, "y_root", 0.0) or 0.0)  # an exposed wing's root off y = 0
+    y0 = 0.0 if frame.full_span else y_root + INSET * (semispan - y_root)
+    ys = station_levels(y0, semispan - INSET * (semispan - y_root), int(n), spacing)
     progress("cut", 0, len(ys))
     cuts = slice_indexed(index, frame.rotation, frame.origin, ys)
     rows, notes, stray = [], [], 0
