@@ -76,7 +76,7 @@ def detect_frame(mesh, span_axis=None, up_axis=None, side=None) -> WingFrame:
     return detect_frame_indexed(mesh, span_axis, up_axis, side)[0]
 
 
-def detect_frame_indexed(mesh, span_axis=None, up_axis=None, side=None):
+def detect_frame_indexed(mesh, span_axis=None, up_axis=None, side=None, index=None):
     """`detect_frame`, also returning the `SpanIndex` it built over the soup, so that
     `sections.cut_stations(..., index=...)` can cut without a second pass over all triangles."""
     tris, src = mesh.triangles, mesh.source
@@ -111,7 +111,8 @@ def detect_frame_indexed(mesh, span_axis=None, up_axis=None, side=None):
     if span_axis is None:
         extents = np.ptp(dev @ np.column_stack([e_span, e_chord]), axis=0)
         e_span, snapped = _snap(e_span, 5.0)
-        index = SpanIndex(tris, e_span)  # the one pass over all triangles; cuts touch only candidates
+        if index is None or index.tris is not tris or not np.array_equal(index.e, e_span):
+            index = SpanIndex(tris, e_span)  # the one pass over all triangles; cuts touch only candidates
         why = None
         if extents[0] < _AMBIGUOUS_EXTENT * extents[1] or not _end_cap(index, e_span):
             e_span, snapped, index, why = _choose_span_axis(tris, sub, w, index, e_span, e_chord, e_up)

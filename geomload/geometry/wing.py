@@ -1,12 +1,19 @@
-"""`read_wing`: the geometry stage from file to `Wing` record (read, frame, stations, planform)."""
+"""`read_wing`: the geometry stage from file to `Wing` record (read, bodies, frame, stations,
+planform, control surfaces, tailplane)."""
 
 from __future__ import annotations
+
+import os
+
+import numpy as np
 
 from .frame import detect_frame_indexed
 from .planform import summarize
 from .readers import read_mesh
-from .records import GeometryWarning, Wing
+from .records import BodyInfo, GeometryWarning, TailPlanform, Wing, WingMesh
 from .stations import cut_stations
+
+MIN_SHELL_FRACTION = 1e-4  # shells under 0.01 % of the surface area are debris, not bodies
 
 
 def _no_progress(stage, done, total):
@@ -18,14 +25,114 @@ def read_wing(path, units=None, body=None, span_axis=None, up_axis=None, n_stati
     """See `geometry.read_wing`."""
     progress = progress or _no_progress
     mesh = read_mesh(path, units=units, body=body, progress=progress, require_units=require_units,
-                     units_hint=units_hint)
-    frame, index = detect_frame_indexed(mesh, span_axis=span_axis, up_axis=up_axis, side=side)
-    stations = cut_stations(mesh, frame, n=n_stations, spacing=spacing, progress=progress,
+                     units_hint=units_hint, all_bodies=body is None)
+    wing_mesh, index, found = mesh, None, None
+    if body is None:
+        wing_mesh, index, found = _pick_wing(mesh)
+    frame, index = detect_frame_indexed(wing_mesh, span_axis=span_axis, up_axis=up_axis, side=side,
+                                        index=index)
+    stations = cut_stations(wing_mesh, frame, n=n_stations, spacing=spacing, progress=progress,
                             index=index)
+    controls, bodies, tail, extra = (), (), None, []
+    if found is not None:
+        stations, controls, tail, bodies, extra = _other_bodies(found, frame, stations, n_stations)
     planform = summarize(stations, y_root=frame.y_root)
-    warnings, notes = split_notes(list(mesh.notes) + list(frame.notes) + list(stations.notes))
-    return Wing(mesh=mesh, frame=frame, stations=stations, planform=planform,
+    warnings, notes = split_notes(list(wing_mesh.notes) + list(frame.notes) + list(stations.notes)
+                                  + extra)
+    return Wing(mesh=wing_mesh, frame=frame, stations=stations, planform=planform,
+                control_surfaces=tuple(controls), bodies=tuple(bodies), tailplane=tail,
                 warnings=tuple(warnings), notes=tuple(notes))
+
+
+def _pick_wing(mesh):
+    """(wing mesh, a reusable SpanIndex or None, classification or None)."""
+    from .bodies import Body, classify, components, looks_single
+
+    tris = mesh.triangles
+    if len(mesh.body_sizes) <= 1:
+        single, index = looks_single(tris)
+        if single:
+            return mesh, index, None
+    starts = np.concatenate([[0], np.cumsum(mesh.body_sizes or (tris.shape[0],))])
+    shells = []
+    for a, b in zip(starts[:-1], starts[1:]):
+        for idx in components(tris[a:b]):
+            shells.append(tris[a:b][idx])
+    total = sum(float(_area(s)) for s in shells)
+    shells = [s for s in shells if _area(s) >= MIN_SHELL_FRACTION * total]
+    if len(shells) <= 1:
+        return mesh, None, None
+    bodies = [Body(i + 1, s) for i, s in enumerate(shells)]
+    cls = classify(bodies, mesh.source)
+    wing_tris = np.concatenate([p.tris for p in cls["wing"]])
+    wing = cls["wing"]
+    if len(wing) == 1:
+        why = "the lifting surface of largest span"
+        if wing[0].area >= max(b.area for b in bodies):
+            why += ", also the one of largest surface area"
+        kept = f"kept body {wing[0].index} as the wing ({why})"
+    else:
+        kept = (f"kept bodies {', '.join(str(p.index) for p in wing)} as the wing (touching parts "
+                "of one lifting surface)")
+    left = [f"body {b.index} {b.kind} ({b.describe()})" for b in bodies if b not in wing]
+    text = (f"warning: bodies: {len(bodies)} bodies in {os.path.basename(mesh.source)}: {kept}; "
+            f"left out of the wing: {'; '.join(left)}")
+    wing_mesh = WingMesh(triangles=wing_tris, source=mesh.source, units=mesh.units,
+                         notes=tuple(mesh.notes) + (text,), units_assumed=mesh.units_assumed,
+                         body_sizes=tuple(int(p.tris.shape[0]) for p in cls["wing"]))
+    cls["all"] = bodies
+    return wing_mesh, None, cls
+
+
+def _area(t):
+    from .readers import triangle_areas
+
+    return triangle_areas(t).sum()
+
+
+def _other_bodies(cls, frame, stations, n_stations):
+    """Attach control surfaces, measure the tailplane, and describe every body."""
+    from .control import attach
+
+    extra, controls = [], []
+    for b in cls["controls"]:
+        stations, cs = attach(stations, frame, b.tris, b.index)
+        if cs is not None:
+            controls.append(cs)
+            extra.append(f"warning: control_surface: body {b.index} is a control surface behind the "
+                         f"wing from y = {cs.y_from_m:.4g} to {cs.y_to_m:.4g} m: the sections there "
+                         f"run to its trailing edge (hinge at {100 * np.mean(cs.hinge_x_over_c):.0f} "
+                         f"% chord)")
+        else:
+            extra.append(f"warning: control_surface: body {b.index} lies behind the wing but "
+                         "outside its stations: left out")
+    tail = None
+    if cls["tail"] is not None:
+        tail = _tail_planform(cls["tail"], frame, cls, extra)
+    bodies = tuple(BodyInfo(b.index, b.kind, int(b.tris.shape[0]), b.span, float(b.ext[0]),
+                            b.describe()) for b in cls["all"])
+    return stations, tuple(controls), tail, bodies, extra
+
+
+def _tail_planform(b, frame, cls, extra):
+    """The tailplane's planform in the wing frame, or None (with a warning) when it cannot be
+    measured."""
+    from ..errors import GeometryError
+
+    try:
+        m = WingMesh(b.tris, "tailplane", "m")
+        f, idx = detect_frame_indexed(m)
+        st = cut_stations(m, f, n=11, index=idx)
+        pf = summarize(st, y_root=f.y_root)
+    except GeometryError as exc:
+        extra.append(f"warning: bodies: the tailplane (body {b.index}) could not be measured: {exc}")
+        return None
+    # quarter-chord point of the tail's MAC, carried from the tail frame to the wing frame
+    p_tail = np.array([pf.x_mac_qc, pf.y_mac, float(np.interp(pf.y_mac, st.y, st.z_qc))])
+    p_wing = frame.to_wing(f.to_cad(p_tail))
+    z0 = frame.to_wing(f.to_cad(np.array([st.x_qc[0], 0.0, st.z_qc[0]])))[2]
+    return TailPlanform(area=pf.area, span=pf.span, x_qc_mac=float(p_wing[0]), mac=pf.mac,
+                        z_m=float(z0))
 
 
 def split_notes(lines):
@@ -34,8 +141,8 @@ def split_notes(lines):
     for line in lines:
         if line.startswith("warning: "):
             text = line[len("warning: "):]
-            kind = text.split(":", 1)[0] if text.split(":", 1)[0] in _KINDS else "geometry"
-            warnings.append(GeometryWarning(kind, text))
+            head = text.split(":", 1)[0]
+            warnings.append(GeometryWarning(head if head in _KINDS else "geometry", text))
         else:
             notes.append(line)
     return warnings, notes
