@@ -104,13 +104,13 @@ def read_mesh(path, units=None, body=None, progress=None, require_units=False, a
                 declared = 0.0254 if kind == "iges" else 1.0
             scale = scale / declared * UNITS[units]
             unit_label = units
-            notes.append(f"warning: units {units} given: overrides the unit declared in {name} "
+            notes.append(f"warning: units: {units} given: overrides the unit declared in {name} "
                          f"({_label(declared)})")
     elif file_scale is not None:
         scale, unit_label = file_scale, "file"
         if units is not None:
             scale, unit_label = UNITS[units], units
-            notes.append(f"warning: units {units} given: overrides the unit of {name} "
+            notes.append(f"warning: units: {units} given: overrides the unit of {name} "
                          f"({_label(file_scale)})")
     else:
         unit_label = units or "m"

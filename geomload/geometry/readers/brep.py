@@ -30,8 +30,7 @@ UNIT_LABELS = {1.0: "m", 1e-3: "mm", 1e-2: "cm", 0.0254: "in", 0.3048: "ft"}
 
 _CHILD = r"""
 import os, sys, threading, time
-src, dst, kind = sys.argv[1:4]
-parent = os.getppid()
+src, dst, kind, parent = sys.argv[1], sys.argv[2], sys.argv[3], int(sys.argv[4])
 try:  # SIGKILL this child when its parent dies (Linux)
     import ctypes, signal
     ctypes.CDLL(None, use_errno=True).prctl(1, int(signal.SIGKILL), 0, 0, 0)  # PR_SET_PDEATHSIG
@@ -165,7 +164,8 @@ def brep_to_glb(path, ext):
     with tempfile.TemporaryDirectory(prefix="geomload-brep-") as tmp:
         dst = os.path.join(tmp, "out.glb")
         try:
-            p = subprocess.Popen([sys.executable, "-c", _CHILD, os.path.abspath(path), dst, kind],
+            p = subprocess.Popen([sys.executable, "-c", _CHILD, os.path.abspath(path), dst, kind,
+                                  str(os.getpid())],
                                  stdin=subprocess.DEVNULL, stdout=subprocess.DEVNULL,
                                  stderr=subprocess.DEVNULL)
         except OSError as exc:
