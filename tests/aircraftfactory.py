@@ -97,3 +97,40 @@ def aircraft():
     fin = wing_triangles(df, 40, 8) @ np.array([[1.0, 0, 0], [0, 0, -1.0], [0, 1.0, 0]]).T
     fin = fin + np.array([2.15, 0.0, 0.12])
     return [wing, fuselage(), tail, fin], dw, dt
+
+
+def winglet_path(s, y_straight=1.5, radius=0.15):
+    """Span line of a wing with a blended 90-degree winglet: (y, z, phi) at arc length s (m):
+    straight along y to y_straight, a circular blend of `radius` turning up by 90 deg, then
+    vertical."""
+    s = np.asarray(s, float)
+    arc = 0.5 * np.pi * radius
+    y = np.where(s <= y_straight, s, np.where(s <= y_straight + arc,
+                 y_straight + radius * np.sin((s - y_straight) / radius), y_straight + radius))
+    z = np.where(s <= y_straight, 0.0, np.where(s <= y_straight + arc,
+                 radius * (1 - np.cos((s - y_straight) / radius)), radius + (s - y_straight - arc)))
+    phi = np.where(s <= y_straight, 0.0, np.minimum((s - y_straight) / radius, 0.5 * np.pi))
+    return y, z, phi
+
+
+def winglet_wing(s_tip=2.0356, chord_root=0.36, chord_tip=0.15, n=40):
+    """(soup, chord(s)) of a full-span wing with blended 90-degree winglets; NACA 2412 sections
+    normal to the span line, chord tapering linearly along the arc length s."""
+    chord = lambda s: chord_root + (chord_tip - chord_root) * np.asarray(s) / s_tip  # noqa: E731
+    d = dict(code="2412", t=lambda y: 0.12, twist=lambda y: 0.0, chord=lambda y: 1.0,
+             x_le=lambda y: 0.0, z_le=lambda y: 0.0)
+    ss = np.concatenate([np.linspace(0, 1.4, 8), np.linspace(1.45, 1.5 + 0.5 * np.pi * 0.15, 14),
+                         np.linspace(1.5 + 0.5 * np.pi * 0.15 + 0.02, s_tip, 6)])
+    rings = []
+    for s in ss:
+        base = section_ring(d, 0.0, n=n)  # unit chord, at y = 0
+        c = float(chord(s))
+        y, z, phi = winglet_path(s)
+        xs, zs = base[:, 0] * c, base[:, 2] * c
+        rings.append(np.column_stack([xs, y - zs * np.sin(phi), z + zs * np.cos(phi)]))
+    half = loft_rings(rings)
+    port = half.copy()
+    port[:, :, 1] *= -1
+    # the two halves share the root ring: drop both root caps by lofting through -s .. s
+    full_rings = [r * np.array([1, -1, 1]) for r in rings[:0:-1]] + rings
+    return loft_rings(full_rings), chord

@@ -45,8 +45,24 @@ def summarize(stations: Stations, y_root: float = 0.0) -> Planform:
     st = stations
     if st.n < 3:
         raise GeometryError(f"planform needs at least 3 stations (got {st.n})")
-    y = np.asarray(st.y, float)
+    y_all = np.asarray(st.y, float)
     s = float(st.semispan)
+    # a winglet's stations stand one above the other at nearly the same y: the projected
+    # planform uses the stations that advance in y (by more than 0.01 % of the semi-span)
+    keep = np.concatenate([[True], np.diff(np.maximum.accumulate(y_all)) > 1e-4 * s])
+    keep &= y_all >= np.maximum.accumulate(y_all)
+    if keep.sum() >= 3 and not keep.all():
+        import dataclasses
+
+        st = dataclasses.replace(st, **{k: np.asarray(getattr(st, k))[keep] for k in (
+            "y", "x_le", "z_le", "x_te", "z_te", "chord", "twist_deg", "thickness_ratio",
+            "x_thickness", "camber_ratio", "x_camber", "dihedral_deg", "camber_z", "s_m")})
+        surface_extra = float(np.asarray(stations.s_m)[-1] - np.asarray(st.s_m)[-1])
+    else:
+        surface_extra = 0.0
+    if stations.s_tip_m is not None:  # the line's own length to the tip, beyond the stations
+        surface_extra += float(stations.s_tip_m - np.asarray(stations.s_m)[-1])
+    y = np.asarray(st.y, float)
     y0 = 0.0 if y[0] > 0 else y[0]
     y1 = s if s > y[-1] else y[-1]
     ye = np.concatenate([[y0], y, [y1]])
@@ -63,7 +79,10 @@ def summarize(stations: Stations, y_root: float = 0.0) -> Planform:
     y_mac = 2.0 / area * _int_prod(ye, c, ye)
     x_mac_le = 2.0 / area * _int_prod(ye, c, xle)
     zqc = _extend(y, st.z_qc, y0, y1)
-    span_surface = 2.0 * float(np.hypot(np.diff(ye), np.diff(zqc)).sum())
+    if stations.s_tip_m is not None:
+        span_surface = 2.0 * (float(np.asarray(st.s_m)[-1]) + surface_extra)
+    else:
+        span_surface = 2.0 * (float(np.hypot(np.diff(ye), np.diff(zqc)).sum()) + surface_extra)
     if y_root > 0.0:  # exposed wing: the part outboard of its own root
         ys = np.concatenate([[y_root], y[y > y_root], [y1]])
         cs = np.maximum(np.interp(ys, ye, c), 0.0)

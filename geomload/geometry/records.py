@@ -104,6 +104,8 @@ class Stations:
     notes: skipped stations, stray loops ignored, etc.
     s_m: arc length (m) along the quarter-chord span line in the y-z plane, measured from y = 0
         (the root plane); equals y for a flat wing. Filled from y and z_qc when not given.
+    s_tip_m: arc length of the span line to the geometric tip (None: take the tip at semispan
+        along the last station's direction).
     """
 
     y: np.ndarray
@@ -123,6 +125,7 @@ class Stations:
     semispan: float
     notes: tuple = ()
     s_m: Optional[np.ndarray] = None
+    s_tip_m: Optional[float] = None
 
     def __post_init__(self):
         if self.s_m is None:

@@ -31,8 +31,7 @@ def read_wing(path, units=None, body=None, span_axis=None, up_axis=None, n_stati
         wing_mesh, index, found = _pick_wing(mesh)
     frame, index = detect_frame_indexed(wing_mesh, span_axis=span_axis, up_axis=up_axis, side=side,
                                         index=index)
-    stations = cut_stations(wing_mesh, frame, n=n_stations, spacing=spacing, progress=progress,
-                            index=index)
+    stations = _cut(wing_mesh, frame, n_stations, spacing, progress, index)
     controls, bodies, tail, extra = (), (), None, []
     if found is not None:
         stations, controls, tail, bodies, extra = _other_bodies(found, frame, stations, n_stations)
@@ -42,6 +41,24 @@ def read_wing(path, units=None, body=None, span_axis=None, up_axis=None, n_stati
     return Wing(mesh=wing_mesh, frame=frame, stations=stations, planform=planform,
                 control_surfaces=tuple(controls), bodies=tuple(bodies), tailplane=tail,
                 warnings=tuple(warnings), notes=tuple(notes))
+
+
+def _cut(mesh, frame, n, spacing, progress, index):
+    """Planar stations, or stations along the span line when it turns (winglets, gull)."""
+    from ..errors import GeometryError
+    from .spanline import cut_along_span_line, needs_span_line
+
+    try:
+        st = cut_stations(mesh, frame, n=n, spacing=spacing, progress=progress, index=index)
+    except GeometryError as exc:
+        st, err = None, exc
+    if st is None or needs_span_line(st):
+        alt = cut_along_span_line(mesh, frame, n, index=index, spacing=spacing)
+        if alt is not None and (st is None or alt.semispan >= 0.9 * st.semispan):
+            return alt
+        if st is None:
+            raise err
+    return st
 
 
 def _pick_wing(mesh):
