@@ -74,6 +74,15 @@ def cut_along_span_line(mesh, frame, n, index=None, spacing="cosine"):
         q = np.array([0.0, p_qc[1], p_qc[2]]) + ds * t  # step on from the span line itself
     if len(secs) < 6:
         return None
+    from .stations import MAX_THICKNESS_RATIO, MAX_TWIST_DEG
+
+    tc = np.array([r[0]["thickness_ratio"] for r in secs])
+    tw = np.array([r[0]["twist_deg"] for r in secs])
+    ch = np.array([r[0]["chord"] for r in secs])
+    length = float(np.hypot(*np.diff(np.array(pts)[:, 1:], axis=0).T).sum())
+    if (not np.median(tc) <= MAX_THICKNESS_RATIO or not np.all(np.abs(tw) <= MAX_TWIST_DEG)
+            or length < 0.5 * float(np.mean(ch))):
+        return None  # not a wing along this line either: the planar cut's verdict stands
     # the geometric tip: the farthest reach of the surface beyond the last cut along the line
     tw = np.array([0.0, t[1], t[2]])
     reach = float(((tris.reshape(-1, 3) - o) @ R.T @ tw).max() - np.array(pts[-1]) @ tw)

@@ -51,6 +51,8 @@ def _cut(mesh, frame, n, spacing, progress, index):
     try:
         st = cut_stations(mesh, frame, n=n, spacing=spacing, progress=progress, index=index)
     except GeometryError as exc:
+        if "turned" not in str(exc):  # only a chord line swinging round can be a winglet
+            raise
         st, err = None, exc
     if st is None or needs_span_line(st):
         alt = cut_along_span_line(mesh, frame, n, index=index, spacing=spacing)
