@@ -99,3 +99,14 @@ def test_refused_files_say_what_was_found(tmp_path, case):
     assert "\n" not in msg and str(p) in msg and words in msg
     if case != "fuselage":
         assert "give --body N" in msg and "2 bodies" in msg
+
+
+def test_body_option_picks_one_wing_of_a_biplane(tmp_path):
+    d = design()
+    full = wing_triangles(d, 40, 10, full_span=True)
+    p = _stl(tmp_path / "biplane.stl", [full, full + np.array([0.1, 0.0, 0.6])])
+    w = read_wing(p, units="m", n_stations=9, body=2)
+    # the upper wing alone, as the user chose: the design's span (Raymer ch. 4 definitions)
+    check(TAPER, "biplane, --body 2: span (m)", d["span"], w.planform.span, rel=0.005)
+    with pytest.raises(Exception, match="out of range"):
+        read_wing(p, units="m", n_stations=9, body=3)

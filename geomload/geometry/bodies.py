@@ -118,10 +118,6 @@ class Body:
         return f"a body {self.ext[0]:.3g} x {self.ext[1]:.3g} x {self.ext[2]:.3g} m"
 
 
-def cls_parts(b):
-    return [b]
-
-
 def gap(a, b, sample=4000):
     """Smallest distance between the vertices of two bodies (a vertex sample of the larger)."""
     from scipy.spatial import cKDTree
@@ -224,8 +220,6 @@ def classify(bodies, path):
             others.append(b)
         elif b.span >= SIMILAR_SPAN * ref_span:
             parallel = abs(b.axes[0] @ span_dir) > np.cos(np.radians(30.0))
-            for p in cls_parts(b):
-                p.kind = "lifting surface"
             what = ("two separate lifting surfaces of similar span (a biplane or two solids)"
                     if parallel else "two crossing lifting surfaces")
             raise GeometryError(f"{path}: {what}: {found()}")

@@ -13,10 +13,17 @@ Rules (common practice, no source):
 - x aft along the root chord. The trailing edge is the contour point farthest from the section's
   area centroid (an airfoil's centroid lies ahead of mid-chord: the rounded nose is full, the tail
   thin), the leading edge the point farthest from the trailing edge.
-- z = x cross y (right-handed). For a full wing the sign of y is chosen so that z is up: the
-  given `up_axis`, else positive camber, else tips above the centre (positive dihedral), else
-  the positive CAD axis. A half wing is taken as the starboard side (y from root to tip); a
-  negative camber there is reported (it may be a port wing).
+- Full wing: z = x cross y, the sign of y chosen so that z is up: a signed `up_axis`, else
+  positive camber, else an unsigned `up_axis`, else tips above the centre (positive dihedral),
+  else the positive CAD axis.
+- Half wing: y runs root -> tip (starboard in the wing frame). Up is decided by a signed
+  `up_axis`, else the given `side`, else the camber of the root sections, else an unsigned
+  `up_axis`, else the dihedral or the positive CAD axis (both a warning). When up is against
+  x cross y the half wing lies mirrored in the file (a port half in right-handed axes, or a
+  starboard one in a left-handed frame, told apart by the winding of the mesh normals): the
+  rotation becomes a reflection (det -1, `WingFrame.mirrored`), with a warning.
+- A half wing whose root lies off the CAD plane normal to a CAD-axis span (an exposed-wing
+  export) keeps that plane as y = 0 (`WingFrame.y_root`), with a warning.
 """
 
 from __future__ import annotations

@@ -24,11 +24,12 @@ def read_wing(path, units=None, body=None, span_axis=None, up_axis=None, n_stati
               spacing="cosine", progress=None, side=None, require_units=False, units_hint=None):
     """See `geometry.read_wing`."""
     progress = progress or _no_progress
-    mesh = read_mesh(path, units=units, body=body, progress=progress, require_units=require_units,
-                     units_hint=units_hint, all_bodies=body is None)
-    wing_mesh, index, found = mesh, None, None
+    mesh = read_mesh(path, units=units, progress=progress, require_units=require_units,
+                     units_hint=units_hint, all_bodies=True)
     if body is None:
         wing_mesh, index, found = _pick_wing(mesh)
+    else:
+        wing_mesh, index, found = _given_body(mesh, body), None, None
     frame, index = detect_frame_indexed(wing_mesh, span_axis=span_axis, up_axis=up_axis, side=side,
                                         index=index)
     stations = _cut(wing_mesh, frame, n_stations, spacing, progress, index)
@@ -65,20 +66,14 @@ def _cut(mesh, frame, n, spacing, progress, index):
 
 def _pick_wing(mesh):
     """(wing mesh, a reusable SpanIndex or None, classification or None)."""
-    from .bodies import Body, classify, components, looks_single
+    from .bodies import Body, classify, looks_single
 
     tris = mesh.triangles
     if len(mesh.body_sizes) <= 1:
         single, index = looks_single(tris)
         if single:
             return mesh, index, None
-    starts = np.concatenate([[0], np.cumsum(mesh.body_sizes or (tris.shape[0],))])
-    shells = []
-    for a, b in zip(starts[:-1], starts[1:]):
-        for idx in components(tris[a:b]):
-            shells.append(tris[a:b][idx])
-    total = sum(float(_area(s)) for s in shells)
-    shells = [s for s in shells if _area(s) >= MIN_SHELL_FRACTION * total]
+    shells = _shells(mesh)
     if len(shells) <= 1:
         return mesh, None, None
     bodies = [Body(i + 1, s) for i, s in enumerate(shells)]
@@ -101,6 +96,37 @@ def _pick_wing(mesh):
                          body_sizes=tuple(int(p.tris.shape[0]) for p in cls["wing"]))
     cls["all"] = bodies
     return wing_mesh, None, cls
+
+
+def _shells(mesh):
+    """The bodies of a file: each body the reader gives, split into its connected shells."""
+    from .bodies import components
+
+    tris = mesh.triangles
+    starts = np.concatenate([[0], np.cumsum(mesh.body_sizes or (tris.shape[0],))])
+    shells = []
+    for a, b in zip(starts[:-1], starts[1:]):
+        part = tris[a:b]
+        idx = components(part)
+        shells += [part] if len(idx) == 1 else [part[i] for i in idx]
+    total = sum(float(_area(s)) for s in shells)
+    return [s for s in shells if _area(s) >= MIN_SHELL_FRACTION * total]
+
+
+def _given_body(mesh, body):
+    """The 1-based body `body` of the file (numbered as the body report numbers them)."""
+    from ..errors import InputError
+
+    shells = _shells(mesh)
+    if not 1 <= int(body) <= len(shells):
+        raise InputError(f"{mesh.source}: --body {body} out of range (the file has {len(shells)} "
+                         f"bod{'ies' if len(shells) != 1 else 'y'})")
+    left = len(shells) - 1
+    note = (f"{len(shells)} bodies in {os.path.basename(mesh.source)}: kept body {body} (--body "
+            f"{body}); {left} left out",) if left else ()
+    return WingMesh(triangles=shells[int(body) - 1], source=mesh.source, units=mesh.units,
+                    notes=tuple(mesh.notes) + note, units_assumed=mesh.units_assumed,
+                    body_sizes=(int(shells[int(body) - 1].shape[0]),))
 
 
 def _area(t):
