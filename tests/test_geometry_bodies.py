@@ -70,6 +70,9 @@ def test_whole_aircraft_as_separate_shells(tmp_path):
     assert [b.kind for b in w.bodies] == ["wing", "fuselage", "tailplane", "fin"]
     assert w.frame.full_span
     _truth_ok(w, dw, "wing of a whole aircraft")
+    # the fuselage (a 0.2 m radius capsule) meets the wing root chord at y = 0.2 m
+    check("fuselage radius of the generated capsule", "fuselage side y (m)", 0.2,
+          w.fuselage_side_y_m, rel=0.02)
     tp = w.tailplane
     check(TAPER, "tailplane area S = s (c_r + c_t) (m^2)", dt["area"], tp.area, rel=0.01)
     check(TAPER, "tailplane span (m)", dt["span"], tp.span, rel=0.005)

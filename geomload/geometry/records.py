@@ -248,7 +248,9 @@ class Wing:
     mesh, frame, stations, planform: as `load_wing` returns them (the analysed wing);
     control_surfaces: tuple of ControlSurfaceGeometry; bodies: tuple of BodyInfo, one per body
     of the file; tailplane: TailPlanform or None; warnings: tuple of GeometryWarning (every
-    decision that can change a number); notes: facts that cannot change a number.
+    decision that can change a number); notes: facts that cannot change a number;
+    fuselage_side_y_m: wing-frame y of the fuselage's side at the wing root chord (the station
+    where the exposed wing meets the fuselage; the wing is carried through inside), or None.
     """
 
     mesh: WingMesh
@@ -260,3 +262,4 @@ class Wing:
     tailplane: Optional[TailPlanform] = None
     warnings: tuple = ()
     notes: tuple = ()
+    fuselage_side_y_m: Optional[float] = None

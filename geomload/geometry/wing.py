@@ -33,15 +33,16 @@ def read_wing(path, units=None, body=None, span_axis=None, up_axis=None, n_stati
     frame, index = detect_frame_indexed(wing_mesh, span_axis=span_axis, up_axis=up_axis, side=side,
                                         index=index)
     stations = _cut(wing_mesh, frame, n_stations, spacing, progress, index)
-    controls, bodies, tail, extra = (), (), None, []
+    controls, bodies, tail, extra, side_y = (), (), None, [], None
     if found is not None:
         stations, controls, tail, bodies, extra = _other_bodies(found, frame, stations, n_stations)
+        side_y = _fuselage_side(found, frame, stations, extra)
     planform = summarize(stations, y_root=frame.y_root)
     warnings, notes = split_notes(list(wing_mesh.notes) + list(frame.notes) + list(stations.notes)
                                   + extra)
     return Wing(mesh=wing_mesh, frame=frame, stations=stations, planform=planform,
                 control_surfaces=tuple(controls), bodies=tuple(bodies), tailplane=tail,
-                warnings=tuple(warnings), notes=tuple(notes))
+                warnings=tuple(warnings), notes=tuple(notes), fuselage_side_y_m=side_y)
 
 
 def _cut(mesh, frame, n, spacing, progress, index):
@@ -157,6 +158,27 @@ def _other_bodies(cls, frame, stations, n_stations):
     bodies = tuple(BodyInfo(b.index, b.kind, int(b.tris.shape[0]), b.span, float(b.ext[0]),
                             b.describe()) for b in cls["all"])
     return stations, tuple(controls), tail, bodies, extra
+
+
+def _fuselage_side(cls, frame, stations, extra):
+    """Half-width of the fuselage at the wing's root chord (wing frame y, m), or None."""
+    if not cls["fuselage"]:
+        return None
+    from .slicing import slice_loops
+
+    R = np.asarray(frame.rotation, float)
+    x_mid = 0.5 * float(stations.x_le[0] + stations.x_te[0])  # mid root chord
+    Rx = np.vstack([R[1], R[0], R[2]])  # cut normal to the wing x axis; loop in (y, z)
+    best = None
+    for b in cls["fuselage"]:
+        loop = slice_loops(b.tris, Rx, frame.origin, [x_mid])[0][0]
+        if loop is not None:
+            y = float(np.abs(loop[:, 0]).max())
+            best = y if best is None else max(best, y)
+    if best is not None:
+        extra.append(f"the fuselage side at the wing root is at y = {best:.4g} m; the wing is "
+                     "analysed through the fuselage to the plane of symmetry")
+    return best
 
 
 def _tail_planform(b, frame, cls, extra):
