@@ -108,10 +108,16 @@ def test_full_span_yup_obj(sample_dir, design, stl_wing):
 
 
 def test_step_reads_its_own_units(sample_dir, design, stl_wing):
-    mesh, frame, st, pf = load_wing(os.path.join(sample_dir, "pellin_half_wing.step"), units="ft", n_stations=15)
-    # the STEP file declares millimetres; the reader honours that and ignores --units
-    assert mesh.units == "file" and any("ignored" in n for n in mesh.notes)
+    mesh, frame, st, pf = load_wing(os.path.join(sample_dir, "pellin_half_wing.step"), n_stations=15)
+    # the STEP file declares millimetres; the reader honours that
+    assert mesh.units == "file" and not any("warning" in n for n in mesh.notes)
     _planform_ok(pf, design)
+    over = load_wing(os.path.join(sample_dir, "pellin_half_wing.step"), units="cm", n_stations=15)
+    # units given: they override the file's millimetres (the coordinates are read as cm), and
+    # the reader says so; 1 cm = 10 mm exactly (SI prefixes, BIPM SI Brochure)
+    assert over[0].units == "cm" and any("overrides" in n for n in over[0].notes)
+    check("SI prefixes (cm = 10 mm)", "span read in cm / span read in mm", 10.0,
+          over[3].span / pf.span, rel=1e-6)
     st_h = stl_wing[2]
     # internal consistency (no outside source): the B-rep loft through 7 spline sections,
     # tessellated by the kernel, gives the STL's stations within the issue-2 tolerances

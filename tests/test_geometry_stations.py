@@ -17,7 +17,7 @@ from wingfactory import expected_max_camber, expected_stations, naca_wing_mesh, 
 def _run(mesh, n=15):
     frame = detect_frame(mesh)
     st = cut_stations(mesh, frame, n=n)
-    return frame, st, summarize(st)
+    return frame, st, summarize(st, frame.y_root)
 
 
 NACA = "NACA Report 824 equations, farthest-point chord line"
@@ -111,17 +111,21 @@ def test_invariance_rotation_translation_scale_permutation(naca_wing):
     mesh0, d = naca_wing
     _, st0, pf0 = _run(mesh0)
     perm = np.array([[0, 0, 1], [1, 0, 0], [0, 1, 0]], float)  # axis permutation (det +1)
-    for rot, shift, scale in [(random_rotation(1), [3.0, -2.0, 7.0], 1.0), (perm, [0.1, 0.2, 0.3], 1.0),
-                              (random_rotation(5), [0.0, 0.0, 0.0], 2.5)]:
+    for rot, shift, scale, y_off in [(random_rotation(1), [3.0, -2.0, 7.0], 1.0, 0.0),
+                                     (perm, [0.1, 0.2, 0.3], 1.0, 0.3),
+                                     (random_rotation(5), [0.0, 0.0, 0.0], 2.5, 0.0)]:
         mesh, _ = naca_wing_mesh(rotation=rot, translation=shift, scale=scale)
-        _, st, pf = _run(mesh)
-        # same wing in another placement gives the same stations (issue 2: invariance)
-        assert np.allclose(st.y, st0.y * scale, rtol=1e-6, atol=1e-6)
+        frame, st, pf = _run(mesh)
+        # same wing in another placement gives the same stations (invariance). With the span
+        # along a CAD axis and the root 0.3 m off the CAD plane, that plane is kept as y = 0:
+        # every station moves out by 0.3 m and the exposed planform is the original one
+        assert abs(frame.y_root - y_off) < 1e-9
+        assert np.allclose(st.y, st0.y * scale + y_off, rtol=1e-6, atol=1e-6)
         assert np.allclose(st.chord, st0.chord * scale, rtol=1e-6)
         assert np.allclose(st.twist_deg, st0.twist_deg, atol=1e-4)
         assert np.allclose(st.x_le, st0.x_le * scale, atol=1e-6 * scale)
         assert np.allclose(st.z_le, st0.z_le * scale, atol=1e-6 * scale)
-        assert abs(pf.area / (pf0.area * scale**2) - 1) < 1e-6
+        assert abs(pf.exposed_area / (pf0.area * scale**2) - 1) < 1e-6
 
 
 def test_hole_skips_station_and_too_many_holes_fail(naca_wing):
@@ -174,5 +178,8 @@ def test_axis_overrides_match_detection():
     f_given = detect_frame(mesh, span_axis="-z", up_axis="+y")
     assert f_auto.span_axis == f_given.span_axis == "-Z" and f_given.up_axis == "+Y"
     assert np.allclose(f_auto.rotation, f_given.rotation, atol=1e-9)
-    with pytest.raises(GeometryError, match="port"):
-        detect_frame(mesh, span_axis="-z", up_axis="-y")
+    # up given as -Y on an upright wing: taken as the user says, i.e. a port wing seen upside
+    # down, mirrored onto the starboard side, and said so
+    f_port = detect_frame(mesh, span_axis="-z", up_axis="-y")
+    assert f_port.mirrored and abs(np.linalg.det(f_port.rotation) + 1) < 1e-9
+    assert any(n.startswith("warning: side:") and "port" in n for n in f_port.notes)

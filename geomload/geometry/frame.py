@@ -13,10 +13,17 @@ Rules (common practice, no source):
 - x aft along the root chord. The trailing edge is the contour point farthest from the section's
   area centroid (an airfoil's centroid lies ahead of mid-chord: the rounded nose is full, the tail
   thin), the leading edge the point farthest from the trailing edge.
-- z = x cross y (right-handed). For a full wing the sign of y is chosen so that z is up: the
-  given `up_axis`, else positive camber, else tips above the centre (positive dihedral), else
-  the positive CAD axis. A half wing is taken as the starboard side (y from root to tip); a
-  negative camber there is reported (it may be a port wing).
+- Full wing: z = x cross y, the sign of y chosen so that z is up: a signed `up_axis`, else
+  positive camber, else an unsigned `up_axis`, else tips above the centre (positive dihedral),
+  else the positive CAD axis.
+- Half wing: y runs root -> tip (starboard in the wing frame). Up is decided by a signed
+  `up_axis`, else the given `side`, else the camber of the root sections, else an unsigned
+  `up_axis`, else the dihedral or the positive CAD axis (both a warning). When up is against
+  x cross y the half wing lies mirrored in the file (a port half in right-handed axes, or a
+  starboard one in a left-handed frame, told apart by the winding of the mesh normals): the
+  rotation becomes a reflection (det -1, `WingFrame.mirrored`), with a warning.
+- A half wing whose root lies off the CAD plane normal to a CAD-axis span (an exposed-wing
+  export) keeps that plane as y = 0 (`WingFrame.y_root`), with a warning.
 """
 
 from __future__ import annotations
@@ -24,12 +31,25 @@ from __future__ import annotations
 import numpy as np
 
 from ..errors import GeometryError, InputError
-from ..records import WingFrame
-from .read import triangle_areas
-from .sections import INSET, section_properties, slice_indexed
+from .records import WingFrame
+from .frameutil import basis as _basis, root_cap_normal as _root_cap_normal, snap as _snap, unit as _unit
+from .readers import triangle_areas
+from .section import section_properties
+from .slicing import slice_indexed
+from .spanaxis import _AMBIGUOUS_EXTENT, _choose_span_axis, _end_cap
 from .spanindex import SpanIndex
+from .stations import INSET
 
 _AXES = {"x": 0, "y": 1, "z": 2}
+# Thresholds of the frame detection (common practice, no source):
+# a mean-line height above 0.2 % of the chord is camber, not faceting noise (NACA 1xxx sections
+# have 1 %, and a 100-point contour misplaces the mean line by under 0.05 % c)
+CAMBER_DECIDES = 0.002
+# tips more than 0.5 deg of dihedral above the root: the dihedral says which way is up
+DIHEDRAL_DECIDES_DEG = 0.5
+# a root further than 0.1 % of the span from the CAD plane and no further than half the span
+# (fuselage half-widths are a fraction of the semi-span) is an exposed wing's root
+EXPOSED_MIN, EXPOSED_MAX = 1e-3, 0.5
 _PROFILE = np.linspace(0.04, 0.96, 9)
 
 
@@ -53,36 +73,17 @@ def axis_label(v):
     return "({:+.3f}, {:+.3f}, {:+.3f})".format(*v)
 
 
-def _snap(v, deg):
-    i = int(np.argmax(np.abs(v)))
-    if abs(v[i]) >= np.cos(np.radians(deg)):
-        e = np.zeros(3)
-        e[i] = np.sign(v[i])
-        return e, True
-    return v / np.linalg.norm(v), False
-
-
-def _unit(v):
-    return v / np.linalg.norm(v)
-
-
-def _basis(y, hint):
-    """Rotation with rows (x, y, z): y given, x = hint made normal to y, z = x cross y."""
-    x = _unit(hint - (hint @ y) * y)
-    return np.vstack([x, y, np.cross(x, y)])
-
-
-def detect_frame(mesh, span_axis=None, up_axis=None) -> WingFrame:
+def detect_frame(mesh, span_axis=None, up_axis=None, side=None) -> WingFrame:
     """Detect span / chord / up axes, half or full wing, and the root plane of a `WingMesh`.
 
     Returns a `WingFrame` with p_wing = rotation @ (p_cad - origin); the origin is the root
     (half wing) or centre-section (full wing) leading edge. Raises GeometryError when the mesh
     has no closed section or is not wing-shaped (section thicker than half its chord).
     """
-    return detect_frame_indexed(mesh, span_axis, up_axis)[0]
+    return detect_frame_indexed(mesh, span_axis, up_axis, side)[0]
 
 
-def detect_frame_indexed(mesh, span_axis=None, up_axis=None):
+def detect_frame_indexed(mesh, span_axis=None, up_axis=None, side=None, index=None):
     """`detect_frame`, also returning the `SpanIndex` it built over the soup, so that
     `sections.cut_stations(..., index=...)` can cut without a second pass over all triangles."""
     tris, src = mesh.triangles, mesh.source
@@ -96,6 +97,9 @@ def detect_frame_indexed(mesh, span_axis=None, up_axis=None):
     evals, evecs = np.linalg.eigh((dev.T * w) @ dev / w.sum())
     e_span, e_chord, e_up = evecs[:, 2], evecs[:, 1], evecs[:, 0]
     s_given = u_given = None
+    u_signed = False
+    if side not in (None, "port", "starboard"):
+        raise InputError(f"side {side!r} not one of port, starboard")
     if span_axis is not None:
         i, sg = parse_axis(span_axis, "span axis")
         e_span = np.eye(3)[i] * (sg or 1.0)
@@ -103,7 +107,7 @@ def detect_frame_indexed(mesh, span_axis=None, up_axis=None):
     if up_axis is not None:
         i, sg = parse_axis(up_axis, "up axis")
         e_up = np.eye(3)[i] * (sg or 1.0)
-        u_given = e_up
+        u_given, u_signed = e_up, sg is not None
         if span_axis is not None and abs(e_up @ e_span) > 0.5:
             raise InputError(f"up axis {up_axis!r} is the same as span axis {span_axis!r}")
     if span_axis is None and up_axis is not None:  # largest spread in the plane normal to up
@@ -114,7 +118,8 @@ def detect_frame_indexed(mesh, span_axis=None, up_axis=None):
     if span_axis is None:
         extents = np.ptp(dev @ np.column_stack([e_span, e_chord]), axis=0)
         e_span, snapped = _snap(e_span, 5.0)
-        index = SpanIndex(tris, e_span)  # the one pass over all triangles; cuts touch only candidates
+        if index is None or index.tris is not tris or not np.array_equal(index.e, e_span):
+            index = SpanIndex(tris, e_span)  # the one pass over all triangles; cuts touch only candidates
         why = None
         if extents[0] < _AMBIGUOUS_EXTENT * extents[1] or not _end_cap(index, e_span):
             e_span, snapped, index, why = _choose_span_axis(tris, sub, w, index, e_span, e_chord, e_up)
@@ -189,11 +194,12 @@ def detect_frame_indexed(mesh, span_axis=None, up_axis=None):
     R1 = _basis(y_hat, e_chord)
     o1 = y_hat * y_root
     levels = [root_level] if full else [root_level, 3 * root_level]
-    sps = []
+    sps, loops = [], []
     for loop, _, _ in slice_indexed(index, R1, o1, levels):
         if loop is None:
             raise GeometryError(f"{src}: the root section is not a closed loop (hole in the mesh?)")
         sps.append(section_properties(loop))
+        loops.append(loop)
     sp = sps[0]
     if sp["thickness_ratio"] > 0.5:
         raise GeometryError(f"{src}: does not look like a wing (root section is "
@@ -208,59 +214,130 @@ def detect_frame_indexed(mesh, span_axis=None, up_axis=None):
         origin = le3 + (le3 - le3b) * 0.5
     # up direction
     if full:
-        flip, why = _full_wing_up(index, R, origin, semispan, u_given, sp["camber_ratio"])
+        flip, why = _full_wing_up(index, R, origin, semispan, u_given, u_signed, sp["camber_ratio"])
         if flip:
             R = np.vstack([R[0], -R[1], -R[2]])
         notes.append(f"z up from {why}")
+        side_found, mirrored = "full", False
     else:
-        if u_given is not None and R[2] @ u_given < 0:
-            raise GeometryError(f"{src}: with up axis {up_axis!r} this half wing is a port (left) wing; "
-                                f"mirror it to starboard")
         camber = 0.5 * (sps[0]["camber_ratio"] + sps[1]["camber_ratio"])  # same in R1 and R
-        if camber < -0.002:
-            notes.append("sections show negative camber in the detected frame: a port (left) or "
-                         "upside-down half wing? (give --up-axis)")
+        hand = _winding(loops[0])
+        up, why, guessed = _half_wing_up(index, R, origin, semispan, u_given, u_signed, side, camber,
+                                         hand, src)
+        mirrored = up < 0
+        if mirrored:
+            R = np.vstack([R[0], R[1], -R[2]])  # a reflection: det -1, maps back exactly
+        side_found = _side_text(mirrored, hand)
+        text = (f"z up from {why}; {side_found} half wing"
+                + (" (mesh normals point inward in right-handed axes: a mirrored, left-handed "
+                   "CAD frame)" if hand < 0 else ""))
+        if mirrored:
+            how = "mirrored onto the starboard side" if hand > 0 else "reflected into the right-handed wing frame"
+            notes.append(f"warning: side: {text}: {how} (wing y = CAD "
+                         f"{axis_label(R[1])}, up = CAD {axis_label(R[2])}); the transform "
+                         f"is a reflection (det -1)")
+        elif guessed:
+            notes.append(f"warning: up: {text}; give up_axis (e.g. \"-y\") or side if wrong")
+        else:
+            notes.append(text)
+        if guessed and mirrored:
+            notes.append("warning: up: the sections are symmetric, so up versus down was not "
+                         "decided by the airfoil; give up_axis or side if wrong")
+        side_found = "port" if mirrored == (hand > 0) else "starboard"
+    y_root = 0.0
+    if not full and snapped and s_given is None:
+        y_root = _exposed_root(y_hat, yv_min, semispan)
+        if y_root > 0.0:
+            origin = origin - y_hat * y_root
+            notes.append(f"warning: exposed: the root lies {y_root:.4g} m off the CAD's plane "
+                         f"{axis_label(y_hat)[1]} = 0, which is kept as the plane of symmetry "
+                         f"(y = 0); the planform reports the exposed and the gross wing")
     asym = _asymmetry(index, R, origin, semispan) if full else 0.0
     return WingFrame(rotation=R, origin=origin, full_span=bool(full), span_axis=axis_label(R[1]),
-                     up_axis=axis_label(R[2]), asymmetry=asym, notes=tuple(notes)), index
+                     up_axis=axis_label(R[2]), asymmetry=asym, notes=tuple(notes),
+                     mirrored=bool(mirrored), side=side_found, y_root=float(y_root)), index
 
 
-def _root_cap_normal(tris, y_hat, tol, with_area=False):
-    """Area-weighted normal (oriented root -> tip) of the flat cap at the root end, or None.
-
-    tris: triangles near the root end; the cap is made of those within tol of the root plane.
-    with_area: return (normal, cap area) instead (None when there is no cap).
-    """
-    if tris.shape[0] == 0:
-        return None
-    yv = tris @ y_hat  # (m, 3)
-    level = float(yv.min())
-    near = np.nonzero(np.abs(yv - level).max(1) < tol)[0]
-    if near.size == 0:
-        return None
-    t = tris[near]
-    n = np.cross(t[:, 1] - t[:, 0], t[:, 2] - t[:, 0])
-    n = n * np.sign(n @ y_hat)[:, None]
-    a = np.linalg.norm(n, axis=1)
-    good = (n @ y_hat) > np.cos(np.radians(10.0)) * a
-    if not good.any():
-        return None
-    return (_unit(n[good].sum(0)), 0.5 * float(a[good].sum())) if with_area else _unit(n[good].sum(0))
-
-
-def _full_wing_up(index, R, origin, semispan, u_given, cam):
+def _full_wing_up(index, R, origin, semispan, u_given, u_signed, cam):
     """Should y and z be flipped so that z is up? Returns (flip, reason)."""
+    if u_given is not None and u_signed:
+        return bool(R[2] @ u_given < 0), "the given up axis"
+    if abs(cam) > CAMBER_DECIDES:
+        return cam < 0, "positive camber"
     if u_given is not None:
         return bool(R[2] @ u_given < 0), "the given up axis"
-    if abs(cam) > 0.002:
-        return cam < 0, "positive camber"
-    cuts = slice_indexed(index, R, origin, semispan * np.array([0.0, 0.9]))
-    if cuts[0][0] is not None and cuts[1][0] is not None:
-        dz = cuts[1][0][:, 1].mean() - cuts[0][0][:, 1].mean()
-        if abs(dz) > np.tan(np.radians(0.5)) * 0.9 * semispan:
-            return dz < 0, "positive dihedral (symmetric sections)"
+    dz = _tip_rise(index, R, origin, semispan)
+    if dz is not None and abs(dz) > np.tan(np.radians(DIHEDRAL_DECIDES_DEG)) * 0.9 * semispan:
+        return dz < 0, "positive dihedral (symmetric sections)"
     i = int(np.argmax(np.abs(R[2])))
     return bool(R[2][i] < 0), "the positive CAD axis (no camber or dihedral to tell)"
+
+
+def _tip_rise(index, R, origin, semispan):
+    """Height (along R[2]) of the section at 90 % semi-span above the root's, or None."""
+    cuts = slice_indexed(index, R, origin, semispan * np.array([INSET, 0.9]))
+    if cuts[0][0] is None or cuts[1][0] is None:
+        return None
+    return float(cuts[1][0][:, 1].mean() - cuts[0][0][:, 1].mean())
+
+
+def _winding(loop):
+    """+1 when a root cut's loop runs as an outward-wound surface's does in right-handed axes.
+
+    The cut orients each segment from the triangle's up-crossing edge to its down-crossing edge
+    (see `slicing`); for a closed surface with outward normals in right-handed axes that loop
+    is counter-clockwise in (x, z) (positive signed area; checked on the lofted NACA wings,
+    whose faces are wound outward).
+    """
+    p = np.asarray(loop, float)
+    q = np.roll(p, -1, 0)
+    area = 0.5 * float((p[:, 0] * q[:, 1] - q[:, 0] * p[:, 1]).sum())
+    return 1 if area > 0 else -1
+
+
+def _half_wing_up(index, R, origin, semispan, u_given, u_signed, side, camber, hand, src):
+    """(+1 or -1, reason, guessed): is the wing's up R[2] (+1) or -R[2] (-1)?
+
+    R has rows (chord aft, root -> tip, their cross product). Decided by, in this order: a
+    signed up axis given; the side given (with the handedness the mesh normals show); the
+    camber of the root sections (an airfoil's mean line bulges up); an unsigned up axis; the
+    dihedral (tips above the root: guessed); the positive CAD axis (guessed).
+    """
+    if u_given is not None and u_signed:
+        return (1 if R[2] @ u_given > 0 else -1), "the given up axis", False
+    if side is not None:
+        return (hand if side == "starboard" else -hand), f"the given side ({side})", False
+    if abs(camber) > CAMBER_DECIDES:
+        return (1 if camber > 0 else -1), f"the camber of the sections ({100 * abs(camber):.2f} % c)", False
+    if u_given is not None:
+        return (1 if R[2] @ u_given > 0 else -1), "the given up axis", False
+    dz = _tip_rise(index, R, origin, semispan)
+    if dz is not None and abs(dz) > np.tan(np.radians(DIHEDRAL_DECIDES_DEG)) * 0.9 * semispan:
+        return (1 if dz > 0 else -1), "the dihedral (symmetric sections; tip taken above the root)", True
+    i = int(np.argmax(np.abs(R[2])))
+    return (1 if R[2][i] > 0 else -1), "the positive CAD axis (symmetric sections, no dihedral)", True
+
+
+def _side_text(mirrored, hand):
+    if hand > 0:
+        return "a port" if mirrored else "a starboard"
+    return "a starboard" if mirrored else "a port"
+
+
+def _exposed_root(y_hat, yv_min, semispan):
+    """Distance of the root from the CAD's plane normal to a CAD-axis span (0: keep the root).
+
+    A root between 0.1 % and EXPOSED_MAX of the wing's own span outboard of the CAD plane is an
+    exposed-wing export: the CAD plane is its plane of symmetry (common practice, no source).
+    """
+    i = int(np.argmax(np.abs(y_hat)))
+    if abs(y_hat[i]) != 1.0:
+        return 0.0
+    reach = float(yv_min)  # y_hat . p at the root; the CAD plane is y_hat . p = 0
+    span = float(semispan)
+    if EXPOSED_MIN * span < reach <= EXPOSED_MAX * span:
+        return reach
+    return 0.0
 
 
 def _asymmetry(index, R, origin, semispan):
@@ -275,130 +352,3 @@ def _asymmetry(index, R, origin, semispan):
         diff = max(np.abs(pa["le"] - pb["le"]).max(), np.abs(pa["te"] - pb["te"]).max(), abs(pa["chord"] - pb["chord"]))
         worst = max(worst, float(diff))
     return worst / semispan
-
-
-# --- span axis when the principal axes do not settle it (common practice, no source) ---------
-_AMBIGUOUS_EXTENT = 1.6  # two largest principal extents within this factor: span axis ambiguous
-_CAP_AGREES_DEG = 5.0  # a flat end face within this of the principal span axis confirms it
-_TRIAL = np.linspace(0.08, 0.92, 9)
-
-
-def _flat_caps(sub, w, e_up, extent):
-    """Normals (unit, sign arbitrary) of flat end faces of the subsample whose normal lies in the
-    planform plane (normal to e_up) and whose outline is airfoil-like, largest area first.
-
-    A face is a group of coplanar triangles (normals within 0.5 deg, one plane within 1e-4 of
-    the extent) lying at the extreme of the surface along its normal, with area at least 0.1 %
-    of the surface and a thickness/length outline ratio of 3 .. 50 % (a blunt trailing-edge
-    strip or a leading-edge line of facets is far thinner).
-    """
-    n = np.cross(sub[:, 1] - sub[:, 0], sub[:, 2] - sub[:, 0])
-    a = np.linalg.norm(n, axis=1)
-    ok = a > 0
-    u = n[ok] / a[ok][:, None]
-    inplane = np.abs(u @ e_up) < np.sin(np.radians(20.0))
-    idx = np.nonzero(ok)[0][inplane]
-    u = u[inplane]
-    if idx.size == 0:
-        return []
-    p = _unit(np.cross(e_up, [1.0, 0, 0]) if abs(e_up[0]) < 0.9 else np.cross(e_up, [0, 1.0, 0]))
-    q = np.cross(e_up, p)
-    phi = np.degrees(np.arctan2(u @ q, u @ p)) % 360.0
-    hist = np.bincount(np.floor(phi / 0.5).astype(int) % 720, weights=w[idx], minlength=720)
-    caps, total, verts = [], w.sum(), sub.reshape(-1, 3)
-    for b in np.argsort(hist)[::-1][:6]:
-        if hist[b] < 1e-3 * total:
-            break
-        d = np.abs((phi - (b + 0.5) * 0.5 + 180.0) % 360.0 - 180.0) < 0.75
-        if not d.any():
-            continue
-        nrm = _unit((u[d] * w[idx[d], None]).sum(0))
-        off = sub[idx[d], 0] @ nrm
-        top = float((verts @ nrm).max())
-        face = np.abs(off - top) < 1e-4 * extent
-        area = float(w[idx[d]][face].sum())
-        if area < 1e-3 * total or any(abs(c @ nrm) > np.cos(np.radians(1.0)) for c, _ in caps):
-            continue
-        pts = sub[idx[d]][face].reshape(-1, 3)
-        thick, length = np.ptp(pts @ e_up), np.ptp(pts @ _unit(np.cross(e_up, nrm)))
-        if length > 0 and 0.03 <= thick / length <= 0.5:
-            caps.append((nrm, area))
-    return sorted(caps, key=lambda c: -c[1])
-
-
-def _end_cap(index, axis, deg=_CAP_AGREES_DEG, band=0.004):
-    """[(end, cap area)] of the flat faces at either end of `index` whose normal lies within
-    deg of axis (end 0 = low end, 1 = high end); empty when neither end is flat."""
-    lo, hi = index.s_min, index.s_max
-    out = []
-    for k, (end, y_hat) in enumerate(((lo, axis), (hi, -axis))):
-        near = index.query(end - band * (hi - lo), end + band * (hi - lo))
-        c = _root_cap_normal(index.tris[near], y_hat, 0.002 * (hi - lo), with_area=True)
-        if c is not None and c[0] @ y_hat > np.cos(np.radians(deg)):
-            out.append((k, c[1]))
-    return out
-
-
-def _loop_area(p):
-    q = np.roll(p, -1, 0)
-    return 0.5 * abs(float((p[:, 0] * q[:, 1] - q[:, 0] * p[:, 1]).sum()))
-
-
-def _trial_sections(tris, axis, e_up, index=None):
-    """Cut 9 trial sections normal to `axis` (8 .. 92 % of the extent) and grade them as a wing's.
-
-    Returns dict(ok, penalty, cap, text, index): ok when at least 7 cuts give one closed loop
-    and the median t/c is at most 0.35; penalty = missing or multi-loop cuts + twist spread /
-    5 deg + relative t/c spread + chord roughness / 1 % (largest residual of a straight or a
-    V-shaped chord line, the latter for a full wing); cap when an end is a flat face normal to
-    axis (within 1 deg) with at least 30 % of the area of the nearest trial section.
-    """
-    index = index if index is not None else SpanIndex(tris, axis)
-    lo, hi = index.s_min, index.s_max
-    R = _basis(axis, np.cross(e_up, axis))
-    cuts = slice_indexed(index, R, axis * lo, (hi - lo) * _TRIAL)
-    bad, rows, areas = 0, [], {}
-    for k, (f, (loop, n_stray, _)) in enumerate(zip(_TRIAL, cuts)):
-        bad += int(loop is None or n_stray > 0)
-        if loop is not None:
-            sp = section_properties(loop)
-            rows.append((f, sp["chord"], sp["thickness_ratio"], sp["twist_deg"]))
-            areas[k] = _loop_area(loop)
-    ends = {0: areas.get(0, 0.0), 1: areas.get(_TRIAL.size - 1, 0.0)}
-    cap = any(a >= 0.3 * ends[k] > 0 for k, a in _end_cap(index, axis, 1.0))
-    if len(rows) < 4:
-        return dict(ok=False, penalty=np.inf, cap=cap, text="no closed sections", index=index)
-    f, ch, tc, tw = np.array(rows).T
-    tc_med = float(np.median(tc))
-    spread = float(np.ptp((tw - np.median(tw) + 180.0) % 360.0 - 180.0))
-    rough = min(np.abs(np.polyval(np.polyfit(x, ch, 1), x) - ch).max()
-                for x in (f, np.abs(f - 0.5))) / ch.max()
-    pen = bad + spread / 5.0 + float(np.ptp(tc)) / max(tc_med, 1e-9) + rough / 0.01
-    ok = bad <= 2 and tc_med <= 0.35
-    text = (f"{len(rows)}/{_TRIAL.size} closed single loops, median t/c {tc_med:.2f}, twist spread "
-            f"{spread:.1f} deg, chord roughness {100 * rough:.1f} %" + (", flat end cap" if cap else ""))
-    return dict(ok=ok, penalty=pen, cap=cap, text=text, index=index)
-
-
-def _choose_span_axis(tris, sub, w, index, e_span, e_chord, e_up):
-    """(span axis, snapped, its SpanIndex, note) when the principal span axis is in doubt.
-
-    In doubt (see detect_frame): the two largest principal extents lie within a factor 1.6, or
-    neither end along the principal span axis is a flat face normal to it within 5 deg (a
-    swept or strongly tapered wing turns its principal axes). Each candidate (the two
-    principal axes in the planform plane, and the normals of flat end faces) is graded by
-    `_trial_sections`: candidates whose sections look like a wing's come first, among them
-    those with a flat end cap normal to the axis (a root cap's normal is the span axis), then
-    the lowest penalty.
-    """
-    cands = [("principal axis", e_span), ("second principal axis", e_chord)]
-    for c, _ in _flat_caps(sub, w, e_up, float(np.ptp(sub.reshape(-1, 3) @ e_span))):
-        if all(abs(c @ v) < np.cos(np.radians(1.0)) for _, v in cands):
-            cands.append(("flat end cap normal", c))
-    graded = [(name, v, _trial_sections(tris, v, e_up, index if k == 0 else None))
-              for k, (name, v) in enumerate(cands)]
-    name, v, g = min(graded, key=lambda t: (not t[2]["ok"], not t[2]["cap"], t[2]["penalty"]))
-    s, snapped = _snap(v, 0.2 if name == "flat end cap normal" else 5.0)
-    idx = g["index"] if np.array_equal(s, g["index"].e) else SpanIndex(tris, s)
-    others = "; ".join(f"{n}: {t['text']}" for n, _, t in graded if n != name)
-    return s, snapped, idx, f"span axis chosen from trial sections: {name} ({g['text']}) over {others}"

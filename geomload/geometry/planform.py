@@ -14,7 +14,7 @@ from __future__ import annotations
 import numpy as np
 
 from ..errors import GeometryError
-from ..records import Planform, Stations
+from .records import Planform, Stations
 
 
 def _extend(y, f, y0, y1):
@@ -34,16 +34,35 @@ def _slope_deg(y, v):
     return float(np.degrees(np.arctan(np.polyfit(y, v, 1)[0])))
 
 
-def summarize(stations: Stations) -> Planform:
+def summarize(stations: Stations, y_root: float = 0.0) -> Planform:
     """Planform of the whole wing (both sides by symmetry) from the starboard `Stations`.
 
     Lengths m, area m^2, angles deg. Raises GeometryError with fewer than 3 stations.
+    y_root: the root of the geometry (an exposed wing's root off y = 0); the gross planform is
+    carried through to y = 0 by extending the leading and trailing edges, the exposed one
+    starts at y_root. span_surface is measured along the quarter-chord line in y-z.
     """
     st = stations
     if st.n < 3:
         raise GeometryError(f"planform needs at least 3 stations (got {st.n})")
-    y = np.asarray(st.y, float)
+    y_all = np.asarray(st.y, float)
     s = float(st.semispan)
+    # a winglet's stations stand one above the other at nearly the same y: the projected
+    # planform uses the stations that advance in y (by more than 0.01 % of the semi-span)
+    keep = np.concatenate([[True], np.diff(np.maximum.accumulate(y_all)) > 1e-4 * s])
+    keep &= y_all >= np.maximum.accumulate(y_all)
+    if keep.sum() >= 3 and not keep.all():
+        import dataclasses
+
+        st = dataclasses.replace(st, **{k: np.asarray(getattr(st, k))[keep] for k in (
+            "y", "x_le", "z_le", "x_te", "z_te", "chord", "twist_deg", "thickness_ratio",
+            "x_thickness", "camber_ratio", "x_camber", "dihedral_deg", "camber_z", "s_m")})
+        surface_extra = float(np.asarray(stations.s_m)[-1] - np.asarray(st.s_m)[-1])
+    else:
+        surface_extra = 0.0
+    if stations.s_tip_m is not None:  # the line's own length to the tip, beyond the stations
+        surface_extra += float(stations.s_tip_m - np.asarray(stations.s_m)[-1])
+    y = np.asarray(st.y, float)
     y0 = 0.0 if y[0] > 0 else y[0]
     y1 = s if s > y[-1] else y[-1]
     ye = np.concatenate([[y0], y, [y1]])
@@ -59,7 +78,20 @@ def summarize(stations: Stations) -> Planform:
     mac = 2.0 / area * _int_prod(ye, c, c)
     y_mac = 2.0 / area * _int_prod(ye, c, ye)
     x_mac_le = 2.0 / area * _int_prod(ye, c, xle)
-    return Planform(area=area, span=span, aspect_ratio=span**2 / area, taper=float(c[-1] / c[0]),
+    zqc = _extend(y, st.z_qc, y0, y1)
+    if stations.s_tip_m is not None:
+        span_surface = 2.0 * (float(np.asarray(st.s_m)[-1]) + surface_extra)
+    else:
+        span_surface = 2.0 * (float(np.hypot(np.diff(ye), np.diff(zqc)).sum()) + surface_extra)
+    if y_root > 0.0:  # exposed wing: the part outboard of its own root
+        ys = np.concatenate([[y_root], y[y > y_root], [y1]])
+        cs = np.maximum(np.interp(ys, ye, c), 0.0)
+        exposed_area = 2.0 * _int_prod(ys, cs, np.ones_like(ys))
+        exposed_span = 2.0 * (s - y_root)
+    else:
+        exposed_area, exposed_span = area, span
+    return Planform(span_surface=span_surface, exposed_area=exposed_area, exposed_span=exposed_span,
+                    area=area, span=span, aspect_ratio=span**2 / area, taper=float(c[-1] / c[0]),
                     root_chord=float(c[0]), tip_chord=float(c[-1]), mac=mac, x_mac_le=x_mac_le,
                     y_mac=y_mac, sweep_le_deg=_slope_deg(y, st.x_le), sweep_qc_deg=_slope_deg(y, st.x_qc),
                     dihedral_deg=_slope_deg(y, st.z_qc), washout_deg=float(tw[0] - tw[-1]))

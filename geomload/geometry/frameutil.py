@@ -1,0 +1,51 @@
+"""Small vector helpers of the frame detection (unit vectors, snapping to CAD axes, bases)."""
+
+from __future__ import annotations
+
+import numpy as np
+
+# A surface normal within this of the span axis counts as part of a flat root cap (a cap is
+# planar; 10 deg lets a finely faceted cap with rounding at its rim count, common practice).
+CAP_NORMAL_DEG = 10.0
+
+
+def snap(v, deg):
+    i = int(np.argmax(np.abs(v)))
+    if abs(v[i]) >= np.cos(np.radians(deg)):
+        e = np.zeros(3)
+        e[i] = np.sign(v[i])
+        return e, True
+    return v / np.linalg.norm(v), False
+
+
+def unit(v):
+    return v / np.linalg.norm(v)
+
+
+def basis(y, hint):
+    """Rotation with rows (x, y, z): y given, x = hint made normal to y, z = x cross y."""
+    x = unit(hint - (hint @ y) * y)
+    return np.vstack([x, y, np.cross(x, y)])
+
+
+def root_cap_normal(tris, y_hat, tol, with_area=False):
+    """Area-weighted normal (oriented root -> tip) of the flat cap at the root end, or None.
+
+    tris: triangles near the root end; the cap is made of those within tol of the root plane.
+    with_area: return (normal, cap area) instead (None when there is no cap).
+    """
+    if tris.shape[0] == 0:
+        return None
+    yv = tris @ y_hat  # (m, 3)
+    level = float(yv.min())
+    near = np.nonzero(np.abs(yv - level).max(1) < tol)[0]
+    if near.size == 0:
+        return None
+    t = tris[near]
+    n = np.cross(t[:, 1] - t[:, 0], t[:, 2] - t[:, 0])
+    n = n * np.sign(n @ y_hat)[:, None]
+    a = np.linalg.norm(n, axis=1)
+    good = (n @ y_hat) > np.cos(np.radians(CAP_NORMAL_DEG)) * a
+    if not good.any():
+        return None
+    return (unit(n[good].sum(0)), 0.5 * float(a[good].sum())) if with_area else unit(n[good].sum(0))

@@ -1,0 +1,218 @@
+"""`read_wing`: the geometry stage from file to `Wing` record (read, bodies, frame, stations,
+planform, control surfaces, tailplane)."""
+
+from __future__ import annotations
+
+import os
+
+import numpy as np
+
+from .frame import detect_frame_indexed
+from .planform import summarize
+from .readers import read_mesh
+from .records import BodyInfo, GeometryWarning, TailPlanform, Wing, WingMesh
+from .stations import cut_stations
+
+MIN_SHELL_FRACTION = 1e-4  # shells under 0.01 % of the surface area are debris, not bodies
+
+
+def _no_progress(stage, done, total):
+    pass
+
+
+def read_wing(path, units=None, body=None, span_axis=None, up_axis=None, n_stations=20,
+              spacing="cosine", progress=None, side=None, require_units=False, units_hint=None):
+    """See `geometry.read_wing`."""
+    progress = progress or _no_progress
+    mesh = read_mesh(path, units=units, progress=progress, require_units=require_units,
+                     units_hint=units_hint, all_bodies=True)
+    if body is None:
+        wing_mesh, index, found = _pick_wing(mesh)
+    else:
+        wing_mesh, index, found = _given_body(mesh, body), None, None
+    frame, index = detect_frame_indexed(wing_mesh, span_axis=span_axis, up_axis=up_axis, side=side,
+                                        index=index)
+    stations = _cut(wing_mesh, frame, n_stations, spacing, progress, index)
+    controls, bodies, tail, extra, side_y = (), (), None, [], None
+    if found is not None:
+        stations, controls, tail, bodies, extra = _other_bodies(found, frame, stations, n_stations)
+        side_y = _fuselage_side(found, frame, stations, extra)
+    planform = summarize(stations, y_root=frame.y_root)
+    warnings, notes = split_notes(list(wing_mesh.notes) + list(frame.notes) + list(stations.notes)
+                                  + extra)
+    return Wing(mesh=wing_mesh, frame=frame, stations=stations, planform=planform,
+                control_surfaces=tuple(controls), bodies=tuple(bodies), tailplane=tail,
+                warnings=tuple(warnings), notes=tuple(notes), fuselage_side_y_m=side_y)
+
+
+def _cut(mesh, frame, n, spacing, progress, index):
+    """Planar stations, or stations along the span line when it turns (winglets, gull)."""
+    from ..errors import GeometryError
+    from .spanline import cut_along_span_line, needs_span_line
+
+    try:
+        st = cut_stations(mesh, frame, n=n, spacing=spacing, progress=progress, index=index)
+    except GeometryError as exc:
+        if "turned" not in str(exc):  # only a chord line swinging round can be a winglet
+            raise
+        st, err = None, exc
+    if st is None or needs_span_line(st):
+        alt = cut_along_span_line(mesh, frame, n, index=index, spacing=spacing)
+        if alt is not None and (st is None or alt.semispan >= 0.9 * st.semispan):
+            return alt
+        if st is None:
+            raise err
+    return st
+
+
+def _pick_wing(mesh):
+    """(wing mesh, a reusable SpanIndex or None, classification or None)."""
+    from .bodies import Body, classify, looks_single
+
+    tris = mesh.triangles
+    if len(mesh.body_sizes) <= 1:
+        single, index = looks_single(tris)
+        if single:
+            return mesh, index, None
+    shells = _shells(mesh)
+    if len(shells) <= 1:
+        return mesh, None, None
+    bodies = [Body(i + 1, s) for i, s in enumerate(shells)]
+    cls = classify(bodies, mesh.source)
+    wing_tris = np.concatenate([p.tris for p in cls["wing"]])
+    wing = cls["wing"]
+    if len(wing) == 1:
+        why = "the lifting surface of largest span"
+        if wing[0].area >= max(b.area for b in bodies):
+            why += ", also the one of largest surface area"
+        kept = f"kept body {wing[0].index} as the wing ({why})"
+    else:
+        kept = (f"kept bodies {', '.join(str(p.index) for p in wing)} as the wing (touching parts "
+                "of one lifting surface)")
+    left = [f"body {b.index} {b.kind} ({b.describe()})" for b in bodies if b not in wing]
+    text = (f"warning: bodies: {len(bodies)} bodies in {os.path.basename(mesh.source)}: {kept}; "
+            f"left out of the wing: {'; '.join(left)}")
+    wing_mesh = WingMesh(triangles=wing_tris, source=mesh.source, units=mesh.units,
+                         notes=tuple(mesh.notes) + (text,), units_assumed=mesh.units_assumed,
+                         body_sizes=tuple(int(p.tris.shape[0]) for p in cls["wing"]))
+    cls["all"] = bodies
+    return wing_mesh, None, cls
+
+
+def _shells(mesh):
+    """The bodies of a file: each body the reader gives, split into its connected shells."""
+    from .bodies import components
+
+    tris = mesh.triangles
+    starts = np.concatenate([[0], np.cumsum(mesh.body_sizes or (tris.shape[0],))])
+    shells = []
+    for a, b in zip(starts[:-1], starts[1:]):
+        part = tris[a:b]
+        idx = components(part)
+        shells += [part] if len(idx) == 1 else [part[i] for i in idx]
+    total = sum(float(_area(s)) for s in shells)
+    return [s for s in shells if _area(s) >= MIN_SHELL_FRACTION * total]
+
+
+def _given_body(mesh, body):
+    """The 1-based body `body` of the file (numbered as the body report numbers them)."""
+    from ..errors import InputError
+
+    shells = _shells(mesh)
+    if not 1 <= int(body) <= len(shells):
+        raise InputError(f"{mesh.source}: --body {body} out of range (the file has {len(shells)} "
+                         f"bod{'ies' if len(shells) != 1 else 'y'})")
+    left = len(shells) - 1
+    note = (f"{len(shells)} bodies in {os.path.basename(mesh.source)}: kept body {body} (--body "
+            f"{body}); {left} left out",) if left else ()
+    return WingMesh(triangles=shells[int(body) - 1], source=mesh.source, units=mesh.units,
+                    notes=tuple(mesh.notes) + note, units_assumed=mesh.units_assumed,
+                    body_sizes=(int(shells[int(body) - 1].shape[0]),))
+
+
+def _area(t):
+    from .readers import triangle_areas
+
+    return triangle_areas(t).sum()
+
+
+def _other_bodies(cls, frame, stations, n_stations):
+    """Attach control surfaces, measure the tailplane, and describe every body."""
+    from .control import attach
+
+    extra, controls = [], []
+    for b in cls["controls"]:
+        stations, cs = attach(stations, frame, b.tris, b.index)
+        if cs is not None:
+            controls.append(cs)
+            extra.append(f"warning: control_surface: body {b.index} is a control surface behind the "
+                         f"wing from y = {cs.y_from_m:.4g} to {cs.y_to_m:.4g} m: the sections there "
+                         f"run to its trailing edge (hinge at {100 * np.mean(cs.hinge_x_over_c):.0f} "
+                         f"% chord)")
+        else:
+            extra.append(f"warning: control_surface: body {b.index} lies behind the wing but "
+                         "outside its stations: left out")
+    tail = None
+    if cls["tail"] is not None:
+        tail = _tail_planform(cls["tail"], frame, cls, extra)
+    bodies = tuple(BodyInfo(b.index, b.kind, int(b.tris.shape[0]), b.span, float(b.ext[0]),
+                            b.describe()) for b in cls["all"])
+    return stations, tuple(controls), tail, bodies, extra
+
+
+def _fuselage_side(cls, frame, stations, extra):
+    """Half-width of the fuselage at the wing's root chord (wing frame y, m), or None."""
+    if not cls["fuselage"]:
+        return None
+    from .slicing import slice_loops
+
+    R = np.asarray(frame.rotation, float)
+    x_mid = 0.5 * float(stations.x_le[0] + stations.x_te[0])  # mid root chord
+    Rx = np.vstack([R[1], R[0], R[2]])  # cut normal to the wing x axis; loop in (y, z)
+    best = None
+    for b in cls["fuselage"]:
+        loop = slice_loops(b.tris, Rx, frame.origin, [x_mid])[0][0]
+        if loop is not None:
+            y = float(np.abs(loop[:, 0]).max())
+            best = y if best is None else max(best, y)
+    if best is not None:
+        extra.append(f"the fuselage side at the wing root is at y = {best:.4g} m; the wing is "
+                     "analysed through the fuselage to the plane of symmetry")
+    return best
+
+
+def _tail_planform(b, frame, cls, extra):
+    """The tailplane's planform in the wing frame, or None (with a warning) when it cannot be
+    measured."""
+    from ..errors import GeometryError
+
+    try:
+        m = WingMesh(b.tris, "tailplane", "m")
+        f, idx = detect_frame_indexed(m)
+        st = cut_stations(m, f, n=11, index=idx)
+        pf = summarize(st, y_root=f.y_root)
+    except GeometryError as exc:
+        extra.append(f"warning: bodies: the tailplane (body {b.index}) could not be measured: {exc}")
+        return None
+    # quarter-chord point of the tail's MAC, carried from the tail frame to the wing frame
+    p_tail = np.array([pf.x_mac_qc, pf.y_mac, float(np.interp(pf.y_mac, st.y, st.z_qc))])
+    p_wing = frame.to_wing(f.to_cad(p_tail))
+    z0 = frame.to_wing(f.to_cad(np.array([st.x_qc[0], 0.0, st.z_qc[0]])))[2]
+    return TailPlanform(area=pf.area, span=pf.span, x_qc_mac=float(p_wing[0]), mac=pf.mac,
+                        z_m=float(z0))
+
+
+def split_notes(lines):
+    """(GeometryWarning records, plain notes) from note lines ("warning: ..." -> a warning)."""
+    warnings, notes = [], []
+    for line in lines:
+        if line.startswith("warning: "):
+            text = line[len("warning: "):]
+            head = text.split(":", 1)[0]
+            warnings.append(GeometryWarning(head if head in _KINDS else "geometry", text))
+        else:
+            notes.append(line)
+    return warnings, notes
+
+
+_KINDS = ("units", "side", "up", "bodies", "control_surface", "exposed", "frame")
