@@ -179,6 +179,7 @@ def _read_in_one_child(paths):
     return out
 
 
+@pytest.mark.cadkernel
 def test_random_bytes_into_the_cad_kernel(tmp_path):
     rng = np.random.default_rng(11)
     paths = []
@@ -192,6 +193,7 @@ def test_random_bytes_into_the_cad_kernel(tmp_path):
     assert all(v in ("ok", "clean") for v in out.values()), out
 
 
+@pytest.mark.cadkernel
 def test_mutated_step_sample_into_the_cad_kernel(tmp_path):
     raw = (SAMPLES / "pellin_half_wing.step").read_bytes()
     rng = np.random.default_rng(5)
