@@ -7,6 +7,7 @@ import math
 import numpy as np
 
 from geomload import CAUTION
+from geomload.textsafe import printable
 
 
 def _f(x, nd=4):
@@ -173,7 +174,7 @@ def run_table(result) -> str:
     lines = ["Limit loads at the wing root (one semi-span)", head, "-" * len(head)]
     for c in result.cases:
         ld = c.loads
-        lines.append(f"{c.name[:32]:<32} {c.aero.alpha_deg:9.3f} {c.aero.CL:7.4f} "
+        lines.append(f"{printable(c.name)[:32]:<32} {c.aero.alpha_deg:9.3f} {c.aero.CL:7.4f} "
                      f"{ld.shear_N[0]:13.1f} {ld.bending_Nm[0]:16.1f} {ld.torsion_Nm[0]:16.2f}")
     if result.envelope is not None:
         from geomload.loads.envelope import critical_rows as critical_table
@@ -185,7 +186,7 @@ def run_table(result) -> str:
         for r in critical_table(result.envelope):
             unit = r["unit"]
             lines.append(f"  {r['quantity']:<14} {r['root_limit']:12.1f} {r['root_ultimate']:14.1f}"
-                         f"  {r['root_case']}  ({unit})")
+                         f"  {printable(r['root_case'])}  ({unit})")
     n_beyond = sum(1 for c in result.cases if c.stall_warning)
     if n_beyond:
         lines.append(f"{n_beyond} case(s) lie beyond the stall line (see the warnings above); "
