@@ -180,14 +180,21 @@ def _versions() -> dict:
 def write_run(result: RunResult, out_dir, *, force=False, render=True, progress=None) -> list:
     """Write every output of a computed run into ``out_dir``, whole or not at all (a staging
     folder moved into place at the end). Returns the list of files written."""
-    out = _output_dir(result.case_path, result.case.geometry.file, out_dir, force)
+    out = _output_dir(result.case_path, result.case.geometry.file, out_dir, force,
+                      _structure_inputs(result.case))
     return _write(result, out, force, render, progress or no_progress, time.perf_counter())[1]
 
 
-def _output_dir(case_path, geometry_file, out_dir, force):
+def _structure_inputs(case) -> list:
+    """The structural mesh of [structure] (an input: never overwritten), if any."""
+    s = getattr(case, "structure", None)
+    return [s.mesh] if s is not None and s.mesh else []
+
+
+def _output_dir(case_path, geometry_file, out_dir, force, extra_inputs=()):
     from geomload.export.atomic import OutputDir
 
-    inputs = [case_path, geometry_file]
+    inputs = [case_path, geometry_file, *extra_inputs]
     od = OutputDir(out_dir, force=force, inputs=inputs)
     od.open()  # refuse a bad output folder before the heavy work
     return od, inputs
@@ -208,7 +215,9 @@ def _write(result, out, force, render, progress, t0, compute_first=None) -> tupl
                             run_time_s=time.perf_counter() - t0)
         od.commit()
         result = dataclasses.replace(  # a record is never changed: a new one with the timing
-            result, timings={**result.timings, "export": time.perf_counter() - t_exp})
+            result, timings={**result.timings, "export": time.perf_counter() - t_exp},
+            messages=result.messages + tuple(Message("warning", w)
+                                             for w in written.get("warnings", ())))
     except BaseException:
         od.abort()
         raise
@@ -225,7 +234,7 @@ def run_case_file(case_path, out_dir, force=False, render=True, progress=None):
     progress = progress or no_progress
     t0 = time.perf_counter()
     case = read_case_file(case_path)
-    od = _output_dir(case.path, case.geometry.file, out_dir, force)
+    od = _output_dir(case.path, case.geometry.file, out_dir, force, _structure_inputs(case))
     return _write(None, od, force, render, progress, t0, lambda: compute(case, progress))
 
 

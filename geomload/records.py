@@ -32,12 +32,15 @@ class WingMesh:
     source: path of the file it came from.
     units: the unit the file was read in ("m", "mm", ... or "file" when the file carried it).
     notes: human-readable remarks (bodies left out, unit warnings...), for the CLI to print.
+    unit_scale_m: metres per CAD unit of the file (the unit it was read in, or the file's own
+    unit when it carried one), so outputs in the CAD frame can be written in the CAD unit.
     """
 
     triangles: np.ndarray
     source: str
     units: str
     notes: tuple = ()
+    unit_scale_m: float = 1.0
 
     @property
     def n_triangles(self) -> int:

@@ -60,7 +60,7 @@ def read_mesh(path, units=None, body=None, progress=None) -> WingMesh:
     if size == 0:
         raise InputError(f"{path}: file is empty")
     ext = os.path.splitext(path)[1].lower()
-    notes = []
+    notes, cad_scale = [], None
     progress("read", 0, 1)
     try:
         if ext == ".stl":
@@ -70,6 +70,10 @@ def read_mesh(path, units=None, body=None, progress=None) -> WingMesh:
             bodies, file_scale = _read_trimesh(path, ext)
             if file_scale is not None:
                 unit_label, scale = "file", file_scale
+                if ext in BREP_FORMATS:  # the kernel gave metres; keep the file's own unit
+                    from geomload.geometry.cad_unit import declared_scale
+
+                    cad_scale = declared_scale(path, ext)
                 if units is not None:
                     notes.append(f"--units {units} ignored: {os.path.basename(path)} carries its own unit")
             else:
@@ -100,7 +104,8 @@ def read_mesh(path, units=None, body=None, progress=None) -> WingMesh:
     if extent > SPAN_TOO_BIG_M or extent < SPAN_TOO_SMALL_M:
         notes.append(f"warning: largest extent is {extent:.4g} m after reading in {unit_label}: "
                      f"wrong unit? (give --units m|cm|mm|in|ft)")
-    return WingMesh(triangles=tris, source=path, units=unit_label, notes=tuple(notes))
+    return WingMesh(triangles=tris, source=path, units=unit_label, notes=tuple(notes),
+                    unit_scale_m=float(cad_scale or scale))
 
 
 def _to_metres(src, scale, chunk=1 << 15):
