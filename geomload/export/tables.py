@@ -181,6 +181,18 @@ def _num(x):
     return x if math.isfinite(x) else None
 
 
+def _error_estimate(run, name):
+    """{root_shear_N, root_bending_Nm, root_torsion_Nm} absolute discretization error estimates
+    (limit loads, N and N m) of case `name` (None: the envelope's root extremes), or None when
+    the run has none (geomload.aero.convergence)."""
+    bars = getattr(run, "error_bars", None)
+    bar = None if bars is None else (bars.envelope if name is None else bars.of(name))
+    if bar is None:
+        return None
+    return {**{k: _num(v) for k, v in bar.values().items()},
+            "not_monotone": list(bar.not_monotone)}
+
+
 def summary(run) -> dict:
     """The run summary as plain JSON-able data (SI units; key names carry them)."""
     p = run.planform
@@ -202,7 +214,8 @@ def summary(run) -> dict:
             "root_shear_ult_N": _num(uf * L.shear_N[0]),
             "root_bending_ult_Nm": _num(uf * L.bending_Nm[0]),
             "root_torsion_ult_Nm": _num(uf * L.torsion_Nm[0]),
-            "equilibrium_residual": _num(cr.residual), "stall_warning": cr.stall_warning})
+            "equilibrium_residual": _num(cr.residual), "stall_warning": cr.stall_warning,
+            "error_estimate": _error_estimate(run, cr.name)})
     out = {"caution": CAUTION, "geomload_version": __version__, "case_file": run.case_path,
            "title": str(getattr(run.case, "title", "") or ""),
            "geometry": {"source": run.mesh.source, "units": run.mesh.units,
@@ -229,6 +242,7 @@ def summary(run) -> dict:
                 env[f"{q}_{side}_ult_{u}"] = [_num(e[f"{q}_{side}_ult"][i]) for i in r]
                 env[f"{q}_{side}_ult_case"] = [str(e[f"{q}_{side}_ult_case"][i]) for i in r]
         env["critical"] = ea.critical_table(run.envelope)
+        env["error_estimate"] = _error_estimate(run, None)
         out["envelope"] = env
     return out
 
