@@ -11,7 +11,8 @@ from batch_helpers import SAMPLE
 from validation import check
 
 from geomload.batch import _api
-from geomload.batch.errorbars import _roots, envelope_errors, estimate_errors, richardson  # the batch shim of geomload.aero.convergence
+# the batch package's names (a shim of geomload.aero.convergence)
+from geomload.batch.errorbars import _roots, envelope_errors, estimate_errors, richardson
 
 
 def test_richardson_on_a_first_order_sequence():

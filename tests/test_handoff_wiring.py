@@ -124,7 +124,8 @@ def test_file_unit_is_kept_for_the_cad_frame_outputs():
 @pytest.mark.parametrize("table, key", [
     ('[structure]\nmaterial = "unobtainium"', "structure.material"),
     ('[structure]\nsigma_allow_MPa = 400.0', "structure.tau_allow_MPa"),
-    ('[structure]\nfront_spar_fraction = 0.6\nrear_spar_fraction = 0.2', "structure.rear_spar_fraction"),
+    ('[structure]\nfront_spar_fraction = 0.6\nrear_spar_fraction = 0.2',
+     "structure.rear_spar_fraction"),
     ('[structure]\nmesh = "no_such_mesh.inp"', "structure.mesh"),
     ('[structure]\nmaterial = "al-7075-t6"\nspar_depth = 3', "structure.spar_depth"),
 ])
@@ -190,3 +191,18 @@ def test_bad_structural_mesh_one_line_nothing_written(tmp_path, kind):
     expect = {"unreadable": "cannot be read", "wrong_unit": "no node", "root_only": "span only"}
     assert expect[kind] in err[0], err[0]
     assert not (tmp_path / "out").exists()
+
+
+def test_step_declared_units(tmp_path):
+    from geomload.geometry.cad_unit import declared_scale
+
+    p = tmp_path / "inch.step"
+    p.write_text("#10=(CONVERSION_BASED_UNIT('INCH',#11) LENGTH_UNIT() NAMED_UNIT(#12));\n"
+                 "#13=(LENGTH_UNIT() NAMED_UNIT(*) SI_UNIT($,.METRE.));\n")
+    # the international inch: 0.0254 m exactly (1959 yard and pound agreement)
+    check("international inch (1959 agreement), a STEP CONVERSION_BASED_UNIT('INCH')",
+          "metres per CAD unit", 0.0254, declared_scale(p, ".step"), rel=0.0)
+    p.write_text("#13=(LENGTH_UNIT() NAMED_UNIT(*) SI_UNIT($,.METRE.));\n")
+    assert declared_scale(p, ".step") == 1.0
+    p.write_text("no unit here\n")
+    assert declared_scale(p, ".step") is None

@@ -2,9 +2,8 @@
 frame, such as the FE decks, can be written in the user's own unit).
 
 STEP (ISO 10303-21 file, units from ISO 10303-41): the ``LENGTH_UNIT`` entity is either an
-``SI_UNIT(prefix, .METRE.)`` or a ``CONVERSION_BASED_UNIT('INCH' | 'FOOT' ...)``. IGES: the
-global section's unit flag (field 14: 1 inch, 2 mm, 4 foot, 6 metre, 10 cm). Anything else, or a
-file whose unit cannot be found: None (the caller keeps metres).
+``SI_UNIT(prefix, .METRE.)`` or a ``CONVERSION_BASED_UNIT('INCH' | 'FOOT' ...)``. IGES and
+anything else, or a STEP file whose unit cannot be found: None (the caller keeps metres).
 """
 
 from __future__ import annotations
@@ -14,9 +13,8 @@ import re
 SI_PREFIX = {"": 1.0, "MILLI": 1e-3, "CENTI": 1e-2, "DECI": 1e-1, "KILO": 1e3, "MICRO": 1e-6}
 NAMED = {"INCH": 0.0254, "FOOT": 0.3048, "MILLIMETRE": 1e-3, "MILLIMETER": 1e-3,
          "CENTIMETRE": 1e-2, "METRE": 1.0, "METER": 1.0}  # international inch and foot (1959)
-IGES_FLAG = {1: 0.0254, 2: 1e-3, 4: 0.3048, 6: 1.0, 10: 1e-2}  # IGES 5.3 global field 14
-_STEP_SI = re.compile(rb"LENGTH_UNIT\s*\(\s*\)[^;]*?SI_UNIT\s*\(\s*(?:\.(\w+)\.|\$)\s*,\s*\.METRE\.",
-                      re.S)
+_STEP_SI = re.compile(rb"LENGTH_UNIT\s*\(\s*\)[^;]*?SI_UNIT\s*\(\s*(?:\.(\w+)\.|\$)\s*,"
+                      rb"\s*\.METRE\.", re.S)
 _STEP_SI_B = re.compile(rb"SI_UNIT\s*\(\s*(?:\.(\w+)\.|\$)\s*,\s*\.METRE\.\s*\)[^;]*?LENGTH_UNIT",
                         re.S)
 _STEP_CONV = re.compile(rb"CONVERSION_BASED_UNIT\s*\(\s*'([^']+)'[^;]*?LENGTH_UNIT|LENGTH_UNIT"
@@ -38,15 +36,4 @@ def declared_scale(path, ext: str):
         if m:
             return SI_PREFIX.get((m.group(1) or b"").decode("ascii", "replace").upper())
         return None
-    if ext in (".iges", ".igs"):
-        glob = b"".join(line[:72] for line in data.splitlines() if len(line) >= 73
-                        and line[72:73] == b"G")
-        if not glob:
-            return None
-        pd = chr(glob[2]) if glob[:2] == b"1H" else ","
-        fields = glob.decode("ascii", "replace").split(pd)
-        try:
-            return IGES_FLAG.get(int(fields[13].strip()))
-        except (IndexError, ValueError):
-            return None
     return None
