@@ -92,8 +92,13 @@ def _check_names(case, load_cases):
                         f"{', '.join(sorted(set(dup)))}")
 
 
-def compute(case, progress=None, cache=None) -> RunResult:
+def compute(case, progress=None, cache=None, error_bars=False) -> RunResult:
     """Run every case of a Case in memory. Returns a RunResult (nothing is written).
+
+    error_bars: also estimate the discretization error of every case's root loads and of the
+    envelope's (:mod:`geomload.aero.convergence`: two coarser lattices through this function,
+    sharing the cache) into ``RunResult.error_bars``, with one warning per quantity that does
+    not converge monotonically.
 
     cache: an optional dict-like shared between calls (batch runs): the wing read and cut is
     kept under its geometry specification and file state, the lattice under that and its
@@ -103,6 +108,8 @@ def compute(case, progress=None, cache=None) -> RunResult:
     from geomload.geometry.read import SPAN_TOO_BIG_M, SPAN_TOO_SMALL_M
 
     progress = progress or no_progress
+    if error_bars and cache is None:
+        cache = {}  # the coarse lattices reuse the wing read and cut
     timings, messages = {}, []
     t0 = time.perf_counter()
     wing_key, (mesh, frame, stations, planform) = _wing(case, progress, cache)
@@ -146,11 +153,24 @@ def compute(case, progress=None, cache=None) -> RunResult:
     messages += [Message.from_prefixed(n) for n in
                  list(mesh.notes) + list(frame.notes) + list(stations.notes)]
     messages += stall_messages(case, models, results[0].mach)
-    return RunResult(case_path=case.path, case_text=Path(case.path).read_text(errors="replace"),
-                     case=case, mesh=mesh, frame=frame, stations=stations, planform=planform,
-                     lattice=lattice, cases=tuple(results), envelope=envelope, vn=vn,
-                     alpha_sweep=sweep, messages=tuple(messages), timings=timings,
-                     versions=_versions())
+    result = RunResult(case_path=case.path, case_text=Path(case.path).read_text(errors="replace"),
+                       case=case, mesh=mesh, frame=frame, stations=stations, planform=planform,
+                       lattice=lattice, cases=tuple(results), envelope=envelope, vn=vn,
+                       alpha_sweep=sweep, messages=tuple(messages), timings=timings,
+                       versions=_versions())
+    return _with_error_bars(result, cache) if error_bars else result
+
+
+def _with_error_bars(result, cache):
+    """The RunResult with its error bars (geomload.aero.convergence) and their warnings."""
+    from geomload.aero.convergence import error_bars
+
+    t = time.perf_counter()
+    bars, warnings = error_bars(result.case, result, compute, cache)
+    return dataclasses.replace(
+        result, error_bars=bars, messages=result.messages + tuple(Message("warning", w)
+                                                                  for w in warnings),
+        timings={**result.timings, "error estimate": time.perf_counter() - t})
 
 
 def _masses(ctx, fuel_fraction):
@@ -180,14 +200,21 @@ def _versions() -> dict:
 def write_run(result: RunResult, out_dir, *, force=False, render=True, progress=None) -> list:
     """Write every output of a computed run into ``out_dir``, whole or not at all (a staging
     folder moved into place at the end). Returns the list of files written."""
-    out = _output_dir(result.case_path, result.case.geometry.file, out_dir, force)
+    out = _output_dir(result.case_path, result.case.geometry.file, out_dir, force,
+                      _structure_inputs(result.case))
     return _write(result, out, force, render, progress or no_progress, time.perf_counter())[1]
 
 
-def _output_dir(case_path, geometry_file, out_dir, force):
+def _structure_inputs(case) -> list:
+    """The structural mesh of [structure] (an input: never overwritten), if any."""
+    s = getattr(case, "structure", None)
+    return [s.mesh] if s is not None and s.mesh else []
+
+
+def _output_dir(case_path, geometry_file, out_dir, force, extra_inputs=()):
     from geomload.export.atomic import OutputDir
 
-    inputs = [case_path, geometry_file]
+    inputs = [case_path, geometry_file, *extra_inputs]
     od = OutputDir(out_dir, force=force, inputs=inputs)
     od.open()  # refuse a bad output folder before the heavy work
     return od, inputs
@@ -208,7 +235,9 @@ def _write(result, out, force, render, progress, t0, compute_first=None) -> tupl
                             run_time_s=time.perf_counter() - t0)
         od.commit()
         result = dataclasses.replace(  # a record is never changed: a new one with the timing
-            result, timings={**result.timings, "export": time.perf_counter() - t_exp})
+            result, timings={**result.timings, "export": time.perf_counter() - t_exp},
+            messages=result.messages + tuple(Message("warning", w)
+                                             for w in written.get("warnings", ())))
     except BaseException:
         od.abort()
         raise
@@ -225,8 +254,9 @@ def run_case_file(case_path, out_dir, force=False, render=True, progress=None):
     progress = progress or no_progress
     t0 = time.perf_counter()
     case = read_case_file(case_path)
-    od = _output_dir(case.path, case.geometry.file, out_dir, force)
-    return _write(None, od, force, render, progress, t0, lambda: compute(case, progress))
+    od = _output_dir(case.path, case.geometry.file, out_dir, force, _structure_inputs(case))
+    return _write(None, od, force, render, progress, t0,
+                  lambda: compute(case, progress, error_bars=True))
 
 
 __all__ = ["compute", "write_run", "run_case_file", "solve_case", "CaseContext", "GeomloadError"]

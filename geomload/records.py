@@ -169,7 +169,8 @@ class RunResult:
     CaseResult; envelope: the envelope of loads (LoadsEnvelope); vn: tuple of VnDiagram (empty
     without an [envelope]); alpha_sweep: tuple of (alpha_deg, CL) from the lattice at the first
     case's Mach; messages: tuple of Message (kind, text); timings: step -> seconds; versions:
-    package -> version.
+    package -> version; error_bars: geomload.aero.convergence.ErrorBars (discretization error
+    of the root loads) or None when not estimated.
     """
 
     case_path: str
@@ -187,6 +188,7 @@ class RunResult:
     messages: tuple = ()
     timings: dict = field(default_factory=dict)
     versions: dict = field(default_factory=dict)
+    error_bars: Optional["ErrorBars"] = None
 
     def __post_init__(self):
         object.__setattr__(self, "cases", tuple(self.cases))
@@ -210,3 +212,4 @@ class RunResult:
 
 
 from geomload.config.schema import Case  # noqa: E402  (typing of RunResult.case)
+from geomload.aero.convergence import ErrorBars  # noqa: E402  (typing of RunResult.error_bars)

@@ -7,6 +7,7 @@ import math
 import numpy as np
 
 from geomload import CAUTION
+from geomload.textsafe import printable
 
 
 def _f(x, nd=4):
@@ -167,25 +168,54 @@ def aero_text(sol, stall, conv, lattice) -> str:
     return "\n".join(lines)
 
 
+def _pm(v, nd) -> str:
+    """An error estimate in a fixed 6-character cell (more digits when it is small)."""
+    v = float(v)
+    if not math.isfinite(v):
+        return f"{'?':<6}"
+    return f"{v:<6.{nd}f}" if v >= 10 ** -nd else f"{v:<6.1e}"
+
+
 def run_table(result) -> str:
     head = (f"{'case':<32} {'alpha_deg':>9} {'CL':>7} {'root_shear_N':>13} "
             f"{'root_bending_Nm':>16} {'root_torsion_Nm':>16}")
     lines = ["Limit loads at the wing root (one semi-span)", head, "-" * len(head)]
+    bars = getattr(result, "error_bars", None)
+    if bars is not None:  # the discretization error estimate beside each root load
+        head = (f"{'case':<32} {'alpha_deg':>9} {'CL':>7} {'root_shear_N':>21} "
+                f"{'root_bending_Nm':>22} {'root_torsion_Nm':>20}")
+        lines = ["Limit loads at the wing root (one semi-span; +- discretization error estimate)",
+                 head, "-" * len(head)]
     for c in result.cases:
         ld = c.loads
-        lines.append(f"{c.name[:32]:<32} {c.aero.alpha_deg:9.3f} {c.aero.CL:7.4f} "
-                     f"{ld.shear_N[0]:13.1f} {ld.bending_Nm[0]:16.1f} {ld.torsion_Nm[0]:16.2f}")
+        b = None if bars is None else bars.of(c.name)
+        if b is None:
+            lines.append(f"{printable(c.name)[:32]:<32} {c.aero.alpha_deg:9.3f} {c.aero.CL:7.4f} "
+                         f"{ld.shear_N[0]:13.1f} {ld.bending_Nm[0]:16.1f} {ld.torsion_Nm[0]:16.2f}")
+        else:
+            lines.append(f"{printable(c.name)[:32]:<32} {c.aero.alpha_deg:9.3f} {c.aero.CL:7.4f} "
+                         f"{ld.shear_N[0]:13.1f} +-{_pm(b.root_shear_N, 1)} "
+                         f"{ld.bending_Nm[0]:14.1f} +-{_pm(b.root_bending_Nm, 1)} "
+                         f"{ld.torsion_Nm[0]:12.2f} +-{_pm(b.root_torsion_Nm, 2)}".rstrip())
     if result.envelope is not None:
         from geomload.loads.envelope import critical_rows as critical_table
 
         lines.append("")
         lines.append("Critical cases (envelope of limit loads at the root; ultimate = "
                      f"{result.case.ultimate_factor:g} x limit)")
-        lines.append(f"  {'quantity':<14} {'root limit':>12} {'root ultimate':>14}  case")
+        lines.append(f"  {'quantity':<14} {'root limit':>12} {'root ultimate':>14}  case"
+                     if bars is None else f"  {'quantity':<14} {'root limit':>12} "
+                     f"{'+- error':<8} {'root ultimate':>14}  case")
+        env_bar = None if bars is None else bars.envelope
         for r in critical_table(result.envelope):
             unit = r["unit"]
-            lines.append(f"  {r['quantity']:<14} {r['root_limit']:12.1f} {r['root_ultimate']:14.1f}"
-                         f"  {r['root_case']}  ({unit})")
+            pm = ""
+            if env_bar is not None:
+                key = {"shear": "root_shear_N", "bending": "root_bending_Nm",
+                       "torsion": "root_torsion_Nm"}.get(str(r["quantity"]).split()[0])
+                pm = f" +-{_pm(env_bar.values()[key], 1)}" if key else " " * 9
+            lines.append(f"  {r['quantity']:<14} {r['root_limit']:12.1f}{pm} "
+                         f"{r['root_ultimate']:14.1f}  {printable(r['root_case'])}  ({unit})")
     n_beyond = sum(1 for c in result.cases if c.stall_warning)
     if n_beyond:
         lines.append(f"{n_beyond} case(s) lie beyond the stall line (see the warnings above); "

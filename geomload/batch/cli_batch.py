@@ -6,40 +6,13 @@ Both print; the library functions they call return data. Exit codes as the rest 
 
 from __future__ import annotations
 
-import functools
-import os
 import sys
 
 import click
 
-from geomload.errors import GeomloadError
-
-EXIT_INPUT, EXIT_INTERNAL, EXIT_INTERRUPTED = 1, 3, 130
-
-
-def _guarded(fn):
-    """Library errors -> one line on stderr and an exit code, never a traceback."""
-
-    @functools.wraps(fn)
-    def wrapper(*args, **kwargs):
-        try:
-            return fn(*args, **kwargs)
-        except GeomloadError as exc:
-            click.echo(f"geomload: error: {exc}", err=True)
-            sys.exit(getattr(exc, "exit_code", EXIT_INPUT))
-        except KeyboardInterrupt:
-            click.echo("geomload: interrupted; no output was written", err=True)
-            sys.exit(EXIT_INTERRUPTED)
-        except (click.exceptions.Exit, click.ClickException, click.Abort):
-            raise
-        except Exception as exc:  # noqa: BLE001 - the last line of defence
-            if os.environ.get("GEOMLOAD_DEBUG", "") not in ("", "0"):
-                raise
-            click.echo(f"geomload: internal error: {type(exc).__name__}: {exc} (this is a bug in "
-                       "geomload; please report it; set GEOMLOAD_DEBUG=1 for a traceback)", err=True)
-            sys.exit(EXIT_INTERNAL)
-
-    return wrapper
+from geomload.cli.common import EXIT_INPUT, guarded as _guarded  # the CLI's one error and
+# signal handling: exit codes 1/2/3 and 128 + signal, one line on stderr, no traceback
+from geomload.textsafe import printable
 
 
 @click.command("batch")
@@ -80,24 +53,26 @@ def batch(case_files, vary, out_dir, workers, cluster, cluster_timeout, force, n
                 seen.setdefault(w, []).append(o.name)
     for w, names in seen.items():
         who = names[0] if len(names) == 1 else f"{len(names)} variants ({names[0]}, ...)"
-        click.echo(f"geomload: warning: {who}: {w}", err=True)
+        click.echo(f"geomload: warning: {printable(who)}: {printable(w)}", err=True)
     for o in res.failed:
-        click.echo(f"geomload: error: variant {o.name} failed: {o.error}", err=True)
-    width = max(len(o.name) for o in res.outcomes)
+        click.echo(f"geomload: error: variant {printable(o.name)} failed: {printable(o.error)}",
+                   err=True)
+    width = max(len(printable(o.name)) for o in res.outcomes)
     click.echo(f"{'variant':<{width}}  {'shear max':>10} {'bending max':>12} {'bending min':>12}"
                f" {'torsion min':>12}  (root, limit, N and N m)")
     for o in res.outcomes:
         if o.ok:
             r = o.root
-            click.echo(f"{o.name:<{width}}  {r['root_shear_max_N']:10.1f} "
+            click.echo(f"{printable(o.name):<{width}}  {r['root_shear_max_N']:10.1f} "
                        f"{r['root_bending_max_Nm']:12.1f} {r['root_bending_min_Nm']:12.1f} "
                        f"{r['root_torsion_min_Nm']:12.2f}")
         else:
-            click.echo(f"{o.name:<{width}}  failed")
+            click.echo(f"{printable(o.name):<{width}}  failed")
     click.echo(CAUTION)
     n_ok = len(res.outcomes) - len(res.failed)
-    click.echo(f"{n_ok} of {len(res.outcomes)} variants ran; wrote {res.out_dir}/batch.csv and "
-               f"{res.out_dir}/index.html")
+    d = printable(res.out_dir)
+    click.echo(f"{n_ok} of {len(res.outcomes)} variants ran; wrote {d}/batch.csv and "
+               f"{d}/index.html")
     if res.failed:
         sys.exit(EXIT_INPUT)
 
@@ -115,9 +90,10 @@ def compare(runs, out_dir, force):
 
     res = compare_runs(runs, out_dir, force=force)
     for line in res.summary_lines:
-        click.echo(line)
+        click.echo(printable(line))
     click.echo(CAUTION)
-    click.echo(f"wrote {res.out_dir}/compare.csv and {res.out_dir}/compare.html")
+    d = printable(res.out_dir)
+    click.echo(f"wrote {d}/compare.csv and {d}/compare.html")
 
 
 @click.group()

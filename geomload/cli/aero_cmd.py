@@ -6,6 +6,8 @@ import json
 
 import click
 
+from geomload.textsafe import printable
+
 from .common import echo_err, geometry_options, guarded, load_geometry, print_messages
 
 
@@ -31,16 +33,16 @@ def aero(geometry, units, span_axis, up_axis, n_stations, spacing, body, alpha, 
     import math
 
     from geomload.errors import AeroError
-    from geomload.export.atomic import check_not_input
+    from geomload.export.atomic import check_target
     from geomload.report_text import aero_json, aero_text
 
+    if csv_path is not None:  # the target is refused before any work
+        check_target(csv_path, [geometry])
     if not math.isfinite(alpha):  # before the geometry is read: a typo costs nothing
         raise AeroError(f"--alpha: must be a finite number of degrees, got {alpha}")
     if panels_span < 1 or panels_chord < 1:
         raise AeroError(f"--panels-span/--panels-chord: must be positive, got "
                         f"{panels_span}/{panels_chord}")
-    if csv_path:
-        check_not_input(csv_path, [geometry])
     mesh, frame, stations, planform = load_geometry(geometry, units, span_axis, up_axis,
                                                     n_stations, spacing, body)
     from geomload.aero.models import analyse_at_alpha
@@ -51,8 +53,8 @@ def aero(geometry, units, span_axis, up_axis, n_stations, spacing, body, alpha, 
     out = show(r["solution"], r["stall"], r["convergence"], r["lattice"])
     click.echo(json.dumps(out, indent=2) if as_json else out)
     print_messages(r["messages"])
-    if csv_path:
+    if csv_path is not None:
         from geomload.export.tables import write_aero_csv
 
         write_aero_csv(csv_path, r["solution"], mesh.source)
-        echo_err(f"geomload: wrote {csv_path}")
+        echo_err(f"geomload: wrote {printable(csv_path)}")

@@ -11,6 +11,7 @@ import sys
 import click
 
 from geomload.errors import GeomloadError, Interrupted
+from geomload.textsafe import printable
 
 EXIT_OK, EXIT_INPUT, EXIT_USAGE, EXIT_INTERNAL = 0, 1, 2, 3
 EXIT_SIGNAL_BASE = 128  # a run stopped by signal N exits 128 + N: 130 SIGINT, 143 SIGTERM, 129 SIGHUP
@@ -26,7 +27,7 @@ def echo_err(msg: str) -> None:
 def print_messages(messages) -> None:
     """Print Message records (kind, text) on stderr, one line each."""
     for m in messages:
-        echo_err(f"geomload: {m.kind}: {m.text}")
+        echo_err(f"geomload: {m.kind}: {printable(m.text)}")
 
 
 def _raise_interrupted(signum, frame):  # noqa: ARG001 - signal handler signature
@@ -51,7 +52,7 @@ def guarded(fn):
         try:
             return fn(*args, **kwargs)
         except GeomloadError as exc:
-            echo_err(f"geomload: error: {exc}")
+            echo_err(f"geomload: error: {printable(exc)}")
             sys.exit(getattr(exc, "exit_code", EXIT_INPUT))
         except KeyboardInterrupt as exc:
             echo_err("geomload: interrupted; no output was written")
@@ -64,7 +65,8 @@ def guarded(fn):
         except Exception as exc:  # noqa: BLE001 - the last line of defence
             if os.environ.get("GEOMLOAD_DEBUG", "") not in ("", "0"):
                 raise
-            echo_err(f"geomload: internal error: {type(exc).__name__}: {exc} ({REPORT_HINT}; "
+            echo_err(f"geomload: internal error: {type(exc).__name__}: {printable(exc)} "
+                     f"({REPORT_HINT}; "
                      "set GEOMLOAD_DEBUG=1 for a traceback)")
             sys.exit(EXIT_INTERNAL)
 

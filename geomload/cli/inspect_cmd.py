@@ -6,6 +6,8 @@ import json
 
 import click
 
+from geomload.textsafe import printable
+
 from .common import (echo_err, geometry_messages, geometry_options, guarded, load_geometry,
                      print_messages)
 
@@ -22,12 +24,12 @@ from .common import (echo_err, geometry_messages, geometry_options, guarded, loa
 def inspect(geometry, units, span_axis, up_axis, n_stations, spacing, body, csv_path, as_json,
             png_path):
     """Read a CAD wing, detect its frame and print its stations and planform."""
-    from geomload.export.atomic import check_not_input
+    from geomload.export.atomic import check_target
     from geomload.report_text import inspect_json, inspect_text
 
-    for out in (csv_path, png_path):
-        if out:
-            check_not_input(out, [geometry])
+    for out in (csv_path, png_path):  # each target is refused before any work
+        if out is not None:
+            check_target(out, [geometry])
     mesh, frame, stations, planform = load_geometry(geometry, units, span_axis, up_axis,
                                                     n_stations, spacing, body)
     if as_json:
@@ -35,13 +37,13 @@ def inspect(geometry, units, span_axis, up_axis, n_stations, spacing, body, csv_
     else:
         click.echo(inspect_text(mesh, frame, stations, planform))
     print_messages(geometry_messages(mesh, frame, stations))
-    if csv_path:
+    if csv_path is not None:
         from geomload.export.tables import write_stations_csv
 
         write_stations_csv(csv_path, stations, frame, mesh.source, mesh.units)
-        echo_err(f"geomload: wrote {csv_path}")
-    if png_path:
+        echo_err(f"geomload: wrote {printable(csv_path)}")
+    if png_path is not None:
         from geomload.export.render import render_stations_png
 
         render_stations_png(mesh, frame, stations, png_path)
-        echo_err(f"geomload: wrote {png_path}")
+        echo_err(f"geomload: wrote {printable(png_path)}")

@@ -18,9 +18,10 @@ def run(case_file, out_dir, force, no_render):
     """Run every load case of CASE_FILE and write loads, VTK and an HTML report to --out."""
     from geomload.pipeline import run_case_file
     from geomload.report_text import run_table
+    from geomload.textsafe import printable
 
     result, written = run_case_file(case_file, out_dir, force=force, render=not no_render,
                                     progress=progress_bar())
     print_messages(result.messages)
     click.echo(run_table(result))
-    click.echo(f"Wrote {len(written)} files to {out_dir}")
+    click.echo(f"Wrote {len(written)} files to {printable(out_dir)}")

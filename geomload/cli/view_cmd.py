@@ -15,8 +15,15 @@ from .common import guarded
 @guarded
 def view(run_dir, case_name, screenshot):
     """Open the CAD surface, lattice and load axis of a finished run in a 3D window."""
+    from pathlib import Path
+
+    from geomload.export.atomic import check_target
+    from geomload.textsafe import printable
+
+    if screenshot is not None:  # refused before any work; the run's files are inputs
+        check_target(screenshot, [p for p in Path(run_dir).glob("*") if p.is_file()])
     from geomload.export.render import view as _view
 
     _view(run_dir, case=case_name, screenshot=screenshot)
-    if screenshot:
-        click.echo(f"Wrote {screenshot}")
+    if screenshot is not None:
+        click.echo(f"Wrote {printable(screenshot)}")

@@ -26,7 +26,7 @@ MAX_COUNT = 100_000  # no count in a case file (stations, panels, bodies) is sen
 MAX_STATIONS = 2000  # cuts on one semi-span: far beyond what a preliminary load needs
 MAX_PANELS_SPAN, MAX_PANELS_CHORD = 1000, 200  # a dense lattice is 120 x 25; memory grows as N^2
 TOP_LEVEL_KEYS = ("title", "geometry", "aircraft", "wing_mass", "point_mass", "fuel_tank", "spar",
-                  "moment_reference", "load_case", "envelope", "lattice", "analysis")
+                  "moment_reference", "load_case", "envelope", "lattice", "analysis", "structure")
 
 
 # --------------------------------------------------------------------------- table reader
@@ -350,6 +350,11 @@ def _read_case_file(path) -> Case:
             out.append(reader(t, i))
             t.done()
     t = sub("spar"); spar = _spar(t); t.done()  # noqa: E702
+    handoff = None  # the [structure] table (config/structure.py)
+    if "structure" in raw:
+        from .structure import read_structure
+
+        t = sub("structure"); handoff = read_structure(t, base); t.done()  # noqa: E702
     ref = None
     if "moment_reference" in raw:
         t = sub("moment_reference")
@@ -405,7 +410,7 @@ def _read_case_file(path) -> Case:
     return Case(path=str(Path(path).resolve()), title=title, geometry=geometry, aircraft=aircraft,
                 wing_mass=wing_mass, point_masses=tuple(points), fuel_tanks=tuple(tanks), spar=spar,
                 moment_reference=ref, load_cases=tuple(cases), envelope=envelope, lattice=lattice,
-                ultimate_factor=uf, load_factor_axis=nax)
+                ultimate_factor=uf, load_factor_axis=nax, structure=handoff)
 
 
 def read_case_file(path) -> Case:

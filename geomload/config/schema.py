@@ -208,6 +208,7 @@ class Case:
     lattice: LatticeSpec
     ultimate_factor: float = 1.5
     load_factor_axis: str = "body"
+    structure: Optional[object] = None  # config.structure.StructureSpec: the hand-off outputs
 
     def __post_init__(self):
         if self.load_factor_axis not in LOAD_FACTOR_AXES:

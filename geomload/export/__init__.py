@@ -5,6 +5,8 @@ Heavy libraries (matplotlib, pyvista, scipy) are imported inside the functions t
 Run folder layout written by `write_all`::
 
     stations.csv  summary.json  envelope.csv  vn.csv  loads/<case>.csv
+    with [structure]: fe/<case>.inp fe/<case>_nodal_loads.csv (fe/mesh_* with a mesh)
+    sizing.csv sizing.png
     lattice.vtp  load_axis.vtp  surface.vtp  report.html  geomload-run.json (the run marker,
     written by run_folder.OutputDir on commit)
     plots/planform.png spanwise.png cl_alpha.png loads.png vn.png vn.svg
@@ -38,7 +40,8 @@ def write_all(run, folder, inputs=(), render=True, progress=None, options=None,
     -------
     dict, every path relative to folder (so it stays valid once a staging folder is moved):
     "files" (list of paths written), "images" (name -> PNG path, or the Exception that stopped
-    that picture), "loads" (case name -> CSV path).
+    that picture), "loads" (case name -> CSV path), "warnings" (one-line warnings of the
+    writers, e.g. the structural hand-off's).
     """
     from geomload.export import plots, report, tables, vtk
     from geomload.export.atomic import safe_name
@@ -46,7 +49,7 @@ def write_all(run, folder, inputs=(), render=True, progress=None, options=None,
     f = Path(folder)
     f.mkdir(parents=True, exist_ok=True)
     inputs = [*inputs, run.case_path, run.mesh.source]
-    files, loads = [], {}
+    files, loads, warnings = [], {}, []
     has_env, has_vn = run.envelope is not None, run.vn is not None
     total = 3 + len(run.cases) + has_env + has_vn + 3 + 1 + (1 if render else 0) + 1
     step = [0]
@@ -81,6 +84,14 @@ def write_all(run, folder, inputs=(), render=True, progress=None, options=None,
         if has_vn:
             rec(tables.write_vn_csv(f / "vn.csv", run.vn, inputs))
         rec(tables.write_summary_json(f / "summary.json", run, inputs))
+        structure = getattr(run.case, "structure", None)
+        if structure is not None:  # [structure]: FE beam decks, mapped loads, sizing (fe.py)
+            from geomload.export.fe import write_structural_handoff
+
+            handoff = write_structural_handoff(run, f, inputs, **structure.handoff_options())
+            for p in handoff["files"]:
+                rec(p)
+            warnings += handoff["warnings"]
         for p in vtk.write_all_vtk(f, run, inputs, surface):
             rec(p)
         images = plots.make_plots(run, f / "plots", inputs)
@@ -100,4 +111,4 @@ def write_all(run, folder, inputs=(), render=True, progress=None, options=None,
     rec(report.write_report(f / "report.html", run, images, options, run_time_s, inputs))
     tick()
     images = {k: (v.relative_to(f) if isinstance(v, Path) else v) for k, v in images.items()}
-    return {"files": files, "images": images, "loads": loads}
+    return {"files": files, "images": images, "loads": loads, "warnings": warnings}

@@ -78,8 +78,13 @@ class NodalLoads:
     station_index: np.ndarray = None
 
 
-def nodal_loads(loads) -> NodalLoads:
+def nodal_loads(loads, rows=None) -> NodalLoads:
     """Lump one SpanLoads onto its stations (see the module docstring for the scheme).
+
+    rows : boolean mask of the stations that get a node (default ``loads.rows``: the
+    structure's rib stations when given, else every station). The root station always gets a
+    node (the clamp). The scheme is exact for any subset: each node takes everything between
+    it and the next node outboard, the last node everything outboard of it.
 
     Uses ``loads.force_N``, ``loads.moment_Nm`` (outboard resultants about the spar points)
     and ``loads.spar_points_m``, as written by the beam integration. Stations at the same y
@@ -90,9 +95,17 @@ def nodal_loads(loads) -> NodalLoads:
         if getattr(loads, name) is None:
             raise InputError(f"FE deck of case '{loads.case}': the loads carry no {name} "
                              "(made by the beam integration)")
-    F = np.asarray(loads.force_N, float)
-    M = np.asarray(loads.moment_Nm, float)
-    P = np.asarray(loads.spar_points_m, float)
+    if rows is None:
+        rows = getattr(loads, "rows", None)
+    n_all = np.asarray(loads.y).size
+    sel = np.ones(n_all, bool) if rows is None else np.array(rows, bool)
+    if sel.shape != (n_all,):
+        raise InputError(f"FE deck of case '{loads.case}': rows must be ({n_all},) booleans")
+    sel[0] = True  # the root is always a node (the clamp)
+    idx = np.flatnonzero(sel)
+    F = np.asarray(loads.force_N, float)[idx]
+    M = np.asarray(loads.moment_Nm, float)[idx]
+    P = np.asarray(loads.spar_points_m, float)[idx]
     n = P.shape[0]
     if n < 2 or F.shape != (n, 3) or M.shape != (n, 3) or not np.all(np.isfinite(F)) \
             or not np.all(np.isfinite(M)):
@@ -104,7 +117,7 @@ def nodal_loads(loads) -> NodalLoads:
     m = M - Mn - np.cross(Pn - P, Fn)
     # stations closer than MERGE_FRACTION x span share the inboard one's node; a moved load
     # takes its transfer moment along, so the statics stay exact
-    y = np.asarray(loads.y, float)
+    y = np.asarray(loads.y, float)[idx]
     gap = MERGE_FRACTION * max(float(y[-1] - y[0]), SAME_NODE_M)
     keep = np.ones(n, bool)
     last = y[0]
@@ -118,14 +131,15 @@ def nodal_loads(loads) -> NodalLoads:
     fs, ms = np.zeros((k, 3)), np.zeros((k, 3))
     np.add.at(fs, group, f)
     np.add.at(ms, group, m + np.cross(P - anchor, f))
-    ax = {a: np.asarray(getattr(loads, a), float)[keep] if getattr(loads, a) is not None else None
+    ax = {a: np.asarray(getattr(loads, a), float)[idx][keep] if getattr(loads, a) is not None
+          else None
           for a in ("axis_s", "axis_b", "axis_n")}
     if any(v is None for v in ax.values()):
         from geomload.loads.beam import spar_frame
 
         ax["axis_s"], ax["axis_b"], ax["axis_n"] = spar_frame(y[keep], P[keep, 0], P[keep, 2])
     return NodalLoads(case=str(loads.case), y_m=y[keep], points_m=P[keep], force_N=fs,
-                      moment_Nm=ms, station_index=np.flatnonzero(keep), **ax)
+                      moment_Nm=ms, station_index=idx[keep], **ax)
 
 
 def internal_loads(nl: NodalLoads) -> dict:
@@ -349,12 +363,19 @@ def root_reaction(deck: BeamDeck, dat_text: str, frame=None):
 
 # --------------------------------------------------------------------------- one call per run
 def cad_unit(run):
-    """(unit label, metres per unit) of the run's CAD file; metres when the file carried its own
-    unit (its scale was applied on reading and is not kept)."""
+    """(unit label, metres per unit) of the run's CAD file. A file that carried its own unit
+    (STEP, ...) keeps it: its scale is stored on the mesh when read; the label is the length
+    unit of that scale when it is one of ours, else "cad" (with the scale in the files)."""
     from geomload.geometry.read import UNITS
 
     u = getattr(run.mesh, "units", "m")
-    return (u, UNITS[u]) if u in UNITS else ("m", 1.0)
+    if u in UNITS:
+        return u, UNITS[u]
+    scale = float(getattr(run.mesh, "unit_scale_m", 1.0) or 1.0)
+    for name, s in UNITS.items():
+        if abs(s - scale) <= 1e-12 * s:
+            return name, s
+    return "cad", scale
 
 
 def write_structural_handoff(run, folder, inputs=(), structural_mesh=None, material=None,

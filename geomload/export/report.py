@@ -11,6 +11,7 @@ import base64
 import dataclasses
 import datetime as _dt
 import html
+import math
 from pathlib import Path
 
 import numpy as np
@@ -127,14 +128,36 @@ def _aero_table(run) -> str:
 
 def _root_table(run) -> str:
     rows = []
+    bars = getattr(run, "error_bars", None)
     for c in run.cases:
         L, uf = c.loads, float(c.loads.ultimate_factor)
-        rows.append((c.name, c.v_eas, c.altitude_m, c.load_factor, c.aero.alpha_deg, c.aero.CL,
-                     L.shear_N[0], L.bending_Nm[0], L.torsion_Nm[0], uf * L.shear_N[0],
-                     uf * L.bending_Nm[0], uf * L.torsion_Nm[0], c.residual))
-    return _table(("case", "V_EAS (m/s)", "altitude (m)", "n", "alpha (deg)", "CL",
-                   "root V (N)", "root M (N m)", "root T (N m)", "ult. V (N)", "ult. M (N m)",
-                   "ult. T (N m)", "residual"), rows)
+        row = [c.name, c.v_eas, c.altitude_m, c.load_factor, c.aero.alpha_deg, c.aero.CL,
+               L.shear_N[0], L.bending_Nm[0], L.torsion_Nm[0], uf * L.shear_N[0],
+               uf * L.bending_Nm[0], uf * L.torsion_Nm[0], c.residual]
+        b = None if bars is None else bars.of(c.name)
+        if bars is not None:  # the error estimate beside each root load
+            e = (math.nan,) * 3 if b is None else tuple(b.values().values())
+            row[7:7] = [e[0]]
+            row[9:9] = [e[1]]
+            row[11:11] = [e[2]]
+        rows.append(tuple(row))
+    head = ["case", "V_EAS (m/s)", "altitude (m)", "n", "alpha (deg)", "CL",
+            "root V (N)", "root M (N m)", "root T (N m)", "ult. V (N)", "ult. M (N m)",
+            "ult. T (N m)", "residual"]
+    if bars is not None:
+        head[7:7] = ["+- V (N)"]
+        head[9:9] = ["+- M (N m)"]
+        head[11:11] = ["+- T (N m)"]
+    out = _table(head, rows)
+    if bars is not None:
+        lat = " and ".join(f"{a} x {b}" for a, b in bars.lattices[1:])
+        env = bars.envelope
+        out += (f"<p>+-: discretization error estimate of the limit root load (Richardson "
+                f"extrapolation from the run's lattice and the coarser {esc(lat)} panels; see the "
+                f"warnings for loads that do not converge monotonically). Envelope root extremes: "
+                f"shear +-{_fmt(env.root_shear_N, 2)} N, bending +-{_fmt(env.root_bending_Nm, 2)} "
+                f"N m, torsion +-{_fmt(env.root_torsion_Nm, 2)} N m.</p>")
+    return out
 
 
 def _critical(run) -> str:

@@ -219,8 +219,10 @@ def size_from_run(run, front_fraction: float = 0.15, rear_fraction: float = 0.65
     if spar is None:
         spar = getattr(getattr(run.case, "spar", None), "chord_fraction", None) or 0.25
     mat = mat or MATERIALS["al-2024-t3"]
-    # rows at the loads' stations (both sides of point-load steps), geometry interpolated
-    y = np.unique(np.asarray(run.cases[0].loads.y, float))
+    # rows at the loads' reported stations (the rib stations when given; both sides of
+    # point-load steps), geometry interpolated
+    first = run.cases[0].loads
+    y = np.unique(np.asarray(first.y, float)[first.rows])
     chord = np.interp(y, st.y, st.chord)
     tc = np.interp(y, st.y, st.thickness_ratio)
     d = lambda f: depth_from_thickness_shape(chord, tc, f)  # noqa: E731

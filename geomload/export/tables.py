@@ -59,6 +59,12 @@ def _csv(header_lines, columns: dict) -> str:
     return "\n".join(out) + "\n"
 
 
+def _only(columns: dict, rows) -> dict:
+    """The columns at the reported rows (a boolean mask: the rib stations, or every row)."""
+    rows = np.asarray(rows, bool)
+    return {k: np.asarray(v)[rows] for k, v in columns.items()}
+
+
 def _cell_text(v) -> str:
     return textsafe.csv_text_cell(v)
 
@@ -125,7 +131,10 @@ def write_loads_csv(path, case_result, caution=CAUTION, frame=None, inputs=()):
             "torsion_ult_Nm": uf * np.asarray(L.torsion_Nm),
             "inplane_shear_ult_N": uf * np.asarray(L.inplane_shear_N),
             "inplane_bending_ult_Nm": uf * np.asarray(L.inplane_bending_Nm)}
-    return write_text_atomic(path, _csv(head, cols), inputs)
+    if not L.rows.all():
+        head.append("rows: the structure's stations (spar.rib_y_m); loads integrated on the full "
+                    "grid, two rows where a load step falls on a station")
+    return write_text_atomic(path, _csv(head, _only(cols, L.rows)), inputs)
 
 
 def write_envelope_csv(path, envelope, inputs=()):
@@ -142,7 +151,9 @@ def write_envelope_csv(path, envelope, inputs=()):
             cols[f"{q}_{side}_case"] = np.array(e[f"{q}_{side}_case"], dtype=object)
             cols[f"{q}_{side}_ult_{u}"] = e[f"{q}_{side}_ult"]
             cols[f"{q}_{side}_ult_case"] = np.array(e[f"{q}_{side}_ult_case"], dtype=object)
-    return write_text_atomic(path, _csv(head, cols), inputs)
+    if not np.all(e["rows"]):
+        head.append("rows: the structure's stations (spar.rib_y_m)")
+    return write_text_atomic(path, _csv(head, _only(cols, e["rows"])), inputs)
 
 
 def write_vn_csv(path, vn, inputs=()):
@@ -170,6 +181,18 @@ def _num(x):
     return x if math.isfinite(x) else None
 
 
+def _error_estimate(run, name):
+    """{root_shear_N, root_bending_Nm, root_torsion_Nm} absolute discretization error estimates
+    (limit loads, N and N m) of case `name` (None: the envelope's root extremes), or None when
+    the run has none (geomload.aero.convergence)."""
+    bars = getattr(run, "error_bars", None)
+    bar = None if bars is None else (bars.envelope if name is None else bars.of(name))
+    if bar is None:
+        return None
+    return {**{k: _num(v) for k, v in bar.values().items()},
+            "not_monotone": list(bar.not_monotone)}
+
+
 def summary(run) -> dict:
     """The run summary as plain JSON-able data (SI units; key names carry them)."""
     p = run.planform
@@ -191,7 +214,8 @@ def summary(run) -> dict:
             "root_shear_ult_N": _num(uf * L.shear_N[0]),
             "root_bending_ult_Nm": _num(uf * L.bending_Nm[0]),
             "root_torsion_ult_Nm": _num(uf * L.torsion_Nm[0]),
-            "equilibrium_residual": _num(cr.residual), "stall_warning": cr.stall_warning})
+            "equilibrium_residual": _num(cr.residual), "stall_warning": cr.stall_warning,
+            "error_estimate": _error_estimate(run, cr.name)})
     out = {"caution": CAUTION, "geomload_version": __version__, "case_file": run.case_path,
            "title": str(getattr(run.case, "title", "") or ""),
            "geometry": {"source": run.mesh.source, "units": run.mesh.units,
@@ -209,14 +233,16 @@ def summary(run) -> dict:
            "null_means": "a number that is not finite (NaN or infinite) is written as null"}
     if run.envelope is not None:
         e = ea.table(run.envelope)
-        env = {"y_m": e["y"].tolist()}
+        r = np.flatnonzero(np.asarray(e["rows"], bool))  # the reported rows (rib stations or all)
+        env = {"y_m": e["y"][r].tolist()}
         for q, u in e["quantities"]:
             for side in ("max", "min"):
-                env[f"{q}_{side}_{u}"] = [_num(v) for v in e[f"{q}_{side}"]]
-                env[f"{q}_{side}_case"] = [str(c) for c in e[f"{q}_{side}_case"]]
-                env[f"{q}_{side}_ult_{u}"] = [_num(v) for v in e[f"{q}_{side}_ult"]]
-                env[f"{q}_{side}_ult_case"] = [str(c) for c in e[f"{q}_{side}_ult_case"]]
+                env[f"{q}_{side}_{u}"] = [_num(e[f"{q}_{side}"][i]) for i in r]
+                env[f"{q}_{side}_case"] = [str(e[f"{q}_{side}_case"][i]) for i in r]
+                env[f"{q}_{side}_ult_{u}"] = [_num(e[f"{q}_{side}_ult"][i]) for i in r]
+                env[f"{q}_{side}_ult_case"] = [str(e[f"{q}_{side}_ult_case"][i]) for i in r]
         env["critical"] = ea.critical_table(run.envelope)
+        env["error_estimate"] = _error_estimate(run, None)
         out["envelope"] = env
     return out
 

@@ -39,6 +39,8 @@ class WingMesh:
         (metres assumed).
     body_sizes: triangles per body, in the order they are stored in `triangles` (one entry per
         body the reader kept; empty when not known).
+    unit_scale_m: metres per CAD unit of the file (the unit it was read in, or the file's own
+        unit when it carried one), so outputs in the CAD frame can be written in the CAD unit.
     """
 
     triangles: np.ndarray
@@ -47,6 +49,7 @@ class WingMesh:
     notes: tuple = ()
     units_assumed: bool = False
     body_sizes: tuple = ()
+    unit_scale_m: float = 1.0
 
     @property
     def n_triangles(self) -> int:

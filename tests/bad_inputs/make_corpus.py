@@ -157,12 +157,37 @@ def _edit(text, old, new):
     return text.replace(old, new, 1)
 
 
+def _inside_points(wing, ys):
+    """Points inside the wing at spans ys (m): the centroid of each lofted section's vertices,
+    interpolated linearly in y between sections (the loft is linear between them and an
+    airfoil section is convex enough)."""
+    v = wing.reshape(-1, 3)
+    yk = np.unique(np.round(v[:, 1], 9))
+    cen = np.array([v[np.abs(v[:, 1] - y) < 1e-8].mean(axis=0) for y in yk])
+    return np.column_stack([np.interp(ys, yk, cen[:, 0]), ys, np.interp(ys, yk, cen[:, 2])])
+
+
+def inp_nodes(pts) -> bytes:
+    """A node-and-truss mesh in the open *NODE/*ELEMENT syntax (bars between successive nodes)."""
+    lines = ["*NODE"] + [f"{i + 1}, {x:.9g}, {y:.9g}, {z:.9g}" for i, (x, y, z) in enumerate(pts)]
+    lines += ["*ELEMENT, TYPE=T3D2, ELSET=BARS"] + [f"{i + 1}, {i + 1}, {i + 2}"
+                                                     for i in range(len(pts) - 1)]
+    return ("\n".join(lines) + "\n").encode()
+
+
 def case_files() -> dict:
     """name -> text of every case file of the corpus (the base case edited one way each)."""
     b = BASE_CASE
     env = b + ENVELOPE
     return {
         "good.toml": b,
+        "structure_good.toml": b + '\n[structure]\nmesh = "spar.inp"\nmaterial = "al-7075-t6"\n',
+        "structure_mesh_in_mm.toml": b + '\n[structure]\nmesh = "spar_in_mm.inp"\n',
+        "structure_mesh_root_only.toml": b + '\n[structure]\nmesh = "spar_root_only.inp"\n',
+        "structure_mesh_garbage.toml": b + '\n[structure]\nmesh = "spar_garbage.inp"\n',
+        "structure_mesh_missing.toml": b + '\n[structure]\nmesh = "no_such_mesh.msh"\n',
+        "structure_unknown_material.toml": b + '\n[structure]\nmaterial = "unobtainium"\n',
+        "rib_outside_span.toml": b + "\n[spar]\nrib_y_m = [0.0, 0.9, 2.5]\n",
         "good_envelope.toml": env,
         "empty.toml": "",
         "blank.toml": "   \n# only a comment\n\n",
@@ -266,6 +291,14 @@ def build(folder) -> list:
     files["short_vertex.obj"] = b"v 0 0 0\nv 1 0 0\nv 0 1\n"     # last vertex has two coordinates
     files["wing.xyz"] = b"0 0 0\n1 0 0\n0 1 0\n"
     files["binary_garbage.toml"] = b"\xff\xfe\x00\x81 not text"
+    # structural meshes for [structure] mesh: nodes inside the wing (slice centroids), the same
+    # written in millimetres where the CAD file is in metres, only next to the root, unreadable
+    inside = _inside_points(wing, np.linspace(0.05, 0.95, 12) * SEMISPAN)
+    files["spar.inp"] = inp_nodes(inside)
+    files["spar_in_mm.inp"] = inp_nodes(inside * 1000.0)
+    files["spar_root_only.inp"] = inp_nodes(_inside_points(wing, np.linspace(0.001, 0.008, 4)
+                                                           * SEMISPAN))
+    files["spar_garbage.inp"] = b"*NODE\n1, 0.0, 0.0\nthis is not a mesh\n*ELEMENT, TYPE=T3D2\n1, 1, 9\n"
     for name, text in case_files().items():
         files[name] = text.encode()
     for name, data in files.items():

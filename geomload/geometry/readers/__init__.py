@@ -99,6 +99,8 @@ def read_mesh(path, units=None, body=None, progress=None, require_units=False, a
                          "(the IGES default); give units to override")
             scale = KERNEL_SCALE[kind]  # the kernel applies the inch default itself
         unit_label = "file"
+        cad_scale = UNITS[units] if units is not None else (
+            declared if declared is not None else (0.0254 if kind == "iges" else 1.0))
         if units is not None:
             if declared is None:
                 declared = 0.0254 if kind == "iges" else 1.0
@@ -112,9 +114,10 @@ def read_mesh(path, units=None, body=None, progress=None, require_units=False, a
             scale, unit_label = UNITS[units], units
             notes.append(f"warning: units: {units} given: overrides the unit of {name} "
                          f"({_label(file_scale)})")
+        cad_scale = scale
     else:
         unit_label = units or "m"
-        scale = UNITS[unit_label]
+        scale = cad_scale = UNITS[unit_label]
         units_assumed = units is None and ext in UNITLESS_FORMATS
 
     bodies = [b for b in bodies if b.shape[0] > 0]
@@ -149,6 +152,7 @@ def read_mesh(path, units=None, body=None, progress=None, require_units=False, a
         notes.append(f"warning: largest extent is {extent:.4g} m after reading in {unit_label}: "
                      f"wrong unit? (give --units m|cm|mm|in|ft)")
     return WingMesh(triangles=tris, source=path, units=unit_label, notes=tuple(notes),
+                    unit_scale_m=float(cad_scale),
                     units_assumed=units_assumed, body_sizes=sizes)
 
 
