@@ -25,7 +25,8 @@ def no_progress(stage: str, done: int, total: int) -> None:  # noqa: D401 - triv
 
 # --------------------------------------------------------------------------------------- geometry
 # The geometry records live with their stage; re-exported here so every old import keeps working.
-from .geometry.records import Planform, Stations, WingFrame, WingMesh  # noqa: E402,F401
+from .geometry.records import (GeometryWarning, Planform, Stations, Wing,  # noqa: E402,F401
+                               WingFrame, WingMesh)
 
 
 # ------------------------------------------------------------------------------------------- aero
@@ -169,7 +170,8 @@ class RunResult:
     CaseResult; envelope: the envelope of loads (LoadsEnvelope); vn: tuple of VnDiagram (empty
     without an [envelope]); alpha_sweep: tuple of (alpha_deg, CL) from the lattice at the first
     case's Mach; messages: tuple of Message (kind, text); timings: step -> seconds; versions:
-    package -> version.
+    package -> version; wing: the geometry stage's whole `Wing` record (bodies, control
+    surfaces, tailplane, warnings, exposed/gross planform), or None when built without one.
     """
 
     case_path: str
@@ -187,8 +189,11 @@ class RunResult:
     messages: tuple = ()
     timings: dict = field(default_factory=dict)
     versions: dict = field(default_factory=dict)
+    wing: Optional[Wing] = None
 
     def __post_init__(self):
+        if self.wing is not None and not isinstance(self.wing, Wing):
+            raise TypeError("RunResult.wing: a geometry Wing record or None")
         object.__setattr__(self, "cases", tuple(self.cases))
         if not all(isinstance(c, CaseResult) for c in self.cases):
             raise TypeError("RunResult.cases: CaseResult records only")
