@@ -85,14 +85,8 @@ def wing_messages(wing) -> list:
 
 
 def planform_summary(wing) -> dict:
-    """Gross and exposed planform of a `Wing` for JSON outputs (m, m^2)."""
-    pf = wing.planform
-    return {"y_root_m": float(getattr(wing.frame, "y_root", 0.0) or 0.0),
-            "gross": {"area_m2": float(pf.area), "span_m": float(pf.span)},
-            "exposed": {"area_m2": float(pf.exposed_area if pf.exposed_area is not None
-                                         else pf.area),
-                        "span_m": float(pf.exposed_span if pf.exposed_span is not None
-                                        else pf.span)},
-            "span_along_surface_m": (None if pf.span_surface is None
-                                     else float(pf.span_surface)),
-            "fuselage_side_y_m": wing.fuselage_side_y_m}
+    """Gross and exposed planform of a `Wing` for JSON outputs (m, m^2): see
+    :func:`geomload.geometry.wing_summary.gross_and_exposed`."""
+    from geomload.geometry.wing_summary import gross_and_exposed
+
+    return gross_and_exposed(wing)
