@@ -53,7 +53,7 @@ def check_units(case, wing) -> None:
     pf, mesh = wing.planform, wing.mesh
     mass = getattr(getattr(case, "aircraft", None), "gross_mass_kg", None)
     if mesh.units_assumed:
-        unit, why = guess_unit(pf.span, mass_kg=mass, area_m2=pf.area, read_in="m")
+        unit, why = likely_unit(case, pf.span, pf.area)
         raise GeometryError(unit_message(mesh.source, unit, why, UNITS_HINT))
     if not SPAN_TOO_SMALL_M <= pf.span <= SPAN_TOO_BIG_M:
         read_in = mesh.units if mesh.units in ("m", "cm", "mm", "in", "ft") else "m"
@@ -61,6 +61,42 @@ def check_units(case, wing) -> None:
         raise GeometryError(f"{mesh.source}: the wing spans {pf.span:.4g} m when read in "
                             f"{read_in if mesh.units != 'file' else 'the unit the file declares'}"
                             f"; it is most likely in {unit} ({why}); {UNITS_HINT}")
+
+
+DEFAULT_CL_MAX = 1.4  # wing CL_max for the stall-speed grading when the case gives none
+# (a plain wing section, common practice, no source; the grading only needs its size)
+
+
+def likely_unit(case, span_m, area_m2):
+    """(unit, reason): the unit in which the wing, read in metres, has a plausible span, a
+    plausible wing loading at the aircraft's gross mass and a 1-g stall speed (sea level,
+    DEFAULT_CL_MAX or the case's cl_max) no higher than the fastest load case's speed; among
+    several, the geometry stage's preference. Falls back to `guess_unit`'s answer."""
+    import math
+
+    from geomload.geometry.units import PLAUSIBLE_SPAN_M, PLAUSIBLE_WING_LOADING, UNITS, guess_unit
+    from geomload.units import G0, RHO0_ISA
+
+    aircraft = getattr(case, "aircraft", None)
+    mass = getattr(aircraft, "gross_mass_kg", None)
+    best = guess_unit(span_m, mass_kg=mass, area_m2=area_m2, read_in="m")
+    speeds = [float(lc.speed_m_s) for lc in getattr(case, "load_cases", ())]
+    if not mass or not speeds:
+        return best
+    cl_max = getattr(aircraft, "cl_max", None) or DEFAULT_CL_MAX
+    v_top = max(speeds)
+    for unit in ("mm", "m", "in", "cm", "ft"):  # the geometry stage's order of preference
+        f = UNITS[unit]
+        span, area = span_m * f, area_m2 * f * f
+        load = mass * G0 / area
+        v_stall = math.sqrt(2.0 * load / (RHO0_ISA * cl_max))
+        if (PLAUSIBLE_SPAN_M[0] <= span <= PLAUSIBLE_SPAN_M[1]
+                and PLAUSIBLE_WING_LOADING[0] <= load <= PLAUSIBLE_WING_LOADING[1]
+                and v_stall <= v_top):
+            return unit, (f"{span:.3g} m across if read in {unit}, wing loading {load:.3g} N/m^2 "
+                          f"at {mass:g} kg, stall speed {v_stall:.3g} m/s against load cases up "
+                          f"to {v_top:.3g} m/s")
+    return best
 
 
 def wing_messages(wing) -> list:

@@ -176,7 +176,7 @@ def test_inch_copy_of_the_sample_is_refused_not_run_at_142_m(tmp_path):
     line = _refused(_invoke(["run", case, "--out", tmp_path / "out"]), tmp_path / "out",
                     "pellin_in.stl", "geometry.units", "most likely in in ")
     # the 22 kg aircraft's wing loading decides among the plausible sizes
-    assert "wing loading" in line
+    assert "wing loading" in line and "stall speed" in line
 
 
 def test_inspect_shows_the_unit_guess_as_a_warning(tmp_path):
