@@ -321,3 +321,28 @@ def test_new_case_redirected_is_relative_to_the_redirect_target(tmp_path):
                            cwd=tmp_path, timeout=120)
     assert p.returncode == 0, p.stderr
     assert 'file = "../wing.stl"' in target.read_text() and "redirected" in p.stderr
+
+
+def test_winglet_run_writes_the_arc_length_in_stations_csv(tmp_path):
+    """Blended 90-degree winglets (tests/aircraftfactory.py): the span line's arc length s_m
+    reaches the lofted arc length at the tip (the path's own length, analytic)."""
+    from aircraftfactory import winglet_wing
+
+    tris, _ = winglet_wing()
+    _run_ok(_case(tmp_path, "winglet", tris), tmp_path / "out")
+    lines = [ln for ln in (tmp_path / "out" / "stations.csv").read_text().splitlines()
+             if ln and not ln.startswith("#")]
+    head = lines[0].split(",")
+    assert "s_m" in head
+    s = np.array([float(ln.split(",")[head.index("s_m")]) for ln in lines[1:]])
+    y = np.array([float(ln.split(",")[head.index("y_m")]) for ln in lines[1:]])
+    assert np.all(np.diff(s) > 0) and s[-1] > y[-1] + 0.1  # the winglet adds arc, not y
+    # the last station lies 0.5 % of the arc inside the tip of the 2.0356 m path (analytic)
+    check("arc length of the lofted span line (analytic)", "winglet: s_m at the last station (m)",
+          2.0356, s[-1], rel=0.02)
+    # the sample is a plain wing: its station table keeps its columns (no s_m)
+    from geomload.geometry.wing_summary import is_nonplanar
+    from geomload.geometry import read_wing
+
+    w = read_wing(SAMPLE / "pellin_half_wing_mm.stl", units="mm", n_stations=8)
+    assert not is_nonplanar(w.stations)
