@@ -54,6 +54,7 @@ def check_units(case, wing) -> None:
     mass = getattr(getattr(case, "aircraft", None), "gross_mass_kg", None)
     if mesh.units_assumed:
         unit, why = likely_unit(case, pf.span, pf.area)
+        why = f"read in m it would span {pf.span:.4g} m; {why}"
         raise GeometryError(unit_message(mesh.source, unit, why, UNITS_HINT))
     if not SPAN_TOO_SMALL_M <= pf.span <= SPAN_TOO_BIG_M:
         read_in = mesh.units if mesh.units in ("m", "cm", "mm", "in", "ft") else "m"

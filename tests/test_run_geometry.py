@@ -287,22 +287,23 @@ def test_side_and_signed_up_axis_keys_reach_the_reader(tmp_path):
     check(SAME_WING, "port half, side = port: span (m)", d["span"], r.planform.span, rel=0.005)
 
 
-def test_new_case_writes_paths_relative_to_the_case_file(tmp_path):
+def test_new_case_writes_paths_relative_to_the_case_file(tmp_path, monkeypatch):
     from geomload.config import read_case_file
 
+    monkeypatch.chdir(tmp_path)
     stb, _, _, _ = three_copies(n_chord=30, n_span=8)
     geo = _stl(tmp_path / 'we"ird \\ name.stl', stb.triangles * 1000.0)  # exported in mm
     (tmp_path / "cases").mkdir()
     out = tmp_path / "cases" / "wing.toml"
-    r = _invoke(["new-case", geo, "-o", out])
+    r = _invoke(["new-case", geo.name, "-o", "cases/wing.toml"])
     assert r.exit_code == 0, r.stderr
     assert "warning: units = \"mm\" guessed" in r.stderr and "relative to the case file" in r.stderr
     case = read_case_file(out)  # valid TOML whatever the name holds, and the path resolves
     assert Path(case.geometry.file) == geo.resolve() and case.geometry.units == "mm"
     before = out.read_bytes()
-    r = _invoke(["new-case", geo, "-o", out, "--units", "m"])
+    r = _invoke(["new-case", geo.name, "-o", out, "--units", "m"])
     assert r.exit_code == 1 and "already exists" in r.stderr and out.read_bytes() == before
-    r = _invoke(["new-case", geo, "--units", "in"])
+    r = _invoke(["new-case", geo.name, "--units", "in"])
     assert r.exit_code == 0 and 'units = "in"' in r.stdout and "current folder" in r.stderr
 
 
@@ -316,7 +317,7 @@ def test_new_case_redirected_is_relative_to_the_redirect_target(tmp_path):
     target = tmp_path / "cases" / "wing.toml"
     env = dict(os.environ, PYTHONPATH=str(Path(__file__).resolve().parent.parent))
     with open(target, "w") as f:
-        p = subprocess.run([sys.executable, "-m", "geomload.cli", "new-case", str(geo), "--units",
+        p = subprocess.run([sys.executable, "-m", "geomload.cli", "new-case", geo.name, "--units",
                             "m"], stdout=f, stderr=subprocess.PIPE, text=True, env=env,
                            cwd=tmp_path, timeout=120)
     assert p.returncode == 0, p.stderr

@@ -38,7 +38,10 @@ def _stdout_file():
 
 
 def case_relative_path(geometry, output=None):
-    """(geometry path relative to the case file's folder, phrase saying relative to what)."""
+    """(geometry path relative to the case file's folder, phrase saying relative to what); an
+    absolute path given stays absolute (it is right wherever the case file goes)."""
+    if os.path.isabs(geometry):
+        return os.path.normpath(geometry), "absolute, as given"
     geo = os.path.abspath(geometry)
     if output:
         base, where = os.path.dirname(os.path.abspath(output)), "relative to the case file's folder"
