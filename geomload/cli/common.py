@@ -81,8 +81,9 @@ def geometry_options(fn):
     """Options shared by every command that reads a CAD wing."""
     opts = [
         click.option("--units", type=click.Choice(["m", "cm", "mm", "in", "ft"]), default=None,
-                     help="Length unit of a unit-less mesh file (STL, OBJ, PLY...). Default m. "
-                          "STEP/IGES carry their own units."),
+                     help="Length unit of a unit-less mesh file (STL, OBJ, PLY, OFF); without it "
+                          "the mesh is read in m with a warning naming the likely unit. For "
+                          "STEP/IGES/GLB it overrides the file's own unit (with a warning)."),
         click.option("--span-axis", default=None, metavar="AXIS",
                      help="CAD axis along the span, e.g. y, +z, -x (default: detected)."),
         click.option("--up-axis", default=None, metavar="AXIS",
