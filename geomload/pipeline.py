@@ -1,7 +1,8 @@
 """The whole job of `geomload run`: case -> wing -> lattice -> trimmed cases -> loads ->
 envelope -> outputs. Orchestration only; each stage owns its physics:
 
-- geometry: read the CAD wing and cut its stations (:func:`geomload.geometry.load_wing`);
+- geometry: read the CAD wing and cut its stations (:func:`geomload.geometry.read_wing`, through
+  :mod:`geomload.run_geometry`, which also checks its unit against the aircraft);
 - aero: lattice, factorised models per Mach (:mod:`geomload.aero.models`), trim
   (:mod:`geomload.aero.trim`);
 - loads: grid (:mod:`geomload.loads.grid`), masses, one case's applied and integrated loads
@@ -15,7 +16,6 @@ One atmosphere (ISA, :func:`geomload.aero.atmosphere.density_and_sound`) serves 
 from __future__ import annotations
 
 import math
-import os
 import time
 import dataclasses
 from dataclasses import dataclass
@@ -53,20 +53,10 @@ class CaseContext:
 
 
 def _wing(case, progress, cache):
-    """(mesh, frame, stations, planform) of the case's geometry, from the cache when it holds
-    the same file (same path, size and modification time) read the same way."""
-    from geomload.geometry import load_wing
+    """(cache key, Wing) of the case's geometry: see :func:`geomload.run_geometry.case_wing`."""
+    from geomload.run_geometry import case_wing
 
-    g = case.geometry
-    st = os.stat(g.file)
-    key = ("wing", g, st.st_size, st.st_mtime_ns)
-    if cache is not None and key in cache:
-        return key, cache[key]
-    wing = load_wing(g.file, units=g.units, body=g.body, span_axis=g.span_axis, up_axis=g.up_axis,
-                     n_stations=g.n_stations, spacing=g.spacing, progress=progress)
-    if cache is not None:
-        cache[key] = wing
-    return key, wing
+    return case_wing(case, progress, cache)
 
 
 def solve_case(lc, ctx: CaseContext) -> CaseResult:
@@ -105,19 +95,16 @@ def compute(case, progress=None, cache=None, error_bars=False) -> RunResult:
     lattice specification, each factorised aero model under the lattice and its Mach. A second
     compute of the same geometry and lattice with the same cache reads and factorises nothing.
     """
-    from geomload.geometry.read import SPAN_TOO_BIG_M, SPAN_TOO_SMALL_M
+    from geomload.run_geometry import wing_messages
 
     progress = progress or no_progress
     if error_bars and cache is None:
         cache = {}  # the coarse lattices reuse the wing read and cut
     timings, messages = {}, []
     t0 = time.perf_counter()
-    wing_key, (mesh, frame, stations, planform) = _wing(case, progress, cache)
+    wing_key, wing = _wing(case, progress, cache)
+    mesh, frame, stations, planform = wing.mesh, wing.frame, wing.stations, wing.planform
     timings["geometry"] = time.perf_counter() - t0
-    if not SPAN_TOO_SMALL_M <= planform.span <= SPAN_TOO_BIG_M:
-        raise CaseError(f"{case.path}: geometry.units: the wing spans {planform.span:.4g} m when "
-                        f"read in {mesh.units}; give the file's unit (units = \"mm\", \"cm\", "
-                        "\"m\", \"in\" or \"ft\")")
     check_against_wing(case, stations)
     t1 = time.perf_counter()
     lattice_key, lattice = cached_lattice(case.lattice, case.moment_reference, stations,
@@ -150,11 +137,10 @@ def compute(case, progress=None, cache=None, error_bars=False) -> RunResult:
     messages += [Message("warning", w) for w in models.warnings]
     messages += [Message("warning", f"{r.name}: {r.stall_warning}") for r in results
                  if r.stall_warning]
-    messages += [Message.from_prefixed(n) for n in
-                 list(mesh.notes) + list(frame.notes) + list(stations.notes)]
+    messages += wing_messages(wing)
     messages += stall_messages(case, models, results[0].mach)
     result = RunResult(case_path=case.path, case_text=Path(case.path).read_text(errors="replace"),
-                       case=case, mesh=mesh, frame=frame, stations=stations, planform=planform,
+                       case=case, wing=wing, mesh=mesh, frame=frame, stations=stations, planform=planform,
                        lattice=lattice, cases=tuple(results), envelope=envelope, vn=vn,
                        alpha_sweep=sweep, messages=tuple(messages), timings=timings,
                        versions=_versions())

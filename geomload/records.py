@@ -25,7 +25,8 @@ def no_progress(stage: str, done: int, total: int) -> None:  # noqa: D401 - triv
 
 # --------------------------------------------------------------------------------------- geometry
 # The geometry records live with their stage; re-exported here so every old import keeps working.
-from .geometry.records import Planform, Stations, WingFrame, WingMesh  # noqa: E402,F401
+from .geometry.records import (GeometryWarning, Planform, Stations, Wing,  # noqa: E402,F401
+                               WingFrame, WingMesh)
 
 
 # ------------------------------------------------------------------------------------------- aero
@@ -170,7 +171,9 @@ class RunResult:
     without an [envelope]); alpha_sweep: tuple of (alpha_deg, CL) from the lattice at the first
     case's Mach; messages: tuple of Message (kind, text); timings: step -> seconds; versions:
     package -> version; error_bars: geomload.aero.convergence.ErrorBars (discretization error
-    of the root loads) or None when not estimated.
+    of the root loads) or None when not estimated; wing: the geometry stage's whole `Wing`
+    record (bodies, control surfaces, tailplane, warnings, exposed/gross planform), or None
+    when built without one.
     """
 
     case_path: str
@@ -189,8 +192,11 @@ class RunResult:
     timings: dict = field(default_factory=dict)
     versions: dict = field(default_factory=dict)
     error_bars: Optional["ErrorBars"] = None
+    wing: Optional[Wing] = None
 
     def __post_init__(self):
+        if self.wing is not None and not isinstance(self.wing, Wing):
+            raise TypeError("RunResult.wing: a geometry Wing record or None")
         object.__setattr__(self, "cases", tuple(self.cases))
         if not all(isinstance(c, CaseResult) for c in self.cases):
             raise TypeError("RunResult.cases: CaseResult records only")

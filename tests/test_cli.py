@@ -84,7 +84,9 @@ def test_exit_0_inspect_csv_and_json(corpus, tmp_path):
 def test_new_case_template_round_trip(corpus, tmp_path):
     """`geomload new-case GEOMETRY > case.toml` gives a case the tool accepts and runs."""
     res = _run(["new-case", corpus / "wing.stl"])
-    assert res.exit_code == 0 and res.stderr == ""
+    assert res.exit_code == 0, res.stderr
+    # the unit written is stated as a guess, the path as absolute (it was given so)
+    assert 'units = "m" guessed' in res.stderr and "absolute, as given" in res.stderr
     case = tmp_path / "case.toml"
     case.write_text(res.stdout)
     from geomload.case import load_case
@@ -118,7 +120,7 @@ def _boom(*a, **k):
 
 def test_exit_3_internal_error_points_to_a_report(corpus, monkeypatch):
     monkeypatch.delenv("GEOMLOAD_DEBUG", raising=False)
-    monkeypatch.setattr(geomload.geometry, "load_wing", _boom)
+    monkeypatch.setattr(geomload.geometry, "read_wing", _boom)
     r = _run(["inspect", corpus / "wing.stl"])
     assert r.exit_code == 3
     lines = [ln for ln in r.stderr.splitlines() if ln.strip()]
@@ -129,7 +131,7 @@ def test_exit_3_internal_error_points_to_a_report(corpus, monkeypatch):
 
 def test_debug_variable_lets_the_traceback_through(corpus, monkeypatch):
     monkeypatch.setenv("GEOMLOAD_DEBUG", "1")
-    monkeypatch.setattr(geomload.geometry, "load_wing", _boom)
+    monkeypatch.setattr(geomload.geometry, "read_wing", _boom)
     r = _run(["inspect", corpus / "wing.stl"])
     assert isinstance(r.exception, RuntimeError)
 
@@ -197,7 +199,7 @@ def test_exit_130_interrupted_run_leaves_no_folder(where, corpus, tmp_path, monk
 
 
 def test_exit_130_inspect(corpus, monkeypatch):
-    monkeypatch.setattr(geomload.geometry, "load_wing", _interrupt)
+    monkeypatch.setattr(geomload.geometry, "read_wing", _interrupt)
     r = _run(["inspect", corpus / "wing.stl"])
     assert r.exit_code == 130 and "interrupted" in r.stderr
 
@@ -207,7 +209,7 @@ _INJECT = """
 import sys, geomload.geometry as g
 def f(*a, **k):
     raise {exc}
-g.load_wing = f
+g.read_wing = f
 from geomload.cli import main
 main(sys.argv[1:])
 """

@@ -189,6 +189,7 @@ def _flat_wing(folder: Path, chord=0.3, semispan=1.5):
 FLAT_CASE = """
 [geometry]
 file = "flat.stl"
+units = "m"
 stations = 16
 [aircraft]
 gross_mass_kg = 20.0
@@ -378,6 +379,7 @@ ELLIPTIC_CASE = """
 title = "elliptic wing check"
 [geometry]
 file = "elliptic.stl"
+units = "m"
 stations = 30
 [aircraft]
 gross_mass_kg = 20.0

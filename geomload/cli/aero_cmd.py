@@ -8,7 +8,7 @@ import click
 
 from geomload.textsafe import printable
 
-from .common import echo_err, geometry_options, guarded, load_geometry, print_messages
+from .common import echo_err, geometry_options, guarded, print_messages, read_geometry, wing_messages
 
 
 @click.command()
@@ -27,7 +27,8 @@ from .common import echo_err, geometry_options, guarded, load_geometry, print_me
               help="Write the spanwise table as CSV.")
 @click.option("--json", "as_json", is_flag=True, help="Print the results as JSON.")
 @guarded
-def aero(geometry, units, span_axis, up_axis, n_stations, spacing, body, alpha, mach, panels_span,
+def aero(geometry, units, span_axis, up_axis, side, n_stations, spacing, body, alpha, mach,
+         panels_span,
          panels_chord, cl_max, check_convergence, csv_path, as_json):
     """Solve the vortex lattice on a CAD wing at one angle of attack."""
     import math
@@ -43,8 +44,8 @@ def aero(geometry, units, span_axis, up_axis, n_stations, spacing, body, alpha, 
     if panels_span < 1 or panels_chord < 1:
         raise AeroError(f"--panels-span/--panels-chord: must be positive, got "
                         f"{panels_span}/{panels_chord}")
-    mesh, frame, stations, planform = load_geometry(geometry, units, span_axis, up_axis,
-                                                    n_stations, spacing, body)
+    wing = read_geometry(geometry, units, span_axis, up_axis, n_stations, spacing, body, side)
+    mesh, stations = wing.mesh, wing.stations
     from geomload.aero.models import analyse_at_alpha
 
     r = analyse_at_alpha(stations, alpha, mach, panels_span, panels_chord, cl_max,
@@ -52,7 +53,7 @@ def aero(geometry, units, span_axis, up_axis, n_stations, spacing, body, alpha, 
     show = aero_json if as_json else aero_text
     out = show(r["solution"], r["stall"], r["convergence"], r["lattice"])
     click.echo(json.dumps(out, indent=2) if as_json else out)
-    print_messages(r["messages"])
+    print_messages(wing_messages(wing) + list(r["messages"]))
     if csv_path is not None:
         from geomload.export.tables import write_aero_csv
 

@@ -83,12 +83,18 @@ def geometry_options(fn):
     """Options shared by every command that reads a CAD wing."""
     opts = [
         click.option("--units", type=click.Choice(["m", "cm", "mm", "in", "ft"]), default=None,
-                     help="Length unit of a unit-less mesh file (STL, OBJ, PLY...). Default m. "
-                          "STEP/IGES carry their own units."),
+                     help="Length unit of a unit-less mesh file (STL, OBJ, PLY, OFF); without it "
+                          "the mesh is read in m with a warning naming the likely unit. For "
+                          "STEP/IGES/GLB it overrides the file's own unit (with a warning)."),
         click.option("--span-axis", default=None, metavar="AXIS",
                      help="CAD axis along the span, e.g. y, +z, -x (default: detected)."),
         click.option("--up-axis", default=None, metavar="AXIS",
-                     help="CAD axis pointing up (default: detected)."),
+                     help="CAD axis pointing up, optionally signed: z, +z, -y (-y: up is the "
+                          "CAD's negative y axis; a signed axis decides up versus down). "
+                          "Default: detected from the airfoil."),
+        click.option("--side", type=click.Choice(["port", "starboard"]), default=None,
+                     help="Side a half wing lies on in the file (a port half is mirrored onto "
+                          "the starboard wing frame). Default: detected."),
         click.option("--stations", "n_stations", type=int, default=20, show_default=True,
                      help="Number of cutting stations along the semi-span."),
         click.option("--spacing", type=click.Choice(["cosine", "uniform"]), default="cosine",
@@ -105,14 +111,30 @@ def geometry_options(fn):
 import_options = geometry_options  # the earlier name
 
 
-def load_geometry(geometry, units, span_axis, up_axis, n_stations, spacing, body):
-    """(mesh, frame, stations, planform) of a CAD wing read with the shared options."""
-    from geomload.geometry import load_wing
+def read_geometry(geometry, units, span_axis, up_axis, n_stations, spacing, body, side=None):
+    """The `Wing` record of a CAD wing read with the shared options (a unit-less mesh read
+    without --units is read in metres with a warning: the commands that print geometry do not
+    refuse it; `run` does)."""
+    from geomload.geometry import read_wing
 
     if n_stations is not None and n_stations < 3:
         raise GeomloadError(f"--stations: need at least 3 stations, got {n_stations}")
-    return load_wing(geometry, units=units, body=body, span_axis=span_axis, up_axis=up_axis,
-                     n_stations=n_stations, spacing=spacing, progress=progress_bar())
+    return read_wing(geometry, units=units, body=body, span_axis=span_axis, up_axis=up_axis,
+                     n_stations=n_stations, spacing=spacing, progress=progress_bar(), side=side,
+                     require_units=False, units_hint="give --units")
+
+
+def load_geometry(geometry, units, span_axis, up_axis, n_stations, spacing, body, side=None):
+    """(mesh, frame, stations, planform) of a CAD wing read with the shared options."""
+    w = read_geometry(geometry, units, span_axis, up_axis, n_stations, spacing, body, side)
+    return w.mesh, w.frame, w.stations, w.planform
+
+
+def wing_messages(wing) -> list:
+    """The geometry stage's warnings and notes of a `Wing` as Message records."""
+    from geomload.run_geometry import wing_messages as _messages
+
+    return _messages(wing)
 
 
 def geometry_messages(mesh, frame, stations) -> list:

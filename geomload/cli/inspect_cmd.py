@@ -8,8 +8,8 @@ import click
 
 from geomload.textsafe import printable
 
-from .common import (echo_err, geometry_messages, geometry_options, guarded, load_geometry,
-                     print_messages)
+from .common import (echo_err, geometry_options, guarded, print_messages, read_geometry,
+                     wing_messages)
 
 
 @click.command()
@@ -21,8 +21,8 @@ from .common import (echo_err, geometry_messages, geometry_options, guarded, loa
 @click.option("--png", "png_path", type=click.Path(dir_okay=False), default=None,
               help="Render the mesh with the cut stations overlaid (offscreen).")
 @guarded
-def inspect(geometry, units, span_axis, up_axis, n_stations, spacing, body, csv_path, as_json,
-            png_path):
+def inspect(geometry, units, span_axis, up_axis, side, n_stations, spacing, body, csv_path,
+            as_json, png_path):
     """Read a CAD wing, detect its frame and print its stations and planform."""
     from geomload.export.atomic import check_target
     from geomload.report_text import inspect_json, inspect_text
@@ -30,13 +30,20 @@ def inspect(geometry, units, span_axis, up_axis, n_stations, spacing, body, csv_
     for out in (csv_path, png_path):  # each target is refused before any work
         if out is not None:
             check_target(out, [geometry])
-    mesh, frame, stations, planform = load_geometry(geometry, units, span_axis, up_axis,
-                                                    n_stations, spacing, body)
+    wing = read_geometry(geometry, units, span_axis, up_axis, n_stations, spacing, body, side)
+    mesh, frame, stations, planform = wing.mesh, wing.frame, wing.stations, wing.planform
+    messages = wing_messages(wing)
     if as_json:
-        click.echo(json.dumps(inspect_json(mesh, frame, stations, planform), indent=2))
+        from geomload.run_geometry import planform_summary
+
+        out = inspect_json(mesh, frame, stations, planform)
+        out["planform_gross_exposed"] = planform_summary(wing)
+        out["warnings"] = [m.text for m in messages if m.kind == "warning"]
+        out["notes"] = [m.text for m in messages if m.kind == "note"]
+        click.echo(json.dumps(out, indent=2))
     else:
         click.echo(inspect_text(mesh, frame, stations, planform))
-    print_messages(geometry_messages(mesh, frame, stations))
+    print_messages(messages)
     if csv_path is not None:
         from geomload.export.tables import write_stations_csv
 

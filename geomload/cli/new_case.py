@@ -1,4 +1,4 @@
-"""`geomload new-case`: print a commented case-file template for a CAD wing."""
+"""`geomload new-case`: a commented case-file template for a CAD wing, printed or written."""
 
 from __future__ import annotations
 
@@ -6,47 +6,50 @@ import click
 
 from .common import echo_err, guarded
 
-PLAUSIBLE_EXTENT_M = (0.2, 100.0)  # a wing (model to airliner) spans this much, in metres
-
 
 @click.command("new-case")
 @click.argument("geometry", type=click.Path(dir_okay=False))
+@click.option("--units", type=click.Choice(["m", "cm", "mm", "in", "ft"]), default=None,
+              help="Length unit of a unit-less mesh (STL, OBJ, PLY, OFF), written as "
+                   "`geometry.units`. Default: the likely unit, written with a warning to check it.")
+@click.option("-o", "--output", "output", type=click.Path(dir_okay=False), default=None,
+              help="Write the case file here (refused if it exists) instead of printing it; the "
+                   "geometry path is written relative to this file's folder.")
 @guarded
-def new_case(geometry):
-    """Print a commented case-file template for GEOMETRY (redirect it to a .toml file)."""
+def new_case(geometry, units, output):
+    """Print (or write with -o) a commented case-file template for GEOMETRY.
+
+    The geometry path in it is relative to the case file: to the -o file's folder, to the file
+    standard output is redirected to, or else to the current folder (the command says which).
+    """
     import os
 
     from geomload.config.template import case_template
     from geomload.errors import InputError
 
+    from .new_case_paths import case_relative_path, likely_units, write_new_file
+
     if not os.path.isfile(geometry):
         raise InputError(f"{geometry}: no such geometry file"
                          + (" (it is a folder)" if os.path.isdir(geometry) else ""))
-    guess = guess_units(geometry)
-    text = case_template(geometry, units=guess)
-    if guess:
-        echo_err(f"geomload: note: units = \"{guess}\" guessed from the size of the mesh; check it")
-    click.echo(text, nl=False)
+    guessed = None
+    if units is None:
+        units, guessed = likely_units(geometry)
+    rel, where = case_relative_path(geometry, output)
+    text = case_template(rel, units=units)
+    if guessed:
+        echo_err(f"geomload: warning: units = \"{units}\" guessed ({guessed}); check it, or give "
+                 "--units")
+    if output:
+        write_new_file(output, text, inputs=[geometry])
+        echo_err(f"geomload: wrote {output}; geometry path {rel!r} is {where}")
+    else:
+        click.echo(text, nl=False)
+        echo_err(f"geomload: note: geometry path {rel!r} is {where}")
 
 
 def guess_units(geometry):
-    """The length unit that makes a unit-less mesh a plausible wing (PLAUSIBLE_EXTENT_M across),
-    or None when metres already are, or the file carries its own units, or it cannot be read."""
-    from geomload.geometry.read import read_mesh
-    from geomload.units import LENGTH_UNITS
+    """The likely unit of a unit-less mesh, or None (a unit-carrying file, or unreadable)."""
+    from .new_case_paths import likely_units
 
-    try:
-        mesh = read_mesh(geometry)
-    except Exception:  # noqa: BLE001 - a guess only; `inspect`/`run` report the real problem
-        return None
-    if mesh.units not in ("m",):
-        return None
-    t = mesh.triangles.reshape(-1, 3)
-    extent = float((t.max(axis=0) - t.min(axis=0)).max())
-    lo, hi = PLAUSIBLE_EXTENT_M
-    if lo <= extent <= hi:
-        return None
-    for unit in ("mm", "cm", "in", "ft"):
-        if lo <= extent * LENGTH_UNITS[unit] <= hi:
-            return unit
-    return None
+    return likely_units(geometry)[0]

@@ -122,14 +122,17 @@ def _geometry(t: _Table, base: Path) -> GeometrySpec:
     body = t.get("body", int)
     if body is not None and body < 1:
         t.fail("body", f"bodies are numbered from 1, got {body}")
+    from .geometry_keys import axis_key
+
     return GeometrySpec(
         file=str(p),
-        units=t.get("units", str),
-        span_axis=t.get("span_axis", str),
-        up_axis=t.get("up_axis", str),
+        units=t.choice("units", ("m", "cm", "mm", "in", "ft"), fold=str),
+        span_axis=axis_key(t, "span_axis"),
+        up_axis=axis_key(t, "up_axis"),
         n_stations=n_stations,
         spacing=t.choice("spacing", ("cosine", "uniform"), "cosine"),
         body=body,
+        side=t.choice("side", ("port", "starboard")),
     )
 
 

@@ -38,7 +38,10 @@ def _finite(where: str, **values) -> None:
 @dataclass(frozen=True)
 class GeometrySpec:
     """Where the CAD wing is and how to read it (file: absolute path; n_stations: spanwise cuts
-    on one semi-span; body: 1-based body number in a multi-body file, None = the largest)."""
+    on one semi-span; body: 1-based body number in a multi-body file, None = the largest;
+    up_axis: CAD axis pointing up, optionally signed ("z", "+z", "-y"): a signed one decides up
+    versus down; side: "port" or "starboard", the side a half wing lies on in the file, None =
+    detected)."""
 
     file: str
     units: Optional[str] = None
@@ -47,8 +50,11 @@ class GeometrySpec:
     n_stations: int = 20
     spacing: str = "cosine"
     body: Optional[int] = None
+    side: Optional[str] = None
 
     def __post_init__(self):
+        if self.side not in (None, "port", "starboard"):
+            raise CaseError(f"geometry.side: {self.side!r} is not one of 'port', 'starboard'")
         if self.n_stations < 3:
             raise CaseError(f"geometry.stations: need at least 3, got {self.n_stations}")
         if self.spacing not in SPACINGS:

@@ -83,7 +83,8 @@ def write_stations_csv(path, stations, frame=None, source="", units="", inputs=(
     """Write the cut stations (wing frame, one semi-span, root to tip).
 
     Columns: y_m, x_le_m, z_le_m, x_te_m, z_te_m, chord_m, twist_deg (nose-up positive),
-    thickness_ratio, x_thickness_c, camber_ratio, x_camber_c, dihedral_deg, x_qc_m, z_qc_m.
+    thickness_ratio, x_thickness_c, camber_ratio, x_camber_c, dihedral_deg, x_qc_m, z_qc_m, and
+    s_m (arc length along the span line) when the span line turns (`wing_summary.is_nonplanar`).
     """
     s = stations
     head = [f"geomload {__version__} stations", CAUTION, f"source: {source} (read in {units})",
@@ -95,6 +96,11 @@ def write_stations_csv(path, stations, frame=None, source="", units="", inputs=(
             "x_thickness_c": s.x_thickness, "camber_ratio": s.camber_ratio,
             "x_camber_c": s.x_camber, "dihedral_deg": s.dihedral_deg, "x_qc_m": s.x_qc,
             "z_qc_m": s.z_qc}
+    from geomload.geometry.wing_summary import is_nonplanar
+
+    if is_nonplanar(s):  # a turning span line: the arc length along it, from y = 0
+        cols["s_m"] = s.s_m
+        head.append("s_m: arc length along the quarter-chord span line (y-z plane) from y = 0")
     return write_text_atomic(path, _csv(head, cols), inputs)
 
 
@@ -231,6 +237,10 @@ def summary(run) -> dict:
            "warnings": list(run.warnings), "timings_s": dict(run.timings),
            "versions": dict(run.versions),
            "null_means": "a number that is not finite (NaN or infinite) is written as null"}
+    if getattr(run, "wing", None) is not None:  # gross and exposed planform, span on the surface
+        from geomload.geometry.wing_summary import gross_and_exposed
+
+        out["planform_gross_exposed"] = gross_and_exposed(run.wing)
     if run.envelope is not None:
         e = ea.table(run.envelope)
         r = np.flatnonzero(np.asarray(e["rows"], bool))  # the reported rows (rib stations or all)

@@ -37,8 +37,9 @@ def station_levels(y0, y1, n, spacing):
 def cut_stations(mesh, frame, n=20, spacing="cosine", progress=None, index=None) -> Stations:
     """Cut n stations along the starboard semi-span and measure each airfoil section.
 
-    Stations run from the root (inset 0.5 % of the semi-span from a root cap; y = 0 for a full
-    wing) to 0.5 % inside the tip. Stations whose cut is not a closed loop are skipped with a
+    Stations run from 0.5 % of the semi-span outboard of the root (of the root cap of a half
+    wing, of the plane of symmetry of a full one: the same levels for both, so that a half and a
+    full-span export of one wing give the same stations and loads) to 0.5 % inside the tip. Stations whose cut is not a closed loop are skipped with a
     note; fewer than 3 good stations, a median section thicker than 35 % of its chord, a station
     twisted more than 45 deg, or a semi-span under half the mean chord (AR < 1) raise
     GeometryError. Lengths m, angles deg, wing frame (see `records.Stations`).
@@ -61,7 +62,7 @@ def cut_stations(mesh, frame, n=20, spacing="cosine", progress=None, index=None)
     if semispan <= 0:
         raise GeometryError(f"{mesh.source}: no geometry on the starboard side of the root plane")
     y_root = float(getattr(frame, "y_root", 0.0) or 0.0)  # an exposed wing's root off y = 0
-    y0 = 0.0 if frame.full_span else y_root + INSET * (semispan - y_root)
+    y0 = y_root + INSET * (semispan - y_root)  # half and full wings alike
     ys = station_levels(y0, semispan - INSET * (semispan - y_root), int(n), spacing)
     progress("cut", 0, len(ys))
     cuts = slice_indexed(index, frame.rotation, frame.origin, ys)

@@ -33,6 +33,11 @@ def read_wing(path, units=None, body=None, span_axis=None, up_axis=None, n_stati
     frame, index = detect_frame_indexed(wing_mesh, span_axis=span_axis, up_axis=up_axis, side=side,
                                         index=index)
     stations = _cut(wing_mesh, frame, n_stations, spacing, progress, index)
+    if frame.y_root > 0.0:  # exposed wing: the origin of the wing carried through to y = 0
+        from .exposed import carried_through_frame
+
+        frame = carried_through_frame(frame, stations)
+        stations = _cut(wing_mesh, frame, n_stations, spacing, progress, index)
     controls, bodies, tail, extra, side_y = (), (), None, [], None
     if found is not None:
         stations, controls, tail, bodies, extra = _other_bodies(found, frame, stations, n_stations)
