@@ -97,7 +97,8 @@ def write_all(run, folder, inputs=(), render=True, progress=None, options=None,
             files.append(v.relative_to(f))
     if has_vn and isinstance(images.get("vn"), Path):
         files.append(images["vn"].with_suffix(".svg").relative_to(f))
-    rec(report.write_report(f / "report.html", run, images, options, run_time_s, inputs))
+    frag = report.view3d_fragment(run, surface) if render else None
+    rec(report.write_report(f / "report.html", run, images, options, run_time_s, inputs, frag))
     tick()
     images = {k: (v.relative_to(f) if isinstance(v, Path) else v) for k, v in images.items()}
     return {"files": files, "images": images, "loads": loads}

@@ -185,6 +185,35 @@ def plot_loads(run):
     return fig
 
 
+INPLANE = (("inplane_shear_N", "inplane_shear", "in-plane shear (N)"),
+           ("inplane_bending_Nm", "inplane_bending", "in-plane bending (N·m)"))
+INPLANE_SIGNS = ("In-plane (chordwise) loads, limit; shear positive aft (+x), "
+                 "bending positive when the tip is pushed aft")
+
+
+def plot_inplane(run):
+    """In-plane (chordwise) shear and bending against span, with their sign convention."""
+    fig, axes = _figure(2, 1, size=(8, 6), margins=(0.12, 0.97, 0.09, 0.93), sharex=True)
+    env = ea.table(run.envelope) if run.envelope is not None else None
+    many = len(run.cases) > MAX_CASE_LINES
+    for ax, (attr, q, label) in zip(axes, INPLANE):
+        for k, c in enumerate(run.cases):
+            kw = {"color": "0.7", "lw": 0.6} if many else {"lw": 1.2}
+            lab = (f"{len(run.cases)} cases, limit" if k == 0 else None) if many else mpl_text(c.name)
+            ax.plot(c.loads.y, getattr(c.loads, attr), label=lab, **kw)
+        if env is not None:
+            for side in ("max", "min"):
+                ax.plot(env["y"], env[f"{q}_{side}"], "r-", lw=2.0,
+                        label="envelope, limit" if side == "max" else None)
+        ax.set_ylabel(label)
+        ax.axhline(0, color="0.5", lw=0.5)
+        ax.grid(alpha=0.3)
+    axes[0].legend(fontsize=7, ncol=2, loc="upper right")
+    axes[0].set_title(INPLANE_SIGNS, fontsize=9)
+    axes[-1].set_xlabel("y, spanwise (m)")
+    return fig
+
+
 def plot_vn(vn):
     """The V-n diagram(s): boundary curves and the labelled design points (one colour set and
     line style per diagram when several masses / altitudes are given)."""
@@ -222,7 +251,7 @@ def build_figures(run) -> dict:
     """name -> Figure (or the Exception that stopped it, so the report can say so)."""
     makers = {"planform": lambda: plot_planform(run.stations, run.planform, run.lattice),
               "spanwise": lambda: plot_spanwise(run), "cl_alpha": lambda: plot_cl_alpha(run),
-              "loads": lambda: plot_loads(run)}
+              "loads": lambda: plot_loads(run), "inplane": lambda: plot_inplane(run)}
     if run.vn is not None:
         makers["vn"] = lambda: plot_vn(run.vn)
     out = {}
