@@ -15,7 +15,7 @@ def run():
 
 def test_every_axis_has_a_label_with_units(run):
     figs = plots.build_figures(run)
-    assert set(figs) == {"planform", "spanwise", "cl_alpha", "loads", "vn"}
+    assert set(figs) == {"planform", "spanwise", "cl_alpha", "loads", "inplane", "vn"}
     for name, fig in figs.items():
         assert not isinstance(fig, Exception), (name, fig)
         for ax in fig.axes:

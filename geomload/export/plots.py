@@ -210,7 +210,9 @@ def plot_inplane(run):
         ax.grid(alpha=0.3)
     axes[0].legend(fontsize=7, ncol=2, loc="upper right")
     axes[0].set_title(INPLANE_SIGNS, fontsize=9)
-    axes[-1].set_xlabel("y, spanwise (m)")
+    for ax in axes:
+        ax.set_xlabel("y, spanwise (m)")
+    axes[0].xaxis.label.set_visible(False)
     return fig
 
 
