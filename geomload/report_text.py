@@ -39,8 +39,8 @@ def stations_rows(stations) -> list:
     return [
         {"y_m": _f(s.y[i], 6), "x_le_m": _f(s.x_le[i], 6), "z_le_m": _f(s.z_le[i], 6),
          "chord_m": _f(s.chord[i], 6), "twist_deg": _f(s.twist_deg[i]),
-         "thickness_ratio": _f(s.thickness_ratio[i]), "x_thickness": _f(s.x_thickness[i]),
-         "camber_ratio": _f(s.camber_ratio[i], 5), "x_camber": _f(s.x_camber[i]),
+         "thickness_ratio": _f(s.thickness_ratio[i]), "x_thickness_c": _f(s.x_thickness[i]),
+         "camber_ratio": _f(s.camber_ratio[i], 5), "x_camber_c": _f(s.x_camber[i]),
          "dihedral_deg": _f(s.dihedral_deg[i])}
         for i in range(s.n)
     ]
@@ -84,6 +84,11 @@ def inspect_text(mesh, frame, stations, planform) -> str:
     return "\n".join(lines)
 
 
+# the stall-onset keys of `aero --json`, with their units (the same words as the console)
+STALL_KEYS = {"first_station_y": "first_station_y_m", "alpha_at_onset": "alpha_at_onset_deg",
+              "CL_at_onset": "CL_at_onset", "cl_max": "section_cl_max"}
+
+
 def aero_json(sol, stall, conv, lattice) -> dict:
     out = {
         "alpha_deg": _f(sol.alpha_deg, 6), "mach": _f(sol.mach, 6),
@@ -93,7 +98,7 @@ def aero_json(sol, stall, conv, lattice) -> dict:
         "S_ref_m2": _f(lattice.s_ref, 6), "c_ref_m": _f(lattice.c_ref, 6),
         "b_ref_m": _f(lattice.b_ref, 6),
         "panels": int(lattice.n_span * lattice.n_chord),
-        "stall": {k: (None if v is None else (_f(v, 5) if isinstance(v, (int, float)) else v))
+        "stall": {STALL_KEYS.get(k, k): (None if v is None else (_f(v, 5) if isinstance(v, (int, float)) else v))
                   for k, v in (stall or {}).items()},
         "strips": [
             {"y_m": _f(sol.y[i], 6), "chord_m": _f(sol.chord[i], 6), "cl": _f(sol.cl[i], 5),

@@ -37,7 +37,7 @@ def test_all_outputs_present(rundir):
     for rel in res["files"]:
         assert (out / rel).is_file(), rel
     for name in ("stations.csv", "summary.json", "envelope.csv", "vn.csv", "lattice.vtp",
-                 "load_axis.vtp", "surface.vtp", "report.html", "plots/vn.svg", "plots/loads.png"):
+                 "spar_axis.vtp", "surface.vtp", "report.html", "plots/vn.svg", "plots/loads.png"):
         assert (out / name).is_file(), name
     assert len(list((out / "loads").glob("*.csv"))) == 3
     assert json.loads((out / "summary.json").read_text())["caution"] == CAUTION

@@ -14,7 +14,7 @@ from .common import guarded
               help="Render offscreen to this PNG instead of opening a window.")
 @guarded
 def view(run_dir, case_name, screenshot):
-    """Open the CAD surface, lattice and load axis of a finished run in a 3D window."""
+    """Open the CAD surface, lattice and spar axis of a finished run in a 3D window."""
     from geomload.export.render import view as _view
 
     _view(run_dir, case=case_name, screenshot=screenshot)

@@ -5,7 +5,7 @@ Heavy libraries (matplotlib, pyvista, scipy) are imported inside the functions t
 Run folder layout written by `write_all`::
 
     stations.csv  summary.json  envelope.csv  vn.csv  loads/<case>.csv
-    lattice.vtp  load_axis.vtp  surface.vtp  report.html  geomload-run.json (the run marker,
+    lattice.vtp  spar_axis.vtp  surface.vtp  report.html  geomload-run.json (the run marker,
     written by run_folder.OutputDir on commit)
     plots/planform.png spanwise.png cl_alpha.png loads.png vn.png vn.svg
           surface_dcp.png lattice_overlay.png spar_bending.png

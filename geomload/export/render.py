@@ -159,7 +159,7 @@ def render_lattice_overlay(run, path, inputs=(), surface=None, image_only=False)
 
 
 def render_spar_bending(run, path, case=None, inputs=(), surface=None, image_only=False):
-    """The spar line as a tube coloured by the bending moment (N m), over the faint surface."""
+    """The spar axis as a tube coloured by the bending moment (N m) inside the translucent wing."""
     cr = ea.find_case(run, case)
     line = gvtk.spar_line(run, cr)
     import pyvista as pv
@@ -275,7 +275,9 @@ def has_display() -> bool:
 
 
 def view(run_dir, case=None, screenshot=None):
-    """Show a run's surface (delta-Cp), lattice and load axis (bending) in a window.
+    """Show a run's surface (the case's pressure jump), lattice and spar axis (bending) in a
+    window. A run folder written before the spar axis file was renamed (load_axis.vtp) is read
+    too.
 
     Check boxes at the bottom left switch each layer on and off. With `screenshot` (a PNG path)
     the scene is rendered offscreen into that file instead, and its path is returned.
@@ -283,7 +285,9 @@ def view(run_dir, case=None, screenshot=None):
     import pyvista as pv
 
     d = Path(run_dir)
-    files = {k: d / f"{k}.vtp" for k in ("surface", "lattice", "load_axis")}
+    files = {k: d / f"{k}.vtp" for k in ("surface", "lattice", "spar_axis")}
+    if not files["spar_axis"].is_file() and (d / "load_axis.vtp").is_file():
+        files["spar_axis"] = d / "load_axis.vtp"
     missing = [str(f) for f in files.values() if not f.is_file()]
     if missing:
         raise InputError(f"{d}: not a geomload run folder (missing {', '.join(missing)})")
@@ -310,7 +314,7 @@ def view(run_dir, case=None, screenshot=None):
     if not unit:
         bar_s["title"] = title
     surf.cell_data["shown"] = vals
-    ax = data["load_axis"]
+    ax = data["spar_axis"]
     span = float(np.ptp(ax.points[:, 1])) or 1.0
     bk = f"bending_Nm_{key}"
     tube = ax.tube(radius=0.015 * span, n_sides=24)
@@ -337,7 +341,7 @@ def view(run_dir, case=None, screenshot=None):
             return _shoot(p, screenshot, inputs=list(files.values()))
         except OSError as exc:
             raise OutputError(f"{screenshot}: cannot write the screenshot ({exc})") from None
-    for i, (a, label) in enumerate(zip(actors, ("surface", "lattice", "load axis"))):
+    for i, (a, label) in enumerate(zip(actors, ("surface", "lattice", "spar axis"))):
         p.add_checkbox_button_widget(a.SetVisibility, value=True, position=(10, 10 + 45 * i),
                                      size=35, color_on="steelblue")
         p.add_text(label, position=(52, 18 + 45 * i), font_size=9, color="black")

@@ -39,7 +39,7 @@ CAPTIONS = {
     "inplane": "In-plane (chordwise) shear and bending along the span, limit: shear positive aft "
                "(+x, the drag direction), bending positive when the tip is pushed aft.",
     "surface_dcp": "CAD surface coloured by delta-Cp (lower minus upper) of the critical case.",
-    "spar_bending": "Bending moment along the spar line (critical case).",
+    "spar_bending": "Bending moment as colour on the spar axis (critical case), inside the translucent wing.",
     "vn": "V-n diagram with the design points labelled.",
 }
 SECTION_IMAGES = {"geometry": ("planform", "lattice_overlay", "stations"),

@@ -170,6 +170,16 @@ def _num(x):
     return x if math.isfinite(x) else None
 
 
+def planform_keys(p) -> dict:
+    """The planform under the key names of `inspect --json` (each carries its unit)."""
+    return {"area_m2": _num(p.area), "span_m": _num(p.span), "aspect_ratio": _num(p.aspect_ratio),
+            "taper": _num(p.taper), "root_chord_m": _num(p.root_chord),
+            "tip_chord_m": _num(p.tip_chord), "mac_m": _num(p.mac), "x_mac_le_m": _num(p.x_mac_le),
+            "y_mac_m": _num(p.y_mac), "x_mac_quarter_chord_m": _num(p.x_mac_qc),
+            "sweep_le_deg": _num(p.sweep_le_deg), "sweep_quarter_chord_deg": _num(p.sweep_qc_deg),
+            "dihedral_deg": _num(p.dihedral_deg), "washout_deg": _num(p.washout_deg)}
+
+
 def summary(run) -> dict:
     """The run summary as plain JSON-able data (SI units; key names carry them)."""
     p = run.planform
@@ -199,11 +209,7 @@ def summary(run) -> dict:
                         "span_axis": run.frame.span_axis, "up_axis": run.frame.up_axis,
                         "full_span": bool(run.frame.full_span),
                         "asymmetry": _num(run.frame.asymmetry)},
-           "planform": {k: _num(getattr(p, k)) for k in (
-               "area", "span", "aspect_ratio", "taper", "root_chord", "tip_chord", "mac",
-               "x_mac_le", "y_mac", "x_mac_qc", "sweep_le_deg", "sweep_qc_deg", "dihedral_deg",
-               "washout_deg")},
-           "planform_units": "m, m^2, deg", "cases": cases, "envelope": None,
+           "planform": planform_keys(p), "cases": cases, "envelope": None,
            "warnings": list(run.warnings), "timings_s": dict(run.timings),
            "versions": dict(run.versions),
            "null_means": "a number that is not finite (NaN or infinite) is written as null"}
