@@ -61,3 +61,24 @@ def test_planform_and_station_names_agree_with_inspect(written):
     st_cols = set(_header(out / "stations.csv"))
     assert set(ins["stations"][0]) <= st_cols, set(ins["stations"][0]) - st_cols
     assert not (out / "load_axis.vtp").exists() and (out / "spar_axis.vtp").is_file()
+
+
+def test_loads_csv_carries_strip_cl_and_cl_c(written):
+    import numpy as np
+
+    from validation import check
+
+    run, out = written
+    cr = run.cases[1]
+    path = next(p for p in (out / "loads").glob("*.csv") if "3.8" in p.name)
+    rows = list(csv.DictReader(ln for ln in path.read_text(encoding="utf-8").splitlines()
+                               if not ln.startswith("#")))
+    y = np.array([float(r["y_m"]) for r in rows])
+    clc = np.array([float(r["cl_c_m"]) for r in rows])
+    cl = np.array([float(r["cl"]) for r in rows])
+    chord = np.array([float(r["chord_m"]) for r in rows])
+    np.testing.assert_allclose(cl * chord, clc, rtol=1e-6)
+    # definition of CL: both sides of the running lift over q integrate to CL S
+    lift = 2 * float(np.sum(0.5 * (clc[1:] + clc[:-1]) * np.diff(y)))
+    check("definition: CL = L / (q S)", "2 x integral of cl*c dy over CL S (-)",
+          expected=1.0, measured=lift / (cr.aero.CL * run.lattice.s_ref), rel=0.03)

@@ -112,11 +112,19 @@ def write_loads_csv(path, case_result, caution=CAUTION, frame=None, inputs=()):
             case_line(cr), f"ultimate factor: {uf:g} (ultimate = factor x limit)", SIGNS,
             *frame_lines(frame),
             "units: y m; distributed loads N/m; distributed moments N m/m; shear N; moments N m",
-            "inertia_N_per_m: n g m'(y), positive down (weight relief); pitch about the spar axis"]
+            "inertia_N_per_m: n g m'(y), positive down (weight relief); pitch about the spar axis",
+            "cl_c_m: lift_N_per_m / q (section lift coefficient x chord, m); cl: cl_c_m / chord_m"]
     if cr.stall_warning:
         head.append(f"warning: {cr.stall_warning}")
     head.append(f"equilibrium residual (relative): {cr.residual:.3g}")
-    cols = {"y_m": L.y, "lift_N_per_m": L.lift_N_per_m, "drag_N_per_m": L.drag_N_per_m,
+    q = float(cr.q_pa)
+    chord = (np.asarray(L.chord_m, float) if L.chord_m is not None
+             else np.interp(L.y, cr.aero.y, cr.aero.chord))
+    cl_c = np.asarray(L.lift_N_per_m, float) / q if q > 0 else np.full(np.size(L.y), np.nan)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        cl = np.where(chord > 0, cl_c / np.where(chord > 0, chord, 1.0), np.nan)
+    cols = {"y_m": L.y, "lift_N_per_m": L.lift_N_per_m, "cl_c_m": cl_c, "cl": cl,
+            "chord_m": chord, "drag_N_per_m": L.drag_N_per_m,
             "pitch_Nm_per_m": L.pitch_Nm_per_m, "inertia_N_per_m": L.inertia_N_per_m,
             "schrenk_lift_N_per_m": L.schrenk_lift_N_per_m, "shear_N": L.shear_N,
             "bending_Nm": L.bending_Nm, "torsion_Nm": L.torsion_Nm,
