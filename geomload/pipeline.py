@@ -112,7 +112,7 @@ def compute(case, progress=None, cache=None) -> RunResult:
     from geomload.geometry.read import SPAN_TOO_BIG_M, SPAN_TOO_SMALL_M
 
     progress = progress or no_progress
-    timings, messages = {}, []
+    timings, messages = {}, [Message("warning", w) for w in getattr(case, "warnings", ())]
     t0 = time.perf_counter()
     wing_key, (mesh, frame, stations, planform) = _wing(case, progress, cache)
     timings["geometry"] = time.perf_counter() - t0

@@ -208,6 +208,7 @@ class Case:
     lattice: LatticeSpec
     ultimate_factor: float = 1.5
     load_factor_axis: str = "body"
+    warnings: tuple = ()  # what the case file should say differently (old key names)
 
     def __post_init__(self):
         if self.load_factor_axis not in LOAD_FACTOR_AXES:
