@@ -80,3 +80,10 @@ def test_unit_text_errors_name_the_key(tmp_path, aircraft, speed, msg):
     with pytest.raises(CaseError) as exc:
         read(tmp_path, aircraft=aircraft, speed=speed)
     assert msg in str(exc.value) and "\n" not in str(exc.value)
+
+
+def test_batch_variant_of_a_value_with_its_unit_keeps_the_unit():
+    from geomload.batch.variants import _typed
+
+    assert _typed("load_case[1].speed", "40", "30 kt", 40) == "40 kt"
+    assert _typed("title", "x", "QM-36", "x") == "x"

@@ -131,11 +131,16 @@ def _planform_table(p) -> str:
 
 def _aero_table(run) -> str:
     stalled = rt.stalled_names(run)
-    rows = [(rt.case_label(c.name, stalled), c.aero.alpha_deg, c.aero.CL, c.aero.CDi, rt.e_text(c),
-             c.aero.Cm, c.mach, c.aero.CL_alpha_per_rad) for c in run.cases]
-    return (_table(("case", "alpha (deg)", "CL", "CDi", "e", "Cm", "Mach", "CL_alpha (1/rad)"),
-                   rows, row_class=_stall_class(stalled))
-            + "<p>e (span efficiency) is left blank (—) where the case carries no lift (n = 0).</p>")
+    from geomload.report_text import case_cn
+
+    rows = [(rt.case_label(c.name, stalled), c.aero.alpha_deg, c.aero.CL, case_cn(run, c),
+             c.aero.CDi, rt.e_text(c), c.aero.Cm, c.mach, c.aero.CL_alpha_per_rad)
+            for c in run.cases]
+    return (_table(("case", "alpha (deg)", "CL", "CN", "CDi", "e", "Cm", "Mach",
+                    "CL_alpha (1/rad)"), rows, row_class=_stall_class(stalled))
+            + "<p>CN: the wing's normal-force coefficient (force normal to the root chord line "
+              "over q S), compared with the V-n diagram's maximum. e (span efficiency) is left "
+              "blank (—) where the case carries no lift (n = 0).</p>")
 
 
 def _stall_class(stalled):
