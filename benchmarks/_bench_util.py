@@ -212,8 +212,8 @@ def generated_cases(n: int) -> str:
         lo, hi = (-0.8, 2.0) if v < 32.0 else (-1.5, 3.5)
         nz = lo + (hi - lo) * ((i * 17) % 53) / 52.0
         fuel = "\nfuel_fraction = 0.6" if i % 5 == 4 else ""
-        blocks.append(f'[[load_case]]\nname = "gen {i + 1:05d}"\nspeed = {v:.3f}\nspeed_unit = "m/s"\n'
-                      f'speed_type = "EAS"\naltitude = {h:.1f}\naltitude_unit = "m"\n'
+        blocks.append(f'[[load_case]]\nname = "gen {i + 1:05d}"\nspeed = "{v:.3f} m/s"\n'
+                      f'speed_type = "EAS"\naltitude = "{h:.1f} m"\n'
                       f'load_factor = {nz:.4f}{fuel}\n')
     return "\n".join(blocks)
 

@@ -39,6 +39,15 @@ from geomload.records import CaseResult, Message, RunResult, no_progress
 SWEEP_DEG = np.arange(-6.0, 16.01, 1.0)  # the alpha sweep shown in the report (deg)
 
 
+def sweep_angles(trim_alphas_deg) -> np.ndarray:
+    """SWEEP_DEG widened in whole degrees so it covers every trimmed angle with 1 deg to spare."""
+    a = np.asarray(list(trim_alphas_deg), float)
+    a = a[np.isfinite(a)]
+    lo = min(SWEEP_DEG[0], np.floor(a.min()) - 1.0) if a.size else SWEEP_DEG[0]
+    hi = max(SWEEP_DEG[-1], np.ceil(a.max()) + 1.0) if a.size else SWEEP_DEG[-1]
+    return np.arange(lo, hi + 0.01, 1.0)
+
+
 @dataclass(frozen=True)
 class CaseContext:
     """What every case of a run shares: the Case, the wing's stations, the Mach models, the load
@@ -100,7 +109,7 @@ def compute(case, progress=None, cache=None, error_bars=False) -> RunResult:
     progress = progress or no_progress
     if error_bars and cache is None:
         cache = {}  # the coarse lattices reuse the wing read and cut
-    timings, messages = {}, []
+    timings, messages = {}, [Message("warning", w) for w in case.warnings]
     t0 = time.perf_counter()
     wing_key, wing = _wing(case, progress, cache)
     mesh, frame, stations, planform = wing.mesh, wing.frame, wing.stations, wing.planform
@@ -132,8 +141,9 @@ def compute(case, progress=None, cache=None, error_bars=False) -> RunResult:
         progress("cases", i + 1, len(load_cases))
     timings["aero and loads"] = time.perf_counter() - t1
     envelope = envelope_of([r.loads for r in results])
+    sweep_deg = sweep_angles([r.aero.alpha_deg for r in results])
     sweep = tuple((float(a), float(s.CL)) for a, s in
-                  zip(SWEEP_DEG, models.get(results[0].mach).solve_many(SWEEP_DEG)))
+                  zip(sweep_deg, models.get(results[0].mach).solve_many(sweep_deg)))
     messages += [Message("warning", w) for w in models.warnings]
     messages += [Message("warning", f"{r.name}: {r.stall_warning}") for r in results
                  if r.stall_warning]

@@ -42,7 +42,13 @@ RHO0_ISA = P0_ISA / (R_AIR * T0_ISA)  # 1.2250 kg/m^3
 # ---------------------------------------------------------------- unit names used in inputs
 LENGTH_UNITS = {"m": METRE, "cm": CM, "mm": MM, "in": INCH, "ft": FOOT}
 """Length units a geometry file or case key may be given in, name -> metres."""
+KM_PER_HOUR = 1000.0 * METRE / HOUR
+MILE = 1760.0 * YARD  # international statute mile (1959), exact
+MPH = MILE / HOUR
 SPEED_UNITS = {"m/s": 1.0, "kt": KNOT}
+SPEED_UNITS_TEXT = {"m/s": 1.0, "kt": KNOT, "km/h": KM_PER_HOUR, "mph": MPH}
+"""Speed units a case-file value written as text (e.g. "52 kt") may carry, name -> m/s."""
+MASS_UNITS = {"kg": KILOGRAM, "lb": POUND}
 ALTITUDE_UNITS = {"m": METRE, "ft": FOOT}
 GUST_UNITS = {"m/s": 1.0, "ft/s": FOOT_PER_SECOND}
 

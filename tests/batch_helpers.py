@@ -23,6 +23,8 @@ def small_case(folder: Path) -> Path:
     rel = os.path.relpath(SAMPLE.parent / "pellin_half_wing_mm.stl", folder)
     text = text.replace('file = "pellin_half_wing_mm.stl"', f'file = "{rel}"')
     text = text.replace("stations = 24", "stations = 12")
+    # a plain number (m/s) so the variant names read "speed-30.0"
+    text = text.replace('speed = "30 m/s"', "speed = 30.0")
     text = text.replace("n_span = 40", "n_span = 12").replace("n_chord = 10", "n_chord = 4")
     p = folder / "small.toml"
     p.write_text(text)

@@ -56,7 +56,7 @@ def test_exit_0_run_writes_the_folder_and_keeps_inputs(corpus, tmp_path):
     res = _run(["run", corpus / "good.toml", "--out", out, "--no-render"])
     assert res.exit_code == 0, res.stderr
     for rel in ("stations.csv", "summary.json", "loads/pull-up.csv", "lattice.vtp",
-                "load_axis.vtp", "surface.vtp", "report.html"):
+                "spar_axis.vtp", "surface.vtp", "report.html"):
         assert (out / rel).is_file(), rel
     assert _digest(corpus) == before  # inputs untouched
     assert not _leftovers(tmp_path)

@@ -39,8 +39,8 @@ def test_byte_order_mark_and_crlf_read_as_usual(tmp_path):
 
 
 @pytest.mark.parametrize("edit, key, fragment", [
-    (("speed = 30.0", "speed = inf"), "load_case[1].speed", "must be a number"),
-    (("speed = 30.0", "speed = nan"), "load_case[1].speed", "must be a number"),
+    (('speed = "30 m/s"', "speed = inf"), "load_case[1].speed", "must be a number"),
+    (('speed = "30 m/s"', "speed = nan"), "load_case[1].speed", "must be a number"),
     (("gross_mass_kg = 22.0", "gross_mass_kg = 1" + "0" * 400), "aircraft.gross_mass_kg",
      "too large"),
     (("n_span = 40", "n_span = 1" + "0" * 30), "lattice.n_span", "too large"),

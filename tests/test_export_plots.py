@@ -15,7 +15,7 @@ def run():
 
 def test_every_axis_has_a_label_with_units(run):
     figs = plots.build_figures(run)
-    assert set(figs) == {"planform", "spanwise", "cl_alpha", "loads", "vn"}
+    assert set(figs) == {"planform", "spanwise", "cl_alpha", "loads", "inplane", "vn"}
     for name, fig in figs.items():
         assert not isinstance(fig, Exception), (name, fig)
         for ax in fig.axes:
@@ -29,12 +29,14 @@ def test_reference_shapes_carry_the_same_lift(run):
     # is the mean of that and the planform-shaped load, so it carries CL S too.
     cr = run.cases[1]
     sh = plots.spanload_shapes(run, cr)
-    cref, S = run.lattice.c_ref, run.lattice.s_ref
+    S, q = run.lattice.s_ref, cr.q_pa
     yy = sh["y_ref"]
-    integ = lambda f: 2 * np.sum(0.5 * (f[1:] + f[:-1]) * np.diff(yy)) * cref  # noqa: E731
-    assert integ(sh["elliptic"]) == pytest.approx(cr.aero.CL * S, rel=5e-3)   # sqrt edge: trapezoid
-    assert integ(sh["schrenk"]) == pytest.approx(cr.aero.CL * S, rel=5e-3)
-    assert sh["elliptic"][0] == pytest.approx(4 * cr.aero.CL * S / (np.pi * run.lattice.b_ref) / cref)
+    integ = lambda f: 2 * np.sum(0.5 * (f[1:] + f[:-1]) * np.diff(yy))  # noqa: E731
+    # running loads in N/m: both sides integrate to the lift CL q S (N)
+    assert integ(sh["elliptic"]) == pytest.approx(cr.aero.CL * q * S, rel=5e-3)  # sqrt edge: trapezoid
+    assert integ(sh["schrenk"]) == pytest.approx(cr.aero.CL * q * S, rel=5e-3)
+    assert sh["elliptic"][0] == pytest.approx(4 * cr.aero.CL * q * S / (np.pi * run.lattice.b_ref))
+    assert np.allclose(sh["case"], np.asarray(cr.aero.cl_c) * q)
 
 
 def test_make_plots_writes_png_and_vn_svg(tmp_path, run):

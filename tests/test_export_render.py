@@ -140,3 +140,19 @@ def test_view_screenshot_refuses_a_symlink_target(tmp_path):
     assert (tmp_path / "mine.txt").read_text() == "the user's file\n"
     with pytest.raises(OutputError, match="input"):  # nor onto the run's own files
         render.view(tmp_path, screenshot=tmp_path / "surface.vtp")
+
+
+def test_colour_bar_scale_has_no_float_noise():
+    from geomload.export.render import scaled_field
+
+    # a bending moment that is zero at the tip up to round-off: the bar starts at 0, ticks are
+    # round and printed without exponent (round tick steps of 1, 2, 2.5 or 5 x 10^k: common
+    # practice, no source)
+    v, bar, clim = scaled_field(np.array([-9.73e-05, 120.0, 287.5]), "N·m", "bending M")
+    assert clim == (0.0, 300.0)
+    assert bar["fmt"] == "%.0f" and bar["n_labels"] == 7
+    assert "(N·m)" in bar["title"] and np.allclose(v, [-9.73e-05, 120.0, 287.5])
+    v, bar, clim = scaled_field(np.array([0.0, 41250.0]), "Pa", "lift per plan area")
+    assert "(kPa)" in bar["title"] and clim[1] >= 41.25 and v[1] == 41.25
+    # the bars stand right of the wing's part of the picture
+    assert bar["position_x"] >= 0.78

@@ -37,7 +37,7 @@ def test_all_outputs_present(rundir):
     for rel in res["files"]:
         assert (out / rel).is_file(), rel
     for name in ("stations.csv", "summary.json", "envelope.csv", "vn.csv", "lattice.vtp",
-                 "load_axis.vtp", "surface.vtp", "report.html", "plots/vn.svg", "plots/loads.png"):
+                 "spar_axis.vtp", "surface.vtp", "report.html", "plots/vn.svg", "plots/loads.png"):
         assert (out / name).is_file(), name
     assert len(list((out / "loads").glob("*.csv"))) == 3
     assert json.loads((out / "summary.json").read_text())["caution"] == CAUTION
@@ -52,7 +52,7 @@ def test_report_sections_and_images(rundir):
     assert html.index(CAUTION) < html.index('<section id="geometry"')
     imgs = _images(html)
     expected = {n for n in res["images"]}
-    assert len(imgs) == len(expected) == 8
+    assert len(imgs) == len(expected) == 9
     for name in expected:
         assert f'id="img-{name}"' in html
     from PIL import Image
@@ -68,7 +68,10 @@ def test_user_strings_escaped(rundir):
     html = (out / "report.html").read_text()
     assert EVIL not in html
     assert "&lt;script&gt;alert(1)&lt;/script&gt;" in html
-    assert "<script" not in html.lower()
+    # the only scripts are the 3-D view's four blocks (library, controls, data, code)
+    assert html.lower().count("<script") == 4
+    outside = html.split('<div class="gl3"', 1)[0]
+    assert "<script" not in outside.lower()
     assert "--n-stations" in html and "pellin_wing.stl" in html  # inputs echoed
 
 
@@ -78,7 +81,7 @@ def test_render_failure_message(rundir):
     imgs["surface_dcp"] = RuntimeError("no OpenGL context\nsecond line")
     html = report.render_html(run, imgs)
     assert "3D render unavailable: no OpenGL context second line" in html
-    assert len(_images(html)) == 7
+    assert len(_images(html)) == 8
 
 
 def test_report_without_envelope(rundir):
@@ -103,3 +106,60 @@ def test_chromium_screenshot(rundir, tmp_path):
     from PIL import Image
     px = np.asarray(Image.open(shot).convert("RGB"), float)
     assert px.var() > 0
+
+
+def test_report_in_chromium_draws_3d_view_offline(rundir, tmp_path):
+    """The whole report.html in headless Chromium: the new sections are there, the 3-D view
+    draws (canvas pixels not blank, many colours) and the page makes no network request."""
+    from test_view3d import Browser, _need_chromium, _shot, _wait
+
+    _need_chromium()
+    run, out, _ = rundir
+    page = out / "report.html"
+    html = page.read_text()
+    for key in ("masses", "station_table", "view3d"):
+        assert f'<section id="{key}">' in html, key
+    assert "<h3>Design speeds</h3>" in html and "V_S1 (m/s EAS)" in html
+    assert "in-plane bending max (N·m)" in html
+    # settings in words, no Python literals; residual noise shown as balanced
+    inputs = html.split('<section id="inputs">', 1)[1].split("</section>", 1)[0]
+    for lit in (">None<", ">True<", ">False<"):
+        assert lit not in inputs, lit
+    assert "balanced (|residual| &lt; 1e-09)" in html
+    (tmp_path / "profile").mkdir()
+    b = Browser(tmp_path / "profile")
+    try:
+        target = b.send("Target.createTarget", {"url": "about:blank"})["targetId"]
+        s = b.send("Target.attachToTarget", {"targetId": target, "flatten": True})["sessionId"]
+        for d in ("Network.enable", "Page.enable", "Runtime.enable"):
+            b.send(d, session=s)
+        b.send("Emulation.setDeviceMetricsOverride",
+               {"width": 1100, "height": 900, "deviceScaleFactor": 1, "mobile": False}, s)
+        b.send("Page.navigate", {"url": page.as_uri()}, s)
+        b.eval("document.getElementById('view3d').scrollIntoView()", s)
+        state = _wait(b, s, "(function(){var r=document.querySelector('.gl3');"
+                            "return r&&(r.dataset.drawn||r.dataset.error&&('error: '+r.dataset.error))})()")
+        assert state == "1", state
+        b.eval("document.querySelector('.gl3-canvas').scrollIntoView()", s)
+        rect = json.loads(b.eval("JSON.stringify((function(){var r=document.querySelector("
+                                 "'.gl3-canvas').getBoundingClientRect();return {x:r.x+scrollX,y:r.y+scrollY,"
+                                 "width:r.width,height:r.height}})())", s))
+        assert rect["width"] > 300 and rect["height"] > 300
+        px = _shot(b, s, rect)
+        shown = b.eval("document.querySelector('.gl3').dataset.shown", s)
+        events = list(b.events)
+    finally:
+        b.close()
+    # the view opens on the critical case (largest root bending)
+    from geomload.export import envelope_access as ea
+    assert shown == ea.critical_case(run).name
+    bg = np.array([247, 247, 247])
+    drawn = np.any(np.abs(px - bg) > 6, axis=2)
+    assert drawn.mean() > 0.02, "3-D canvas is (nearly) blank"
+    assert len({tuple(c) for c in (px[drawn] // 4).tolist()}) > 50
+    urls = [e["params"]["request"]["url"] for e in events
+            if e.get("method") == "Network.requestWillBeSent"]
+    assert urls and all(u.split(":", 1)[0] in ("file", "blob", "data") for u in urls), urls
+    errors = [e for e in events if e.get("method") == "Runtime.exceptionThrown"]
+    assert not errors, errors[:3]
+    assert page.stat().st_size < 10e6

@@ -29,7 +29,7 @@ def test_vtp_files_read_back_by_vtk_with_unicode_names(unicode_run, tmp_path):
     run = unicode_run
     vtk.write_all_vtk(tmp_path, run)
     lat = pv.read(str(tmp_path / "lattice.vtp"))
-    axis = pv.read(str(tmp_path / "load_axis.vtp"))
+    axis = pv.read(str(tmp_path / "spar_axis.vtp"))
     surf = pv.read(str(tmp_path / "surface.vtp"))
     for m in (lat, axis, surf):
         assert [str(n) for n in m.field_data["case_names"]] == list(NAMES)
@@ -97,7 +97,7 @@ def test_vtp_writing_does_not_import_vtk_or_pyvista(tmp_path):
                        cwd=root, env={**os.environ, "PYTHONPATH": root})
     assert p.returncode == 0, p.stderr
     assert "heavy: []" in p.stdout
-    assert sorted(os.listdir(tmp_path)) == ["lattice.vtp", "load_axis.vtp", "surface.vtp"]
+    assert sorted(os.listdir(tmp_path)) == ["lattice.vtp", "spar_axis.vtp", "surface.vtp"]
 
 
 def test_vtp_on_a_full_disk_fails_cleanly(small_tmpfs):

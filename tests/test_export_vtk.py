@@ -14,7 +14,7 @@ def written(tmp_path_factory):
     run = fakerun.make_run(("cruise 1g", "<script>alert(1)</script>", "push -1.5g"))
     d = tmp_path_factory.mktemp("vtk")
     vtk.write_all_vtk(d, run)
-    return run, {k: pv.read(str(d / f"{k}.vtp")) for k in ("lattice", "load_axis", "surface")}
+    return run, {k: pv.read(str(d / f"{k}.vtp")) for k in ("lattice", "spar_axis", "surface")}
 
 
 def test_lattice_vtp(written):
@@ -34,16 +34,16 @@ def test_lattice_vtp(written):
     np.testing.assert_allclose(g.compute_cell_sizes()["Area"], lat.area, rtol=1e-6)
 
 
-def test_load_axis_vtp(written):
+def test_spar_axis_vtp(written):
     run, m = written
-    a = m["load_axis"]
+    a = m["spar_axis"]
     cr = run.cases[1]
     key = str(a.field_data["case_keys"][1])
     np.testing.assert_allclose(a.points[:, 1], cr.loads.y, atol=1e-9)
     np.testing.assert_allclose(a.point_data[f"bending_Nm_{key}"], cr.loads.bending_Nm, rtol=1e-9)
     np.testing.assert_allclose(a.point_data[f"torsion_Nm_{key}"], cr.loads.torsion_Nm, rtol=1e-9)
     stack = np.array([c.loads.shear_N for c in run.cases])
-    np.testing.assert_allclose(a.point_data["shear_N_max"], stack.max(0), rtol=1e-9, atol=1e-9)
+    np.testing.assert_allclose(a.point_data["shear_max_N"], stack.max(0), rtol=1e-9, atol=1e-9)
     assert a.n_cells == 1 and a.n_lines == 1
 
 

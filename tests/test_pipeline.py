@@ -278,7 +278,7 @@ def test_trim_normal_force_equals_share_n_w(sample_run):
     result, out, loads = sample_run
     summary = json.loads((out / "summary.json").read_text())
     by_name = {c["name"]: c for c in summary["cases"]}
-    area = summary["planform"]["area"]
+    area = summary["planform"]["area_m2"]
     cd0 = result.case.aircraft.cd0
     for cr in result.cases:
         target = cr.lift_share * cr.load_factor * cr.mass_kg * G0
@@ -357,7 +357,7 @@ def test_summary_json_fields_match_the_csvs(sample_run):
     result, out, loads = sample_run
     s = json.loads((out / "summary.json").read_text())
     assert CAUTION.strip() in s["caution"]
-    assert s["planform"]["span"] == pytest.approx(3.6, rel=5e-3)  # pellin_design.json: 3.6 m
+    assert s["planform"]["span_m"] == pytest.approx(3.6, rel=5e-3)  # pellin_design.json: 3.6 m
     for c in s["cases"]:
         for k in ("alpha_deg", "CL", "CDi", "e", "total_lift_N", "root_shear_N", "root_bending_Nm",
                   "root_torsion_Nm", "equilibrium_residual"):

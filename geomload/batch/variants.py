@@ -217,6 +217,11 @@ def _typed(key: str, raw: str, old, new):
             raise VaryError(f"--vary {key}={raw}: must be a number (as in the case file)")
         return float(new)
     if isinstance(old, str):
+        import re
+
+        unit = re.fullmatch(r"\s*[-+]?[\d.]+(?:[eE][-+]?\d+)?\s*([A-Za-z/]+)\s*", old)
+        if unit and isinstance(new, (int, float)) and not isinstance(new, bool):
+            return f"{raw.strip()} {unit.group(1)}"  # a value written with its unit keeps it
         return new if isinstance(new, str) else raw
     if isinstance(old, list):
         if not isinstance(new, list):

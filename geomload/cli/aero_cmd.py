@@ -50,8 +50,8 @@ def aero(geometry, units, span_axis, up_axis, side, n_stations, spacing, body, a
 
     r = analyse_at_alpha(stations, alpha, mach, panels_span, panels_chord, cl_max,
                          check_convergence)
-    show = aero_json if as_json else aero_text
-    out = show(r["solution"], r["stall"], r["convergence"], r["lattice"])
+    out = (aero_json(r["solution"], r["stall"], r["convergence"], r["lattice"]) if as_json
+           else aero_text(r["solution"], r["stall"], r["convergence"], r["lattice"], planform))
     click.echo(json.dumps(out, indent=2) if as_json else out)
     print_messages(wing_messages(wing) + list(r["messages"]))
     if csv_path is not None:

@@ -143,3 +143,53 @@ def geometry_messages(mesh, frame, stations) -> list:
 
     return [Message.from_prefixed(n) for n in
             list(mesh.notes) + list(frame.notes) + list(stations.notes)]
+
+
+def group_messages(messages) -> list:
+    """(kind, count, text) with alike messages merged: same kind, same config key (or a varying
+    case label) and the same words; the numbers that differ are listed as "a / b", the labels
+    as "N cases (a, b, ...)". Order: first appearance."""
+    import re
+
+    num = re.compile(r"(-?\d+(?:\.\d+)?)")
+    key_like = re.compile(r"[A-Za-z_\[\]]+(\.[A-Za-z_0-9\[\]]+)+")
+    groups: dict = {}
+    for m in messages:
+        text, label = str(m.text), None
+        hit = re.match(r"^([^\s:]+): ", text)
+        if hit and not key_like.fullmatch(hit.group(1)):
+            label, text = hit.group(1), text[hit.end():]
+        parts = num.split(text)
+        skel = tuple(p if i % 2 == 0 else "#" for i, p in enumerate(parts))
+        groups.setdefault((m.kind, label is not None, skel), []).append((label, parts))
+    out = []
+    for (kind, labelled, _), members in groups.items():
+        if len(members) == 1:
+            label, parts = members[0]
+            out.append((kind, 1, (f"{label}: " if label else "") + "".join(parts)))
+            continue
+        first = members[0][1]
+        merged = []
+        for i, p in enumerate(first):
+            vals = list(dict.fromkeys(mp[i] for _, mp in members))
+            merged.append(p if i % 2 == 0 or len(vals) == 1 else
+                          " / ".join(vals[:4]) + (" / ..." if len(vals) > 4 else ""))
+        head = ""
+        if labelled:
+            names = [lb for lb, _ in members]
+            head = (f"{len(names)} cases ({', '.join(names[:3])}"
+                    + (", ..." if len(names) > 3 else "") + "): ")
+        out.append((kind, len(members), head + "".join(merged)))
+    return out
+
+
+def print_grouped(messages) -> None:
+    """Warnings first, merged and counted; then the notes, plainly (they change no number)."""
+    groups = group_messages(messages)
+    for kind, n, text in groups:
+        if kind != "note":
+            count = f" (x{n})" if n > 1 and not text[:1].isdigit() else ""
+            echo_err(f"geomload: {kind}{count}: {text}")
+    notes = [(n, t) for k, n, t in groups if k == "note"]
+    for n, t in notes:
+        echo_err(f"  note: {t}")

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import click
 
-from .common import guarded, print_messages, progress_bar
+from .common import guarded, print_grouped, progress_bar
 
 
 @click.command()
@@ -22,6 +22,6 @@ def run(case_file, out_dir, force, no_render):
 
     result, written = run_case_file(case_file, out_dir, force=force, render=not no_render,
                                     progress=progress_bar())
-    print_messages(result.messages)
+    print_grouped(result.messages)
     click.echo(run_table(result))
     click.echo(f"Wrote {len(written)} files to {printable(out_dir)}")

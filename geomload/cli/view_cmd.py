@@ -14,7 +14,7 @@ from .common import guarded
               help="Render offscreen to this PNG instead of opening a window.")
 @guarded
 def view(run_dir, case_name, screenshot):
-    """Open the CAD surface, lattice and load axis of a finished run in a 3D window."""
+    """Open the CAD surface, lattice and spar axis of a finished run in a 3D window."""
     from pathlib import Path
 
     from geomload.export.atomic import check_target

@@ -18,6 +18,7 @@ from geomload.errors import CaseError
 from geomload.loads.records import PointMass
 from geomload.units import ALTITUDE_UNITS, GUST_UNITS, SPEED_UNITS
 
+from . import quantities as qty
 from .schema import (CATEGORIES, MAX_ALTITUDE_M, AircraftSpec, Case, FlightEnvelopeSpec,
                      FuelTank, GeometrySpec, LatticeSpec, LoadCase, SparSpec, WingMassSpec)
 
@@ -33,13 +34,23 @@ TOP_LEVEL_KEYS = ("title", "geometry", "aircraft", "wing_mass", "point_mass", "f
 class _Table:
     """Reads keys of one TOML table, remembering which were used, so leftovers are reported."""
 
-    def __init__(self, data, where: str, path: str):
+    def __init__(self, data, where: str, path: str, warnings: list | None = None):
         self.path, self.where = path, where
+        self.warnings = [] if warnings is None else warnings
         if not isinstance(data, dict):
             self.fail("", f"must be a table, got {type(data).__name__}")
-        self.data, self.used = data, set()
+        self.data, self.used = dict(data), set()
+        before = set(self.data)
+        both = qty.rename_keys(self.data, where, self.warnings)
+        # an error names the key as the user wrote it
+        self.written = {qty.RENAMED[(qty.table_kind(where), o)]: o for o in before - set(self.data)}
+        if both:
+            self.fail(both, f"give either {both} or "
+                            f"{qty.RENAMED[(qty.table_kind(where), both)]}, not both")
+        self.text_units = {}  # key -> its value was written with its unit ("52 kt")
 
     def key(self, k: str) -> str:
+        k = getattr(self, "written", {}).get(k, k)
         return f"{self.where}.{k}" if self.where and k else (self.where or k)
 
     def fail(self, k: str, msg: str):
@@ -55,6 +66,23 @@ class _Table:
                 self.fail(k, "missing (required)")
             return default
         v = self.data[k]
+        if kind is str and k in qty.UNIT_KEYS and isinstance(v, str):
+            own = [q for q in qty.UNIT_KEYS[k] if isinstance(self.data.get(q), str)]
+            if own:
+                self.fail(k, f"{own[0]} already carries its unit; drop {k}")
+            kinds = qty.QUANTITY_KEYS.get(qty.table_kind(self.where), {})
+            ex = next((q for q in qty.UNIT_KEYS[k] if q in kinds), qty.UNIT_KEYS[k][0])
+            self.warnings.append(f"{self.key(k)}: write the unit in the value instead, e.g. "
+                                 f"{ex} = \"{qty.example(kinds.get(ex, 'speed'))}\" "
+                                 f"({k} still works)")
+        kinds = qty.QUANTITY_KEYS.get(qty.table_kind(self.where), {})
+        if kind is float and isinstance(v, str) and k in kinds:
+            try:
+                v = qty.parse_quantity(v, kinds[k])
+            except ValueError as exc:
+                self.fail(k, str(exc))
+            self.text_units[k] = True
+            return v
         if kind is float:
             if isinstance(v, bool) or not isinstance(v, (int, float)):
                 self.fail(k, f"must be a number, got {v!r}")
@@ -104,7 +132,8 @@ class _Table:
 
 def _altitude(t: _Table, key: str, unit_key: str, default_unit="m"):
     unit = t.choice(unit_key, tuple(LENGTH_UNITS), default_unit)
-    h = t.get(key, float, 0.0) * LENGTH_UNITS[unit]
+    h = t.get(key, float, 0.0)
+    h = h if key in t.text_units else h * LENGTH_UNITS[unit]
     if not 0.0 <= h <= MAX_ALTITUDE_M:
         t.fail(key, f"{h:.0f} m is outside 0..{MAX_ALTITUDE_M:.0f} m (the ISA range modelled)")
     return h
@@ -220,7 +249,8 @@ def _ribs(t: _Table) -> tuple:
 def _load_case(t: _Table, i: int, gross: float) -> LoadCase:
     name = t.get("name", str, required=True)
     unit = t.choice("speed_unit", tuple(SPEED_UNITS), "m/s")
-    v = t.positive("speed", required=True) * SPEED_UNITS[unit]
+    v = t.positive("speed", required=True)
+    v = v if "speed" in t.text_units else v * SPEED_UNITS[unit]
     kind = t.choice("speed_type", ("EAS", "TAS"), "EAS", fold=str.upper)
     h = _altitude(t, "altitude", "altitude_unit")
     lc = LoadCase(
@@ -228,8 +258,8 @@ def _load_case(t: _Table, i: int, gross: float) -> LoadCase:
         load_factor=t.get("load_factor", float, required=True),
         lift_share=t.positive("lift_share", 1.0, allow_zero=True),
         mass_kg=t.positive("mass_kg"),
-        cl_max=t.positive("cl_max"),
-        cd0=t.positive("cd0", allow_zero=True),
+        cl_max=t.positive("section_cl_max"),
+        cd0=t.positive("section_cd0", allow_zero=True),
         fuel_fraction=t.fraction("fuel_fraction", 1.0),
     )
     if lc.mass_kg is not None and lc.mass_kg > gross:
@@ -241,14 +271,23 @@ def _envelope(t: _Table, gross: float) -> FlightEnvelopeSpec:
     cat = t.choice("category", CATEGORIES, required=True)
     su = t.choice("speed_unit", tuple(SPEED_UNITS), "m/s")
     speeds = {k: t.positive(k) for k in ("v_cruise", "v_dive", "v_maneuver")}
-    speeds = {k: None if v is None else v * SPEED_UNITS[su] for k, v in speeds.items()}
+    speeds = {k: None if v is None else v if k in t.text_units else v * SPEED_UNITS[su]
+              for k, v in speeds.items()}
     gu = t.choice("gust_unit", tuple(GUST_UNITS), "m/s")
     gusts = {k: t.positive(k) for k in ("gust_cruise", "gust_dive")}
     au = t.choice("altitude_unit", tuple(LENGTH_UNITS), "m")
     alts = t.get("altitudes", list, [0.0])
-    if not alts or not all(isinstance(a, (int, float)) and not isinstance(a, bool) for a in alts):
-        t.fail("altitudes", "must be a non-empty list of numbers")
-    alts = tuple(float(a) * LENGTH_UNITS[au] for a in alts)
+    if alts and all(isinstance(a, str) for a in alts):
+        try:
+            alts = tuple(qty.parse_quantity(a, "altitude") for a in alts)
+        except ValueError as exc:
+            t.fail("altitudes", str(exc))
+        if "altitude_unit" in t.data:
+            t.fail("altitude_unit", "the altitudes already carry their unit; drop altitude_unit")
+    elif not alts or not all(isinstance(a, (int, float)) and not isinstance(a, bool) for a in alts):
+        t.fail("altitudes", 'must be a non-empty list of numbers, or of texts such as "1500 ft"')
+    else:
+        alts = tuple(float(a) * LENGTH_UNITS[au] for a in alts)
     for a in alts:
         if not 0.0 <= a <= MAX_ALTITUDE_M:
             t.fail("altitudes", f"{a:.0f} m is outside 0..{MAX_ALTITUDE_M:.0f} m")
@@ -272,12 +311,14 @@ def _envelope(t: _Table, gross: float) -> FlightEnvelopeSpec:
                 t.fail(k, f"only for category 'custom' (the {cat} rule sets it)")
     spec = FlightEnvelopeSpec(
         category=cat,
-        cl_max_pos=t.positive("cl_max_pos", required=True),
-        cl_max_neg=t.positive("cl_max_neg", required=True),
+        cl_max_pos=t.positive("wing_cn_max_pos", required=True),
+        cl_max_neg=t.positive("wing_cn_max_neg", required=True),
         n_pos=n_pos, n_neg=n_neg, n_neg_dive=n_neg_dive, altitudes_m=alts,
         min_mass_kg=t.positive("min_mass_kg"),
-        gust_cruise_m_s=None if gusts["gust_cruise"] is None else gusts["gust_cruise"] * GUST_UNITS[gu],
-        gust_dive_m_s=None if gusts["gust_dive"] is None else gusts["gust_dive"] * GUST_UNITS[gu],
+        gust_cruise_m_s=None if gusts["gust_cruise"] is None else gusts["gust_cruise"] * (
+            1.0 if "gust_cruise" in t.text_units else GUST_UNITS[gu]),
+        gust_dive_m_s=None if gusts["gust_dive"] is None else gusts["gust_dive"] * (
+            1.0 if "gust_dive" in t.text_units else GUST_UNITS[gu]),
         lift_share=t.positive("lift_share", 1.0, allow_zero=True),
         **speeds,
     )
@@ -328,20 +369,22 @@ def _read_case_file(path) -> Case:
     """
     path = str(path)
     raw = _parse(path)
-    top = _Table(raw, "", path)
+    warns: list = []
+    top = _Table(raw, "", path, warns)
     top.used.update(TOP_LEVEL_KEYS)
     top.done()  # an unknown (misspelt) table is reported before anything it might hide
 
     def sub(k: str, required: bool = False) -> _Table:
-        return _Table(top.get(k, dict, None, required) or {}, k, path)
+        return _Table(top.get(k, dict, None, required) or {}, k, path, warns)
 
     title = top.get("title", str, Path(path).stem)
     base = Path(path).resolve().parent
 
     t = sub("geometry", True); geometry = _geometry(t, base); t.done()  # noqa: E702
     t = sub("aircraft", True)
-    aircraft = AircraftSpec(t.positive("gross_mass_kg", required=True), t.positive("cl_max"),
-                            t.positive("cd0", 0.0, allow_zero=True))
+    aircraft = AircraftSpec(t.positive("gross_mass_kg", required=True),
+                            t.positive("section_cl_max"),
+                            t.positive("section_cd0", 0.0, allow_zero=True))
     t.done()
     wing_mass = None
     if "wing_mass" in raw:
@@ -349,7 +392,7 @@ def _read_case_file(path) -> Case:
     points, tanks, cases = [], [], []
     for key, reader, out in (("point_mass", _point_mass, points), ("fuel_tank", _fuel_tank, tanks)):
         for i, item in enumerate(top.get(key, list, [])):
-            t = _Table(item, f"{key}[{i + 1}]", path)
+            t = _Table(item, f"{key}[{i + 1}]", path, warns)
             out.append(reader(t, i))
             t.done()
     t = sub("spar"); spar = _spar(t); t.done()  # noqa: E702
@@ -365,7 +408,7 @@ def _read_case_file(path) -> Case:
                         t.get("z_m", float, 0.0)])
         t.done()
     for i, item in enumerate(top.get("load_case", list, [])):
-        t = _Table(item, f"load_case[{i + 1}]", path)
+        t = _Table(item, f"load_case[{i + 1}]", path, warns)
         cases.append(_load_case(t, i, aircraft.gross_mass_kg))
         t.done()
     seen, dup = set(), None
@@ -413,7 +456,8 @@ def _read_case_file(path) -> Case:
     return Case(path=str(Path(path).resolve()), title=title, geometry=geometry, aircraft=aircraft,
                 wing_mass=wing_mass, point_masses=tuple(points), fuel_tanks=tuple(tanks), spar=spar,
                 moment_reference=ref, load_cases=tuple(cases), envelope=envelope, lattice=lattice,
-                ultimate_factor=uf, load_factor_axis=nax, structure=handoff)
+                ultimate_factor=uf, load_factor_axis=nax, structure=handoff,
+                warnings=tuple(warns))
 
 
 def read_case_file(path) -> Case:

@@ -215,6 +215,7 @@ class Case:
     ultimate_factor: float = 1.5
     load_factor_axis: str = "body"
     structure: Optional[object] = None  # config.structure.StructureSpec: the hand-off outputs
+    warnings: tuple = ()  # what the case file should say differently (old key names)
 
     def __post_init__(self):
         if self.load_factor_axis not in LOAD_FACTOR_AXES:

@@ -7,7 +7,7 @@ Run folder layout written by `write_all`::
     stations.csv  summary.json  envelope.csv  vn.csv  loads/<case>.csv
     with [structure]: fe/<case>.inp fe/<case>_nodal_loads.csv (fe/mesh_* with a mesh)
     sizing.csv sizing.png
-    lattice.vtp  load_axis.vtp  surface.vtp  report.html  geomload-run.json (the run marker,
+    lattice.vtp  spar_axis.vtp  surface.vtp  report.html  geomload-run.json (the run marker,
     written by run_folder.OutputDir on commit)
     plots/planform.png spanwise.png cl_alpha.png loads.png vn.png vn.svg
           surface_dcp.png lattice_overlay.png spar_bending.png
@@ -108,7 +108,8 @@ def write_all(run, folder, inputs=(), render=True, progress=None, options=None,
             files.append(v.relative_to(f))
     if has_vn and isinstance(images.get("vn"), Path):
         files.append(images["vn"].with_suffix(".svg").relative_to(f))
-    rec(report.write_report(f / "report.html", run, images, options, run_time_s, inputs))
+    frag = report.view3d_fragment(run, surface) if render else None
+    rec(report.write_report(f / "report.html", run, images, options, run_time_s, inputs, frag))
     tick()
     images = {k: (v.relative_to(f) if isinstance(v, Path) else v) for k, v in images.items()}
     return {"files": files, "images": images, "loads": loads, "warnings": warnings}

@@ -81,16 +81,18 @@ def _chord_at(stations, y):
 
 
 def spanload_shapes(run, case_result):
-    """cl*c/c_ref (-) along y for the case and for the elliptic and Schrenk loads of the same CL."""
+    """Running lift (N/m, one case at its own dynamic pressure) along y, and the elliptic and
+    Schrenk running loads of the same total lift (CL q S)."""
     a, lat = case_result.aero, run.lattice
     y = np.asarray(a.y, float)
-    b, S, cref = float(lat.b_ref), float(lat.s_ref), float(lat.c_ref)
+    b, S = float(lat.b_ref), float(lat.s_ref)
+    q = float(case_result.q_pa)
     semi = 0.5 * b
     yy = np.linspace(0.0, semi, 101)
     ell = 4 * a.CL * S / (np.pi * b) * np.sqrt(np.clip(1 - (yy / semi) ** 2, 0, None))
     plan = a.CL * S / _planform_area(run.stations, semi) * _chord_at(run.stations, yy)
-    return {"y": y, "case": np.asarray(a.cl_c) / cref, "y_ref": yy, "elliptic": ell / cref,
-            "schrenk": 0.5 * (plan + ell) / cref}
+    return {"y": y, "case": np.asarray(a.cl_c, float) * q, "y_ref": yy, "elliptic": ell * q,
+            "schrenk": 0.5 * (plan + ell) * q}
 
 
 def _planform_area(stations, semi):
@@ -101,24 +103,33 @@ def _planform_area(stations, semi):
 
 
 def plot_spanwise(run, case_result=None):
-    """Section cl per case, and cl*c/c_ref of one case beside the elliptic and Schrenk shapes."""
+    """Section cl per case (legend beside the axes, saying which cases are drawn), and the
+    running lift of one case in N/m beside the elliptic and Schrenk loads of the same lift."""
     cr = case_result or ea.critical_case(run)
-    fig, (a1, a2) = _figure(1, 2, size=(10, 4.0), margins=(0.07, 0.98, 0.12, 0.92))
+    fig, (a1, a2) = _figure(1, 2, size=(12, 4.6), margins=(0.06, 0.99, 0.17, 0.88))
+    fig.subplots_adjust(wspace=0.62)  # room for the cl legend between the two axes
     shown = [cr] + [c for c in run.cases if c is not cr][:MAX_CASE_LINES - 1]
     for c in shown:
         a1.plot(c.aero.y, c.aero.cl, lw=1.2, label=mpl_text(c.name))
     a1.set_xlabel("y, spanwise (m)")
     a1.set_ylabel("section lift coefficient cl (-)")
-    more = f" ({len(shown)} of {len(run.cases)} cases)" if len(shown) < len(run.cases) else ""
-    a1.set_title("Spanwise cl" + more)
-    a1.legend(fontsize=7, loc="lower left")
+    a1.set_title("Spanwise cl", fontsize=10)
+    title = (f"all {len(run.cases)} cases" if len(shown) == len(run.cases)
+             else f"{len(shown)} of {len(run.cases)} cases")
+    a1.legend(fontsize=7, loc="upper left", bbox_to_anchor=(1.01, 1.0), title=title,
+              title_fontsize=7)
+    if len(shown) < len(run.cases):
+        a1.text(0.0, -0.16, f"Drawn: the critical case and the first {len(shown) - 1} others in "
+                "case order; every case is in loads/*.csv.", transform=a1.transAxes, fontsize=7,
+                va="top")
     sh = spanload_shapes(run, cr)
     a2.plot(sh["y"], sh["case"], "k-", marker=".", lw=1.5, label=mpl_text(f"lattice: {cr.name}"))
-    a2.plot(sh["y_ref"], sh["elliptic"], "b--", lw=1.0, label="elliptic, same CL")
-    a2.plot(sh["y_ref"], sh["schrenk"], "g-.", lw=1.0, label="Schrenk, same CL")
+    a2.plot(sh["y_ref"], sh["elliptic"], "b--", lw=1.0, label="elliptic, same lift")
+    a2.plot(sh["y_ref"], sh["schrenk"], "g-.", lw=1.0, label="Schrenk, same lift")
     a2.set_xlabel("y, spanwise (m)")
-    a2.set_ylabel("cl·c / c_ref (-)")
-    a2.set_title(mpl_text(f"Span loading, CL = {cr.aero.CL:.3f}, case: {cr.name}"))
+    a2.set_ylabel("running lift (N/m)")
+    a2.set_title(mpl_text(f"Running lift, case {cr.name}") + "\n"
+                 + f"(CL = {cr.aero.CL:.3f}, q = {cr.q_pa:.0f} Pa)", fontsize=10)
     a2.legend(fontsize=7, loc="lower left")
     for ax in (a1, a2):
         ax.grid(alpha=0.3)
@@ -132,8 +143,14 @@ def plot_cl_alpha(run):
     if run.alpha_sweep:
         al, cl = np.asarray(run.alpha_sweep, float).T
         ax.plot(al, cl, "k-", marker="o", ms=3, label="vortex lattice")
-    for c in run.cases[:MAX_CASE_LINES]:
-        ax.plot(c.aero.alpha_deg, c.aero.CL, "s", ms=6, label=mpl_text(f"{c.name} (trim)"))
+    ok = [c for c in run.cases if not c.stall_warning]
+    bad = [c for c in run.cases if c.stall_warning]
+    if ok:
+        ax.plot([c.aero.alpha_deg for c in ok], [c.aero.CL for c in ok], "s", ms=5, color="C0",
+                mfc="none", label=f"trimmed cases ({len(ok)})")
+    if bad:
+        ax.plot([c.aero.alpha_deg for c in bad], [c.aero.CL for c in bad], "x", ms=7, color="C3",
+                label=f"trimmed cases beyond stall ({len(bad)})")
     a0 = run.cases[0].aero if run.cases else None
     if a0 is not None:
         ax.set_title(f"CL against alpha: CL_alpha = {a0.CL_alpha_per_rad:.3f} /rad, "
@@ -185,36 +202,84 @@ def plot_loads(run):
     return fig
 
 
+INPLANE = (("inplane_shear_N", "inplane_shear", "in-plane shear (N)"),
+           ("inplane_bending_Nm", "inplane_bending", "in-plane bending (N·m)"))
+INPLANE_SIGNS = ("In-plane (chordwise) loads, limit; shear positive aft (+x), "
+                 "bending positive when the tip is pushed aft")
+
+
+def plot_inplane(run):
+    """In-plane (chordwise) shear and bending against span, with their sign convention."""
+    fig, axes = _figure(2, 1, size=(8, 6), margins=(0.12, 0.97, 0.09, 0.93), sharex=True)
+    env = ea.table(run.envelope) if run.envelope is not None else None
+    many = len(run.cases) > MAX_CASE_LINES
+    for ax, (attr, q, label) in zip(axes, INPLANE):
+        for k, c in enumerate(run.cases):
+            kw = {"color": "0.7", "lw": 0.6} if many else {"lw": 1.2}
+            lab = (f"{len(run.cases)} cases, limit" if k == 0 else None) if many else mpl_text(c.name)
+            ax.plot(c.loads.y, getattr(c.loads, attr), label=lab, **kw)
+        if env is not None:
+            for side in ("max", "min"):
+                ax.plot(env["y"], env[f"{q}_{side}"], "r-", lw=2.0,
+                        label="envelope, limit" if side == "max" else None)
+        ax.set_ylabel(label)
+        ax.axhline(0, color="0.5", lw=0.5)
+        ax.grid(alpha=0.3)
+    axes[0].legend(fontsize=7, ncol=2, loc="upper right")
+    axes[0].set_title(INPLANE_SIGNS, fontsize=9)
+    for ax in axes:
+        ax.set_xlabel("y, spanwise (m)")
+    axes[0].xaxis.label.set_visible(False)
+    return fig
+
+
+VN_STYLE = {"stall-pos": ("C0", "-"), "stall-neg": ("C0", "--"), "maneuver": ("k", "-"),
+            "gust-up": ("C2", "-."), "gust-down": ("C2", ":")}
+
+
 def plot_vn(vn):
-    """The V-n diagram(s): boundary curves and the labelled design points (one colour set and
-    line style per diagram when several masses / altitudes are given)."""
+    """The V-n diagrams, one panel per mass and altitude: boundary curves and the labelled
+    design points; one legend below the panels, every entry visible."""
     from matplotlib.lines import Line2D
 
-    fig, (ax,) = _figure(size=(9, 5.5), margins=(0.08, 0.74, 0.1, 0.93))
     diagrams = ea.vn_diagrams(vn)
-    styles = ("-", "--", ":", "-.")
-    colours, vmax = {}, 0.0
-    for k, d in enumerate(diagrams):
-        for name, (v, n) in ea.vn_curves(d).items():
-            col = colours.setdefault(name, f"C{len(colours)}")
-            ax.plot(v, n, lw=1.4, ls=styles[k % 4], color=col)
+    n = max(len(diagrams), 1)
+    ncols = 1 if n == 1 else 2
+    nrows = (n + ncols - 1) // ncols
+    fig, axes = _figure(nrows, ncols, size=(6.5 * ncols, 3.8 * nrows + 0.9),
+                        margins=(0.07, 0.98, 0.9 / (3.8 * nrows + 0.9) + 0.06, 0.95),
+                        sharey=True)
+    fig.subplots_adjust(hspace=0.35, wspace=0.08)
+    seen = {}
+    for ax, d in zip(axes, diagrams):
+        vmax = 0.0
+        for name, (v, nn) in ea.vn_curves(d).items():
+            col, ls = VN_STYLE.get(name, (f"C{3 + len(seen) % 6}", "-"))
+            seen.setdefault(name, (col, ls))
+            ax.plot(v, nn, lw=1.4, ls=ls, color=col)
             vmax = max(vmax, float(np.max(v)) if np.size(v) else 0.0)
-        for j, p in enumerate(ea.vn_points(d)):
-            ax.plot(p["v_eas"], p["n"], "ko", ms=4)
-            if k == 0:  # label the first diagram's points; alternate sides against overlap
-                ax.annotate(mpl_text(p["label"]), (p["v_eas"], p["n"]), textcoords="offset points",
-                            xytext=(5, 5 if j % 2 == 0 else -11), fontsize=7)
-    handles = [Line2D([], [], color=c, lw=1.4, label=mpl_text(n)) for n, c in colours.items()]
-    if len(diagrams) > 1:
-        handles += [Line2D([], [], color="k", ls=styles[k % 4], label=mpl_text(ea.vn_title(d, k)))
-                    for k, d in enumerate(diagrams)]
-    ax.legend(handles=handles, fontsize=7, loc="upper left", bbox_to_anchor=(1.01, 1.0))
-    ax.set_xlim(0, 1.18 * vmax if vmax > 0 else None)
-    ax.axhline(0, color="0.5", lw=0.5)
-    ax.set_xlabel("equivalent airspeed V_EAS (m/s)")
-    ax.set_ylabel("load factor n (-)")
-    ax.set_title("V-n diagram (limit load factors)")
-    ax.grid(alpha=0.3)
+        pts = sorted(ea.vn_points(d), key=lambda p: (p["v_eas"], p["n"]))
+        for j, p in enumerate(pts):
+            ax.plot(p["v_eas"], p["n"], "ko", ms=3.5)
+            up = p["n"] >= 0
+            ax.annotate(mpl_text(p["label"]), (p["v_eas"], p["n"]), textcoords="offset points",
+                        xytext=(4, (6 + 8 * (j % 2)) * (1 if up else -1)),
+                        va="bottom" if up else "top", fontsize=7,
+                        bbox={"boxstyle": "round,pad=0.15", "fc": "white", "ec": "none",
+                              "alpha": 0.8})
+        ax.set_xlim(0, 1.15 * vmax if vmax > 0 else None)
+        ax.axhline(0, color="0.5", lw=0.5)
+        ax.set_title(mpl_text(ea.vn_title(d)), fontsize=9)
+        ax.set_xlabel("equivalent airspeed V_EAS (m/s)")
+        ax.set_ylabel("load factor n (-)")
+        ax.grid(alpha=0.3)
+    for ax in axes[len(diagrams):]:
+        ax.set_visible(False)
+    handles = [Line2D([], [], color=c, ls=ls, lw=1.4, label=mpl_text(nm)) for nm, (c, ls) in seen.items()]
+    handles.append(Line2D([], [], color="k", marker="o", ls="none", ms=3.5, label="design points"))
+    fig.legend(handles=handles, loc="lower center", ncol=min(len(handles), 6), fontsize=8,
+               frameon=False)
+    fig.suptitle("V-n diagrams (limit load factors)", fontsize=10, y=0.995)
     return fig
 
 
@@ -222,7 +287,7 @@ def build_figures(run) -> dict:
     """name -> Figure (or the Exception that stopped it, so the report can say so)."""
     makers = {"planform": lambda: plot_planform(run.stations, run.planform, run.lattice),
               "spanwise": lambda: plot_spanwise(run), "cl_alpha": lambda: plot_cl_alpha(run),
-              "loads": lambda: plot_loads(run)}
+              "loads": lambda: plot_loads(run), "inplane": lambda: plot_inplane(run)}
     if run.vn is not None:
         makers["vn"] = lambda: plot_vn(run.vn)
     out = {}

@@ -47,13 +47,41 @@ def _plotter(off_screen=True, size=WINDOW):
     return p
 
 
-def _camera(p, bounds):
+# The wing is drawn in the left part of the picture and the colour bars stand in the right
+# strip (from BAR_STRIP_X of the width), so a bar never covers the wing.
+BAR_STRIP_X = 0.80
+WING_SHIFT = 0.3  # camera window centre offset that moves the scene left, into its part
+WING_OPACITY = 0.4  # low enough that the spar tube inside reads through both skins
+
+
+def _camera(p, bounds, zoom=1.5, shift=0.0):
     b = np.asarray(bounds, float).reshape(3, 2)
     c = b.mean(axis=1)
     L = float(np.max(b[:, 1] - b[:, 0])) or 1.0
     p.camera_position = [(c[0] - 0.9 * L, c[1] - 0.9 * L, c[2] + 0.8 * L), tuple(c), (0, 0, 1)]
     p.reset_camera()
-    p.camera.zoom(1.5)
+    p.camera.zoom(zoom)
+    if shift:
+        p.camera.SetWindowCenter(shift, 0.0)
+
+
+def scaled_field(values, unit: str, title: str, position_x: float = 0.88):
+    """(values in the displayed unit, scalar-bar arguments, colour limits) for one field: round
+    ticks in a k/M-prefixed unit and no float noise (view3d.nice_scale), e.g. 0 instead of
+    -9.73e-05 N m."""
+    from geomload.export.view3d import nice_scale
+
+    v = np.asarray(values, float)
+    fin = v[np.isfinite(v)]
+    sc = nice_scale(float(fin.min()) if fin.size else 0.0, float(fin.max()) if fin.size else 0.0,
+                    unit)
+    f = sc["factor"]
+    dec = max((len(lb.split(".", 1)[1]) if "." in lb else 0) for lb in sc["labels"])
+    bar = {"title": f"{title}\n({sc['unit']})", "color": "black", "title_font_size": 13,
+           "label_font_size": 12, "n_labels": len(sc["ticks"]), "fmt": f"%.{dec}f",
+           "vertical": True, "position_x": position_x, "position_y": 0.12, "width": 0.05,
+           "height": 0.75}
+    return v / f, bar, (sc["lo"] / f, sc["hi"] / f)
 
 
 def png_bytes(img) -> bytes:
@@ -93,7 +121,7 @@ def _shoot(p, path, inputs=()):
 
 def _bar(title):
     return {"title": title, "color": "black", "title_font_size": 14, "label_font_size": 12,
-            "n_labels": 5, "fmt": "%.3g", "vertical": True, "position_x": 0.86, "position_y": 0.1}
+            "n_labels": 5, "fmt": "%.3g", "vertical": True, "position_x": 0.88, "position_y": 0.1}
 
 
 def render_surface_dcp(run, path, case=None, inputs=(), surface=None, image_only=False):
@@ -104,13 +132,15 @@ def render_surface_dcp(run, path, case=None, inputs=(), surface=None, image_only
     """
     cr = ea.find_case(run, case)
     s = surface if surface is not None else gvtk.surface_data(run)
-    surf = gvtk.surface_polydata(run, s, {"dcp": np.asarray(cr.aero.dcp, float)[s.panel]})
+    v, bar, clim = scaled_field(np.asarray(cr.aero.dcp, float)[s.panel], "", "delta-Cp\nlower - upper")
+    bar["title"] = "delta-Cp (-)\nlower - upper"
+    surf = gvtk.surface_polydata(run, s, {"dcp": v})
     p = _plotter()
-    p.add_mesh(surf, scalars="dcp", cmap="coolwarm", scalar_bar_args=_bar("delta-Cp (-)\nlower - upper"))
+    p.add_mesh(surf, scalars="dcp", cmap="coolwarm", clim=clim, scalar_bar_args=bar)
     _caution(p)
     p.add_text(f"delta-Cp, case: {printable(cr.name)}  (x q = {cr.q_pa:.0f} Pa gives the pressure jump in Pa)",
                font_size=9, color="black")
-    _camera(p, surf.bounds)
+    _camera(p, surf.bounds, zoom=1.35, shift=WING_SHIFT)
     return _image(p) if image_only else _shoot(p, path, inputs)
 
 
@@ -129,33 +159,26 @@ def render_lattice_overlay(run, path, inputs=(), surface=None, image_only=False)
 
 
 def render_spar_bending(run, path, case=None, inputs=(), surface=None, image_only=False):
-    """The spar line as a tube coloured by the bending moment (N m), over the faint surface."""
+    """The spar axis as a tube coloured by the bending moment (N m) inside the translucent wing."""
     cr = ea.find_case(run, case)
     line = gvtk.spar_line(run, cr)
     import pyvista as pv
 
     poly = pv.lines_from_points(line)
-    poly.point_data["bending_Nm"] = np.asarray(cr.loads.bending_Nm, float)
+    m, bar, clim = scaled_field(np.asarray(cr.loads.bending_Nm, float), "N·m",
+                                "bending M, limit\n+tip-up")
+    poly.point_data["bending"] = m
     span = float(np.ptp(line[:, 1])) or 1.0
-    tube = poly.tube(radius=0.012 * span)
+    # a tube as thick as the wing allows: the bending reads as colour along the spar
+    tube = poly.tube(radius=0.015 * span, n_sides=24)
     surf = gvtk.surface_polydata(run, surface)
     p = _plotter()
-    p.add_mesh(surf, color="lightgrey", opacity=0.3)
-    p.add_mesh(tube, scalars="bending_Nm", cmap="viridis",
-               scalar_bar_args=_bar("bending M (N m)\nlimit, +tip-up"))
-    # the bending curve drawn above the spar (height proportional to M) for a quick read
-    m = np.asarray(cr.loads.bending_Nm, float)
-    scale = 0.25 * span / (np.max(np.abs(m)) or 1.0)
-    curve = line + np.column_stack([np.zeros_like(m), np.zeros_like(m), scale * m])
-    p.add_mesh(pv.lines_from_points(curve), color="darkred", line_width=3)
-    drops = pv.PolyData(np.vstack([line, curve]))
-    n = line.shape[0]
-    drops.lines = np.column_stack([np.full(n, 2), np.arange(n), np.arange(n) + n]).ravel()
-    p.add_mesh(drops, color="darkred", line_width=1)
+    p.add_mesh(tube, scalars="bending", cmap="plasma", clim=clim, scalar_bar_args=bar)
+    p.add_mesh(surf, color="lightsteelblue", opacity=WING_OPACITY, show_edges=False)
     _caution(p)
-    p.add_text(f"bending moment along the spar, case: {printable(cr.name)}; red line: M to scale",
+    p.add_text(f"bending moment as colour on the spar, case: {printable(cr.name)}",
                font_size=9, color="black")
-    _camera(p, surf.bounds)
+    _camera(p, surf.bounds, zoom=1.35, shift=WING_SHIFT)
     return _image(p) if image_only else _shoot(p, path, inputs)
 
 
@@ -252,7 +275,9 @@ def has_display() -> bool:
 
 
 def view(run_dir, case=None, screenshot=None):
-    """Show a run's surface (delta-Cp), lattice and load axis (bending) in a window.
+    """Show a run's surface (the case's pressure jump), lattice and spar axis (bending) in a
+    window. A run folder written before the spar axis file was renamed (load_axis.vtp) is read
+    too.
 
     Check boxes at the bottom left switch each layer on and off. With `screenshot` (a PNG path)
     the scene is rendered offscreen into that file instead, and its path is returned.
@@ -260,7 +285,9 @@ def view(run_dir, case=None, screenshot=None):
     import pyvista as pv
 
     d = Path(run_dir)
-    files = {k: d / f"{k}.vtp" for k in ("surface", "lattice", "load_axis")}
+    files = {k: d / f"{k}.vtp" for k in ("surface", "lattice", "spar_axis")}
+    if not files["spar_axis"].is_file() and (d / "load_axis.vtp").is_file():
+        files["spar_axis"] = d / "load_axis.vtp"
     missing = [str(f) for f in files.values() if not f.is_file()]
     if missing:
         raise InputError(f"{d}: not a geomload run folder (missing {', '.join(missing)})")
@@ -279,26 +306,42 @@ def view(run_dir, case=None, screenshot=None):
     if sc not in surf.cell_data:
         sc = "pressure_jump_Pa_critical" if "pressure_jump_Pa_critical" in surf.cell_data \
             else "dcp_critical"
-    title = ("lift per plan area (Pa)\nshare of the jump" if sc.startswith("pressure")
+    title = ("lift per plan area (Pa)" if sc.startswith("pressure")
              else "delta-Cp (-)\nlower - upper")
-    actors = [p.add_mesh(surf, scalars=sc, cmap="coolwarm", scalar_bar_args=_bar(title))]
-    actors.append(p.add_mesh(data["lattice"], style="wireframe", color="navy", line_width=1))
-    ax = data["load_axis"]
+    unit = "Pa" if sc.startswith("pressure") else ""
+    vals, bar_s, clim_s = scaled_field(np.asarray(surf.cell_data[sc], float), unit,
+                                       title.split(" (")[0], position_x=0.78)
+    if not unit:
+        bar_s["title"] = title
+    surf.cell_data["shown"] = vals
+    ax = data["spar_axis"]
     span = float(np.ptp(ax.points[:, 1])) or 1.0
     bk = f"bending_Nm_{key}"
-    bar_m = dict(_bar("bending M (N m)"), position_x=0.72)  # beside the delta-Cp bar, not on it
-    actors.append(p.add_mesh(ax.tube(radius=0.01 * span), scalars=bk if bk in ax.point_data else None,
-                             cmap="viridis", scalar_bar_args=bar_m))
+    tube = ax.tube(radius=0.015 * span, n_sides=24)
+    if bk in ax.point_data:
+        mv, bar_m, clim_m = scaled_field(np.asarray(tube.point_data[bk], float), "N·m",
+                                         "bending M", position_x=0.90)
+        tube.point_data["bending shown"] = mv
+        spar = p.add_mesh(tube, scalars="bending shown", cmap="plasma", clim=clim_m,
+                          scalar_bar_args=bar_m)
+    else:
+        spar = p.add_mesh(tube, color="darkred")
+    # the spar first and the surface translucent, so the spar stays visible inside the wing
+    actors = [p.add_mesh(surf, scalars="shown", cmap="coolwarm", clim=clim_s,
+                         scalar_bar_args=bar_s, opacity=WING_OPACITY)]
+    actors.append(p.add_mesh(data["lattice"], style="wireframe", color="navy", line_width=1,
+                             opacity=0.5))
+    actors.append(spar)
     p.add_text(f"case: {printable(name)}" + ("" if sc.endswith(key) else " (surface: critical case)"),
                font_size=10, color="black")
     _caution(p)
-    _camera(p, surf.bounds)
+    _camera(p, surf.bounds, zoom=1.1, shift=WING_SHIFT)
     if off:
         try:
             return _shoot(p, screenshot, inputs=list(files.values()))
         except OSError as exc:
             raise OutputError(f"{screenshot}: cannot write the screenshot ({exc})") from None
-    for i, (a, label) in enumerate(zip(actors, ("surface", "lattice", "load axis"))):
+    for i, (a, label) in enumerate(zip(actors, ("surface", "lattice", "spar axis"))):
         p.add_checkbox_button_widget(a.SetVisibility, value=True, position=(10, 10 + 45 * i),
                                      size=35, color_on="steelblue")
         p.add_text(label, position=(52, 18 + 45 * i), font_size=9, color="black")

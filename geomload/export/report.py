@@ -18,11 +18,14 @@ import numpy as np
 
 from geomload import CAUTION, __version__
 from geomload.export import envelope_access as ea
+from geomload.export import report_tables as rt
 from geomload.export.atomic import write_text_atomic
 from geomload.textsafe import printable
 
-SECTIONS = (("job", "The job"), ("geometry", "Geometry check"), ("aerodynamics", "Aerodynamics"),
-            ("loads", "Spanwise loads"), ("vn", "V-n diagram"),
+SECTIONS = (("job", "The job"), ("geometry", "Geometry check"),
+            ("masses", "Masses and inertia"), ("aerodynamics", "Aerodynamics"),
+            ("loads", "Spanwise loads"), ("station_table", "Envelope by station"),
+            ("view3d", "3-D check in the browser"), ("vn", "V-n diagram and design speeds"),
             ("critical", "Critical cases and root loads"),
             ("basis", "Assumptions behind the numbers"), ("inputs", "Inputs"),
             ("versions", "Versions and run time"))
@@ -34,13 +37,15 @@ CAPTIONS = {
     "spanwise": "Spanwise cl per case; cl·c/c_ref beside the elliptic and Schrenk loads of the same CL.",
     "cl_alpha": "Wing CL against angle of attack (lattice) with the trimmed cases.",
     "loads": "Shear, bending and torsion along the span: cases (limit) and the envelope, limit and ultimate.",
+    "inplane": "In-plane (chordwise) shear and bending along the span, limit: shear positive aft "
+               "(+x, the drag direction), bending positive when the tip is pushed aft.",
     "surface_dcp": "CAD surface coloured by delta-Cp (lower minus upper) of the critical case.",
-    "spar_bending": "Bending moment along the spar line (critical case).",
+    "spar_bending": "Bending moment as colour on the spar axis (critical case), inside the translucent wing.",
     "vn": "V-n diagram with the design points labelled.",
 }
 SECTION_IMAGES = {"geometry": ("planform", "lattice_overlay", "stations"),
                   "aerodynamics": ("spanwise", "cl_alpha"),
-                  "loads": ("loads", "surface_dcp", "spar_bending"), "vn": ("vn",)}
+                  "loads": ("loads", "inplane", "surface_dcp", "spar_bending"), "vn": ("vn",)}
 
 CSS = """body{font-family:sans-serif;max-width:1100px;margin:1em auto;padding:0 1em;color:#222}
 h1{font-size:1.5em}h2{border-bottom:2px solid #446;padding-bottom:.2em;margin-top:1.6em}
@@ -49,7 +54,7 @@ h1{font-size:1.5em}h2{border-bottom:2px solid #446;padding-bottom:.2em;margin-to
 td,th{border:1px solid #bbb;padding:.2em .5em;text-align:right}th{background:#eef}
 td.t,th.t{text-align:left}figure{margin:1em 0}img{max-width:100%;border:1px solid #ddd}
 figcaption{font-size:.85em;color:#555}pre{background:#f6f6f6;padding:.6em;overflow-x:auto}
-.na{background:#fbe9e9;border:1px dashed #c66;padding:.8em}"""
+.na{background:#fbe9e9;border:1px dashed #c66;padding:.8em}tr.stall td{background:#fdf0dc}"""
 
 
 def esc(s) -> str:
@@ -63,10 +68,15 @@ def _fmt(v, nd=4) -> str:
     return esc(v)
 
 
-def _table(header, rows, text_cols=(0,)) -> str:
+def _table(header, rows, text_cols=(0,), row_class=None) -> str:
     th = "".join(f'<th class="{"t" if i in text_cols else ""}">{esc(h)}</th>' for i, h in enumerate(header))
-    body = "".join("<tr>" + "".join(f'<td class="{"t" if i in text_cols else ""}">{_fmt(v)}</td>'
-                                    for i, v in enumerate(r)) + "</tr>" for r in rows)
+    def tr(k, r):
+        cls = row_class(k, r) if row_class else ""
+        return (f'<tr{f" class={chr(34)}{cls}{chr(34)}" if cls else ""}>'
+                + "".join(f'<td class="{"t" if i in text_cols else ""}">{_fmt(v)}</td>'
+                          for i, v in enumerate(r)) + "</tr>")
+
+    body = "".join(tr(k, r) for k, r in enumerate(rows))
     return f"<table><tr>{th}</tr>{body}</table>"
 
 
@@ -121,19 +131,32 @@ def _planform_table(p) -> str:
 
 
 def _aero_table(run) -> str:
-    rows = [(c.name, c.aero.alpha_deg, c.aero.CL, c.aero.CDi, c.aero.e, c.aero.Cm, c.mach,
-             c.aero.CL_alpha_per_rad) for c in run.cases]
-    return _table(("case", "alpha (deg)", "CL", "CDi", "e", "Cm", "Mach", "CL_alpha (1/rad)"), rows)
+    stalled = rt.stalled_names(run)
+    from geomload.report_text import case_cn
+
+    rows = [(rt.case_label(c.name, stalled), c.aero.alpha_deg, c.aero.CL, case_cn(run, c),
+             c.aero.CDi, rt.e_text(c), c.aero.Cm, c.mach, c.aero.CL_alpha_per_rad)
+            for c in run.cases]
+    return (_table(("case", "alpha (deg)", "CL", "CN", "CDi", "e", "Cm", "Mach",
+                    "CL_alpha (1/rad)"), rows, row_class=_stall_class(stalled))
+            + "<p>CN: the wing's normal-force coefficient (force normal to the root chord line "
+              "over q S), compared with the V-n diagram's maximum. e (span efficiency) is left "
+              "blank (—) where the case carries no lift (n = 0).</p>")
+
+
+def _stall_class(stalled):
+    return lambda k, r: "stall" if str(r[0]).endswith(rt.STALL_MARK) else ""
 
 
 def _root_table(run) -> str:
-    rows = []
+    rows, stalled = [], rt.stalled_names(run)
     bars = getattr(run, "error_bars", None)
     for c in run.cases:
         L, uf = c.loads, float(c.loads.ultimate_factor)
-        row = [c.name, c.v_eas, c.altitude_m, c.load_factor, c.aero.alpha_deg, c.aero.CL,
-               L.shear_N[0], L.bending_Nm[0], L.torsion_Nm[0], uf * L.shear_N[0],
-               uf * L.bending_Nm[0], uf * L.torsion_Nm[0], c.residual]
+        row = [rt.case_label(c.name, stalled), c.v_eas, c.altitude_m, c.load_factor,
+               c.aero.alpha_deg, c.aero.CL, L.shear_N[0], L.bending_Nm[0], L.torsion_Nm[0],
+               uf * L.shear_N[0], uf * L.bending_Nm[0], uf * L.torsion_Nm[0],
+               rt.residual_text(c.residual)]
         b = None if bars is None else bars.of(c.name)
         if bars is not None:  # the error estimate beside each root load
             e = (math.nan,) * 3 if b is None else tuple(b.values().values())
@@ -142,13 +165,13 @@ def _root_table(run) -> str:
             row[11:11] = [e[2]]
         rows.append(tuple(row))
     head = ["case", "V_EAS (m/s)", "altitude (m)", "n", "alpha (deg)", "CL",
-            "root V (N)", "root M (N m)", "root T (N m)", "ult. V (N)", "ult. M (N m)",
-            "ult. T (N m)", "residual"]
+            "root V (N)", "root M (N·m)", "root T (N·m)", "ult. V (N)", "ult. M (N·m)",
+            "ult. T (N·m)", "equilibrium"]
     if bars is not None:
         head[7:7] = ["+- V (N)"]
-        head[9:9] = ["+- M (N m)"]
-        head[11:11] = ["+- T (N m)"]
-    out = _table(head, rows)
+        head[9:9] = ["+- M (N·m)"]
+        head[11:11] = ["+- T (N·m)"]
+    out = _table(head, rows, text_cols=(0, len(head) - 1), row_class=_stall_class(stalled))
     if bars is not None:
         lat = " and ".join(f"{a} x {b}" for a, b in bars.lattices[1:])
         env = bars.envelope
@@ -156,22 +179,25 @@ def _root_table(run) -> str:
                 f"extrapolation from the run's lattice and the coarser {esc(lat)} panels; see the "
                 f"warnings for loads that do not converge monotonically). Envelope root extremes: "
                 f"shear +-{_fmt(env.root_shear_N, 2)} N, bending +-{_fmt(env.root_bending_Nm, 2)} "
-                f"N m, torsion +-{_fmt(env.root_torsion_Nm, 2)} N m.</p>")
+                f"N·m, torsion +-{_fmt(env.root_torsion_Nm, 2)} N·m.</p>")
     return out
 
 
 def _critical(run) -> str:
     out = ["<h3>Root loads per case (limit and ultimate)</h3>", _root_table(run)]
     if run.envelope is not None:
-        rows = [(r["quantity"], r["unit"], r["root_limit"], r["root_ultimate"], r["root_case"],
-                 r["peak_limit"], r["peak_y_m"], r["peak_case"]) for r in ea.critical_table(run.envelope)]
+        st = rt.stalled_names(run)
+        rows = [(r["quantity"], r["unit"], r["root_limit"], r["root_ultimate"],
+                 rt.case_label(r["root_case"], st), r["peak_limit"], r["peak_y_m"],
+                 rt.case_label(r["peak_case"], st)) for r in ea.critical_table(run.envelope)]
         out += ["<h3>Envelope: governing cases</h3>",
                 _table(("quantity", "unit", "root limit", "root ultimate", "root case",
                         "peak limit", "peak at y (m)", "peak case"), rows, text_cols=(0, 1, 4, 7))]
     else:
         out.append("<p>No envelope was defined; the cases above are the only ones run.</p>")
     crit = ea.critical_case(run)
-    out.append(f"<p>Critical case (largest root bending magnitude): <b>{esc(crit.name)}</b>.</p>")
+    out.append("<p>Critical case (largest root bending magnitude): "
+               f"<b>{esc(rt.case_label(crit.name, rt.stalled_names(run)))}</b>.</p>")
     return "".join(out)
 
 
@@ -184,19 +210,21 @@ def _obj_rows(obj) -> list:
         items = obj.items()
     else:
         items = getattr(obj, "__dict__", {}).items()
-    return [(k, v) for k, v in items if not str(k).startswith("_")]
+    return [(k, rt.setting_text(v)) for k, v in items if not str(k).startswith("_")]
 
 
 def _inputs(run, options) -> str:
     f = run.frame
     frame_rows = [("span axis (CAD)", f.span_axis), ("up axis (CAD)", f.up_axis),
-                  ("full span in the file", f.full_span), ("asymmetry / semi-span", f.asymmetry),
-                  ("origin (CAD, m)", np.round(f.origin, 6).tolist()),
-                  ("rotation rows (wing x, y, z in CAD)", np.round(f.rotation, 6).tolist())]
+                  ("full span in the file", rt.setting_text(f.full_span)),
+                  ("asymmetry / semi-span", rt.setting_text(f.asymmetry)),
+                  ("origin (CAD, m)", rt.setting_text(np.round(f.origin, 6))),
+                  ("rotation rows (wing x, y, z in CAD)",
+                   "; ".join(rt.setting_text(r) for r in np.round(f.rotation, 6)))]
     frame_rows += [("note", n) for n in f.notes]
     imp = [("geometry file", run.mesh.source), ("units", run.mesh.units)]
     imp += [(f"case: {k}", v) for k, v in _obj_rows(getattr(run.case, "geometry", None))]
-    imp += [(k, v) for k, v in (options or {}).items()]
+    imp += [(k, rt.setting_text(v)) for k, v in (options or {}).items()]
     imp += [("mesh note", n) for n in run.mesh.notes] + [("station note", n) for n in run.stations.notes]
     return ("<h3>Case file</h3>" + f"<pre>{esc(run.case_text)}</pre>"
             + "<h3>Import options</h3>" + _table(("option", "value"), imp, text_cols=(0, 1))
@@ -242,17 +270,70 @@ def _basis(run) -> str:
             f"<p class='caution'>{esc(CAUTION)}</p>")
 
 
-def render_html(run, images: dict, options=None, run_time_s=None) -> str:
-    """The report as one HTML string (see module docstring)."""
+def _masses(run) -> str:
+    rows = [(n, m, "" if y is None else y, "" if i is None else i) for n, m, y, i in rt.mass_rows(run)]
+    return (_table(("item", "mass, both sides (kg)", "spanwise c.g. |y| (m)",
+                    "roll inertia about the symmetry plane (kg·m²)"), rows)
+            + "<p>Masses as given in the case file (fuel full); each item's inertia is the sum of "
+              "m·y² over both sides; the rest of the aircraft is carried at the symmetry plane.</p>")
+
+
+def _speeds(run) -> str:
+    rows = rt.speed_rows(run)
+    if not rows:
+        return ""
+    return ("<h3>Design speeds</h3>"
+            + _table(("mass (kg)", "altitude (m)", "V_S1 (m/s EAS)", "V_A (m/s EAS)",
+                      "V_C (m/s EAS)", "V_D (m/s EAS)", "n positive", "n negative"), rows, ()))
+
+
+def _station_table(run) -> str:
+    if run.envelope is None:
+        return "<p>No envelope of loads: the case file defines a single case set.</p>"
+    out = []
+    for title, qs in (("Out-of-plane loads (limit)", ("shear", "bending", "torsion")),
+                      ("In-plane (chordwise) loads (limit)", ("inplane_shear", "inplane_bending"))):
+        header, rows, text_cols = rt.envelope_rows(run, qs)
+        stalled = rt.stalled_names(run)
+        cls = (lambda k, r: "stall" if any(str(v).endswith(rt.STALL_MARK) for v in r) else "")
+        out += [f"<h3>{esc(title)}</h3>",
+                _table(header, rows, text_cols, row_class=cls if stalled else None)]
+    out.append("<p>Signs: shear positive up, bending positive tip-up, torsion positive nose-up "
+               "about the spar axis; in-plane shear positive aft, in-plane bending positive tip-aft. "
+               "Ultimate = limit x the ultimate factor. A case marked “beyond stall” flies above the "
+               "section maximum lift coefficient: its loads are kept (conservative) but the "
+               "lattice overstates them.</p>")
+    return "".join(out)
+
+
+def _view3d(fragment) -> str:
+    if fragment is None:
+        return "<p>The 3-D view was not requested.</p>"
+    if isinstance(fragment, BaseException):
+        reason = " ".join(str(fragment).split()) or type(fragment).__name__
+        return f'<div class="na" id="view3d-na">3-D view unavailable: {esc(reason)}</div>'
+    return ("<p>Pick a case: the CAD surface is coloured by its pressure jump (lower minus upper, "
+            "limit), the spar tube by its bending moment. Works offline in any browser with "
+            "WebGL.</p>" + fragment)
+
+
+def render_html(run, images: dict, options=None, run_time_s=None, view3d=None) -> str:
+    """The report as one HTML string (see module docstring).
+
+    view3d : the interactive 3-D fragment (view3d.view3d_from_run), the Exception that stopped
+        it (shown as "3-D view unavailable: reason"), or None (not requested).
+    """
     images = dict(images or {})
     body = {"job": _job(run),
             "geometry": _images(images, SECTION_IMAGES["geometry"]) + "<h3>Planform summary</h3>"
             + _planform_table(run.planform),
+            "masses": _masses(run), "station_table": _station_table(run),
+            "view3d": _view3d(view3d),
             "aerodynamics": _images(images, SECTION_IMAGES["aerodynamics"]) + _aero_table(run),
             "loads": _images(images, SECTION_IMAGES["loads"])
             + "<p>Signs: shear positive up, bending positive tip-up, torsion positive nose-up about "
               "the spar axis. Ultimate = limit x ultimate factor (1.5 unless set).</p>",
-            "vn": (_images(images, ("vn",)) if run.vn is not None and "vn" in images
+            "vn": (_images(images, ("vn",)) + _speeds(run) if run.vn is not None and "vn" in images
                    else "<p>No V-n diagram: the case file defines no envelope.</p>"),
             "critical": _critical(run), "basis": _basis(run), "inputs": _inputs(run, options),
             "versions": _versions(run, run_time_s)}
@@ -271,6 +352,18 @@ def render_html(run, images: dict, options=None, run_time_s=None) -> str:
     return "\n".join(parts)
 
 
-def write_report(path, run_result, images: dict, options=None, run_time_s=None, inputs=()):
-    """Write report.html atomically; returns its path."""
-    return write_text_atomic(path, render_html(run_result, images, options, run_time_s), inputs)
+def view3d_fragment(run, surface=None):
+    """The 3-D view fragment of `run`, or the Exception that stopped it (never raises)."""
+    try:
+        from geomload.export.view3d import view3d_from_run
+
+        return view3d_from_run(run, surface=surface)
+    except Exception as exc:  # noqa: BLE001 - the report says why, the run keeps its outputs
+        return exc
+
+
+def write_report(path, run_result, images: dict, options=None, run_time_s=None, inputs=(),
+                 view3d=None):
+    """Write report.html atomically; returns its path (view3d: see render_html)."""
+    return write_text_atomic(path, render_html(run_result, images, options, run_time_s, view3d),
+                             inputs)

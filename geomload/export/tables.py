@@ -124,11 +124,19 @@ def write_loads_csv(path, case_result, caution=CAUTION, frame=None, inputs=()):
             case_line(cr), f"ultimate factor: {uf:g} (ultimate = factor x limit)", SIGNS,
             *frame_lines(frame),
             "units: y m; distributed loads N/m; distributed moments N m/m; shear N; moments N m",
-            "inertia_N_per_m: n g m'(y), positive down (weight relief); pitch about the spar axis"]
+            "inertia_N_per_m: n g m'(y), positive down (weight relief); pitch about the spar axis",
+            "cl_c_m: lift_N_per_m / q (section lift coefficient x chord, m); cl: cl_c_m / chord_m"]
     if cr.stall_warning:
         head.append(f"warning: {cr.stall_warning}")
     head.append(f"equilibrium residual (relative): {cr.residual:.3g}")
-    cols = {"y_m": L.y, "lift_N_per_m": L.lift_N_per_m, "drag_N_per_m": L.drag_N_per_m,
+    q = float(cr.q_pa)
+    chord = (np.asarray(L.chord_m, float) if L.chord_m is not None
+             else np.interp(L.y, cr.aero.y, cr.aero.chord))
+    cl_c = np.asarray(L.lift_N_per_m, float) / q if q > 0 else np.full(np.size(L.y), np.nan)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        cl = np.where(chord > 0, cl_c / np.where(chord > 0, chord, 1.0), np.nan)
+    cols = {"y_m": L.y, "lift_N_per_m": L.lift_N_per_m, "cl_c_m": cl_c, "cl": cl,
+            "chord_m": chord, "drag_N_per_m": L.drag_N_per_m,
             "pitch_Nm_per_m": L.pitch_Nm_per_m, "inertia_N_per_m": L.inertia_N_per_m,
             "schrenk_lift_N_per_m": L.schrenk_lift_N_per_m, "shear_N": L.shear_N,
             "bending_Nm": L.bending_Nm, "torsion_Nm": L.torsion_Nm,
@@ -199,6 +207,16 @@ def _error_estimate(run, name):
             "not_monotone": list(bar.not_monotone)}
 
 
+def planform_keys(p) -> dict:
+    """The planform under the key names of `inspect --json` (each carries its unit)."""
+    return {"area_m2": _num(p.area), "span_m": _num(p.span), "aspect_ratio": _num(p.aspect_ratio),
+            "taper": _num(p.taper), "root_chord_m": _num(p.root_chord),
+            "tip_chord_m": _num(p.tip_chord), "mac_m": _num(p.mac), "x_mac_le_m": _num(p.x_mac_le),
+            "y_mac_m": _num(p.y_mac), "x_mac_quarter_chord_m": _num(p.x_mac_qc),
+            "sweep_le_deg": _num(p.sweep_le_deg), "sweep_quarter_chord_deg": _num(p.sweep_qc_deg),
+            "dihedral_deg": _num(p.dihedral_deg), "washout_deg": _num(p.washout_deg)}
+
+
 def summary(run) -> dict:
     """The run summary as plain JSON-able data (SI units; key names carry them)."""
     p = run.planform
@@ -229,11 +247,7 @@ def summary(run) -> dict:
                         "span_axis": run.frame.span_axis, "up_axis": run.frame.up_axis,
                         "full_span": bool(run.frame.full_span),
                         "asymmetry": _num(run.frame.asymmetry)},
-           "planform": {k: _num(getattr(p, k)) for k in (
-               "area", "span", "aspect_ratio", "taper", "root_chord", "tip_chord", "mac",
-               "x_mac_le", "y_mac", "x_mac_qc", "sweep_le_deg", "sweep_qc_deg", "dihedral_deg",
-               "washout_deg")},
-           "planform_units": "m, m^2, deg", "cases": cases, "envelope": None,
+           "planform": planform_keys(p), "cases": cases, "envelope": None,
            "warnings": list(run.warnings), "timings_s": dict(run.timings),
            "versions": dict(run.versions),
            "null_means": "a number that is not finite (NaN or infinite) is written as null"}

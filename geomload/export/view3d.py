@@ -271,6 +271,12 @@ def _script_text(s: str) -> str:
     return s.replace("</", "<\\/").replace("<!--", "<\\!--")
 
 
+def _json_text(data) -> str:
+    """JSON for a <script type="application/json"> block: every "<" written as \\u003c, so no
+    user text (a case name) can open or close a tag inside it."""
+    return json.dumps(data, separators=(",", ":")).replace("<", "\\u003c")
+
+
 def view3d_data(surface_points, surface_triangles, case_fields: dict, spar_points=None,
                 spar_bending: dict | None = None, max_triangles: int = MAX_TRIANGLES,
                 surface_unit: str = "Pa", spar_unit: str = "N\u00b7m") -> dict:
@@ -383,7 +389,7 @@ def view3d_html(surface_points, surface_triangles, case_fields: dict, spar_point
 </div>
 <script type="text/plain" id="{uid}-lib">{_script_text(lib)}</script>
 <script type="text/plain" id="{uid}-orbit">{_script_text(orbit)}</script>
-<script type="application/json" id="{uid}-data">{_script_text(json.dumps(data, separators=(",", ":")))}</script>
+<script type="application/json" id="{uid}-data">{_json_text(data)}</script>
 <script>{_script_text(_page_code().replace("__UID__", uid))}</script>
 """
 
@@ -400,8 +406,8 @@ def view3d_from_run(run, surface=None, caution: str | None = None,
                     initial_case: str | None = None, max_triangles: int = MAX_TRIANGLES) -> str:
     """`view3d_html` for a records.RunResult: every case, the critical case shown first.
 
-    Surface: the welded CAD surface in the wing frame (``surface``: a prebuilt
-    vtk.surface_polydata(run), else built here); each triangle takes the pressure jump
+    Surface: the welded CAD surface in the wing frame (``surface``: a prebuilt vtk.Surface
+    record, e.g. write_all's display surface, or vtk.surface_polydata(run); else built here); each triangle takes the pressure jump
     dcp x q (Pa) of its nearest lattice panel, as in surface.vtp. Spar: vtk.spar_line(run) with
     each case's loads.bending_Nm (limit).
     """
@@ -409,7 +415,10 @@ def view3d_from_run(run, surface=None, caution: str | None = None,
     from geomload.export import envelope_access as ea
     from geomload.export import vtk as gvtk
 
-    if surface is not None:
+    if surface is not None and hasattr(surface, "tri"):  # a vtk.Surface record (write_all's)
+        pts, tri = np.asarray(surface.points, float), np.asarray(surface.tri, np.int64)
+        near = np.asarray(surface.panel)
+    elif surface is not None:
         pts = np.asarray(surface.points, float)
         tri = np.asarray(surface.faces).reshape(-1, 4)[:, 1:]
         near = np.asarray(surface.cell_data["panel"])

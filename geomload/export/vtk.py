@@ -3,8 +3,9 @@
 - lattice.vtp: the vortex-lattice panels as quads (wing frame); cell data per case
   ``gamma_<key>`` (circulation per unit speed, m), ``circulation_<key>`` (m^2/s, x V_TAS),
   ``dcp_<key>`` (pressure-coefficient jump lower - upper, -), plus ``strip`` and ``area_m2``.
-- load_axis.vtp: the spar line as one polyline; point data per case ``shear_N_<key>``,
-  ``bending_Nm_<key>``, ``torsion_Nm_<key>`` (limit) and, with an envelope, ``*_max``/``*_min``.
+- spar_axis.vtp: the spar axis as one polyline; point data per case ``shear_N_<key>``,
+  ``bending_Nm_<key>``, ``torsion_Nm_<key>`` (limit) and, with an envelope, the envelope columns
+  under the names of envelope.csv and summary.json (``shear_max_N``, ``shear_max_ult_N``, ...).
 - surface.vtp: the CAD surface in the wing frame (a decimated display surface above
   MAX_DISPLAY_TRIANGLES, see `surface_data`); cell data ``panel`` (nearest lattice panel in the
   (x, |y|) plan view), ``plan_area_m2`` (the cell's area projected on the wing x-y plane) and,
@@ -125,8 +126,8 @@ def spar_line(run, case_result=None) -> np.ndarray:
     return np.column_stack([x, y, z])
 
 
-def load_axis_arrays(run):
-    """(points (n, 3), point_data) of the spar line with every case's V, M, T and the envelope."""
+def spar_axis_arrays(run):
+    """(points (n, 3), point_data) of the spar axis with every case's V, M, T and the envelope."""
     pts = spar_line(run)
     n = pts.shape[0]
     pdata = {"y_m": pts[:, 1]}
@@ -142,14 +143,17 @@ def load_axis_arrays(run):
         if e["y"].size == n:
             for q, u in e["quantities"]:
                 for side in ("max", "min"):
-                    pdata[f"{q}_{u}_{side}"] = e[f"{q}_{side}"]
-                    pdata[f"{q}_{u}_{side}_ult"] = e[f"{q}_{side}_ult"]
+                    pdata[f"{q}_{side}_{u}"] = e[f"{q}_{side}"]
+                    pdata[f"{q}_{side}_ult_{u}"] = e[f"{q}_{side}_ult"]
     return pts, pdata
 
 
-def write_load_axis_vtp(path, run, inputs=()):
-    """Write load_axis.vtp (see module docstring)."""
-    pts, pdata = load_axis_arrays(run)
+load_axis_arrays = spar_axis_arrays  # the earlier name
+
+
+def write_spar_axis_vtp(path, run, inputs=()):
+    """Write spar_axis.vtp (see module docstring)."""
+    pts, pdata = spar_axis_arrays(run)
     return write_vtp(path, pts, lines=[np.arange(pts.shape[0])], point_data=pdata,
                      field_data=_field(run, ea.critical_case(run)), inputs=inputs)
 
@@ -174,6 +178,9 @@ class Surface:
     decimated: bool
     cell_data: dict = field(default_factory=dict)
 
+
+
+write_load_axis_vtp = write_spar_axis_vtp  # the earlier name
 
 def surface_points_faces(mesh, frame):
     """Weld the triangle soup (exactly equal vertices) and move it to the wing frame."""
@@ -342,11 +349,11 @@ def write_surface_vtp(path, run, inputs=(), surface=None):
 
 
 def write_all_vtk(folder, run, inputs=(), surface=None):
-    """lattice.vtp, load_axis.vtp and surface.vtp into `folder`; returns their paths.
+    """lattice.vtp, spar_axis.vtp and surface.vtp into `folder`; returns their paths.
     `surface`: a prebuilt surface_data(run), shared with the renders."""
     from pathlib import Path
 
     f = Path(folder)
     return [write_lattice_vtp(f / "lattice.vtp", run, inputs),
-            write_load_axis_vtp(f / "load_axis.vtp", run, inputs),
+            write_spar_axis_vtp(f / "spar_axis.vtp", run, inputs),
             write_surface_vtp(f / "surface.vtp", run, inputs, surface)]

@@ -93,7 +93,7 @@ def integrate_loads(y, spar_x, spar_z, lift_N_per_m, *, drag_N_per_m=None, side_
     Parameters
     ----------
     y : (n,) station positions, strictly increasing root to tip (m).
-    spar_x, spar_z : (n,) load-axis position at each station (m, wing frame).
+    spar_x, spar_z : (n,) spar-axis position at each station (m, wing frame).
     lift_N_per_m : (n,) lift per metre of y (N/m), normal to the free stream: along
         (-sin a, 0, cos a) of the wing frame at angle of attack a = alpha_deg.
     drag_N_per_m : (n,) drag per metre of y (N/m), along the free stream (cos a, 0, sin a);

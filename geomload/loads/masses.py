@@ -63,7 +63,7 @@ def mass_distribution(y, chord, x_le, x_te, spar_x, spar_z, wing_mass=None, fuel
     """Distributed mass of one semi-span from the case's wing mass and fuel tanks.
 
     y, chord, x_le, x_te, spar_x, spar_z : (n,) stations (m). The c.g. of an item with a
-    cg_chord_fraction f lies at x_le + f (x_te - x_le); otherwise on the spar line.
+    cg_chord_fraction f lies at x_le + f (x_te - x_le); otherwise on the spar axis.
     fuel_fraction : share of every tank's fuel on board (0..1).
     """
     y = np.asarray(y, float)
