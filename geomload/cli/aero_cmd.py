@@ -45,7 +45,7 @@ def aero(geometry, units, span_axis, up_axis, side, n_stations, spacing, body, a
         raise AeroError(f"--panels-span/--panels-chord: must be positive, got "
                         f"{panels_span}/{panels_chord}")
     wing = read_geometry(geometry, units, span_axis, up_axis, n_stations, spacing, body, side)
-    mesh, stations = wing.mesh, wing.stations
+    mesh, stations, planform = wing.mesh, wing.stations, wing.planform
     from geomload.aero.models import analyse_at_alpha
 
     r = analyse_at_alpha(stations, alpha, mach, panels_span, panels_chord, cl_max,
