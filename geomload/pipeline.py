@@ -20,6 +20,7 @@ import time
 import dataclasses
 from dataclasses import dataclass
 from pathlib import Path
+from typing import Optional
 
 import numpy as np
 
@@ -53,6 +54,8 @@ class CaseContext:
     atmosphere: object
     masses: dict
     x_le_mac: float = 0.0  # x of the MAC leading edge (m): the c.g. check of the pitch trim
+    cache: Optional[dict] = None  # compute()'s cache shared between calls (None: no cache)
+    lattice_key: tuple = ()  # the lattice's key in that cache
 
     def masses_for(self, fuel_fraction: float):
         """The MassDistribution at a fuel fraction (built once per fraction)."""
@@ -141,7 +144,8 @@ def compute(case, progress=None, cache=None) -> RunResult:
     grid = load_grid(lattice, jumps, case.spar.chord_fraction if case.spar.chord_fraction
                      is not None else 0.25, case.spar.line, case.spar.rib_y_m,
                      ends=[float(t.y_to_m) for t in case.fuel_tanks])
-    ctx = CaseContext(case, stations, models, grid, atmosphere, {}, float(planform.x_mac_le))
+    ctx = CaseContext(case, stations, models, grid, atmosphere, {}, float(planform.x_mac_le),
+                      cache, lattice_key)
     results = []
     tail = case.controls is not None and case.controls.tail is not None
     for i, lc in enumerate(load_cases):

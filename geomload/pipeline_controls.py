@@ -47,16 +47,22 @@ class SideSolution:
 
 class ControlModels:
     """The full-span lattice with the case's control surfaces and one ControlModel per lattice
-    Mach, built on first use."""
+    Mach, built on first use; kept in ``cache`` (the dict compute() shares between calls) under
+    the symmetric lattice's key and the surfaces, so a batch of variants builds them once."""
 
-    def __init__(self, case, stations, progress):
+    def __init__(self, case, stations, progress, cache=None, lattice_key=()):
         from geomload.aero.lattice import build_lattice
 
         spec = case.lattice
-        self.lattice = build_lattice(stations, n_span=spec.n_span, n_chord=spec.n_chord,
-                                     spacing=spec.spacing, full_span=True,
-                                     x_ref=case.moment_reference,
-                                     controls=case.controls.surfaces)
+        self.cache, self.key = cache, ("control lattice", lattice_key, case.controls.surfaces)
+        lat = None if cache is None else cache.get(self.key)
+        if lat is None:
+            lat = build_lattice(stations, n_span=spec.n_span, n_chord=spec.n_chord,
+                                spacing=spec.spacing, full_span=True,
+                                x_ref=case.moment_reference, controls=case.controls.surfaces)
+            if cache is not None:
+                cache[self.key] = lat
+        self.lattice = lat
         self.controls, self.progress, self.models = case.controls.surfaces, progress, {}
         self.warnings = []
 
@@ -66,11 +72,16 @@ class ControlModels:
 
         key = round(lattice_mach(mach), 6)
         if key not in self.models:
-            self.progress(f"control lattice M={key:.2f}", 0, 1)
-            m = ControlModel(AeroModel(self.lattice, mach=key), self.controls)
+            ck = ("control aero", self.key, key)
+            m = None if self.cache is None else self.cache.get(ck)
+            if m is None:
+                self.progress(f"control lattice M={key:.2f}", 0, 1)
+                m = ControlModel(AeroModel(self.lattice, mach=key), self.controls)
+                self.progress(f"control lattice M={key:.2f}", 1, 1)
+                if self.cache is not None:
+                    self.cache[ck] = m
             self.warnings += [w for w in m.warnings if w not in self.warnings]
             self.models[key] = m
-            self.progress(f"control lattice M={key:.2f}", 1, 1)
         return self.models[key]
 
 
@@ -143,7 +154,7 @@ def unsymmetric_cases(ctx, vn, solve_case, progress) -> tuple:
     d = vn[0]
     sp, h, mass = d.speeds, d.altitude_m, d.mass_kg
     warnings, jobs = [], []
-    cms = ControlModels(case, ctx.stations, progress)
+    cms = ControlModels(case, ctx.stations, progress, ctx.cache, ctx.lattice_key)
     if spec.rolling is not None:
         r = spec.rolling
         if "simplified" in r.methods:
