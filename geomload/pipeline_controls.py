@@ -252,7 +252,9 @@ def _one(kind, rc, label, x_cg, h, mass, ctx, cms, solve_case) -> CaseResult:
         cld, clp = cm.roll_derivatives(rc.aileron, st.alpha_deg, rc.aileron_deg, st.pb_2V)
         ctl = dataclasses.replace(ctl, Cl_delta_per_rad=cld, Cl_p=clp,
                                   Cl_aileron=cld * math.radians(rc.aileron_deg),
-                                  Cl_damping=clp * st.pb_2V)
+                                  Cl_damping=clp * st.pb_2V,
+                                  **_aileron_torsion(sol, ctx.case.controls.surface(rc.aileron),
+                                                     rc.aileron_deg, q))
     aero = ctx.models.get(mach).solve(st.alpha_deg)  # the clean wing at the case's angle
     res = max(stb.equilibrium.residual, port.equilibrium.residual)
     return CaseResult(name=name, v_eas=v_eas, v_tas=v_tas, altitude_m=h, mach=mach, q_pa=q,
@@ -261,6 +263,21 @@ def _one(kind, rc, label, x_cg, h, mass, ctx, cms, solve_case) -> CaseResult:
                       tail_load_N=None if tail is None else tail.tail_load_N,
                       wing_normal_force_N=normal_force(stb, port, case.body_axis),
                       x_cg_m=x_cg, control=ctl)
+
+
+def _aileron_torsion(sol, ail, delta_deg, q) -> dict:
+    """The aileron's section pitching-moment increment on the down-aileron side over its span
+    (N m, nose-up +): by the 23.349 rule (delta_cm = -0.01 deg^-1 x delta, on q c^2) and from
+    the lattice (half the difference of the two sides' strip moments)."""
+    from geomload.loads.rules_unsymmetric import aileron_torsion_increment
+
+    down, up = (sol.port, sol.starboard) if delta_deg > 0 else (sol.starboard, sol.port)
+    inside = (down.y_m >= ail.y_from_m) & (down.y_m <= ail.y_to_m)
+    rule = aileron_torsion_increment(down.y_m, down.chord_m, q, ail.y_from_m, ail.y_to_m,
+                                     abs(delta_deg))
+    dm = 0.5 * (down.moment_per_q - np.interp(down.y_m, up.y_m, up.moment_per_q)) * q
+    return {"aileron_torsion_rule_Nm": float(np.sum((rule * down.width_m)[inside])),
+            "aileron_torsion_lattice_Nm": float(np.sum((dm * down.width_m)[inside]))}
 
 
 def _simplified(base: CaseResult, rc, name, ctx) -> CaseResult:

@@ -306,7 +306,11 @@ class ControlState:
     of the aileron at this state (NaN when no aileron is deflected); Cl_aileron, Cl_damping:
     their moments Cl_delta delta and Cl_p pb_2V; Cl_airload: the rolling moment coefficient of
     the two sides' airloads on the load grid (right wing down positive); side_factors: the
-    23.349 simplified (starboard, port) airload factors, (1, 1) otherwise.
+    23.349 simplified (starboard, port) airload factors, (1, 1) otherwise;
+    aileron_torsion_rule_Nm: the section pitching moment increment over the aileron span of the
+    down-aileron side by the rule's delta_cm = -0.01 delta (23.349, from memory), integrated;
+    aileron_torsion_lattice_Nm: the same increment from the lattice (half the difference of the
+    two sides' section moments over the aileron span, the antisymmetric part), as its cross-check.
     """
 
     rule: str
@@ -319,6 +323,8 @@ class ControlState:
     Cl_damping: float = float("nan")
     Cl_airload: float = float("nan")
     side_factors: tuple = (1.0, 1.0)
+    aileron_torsion_rule_Nm: float = float("nan")
+    aileron_torsion_lattice_Nm: float = float("nan")
 
 
 @dataclass(frozen=True)

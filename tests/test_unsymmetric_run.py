@@ -220,3 +220,18 @@ def test_deflection_beyond_linear_theory_warns(tmp_path):
     c = read_case_file(case)
     warns = check_controls_against_wing(c.controls, 1.8, 0.28, 0.056)
     assert len(warns) == 1 and "35 deg exceeds 30 deg" in warns[0] and "flap" in warns[0]
+
+
+def test_aileron_torsion_increment_against_the_rule(run):
+    """23.349 (pre-2017, from memory): the aileron's effect on wing torsion may be taken as a
+    section moment increment delta_cm = -0.01 delta (deg) over the aileron span; the lattice's
+    own increment on the down-aileron side (antisymmetric part of the two sides' section
+    moments) agrees within the rule's rough accuracy (5 %, common practice, no source)."""
+    result, _ = run
+    rolls = [c for c in result.cases if c.control is not None and math.isfinite(c.control.Cl_p)]
+    for c in rolls:
+        k = c.control
+        assert k.aileron_torsion_rule_Nm < 0  # nose-down on the down-aileron side
+        check("14 CFR 23.349, pre-2017, from memory: delta_cm = -0.01 delta over the aileron",
+              f"{c.name}: aileron torsion increment, lattice vs rule (N m)",
+              k.aileron_torsion_rule_Nm, k.aileron_torsion_lattice_Nm, rel=0.05)

@@ -267,6 +267,8 @@ def _case_kind(cr) -> dict:
             "pb_2V": _num(c.pb_2V), "CL": _num(c.CL), "Cl_delta_a_per_rad": _num(c.Cl_delta_per_rad),
             "Cl_p": _num(c.Cl_p), "Cl_aileron": _num(c.Cl_aileron),
             "Cl_damping": _num(c.Cl_damping), "Cl_airload": _num(c.Cl_airload),
+            "aileron_torsion_rule_Nm": _num(c.aileron_torsion_rule_Nm),
+            "aileron_torsion_lattice_Nm": _num(c.aileron_torsion_lattice_Nm),
             "airload_factors": {"starboard": _num(c.side_factors[0]),
                                 "port": _num(c.side_factors[1])}}
     return out
