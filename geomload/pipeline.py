@@ -20,6 +20,7 @@ import time
 import dataclasses
 from dataclasses import dataclass
 from pathlib import Path
+from typing import Optional
 
 import numpy as np
 
@@ -27,6 +28,7 @@ from geomload.aero.atmosphere import density_and_sound
 from geomload.aero.models import MachModels, cached_lattice
 from geomload.aero.trim import stall_messages, trim_case
 from geomload.config.checks import check_against_wing
+from geomload.config.controls_parse import check_controls_against_wing
 from geomload.config.parse import read_case_file
 from geomload.errors import CaseError, GeomloadError
 from geomload.loads.envelope import envelope_of
@@ -34,6 +36,7 @@ from geomload.loads.flight_case import applied_loads, case_loads
 from geomload.loads.grid import load_grid
 from geomload.loads.masses import mass_distribution
 from geomload.loads.vn import flight_envelope_cases
+from geomload.pipeline_controls import symmetric_with_tail, unsymmetric_cases
 from geomload.records import CaseResult, Message, RunResult, no_progress
 
 SWEEP_DEG = np.arange(-6.0, 16.01, 1.0)  # the alpha sweep shown in the report (deg)
@@ -59,6 +62,13 @@ class CaseContext:
     grid: object
     atmosphere: object
     masses: dict
+    x_le_mac: float = 0.0  # x of the MAC leading edge (m): the c.g. check of the pitch trim
+    cache: Optional[dict] = None  # compute()'s cache shared between calls (None: no cache)
+    lattice_key: tuple = ()  # the lattice's key in that cache
+
+    def masses_for(self, fuel_fraction: float):
+        """The MassDistribution at a fuel fraction (built once per fraction)."""
+        return _masses(self, float(fuel_fraction))
 
 
 def _wing(case, progress, cache):
@@ -68,10 +78,11 @@ def _wing(case, progress, cache):
     return case_wing(case, progress, cache)
 
 
-def solve_case(lc, ctx: CaseContext) -> CaseResult:
-    """Trim one LoadCase and integrate its loads. Returns a CaseResult."""
+def solve_case(lc, ctx: CaseContext, wing_force_N=None) -> CaseResult:
+    """Trim one LoadCase and integrate its loads. Returns a CaseResult. wing_force_N: the
+    wing's force from a pitch trim with a tail (None: lift_share x n W)."""
     case, grid = ctx.case, ctx.grid
-    trimmed = trim_case(lc, case, ctx.models, ctx.atmosphere)
+    trimmed = trim_case(lc, case, ctx.models, ctx.atmosphere, wing_force_N)
     applied = applied_loads(grid, trimmed, ctx.models.lattice.strip_width,
                             _masses(ctx, float(lc.fuel_fraction)), case.point_masses)
     loads = case_loads(grid, trimmed, applied, ctx.stations.semispan, case.ultimate_factor)
@@ -115,6 +126,8 @@ def compute(case, progress=None, cache=None, error_bars=False) -> RunResult:
     mesh, frame, stations, planform = wing.mesh, wing.frame, wing.stations, wing.planform
     timings["geometry"] = time.perf_counter() - t0
     check_against_wing(case, stations)
+    messages += [Message("warning", w) for w in check_controls_against_wing(
+        case.controls, stations.semispan, planform.mac, planform.x_mac_le, case.path)]
     t1 = time.perf_counter()
     lattice_key, lattice = cached_lattice(case.lattice, case.moment_reference, stations,
                                           wing_key, cache)
@@ -134,13 +147,23 @@ def compute(case, progress=None, cache=None, error_bars=False) -> RunResult:
     grid = load_grid(lattice, jumps, case.spar.chord_fraction if case.spar.chord_fraction
                      is not None else 0.25, case.spar.line, case.spar.rib_y_m,
                      ends=[float(t.y_to_m) for t in case.fuel_tanks])
-    ctx = CaseContext(case, stations, models, grid, atmosphere, {})
+    ctx = CaseContext(case, stations, models, grid, atmosphere, {}, float(planform.x_mac_le),
+                      cache, lattice_key)
     results = []
+    tail = case.controls is not None and case.controls.tail is not None
     for i, lc in enumerate(load_cases):
-        results.append(solve_case(lc, ctx))
+        if tail:
+            results += symmetric_with_tail(lc, ctx, solve_case)
+        else:
+            results.append(solve_case(lc, ctx))
         progress("cases", i + 1, len(load_cases))
+    if case.controls is not None and vn:
+        more, notes = unsymmetric_cases(ctx, vn, solve_case, progress)
+        results += more
+        messages += [Message("warning", n) for n in notes]
+    _check_names(case, results)
     timings["aero and loads"] = time.perf_counter() - t1
-    envelope = envelope_of([r.loads for r in results])
+    envelope = envelope_of([s for r in results for _, s in r.sides])
     sweep_deg = sweep_angles([r.aero.alpha_deg for r in results])
     sweep = tuple((float(a), float(s.CL)) for a, s in
                   zip(sweep_deg, models.get(results[0].mach).solve_many(sweep_deg)))

@@ -144,6 +144,10 @@ class CaseResult:
     (aircraft mass of the case), lift_share; aero: AeroSolution at the trimmed alpha;
     loads: SpanLoads; stall_warning: '' or a one-line warning; residual: equilibrium residual
     (relative) of the beam integration.
+    kind: "symmetric", "rolling" or "flaps"; port_loads: the port SpanLoads of an unsymmetric
+    case (`loads` is then the starboard side); tail_load_N (positive up) and wing_normal_force_N
+    (both sides) when the case is trimmed in pitch with a tail, at the c.g. x_cg_m; control: the
+    ControlState of a rolling or flaps-down case.
     """
 
     name: str
@@ -159,6 +163,51 @@ class CaseResult:
     loads: SpanLoads
     stall_warning: str = ""
     residual: float = 0.0
+    kind: str = "symmetric"
+    port_loads: Optional[SpanLoads] = None
+    tail_load_N: Optional[float] = None
+    wing_normal_force_N: Optional[float] = None
+    x_cg_m: Optional[float] = None
+    control: Optional["ControlState"] = None
+
+    @property
+    def sides(self) -> tuple:
+        """((side, SpanLoads), ...): ("starboard", loads), ("port", port_loads) for an
+        unsymmetric case; (("semispan", loads),) for a symmetric one."""
+        if self.port_loads is None:
+            return (("semispan", self.loads),)
+        return (("starboard", self.loads), ("port", self.port_loads))
+
+
+@dataclass(frozen=True)
+class ControlState:
+    """The control state of a rolling or flaps-down case.
+
+    rule: the paragraph the case follows; deflections_deg: ((surface, deg), ...) in each
+    surface's positive sense (aero.controls); pb_2V: steady roll rate p b / (2 V) (0 without
+    roll); CL: wing lift coefficient (both sides); Cl_delta_per_rad, Cl_p: rolling derivatives
+    of the aileron at this state (NaN when no aileron is deflected); Cl_aileron, Cl_damping:
+    their moments Cl_delta delta and Cl_p pb_2V; Cl_airload: the rolling moment coefficient of
+    the two sides' airloads on the load grid (right wing down positive); side_factors: the
+    23.349 simplified (starboard, port) airload factors, (1, 1) otherwise;
+    aileron_torsion_rule_Nm: the section pitching moment increment over the aileron span of the
+    down-aileron side by the rule's delta_cm = -0.01 delta (23.349, from memory), integrated;
+    aileron_torsion_lattice_Nm: the same increment from the lattice (half the difference of the
+    two sides' section moments over the aileron span, the antisymmetric part), as its cross-check.
+    """
+
+    rule: str
+    deflections_deg: tuple = ()
+    pb_2V: float = 0.0
+    CL: float = float("nan")
+    Cl_delta_per_rad: float = float("nan")
+    Cl_p: float = float("nan")
+    Cl_aileron: float = float("nan")
+    Cl_damping: float = float("nan")
+    Cl_airload: float = float("nan")
+    side_factors: tuple = (1.0, 1.0)
+    aileron_torsion_rule_Nm: float = float("nan")
+    aileron_torsion_lattice_Nm: float = float("nan")
 
 
 @dataclass(frozen=True)

@@ -35,11 +35,13 @@ def _case(tmp_path, *edits, append=""):
 
 
 def _only_envelope_off(tmp_path, *edits, append=""):
-    """The sample without its [envelope] (fewer cases: the checks are what is tested)."""
+    """The sample without its [envelope] (fewer cases: the checks are what is tested), nor the
+    control surfaces and tail whose rolling and flaps-down cases need the envelope."""
     text = SAMPLE.read_text(encoding="utf-8")
     start = text.index("[envelope]")
     end = text.index("\n[", start + 1)
-    return _case(tmp_path, (text[start:end], ""), *edits, append=append)
+    controls = text[text.index("[[control_surface]]"):text.index("[[load_case]]")]
+    return _case(tmp_path, (text[start:end], ""), (controls, ""), *edits, append=append)
 
 
 def _refused(path, key, fragment):

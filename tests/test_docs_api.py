@@ -34,13 +34,14 @@ def test_worked_example_runs_and_its_numbers_hold(monkeypatch):
     with contextlib.redirect_stdout(out):
         exec(compile(_example(), "docs/api.md", "exec"), ns)  # noqa: S102 - our own document
     printed = out.getvalue()
-    assert "launch pull-up: n = 2.5" in printed
+    assert "launch pull-up cg aft: n = 2.5" in printed
     pull_up, run_dir = ns["pull_up"], ns["out"]
     t = pull_up.loads.trim
-    check("definition of the load factor (14 CFR 23.321(a))",
-          "trimmed wing force of the pull-up = share x n x m g0 (N)",
-          pull_up.lift_share * pull_up.load_factor * pull_up.mass_kg * G0, t.force_required_N,
-          rel=1e-12)
+    check("definition of the load factor (14 CFR 23.321(a)); force balance with the tail "
+          "(Etkin & Reid, static longitudinal equilibrium)",
+          "trimmed wing force of the pull-up = n x m g0 - tail load (N)",
+          pull_up.load_factor * pull_up.mass_kg * G0 - pull_up.tail_load_N, t.force_required_N,
+          rel=1e-9)
     env_csv = (run_dir / "envelope.csv").read_text(encoding="utf-8")
     rows = list(csv.DictReader(line for line in env_csv.splitlines() if not line.startswith("#")))
     assert float(rows[0]["bending_max_Nm"]) == pytest.approx(

@@ -31,6 +31,7 @@ import pytest
 from geomload import CAUTION
 from geomload.case import load_case
 from geomload.pipeline import compute, run_case_file
+from sample_variants import symmetric_sample
 from validation import check
 
 HERE = Path(__file__).resolve().parent
@@ -117,9 +118,11 @@ def case_name(comments):
 
 @pytest.fixture(scope="session")
 def sample_run(tmp_path_factory):
-    """The bundled QM-36 Pellin sample, run once (no 3-D pictures) into a scratch folder."""
+    """The bundled QM-36 Pellin sample without its control surfaces and tail (the symmetric
+    cases with the lift share; tests/test_unsymmetric_run.py runs the whole sample), run once
+    (no 3-D pictures) into a scratch folder."""
     out = tmp_path_factory.mktemp("pellin") / "run"
-    result, files = run_case_file(str(SAMPLE), str(out), render=False)
+    result, files = run_case_file(str(symmetric_sample(out.parent)), str(out), render=False)
     loads = {}
     for p in sorted((out / "loads").glob("*.csv")):
         comments, cols = read_table(p)

@@ -197,6 +197,12 @@ class ControlModel:
         my_s = m._moment(F, m._arm_strip).reshape(ns, nc).sum(axis=1)
         G = g.reshape(ns, nc).sum(axis=1)
         drag_s = -G * (m._W_trefftz @ G) * m._ds
+        if roll_rate_pb2v:
+            # the roll rate's up-wash p y / V tilts each strip's lift forward on the descending
+            # wing (backward on the rising one): a force along the free stream the Trefftz-plane
+            # drag does not hold (kinematic, not induced; Etkin & Reid, the roll-damping strip
+            # analysis)
+            drag_s = drag_s - lift_s * float(roll_rate_pb2v) * (2.0 / lat.b_ref) * lat.strip_y
         w, c, y = lat.strip_width, lat.strip_chord, lat.strip_y
 
         def side(sel, flip):

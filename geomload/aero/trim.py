@@ -118,9 +118,12 @@ def stall_warning(cf_req: float, CL_req: float, mach: float, models: MachModels,
     return ""
 
 
-def trim_case(lc, case, models: MachModels, atmosphere=density_and_sound) -> TrimmedCase:
+def trim_case(lc, case, models: MachModels, atmosphere=density_and_sound,
+              wing_force_N=None) -> TrimmedCase:
     """Trim one LoadCase of a Case on the models' lattice; atmosphere: h -> (rho, a), the one
-    atmosphere of the run (used for the airspeeds, the Mach number and q)."""
+    atmosphere of the run (used for the airspeeds, the Mach number and q). wing_force_N: the
+    wing's force (both sides, on the case's load-factor axis) when a pitch trim with a tail
+    gives it; None = lift_share x n W."""
     v_eas, v_tas = airspeeds(lc.speed_m_s, lc.speed_type, lc.altitude_m, atmosphere)
     mach = mach_number(v_tas, lc.altitude_m, atmosphere)
     if not math.isfinite(mach) or mach >= 1.0:
@@ -130,7 +133,8 @@ def trim_case(lc, case, models: MachModels, atmosphere=density_and_sound) -> Tri
         raise CaseError(f"{case.path}: load_case '{lc.name}': speed must be > 0")
     q = dynamic_pressure(v_tas, lc.altitude_m, atmosphere)
     mass = case.aircraft.gross_mass_kg if lc.mass_kg is None else lc.mass_kg
-    force_req = lc.lift_share * lc.load_factor * mass * G0
+    force_req = (lc.lift_share * lc.load_factor * mass * G0 if wing_force_N is None
+                 else float(wing_force_N))
     model = models.get(mach)
     cd0 = (lc.cd0 if lc.cd0 is not None else case.aircraft.cd0) or 0.0
     body_axis = case.load_factor_axis == "body"

@@ -19,6 +19,7 @@ from geomload.loads.records import PointMass
 from geomload.units import ALTITUDE_UNITS, GUST_UNITS, SPEED_UNITS
 
 from . import quantities as qty
+from .controls_parse import SECTION_KEYS as CONTROL_SECTION_KEYS, parse_controls
 from .schema import (CATEGORIES, MAX_ALTITUDE_M, AircraftSpec, Case, FlightEnvelopeSpec,
                      FuelTank, GeometrySpec, LatticeSpec, LoadCase, SparSpec, WingMassSpec)
 
@@ -27,7 +28,8 @@ MAX_COUNT = 100_000  # no count in a case file (stations, panels, bodies) is sen
 MAX_STATIONS = 2000  # cuts on one semi-span: far beyond what a preliminary load needs
 MAX_PANELS_SPAN, MAX_PANELS_CHORD = 1000, 200  # a dense lattice is 120 x 25; memory grows as N^2
 TOP_LEVEL_KEYS = ("title", "geometry", "aircraft", "wing_mass", "point_mass", "fuel_tank", "spar",
-                  "moment_reference", "load_case", "envelope", "lattice", "analysis", "structure")
+                  "moment_reference", "load_case", "envelope", "lattice", "analysis", "structure",
+                  *CONTROL_SECTION_KEYS)
 
 
 # --------------------------------------------------------------------------- table reader
@@ -424,6 +426,7 @@ def _read_case_file(path) -> Case:
         t = sub("envelope"); envelope = _envelope(t, aircraft.gross_mass_kg); t.done()  # noqa: E702
     if not cases and envelope is None:
         raise CaseError(f"{path}: load_case: missing (give at least one [[load_case]] or an [envelope])")
+    controls = parse_controls(top, raw, path, _Table, envelope)
     t = sub("lattice")
     n_span, n_chord = t.get("n_span", int, 40), t.get("n_chord", int, 10)
     if n_span < 2 or n_chord < 1:
@@ -457,7 +460,7 @@ def _read_case_file(path) -> Case:
                 wing_mass=wing_mass, point_masses=tuple(points), fuel_tanks=tuple(tanks), spar=spar,
                 moment_reference=ref, load_cases=tuple(cases), envelope=envelope, lattice=lattice,
                 ultimate_factor=uf, load_factor_axis=nax, structure=handoff,
-                warnings=tuple(warns))
+                warnings=tuple(warns), controls=controls)
 
 
 def read_case_file(path) -> Case:

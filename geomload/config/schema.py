@@ -16,12 +16,15 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
-from typing import Optional
+from typing import TYPE_CHECKING, Optional
 
 import numpy as np
 
 from geomload.errors import CaseError
 from geomload.loads.records import PointMass
+
+if TYPE_CHECKING:
+    from .controls_parse import ControlsSpec
 
 MAX_ALTITUDE_M = 20000.0  # top of the ISA layers geomload models
 CATEGORIES = ("normal", "utility", "acrobatic", "custom")
@@ -216,6 +219,7 @@ class Case:
     load_factor_axis: str = "body"
     structure: Optional[object] = None  # config.structure.StructureSpec: the hand-off outputs
     warnings: tuple = ()  # what the case file should say differently (old key names)
+    controls: Optional["ControlsSpec"] = None  # config.controls_parse: surfaces, rolling, tail
 
     def __post_init__(self):
         if self.load_factor_axis not in LOAD_FACTOR_AXES:

@@ -5,6 +5,7 @@ Heavy libraries (matplotlib, pyvista, scipy) are imported inside the functions t
 Run folder layout written by `write_all`::
 
     stations.csv  summary.json  envelope.csv  vn.csv  loads/<case>.csv
+    (an unsymmetric case: loads/<case>__starboard.csv and loads/<case>__port.csv)
     with [structure]: fe/<case>.inp fe/<case>_nodal_loads.csv (fe/mesh_* with a mesh)
     sizing.csv sizing.png
     lattice.vtp  spar_axis.vtp  surface.vtp  report.html  geomload-run.json (the run marker,
@@ -15,6 +16,7 @@ Run folder layout written by `write_all`::
 
 from __future__ import annotations
 
+import dataclasses
 from pathlib import Path
 
 
@@ -76,9 +78,20 @@ def write_all(run, folder, inputs=(), render=True, progress=None, options=None,
                                       run.mesh.units, inputs))
         taken: set = set()
         for cr in run.cases:
-            rel = Path("loads") / f"{safe_name(cr.name, taken)}.csv"
-            rec(tables.write_loads_csv(f / rel, cr, frame=run.frame, inputs=inputs))
-            loads[cr.name] = rel
+            if cr.port_loads is None:
+                rel = Path("loads") / f"{safe_name(cr.name, taken)}.csv"
+                rec(tables.write_loads_csv(f / rel, cr, frame=run.frame, inputs=inputs))
+                loads[cr.name] = rel
+                continue
+            for side, sl in cr.sides:  # an unsymmetric case: one file per side
+                name = f"{cr.name}__{side}"
+                rel = Path("loads") / f"{safe_name(name, taken)}.csv"
+                one = dataclasses.replace(cr, name=name, loads=sl,
+                                          residual=sl.equilibrium.residual)
+                p = Path(tables.write_loads_csv(f / rel, one, frame=run.frame, inputs=inputs))
+                files.append(p.relative_to(f) if p.is_absolute() else p)
+                loads[name] = rel
+            tick()
         if has_env:
             rec(tables.write_envelope_csv(f / "envelope.csv", run.envelope, inputs))
         if has_vn:

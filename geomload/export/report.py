@@ -317,6 +317,12 @@ def _view3d(fragment) -> str:
             "WebGL.</p>" + fragment)
 
 
+def _controls(run) -> str:
+    from .report_controls import controls_section
+
+    return controls_section(run)
+
+
 def render_html(run, images: dict, options=None, run_time_s=None, view3d=None) -> str:
     """The report as one HTML string (see module docstring).
 
@@ -335,7 +341,7 @@ def render_html(run, images: dict, options=None, run_time_s=None, view3d=None) -
               "the spar axis. Ultimate = limit x ultimate factor (1.5 unless set).</p>",
             "vn": (_images(images, ("vn",)) + _speeds(run) if run.vn is not None and "vn" in images
                    else "<p>No V-n diagram: the case file defines no envelope.</p>"),
-            "critical": _critical(run), "basis": _basis(run), "inputs": _inputs(run, options),
+            "critical": _critical(run) + _controls(run), "basis": _basis(run), "inputs": _inputs(run, options),
             "versions": _versions(run, run_time_s)}
     known = {n for names in SECTION_IMAGES.values() for n in names}
     extra = [n for n in images if n not in known]

@@ -109,7 +109,24 @@ def case_line(cr) -> str:
     return (f"case: {cr.name}; v_eas {cr.v_eas:.4g} m/s; v_tas {cr.v_tas:.4g} m/s; altitude "
             f"{cr.altitude_m:.6g} m; Mach {cr.mach:.4g}; q {cr.q_pa:.6g} Pa; n {cr.load_factor:.4g}; "
             f"mass {cr.mass_kg:.6g} kg; lift share {cr.lift_share:.4g}; alpha {a.alpha_deg:.4f} deg; "
-            f"CL {a.CL:.5f}")
+            f"CL {a.CL:.5f}" + _case_extra(cr))
+
+
+def _case_extra(cr) -> str:
+    """The kind, control state and tail load of a case (empty for a plain symmetric case)."""
+    out = "" if getattr(cr, "kind", "symmetric") == "symmetric" else f"; kind {cr.kind}"
+    ctl = getattr(cr, "control", None)
+    if ctl is not None:
+        out += "".join(f"; {n} {d:.4g} deg" for n, d in ctl.deflections_deg)
+        if ctl.pb_2V:
+            out += f"; steady roll pb/2V {ctl.pb_2V:.4g}"
+        if ctl.side_factors != (1.0, 1.0):
+            out += (f"; airload factors starboard {ctl.side_factors[0]:g}, port "
+                    f"{ctl.side_factors[1]:g}")
+    if getattr(cr, "tail_load_N", None) is not None:
+        out += (f"; tail load {cr.tail_load_N:.6g} N (up +) at c.g. x {cr.x_cg_m:.4g} m; wing "
+                f"normal force {cr.wing_normal_force_N:.6g} N (both sides)")
+    return out
 
 
 def write_loads_csv(path, case_result, caution=CAUTION, frame=None, inputs=()):
@@ -239,7 +256,7 @@ def summary(run) -> dict:
             "root_bending_ult_Nm": _num(uf * L.bending_Nm[0]),
             "root_torsion_ult_Nm": _num(uf * L.torsion_Nm[0]),
             "equilibrium_residual": _num(cr.residual), "stall_warning": cr.stall_warning,
-            "error_estimate": _error_estimate(run, cr.name)})
+            "error_estimate": _error_estimate(run, cr.name), **_case_kind(cr)})
     out = {"caution": CAUTION, "geomload_version": __version__, "case_file": run.case_path,
            "title": str(getattr(run.case, "title", "") or ""),
            "geometry": {"source": run.mesh.source, "units": run.mesh.units,
@@ -268,6 +285,41 @@ def summary(run) -> dict:
         env["critical"] = ea.critical_table(run.envelope)
         env["error_estimate"] = _error_estimate(run, None)
         out["envelope"] = env
+    return out
+
+
+def _case_kind(cr) -> dict:
+    """kind; per-side root loads of an unsymmetric case; tail load and wing normal force with a
+    tail; the control state (deflections, steady roll, rolling derivatives)."""
+    out = {"kind": cr.kind}
+    if cr.port_loads is not None:
+        sides = {}
+        for side, L in cr.sides:
+            uf = float(L.ultimate_factor)
+            sides[side] = {
+                "root_shear_N": _num(L.shear_N[0]), "root_bending_Nm": _num(L.bending_Nm[0]),
+                "root_torsion_Nm": _num(L.torsion_Nm[0]),
+                "root_shear_ult_N": _num(uf * L.shear_N[0]),
+                "root_bending_ult_Nm": _num(uf * L.bending_Nm[0]),
+                "root_torsion_ult_Nm": _num(uf * L.torsion_Nm[0]),
+                "equilibrium_residual": _num(L.equilibrium.residual)}
+        out["sides"] = sides
+    if cr.tail_load_N is not None:
+        out["tail_load_N"] = _num(cr.tail_load_N)
+        out["x_cg_m"] = _num(cr.x_cg_m)
+    if cr.wing_normal_force_N is not None:
+        out["wing_normal_force_N"] = _num(cr.wing_normal_force_N)
+    c = cr.control
+    if c is not None:
+        out["control"] = {
+            "rule": c.rule, "deflections_deg": {n: _num(d) for n, d in c.deflections_deg},
+            "pb_2V": _num(c.pb_2V), "CL": _num(c.CL), "Cl_delta_a_per_rad": _num(c.Cl_delta_per_rad),
+            "Cl_p": _num(c.Cl_p), "Cl_aileron": _num(c.Cl_aileron),
+            "Cl_damping": _num(c.Cl_damping), "Cl_airload": _num(c.Cl_airload),
+            "aileron_torsion_rule_Nm": _num(c.aileron_torsion_rule_Nm),
+            "aileron_torsion_lattice_Nm": _num(c.aileron_torsion_lattice_Nm),
+            "airload_factors": {"starboard": _num(c.side_factors[0]),
+                                "port": _num(c.side_factors[1])}}
     return out
 
 

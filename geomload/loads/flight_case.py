@@ -14,9 +14,10 @@ import math
 
 import numpy as np
 
-from .beam import equilibrium_residual, integrate, schrenk
+from .beam import equilibrium_residual, integrate
 from .grid import strip_to_grid
 from .masses import inertia_loads
+from .schrenk_twist import schrenk_with_twist
 from .records import (AppliedLoads, LoadGrid, MassDistribution, PointLoad, SpanLoads,
                       TrimState)
 
@@ -60,15 +61,24 @@ def applied_loads(grid: LoadGrid, trimmed, strip_width, masses: MassDistribution
                         inertia_alpha_deg=tilt)
 
 
+def grid_twist_deg(grid: LoadGrid) -> np.ndarray:
+    """Local chord-line incidence (deg, nose-up positive) at the grid points from the leading
+    and trailing edges: the geometric twist up to a constant, which Schrenk's basic loading
+    (eps - mean eps) does not see."""
+    return np.degrees(np.arctan2(grid.le[:, 2] - grid.te[:, 2], grid.te[:, 0] - grid.le[:, 0]))
+
+
 def case_loads(grid: LoadGrid, trimmed, applied: AppliedLoads, semispan: float,
                ultimate_factor: float) -> SpanLoads:
     """Integrate the applied loads of a TrimmedCase: SpanLoads with its trim state, the
-    equilibrium check, Schrenk's cross-check and the grid's reported rows."""
+    equilibrium check, Schrenk's cross-check with the basic (twist) loading (NACA TM 948) and
+    the grid's reported rows."""
     y, lift = grid.y, applied.lift_N_per_m
     half_lift = float(np.sum(0.5 * (lift[1:] + lift[:-1]) * np.diff(y)))
     loads = integrate(y, grid.spar_x, grid.spar_z, applied, case=trimmed.name,
                       ultimate_factor=ultimate_factor,
-                      schrenk_lift_N_per_m=schrenk(y, grid.chord, semispan, half_lift))
+                      schrenk_lift_N_per_m=schrenk_with_twist(
+                          y, grid.chord, semispan, half_lift, trimmed.q_pa, grid_twist_deg(grid)))
     trim = TrimState(CL_required=trimmed.CL_required, q_pa=trimmed.q_pa,
                      load_factor_axis="body" if trimmed.body_axis else "flight-path",
                      force_required_N=trimmed.force_required_N, lift_total_N=2.0 * half_lift,

@@ -1,0 +1,352 @@
+"""Orchestration of the cases that need control surfaces or a tail: the pitch trim with the
+balancing tail load (forward and aft c.g.), the rolling cases (14 CFR 23.349 simplified and
+lattice methods, 23.455 deflections, steady roll) and the flaps-down cases (23.345).
+
+Each stage keeps its physics: the lattice with control surfaces and roll rate
+(:mod:`geomload.aero.roll`), the pitch trim (:mod:`geomload.aero.pitch_trim`), the rule cases
+(:mod:`geomload.loads.rules_unsymmetric`), the loads of each side (:mod:`geomload.loads.
+flight_case`, the same applied-load and beam integration as a symmetric case, inertia relief
+on both sides). An unsymmetric case integrates the starboard and the port side on its own.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+from geomload.aero.atmosphere import airspeeds, dynamic_pressure
+from geomload.aero.atmosphere import mach as mach_number
+from geomload.aero.models import lattice_mach
+from geomload.aero.trim import TrimmedCase, trim_case
+from geomload.config.schema import LoadCase
+from geomload.errors import AeroError, CaseError
+from geomload.loads.flight_case import applied_loads, case_loads
+from geomload.records import CaseResult, ControlState
+from geomload.units import G0
+
+SIDES = ("starboard", "port")
+BODY_AXIS_ITER = 6  # fixed-point steps on the lift so that L cos a + D sin a is the normal force
+BODY_AXIS_TOL = 1e-9  # relative change of the lift at which those steps stop
+CG_LABELS = ("cg fwd", "cg aft")
+
+
+@dataclass(frozen=True)
+class SideSolution:
+    """One side's strip loads in the form `loads.flight_case.applied_loads` reads (y, chord,
+    lift/drag/moment per unit q per span), root to tip."""
+
+    y: np.ndarray
+    chord: np.ndarray
+    lift_per_q: np.ndarray
+    drag_per_q: np.ndarray
+    moment_per_q: np.ndarray
+
+
+class ControlModels:
+    """The full-span lattice with the case's control surfaces and one ControlModel per lattice
+    Mach, built on first use; kept in ``cache`` (the dict compute() shares between calls) under
+    the symmetric lattice's key and the surfaces, so a batch of variants builds them once."""
+
+    def __init__(self, case, stations, progress, cache=None, lattice_key=()):
+        from geomload.aero.lattice import build_lattice
+
+        spec = case.lattice
+        self.cache, self.key = cache, ("control lattice", lattice_key, case.controls.surfaces)
+        lat = None if cache is None else cache.get(self.key)
+        if lat is None:
+            lat = build_lattice(stations, n_span=spec.n_span, n_chord=spec.n_chord,
+                                spacing=spec.spacing, full_span=True,
+                                x_ref=case.moment_reference, controls=case.controls.surfaces)
+            if cache is not None:
+                cache[self.key] = lat
+        self.lattice = lat
+        self.controls, self.progress, self.models = case.controls.surfaces, progress, {}
+        self.warnings = []
+
+    def get(self, mach: float):
+        from geomload.aero.roll import ControlModel
+        from geomload.aero.solve import AeroModel
+
+        key = round(lattice_mach(mach), 6)
+        if key not in self.models:
+            ck = ("control aero", self.key, key)
+            m = None if self.cache is None else self.cache.get(ck)
+            if m is None:
+                self.progress(f"control lattice M={key:.2f}", 0, 1)
+                m = ControlModel(AeroModel(self.lattice, mach=key), self.controls)
+                self.progress(f"control lattice M={key:.2f}", 1, 1)
+                if self.cache is not None:
+                    self.cache[ck] = m
+            self.warnings += [w for w in m.warnings if w not in self.warnings]
+            self.models[key] = m
+        return self.models[key]
+
+
+# ------------------------------------------------------------------------------- pitch trim
+def _pitch(ctx, coefficients, n, weight, q, x_cg):
+    from geomload.aero.pitch_trim import Tailplane, trim_pitch
+
+    lat, spec = ctx.models.lattice, ctx.case.controls
+    return trim_pitch(coefficients, lat.s_ref, lat.c_ref, float(lat.x_ref[0]), n, weight, q,
+                      x_cg, Tailplane(spec.tail.area_m2, spec.tail.x_ac_m),
+                      spec.tail.cm0_fuselage, x_le_mac_m=ctx.x_le_mac)
+
+
+def symmetric_with_tail(lc, ctx, solve_case) -> list:
+    """A LoadCase trimmed in pitch at the forward and aft c.g.: two CaseResults (tail load and
+    wing normal force recorded). The wing force replaces lift_share x n W."""
+    case, models = ctx.case, ctx.models
+    v_eas, v_tas = airspeeds(lc.speed_m_s, lc.speed_type, lc.altitude_m, ctx.atmosphere)
+    mach = mach_number(v_tas, lc.altitude_m, ctx.atmosphere)
+    if not math.isfinite(mach) or mach >= 1.0:
+        raise AeroError(f"{case.path}: load_case '{lc.name}': Mach {mach:.3f} >= 1")
+    q = dynamic_pressure(v_tas, lc.altitude_m, ctx.atmosphere)
+    mass = case.aircraft.gross_mass_kg if lc.mass_kg is None else lc.mass_kg
+    model = models.get(mach)
+    cd0 = (lc.cd0 if lc.cd0 is not None else case.aircraft.cd0) or 0.0
+    form = models.induced_drag_form(mach) if case.body_axis else None
+
+    def coefficients(a):  # the wing's force on the load-factor axis and its Cm
+        CL, Cm = model.coefficients(a)
+        if form is None:
+            return CL, Cm
+        ca, sa = math.cos(math.radians(a)), math.sin(math.radians(a))
+        cdi = form[0] * ca * ca + 2.0 * form[1] * ca * sa + form[2] * sa * sa
+        return CL * ca + (cdi + cd0) * sa, Cm
+
+    out = []
+    for label, x_cg in zip(CG_LABELS, case.controls.cg_x_m):
+        pt = _pitch(ctx, coefficients, lc.load_factor, mass * G0, q, x_cg)
+        named = dataclasses.replace(lc, name=f"{lc.name} {label}")
+        r = solve_case(named, ctx, wing_force_N=pt.wing_lift_N)
+        out.append(dataclasses.replace(r, tail_load_N=pt.tail_load_N, x_cg_m=x_cg,
+                                       wing_normal_force_N=normal_force(r.loads, r.loads,
+                                                                        case.body_axis)))
+    return out
+
+
+def normal_force(stb, port, body_axis: bool) -> float:
+    """Wing force of both sides (N) on the load-factor axis from the applied loads of each
+    side: lift cos a + drag sin a (body axis) or the lift (flight path)."""
+    tot = 0.0
+    for s in (stb, port):
+        a, y = s.applied, s.y
+        f = a.lift_N_per_m
+        if body_axis:
+            al = math.radians(a.alpha_deg)
+            f = f * math.cos(al) + a.drag_N_per_m * math.sin(al)
+        tot += float(np.sum(0.5 * (f[1:] + f[:-1]) * np.diff(y)))
+    return tot
+
+
+# -------------------------------------------------------------------------- unsymmetric cases
+def unsymmetric_cases(ctx, vn, solve_case, progress) -> tuple:
+    """(CaseResults, warnings) of the [rolling] and [flaps] cases, at the gross mass and the
+    altitude of the first V-n diagram, each at every c.g. of [cg] when a tail is given."""
+    from geomload.loads import rules_unsymmetric as ru
+
+    spec, case = ctx.case.controls, ctx.case
+    if spec is None or (spec.rolling is None and spec.flaps is None):
+        return [], []
+    d = vn[0]
+    sp, h, mass = d.speeds, d.altitude_m, d.mass_kg
+    warnings, jobs = [], []
+    cms = ControlModels(case, ctx.stations, progress, ctx.cache, ctx.lattice_key)
+    if spec.rolling is not None:
+        r = spec.rolling
+        if "simplified" in r.methods:
+            for rc in ru.simplified_rolling_cases(r.category, sp.v_maneuver, d.n_pos):
+                jobs.append(("rolling", rc))
+        if "lattice" in r.methods:
+            ail = spec.surface(r.aileron)
+            for rc in ru.lattice_rolling_cases(r.aileron, ail.delta_max_deg, sp.v_maneuver,
+                                               sp.v_cruise, sp.v_dive, d.n_pos):
+                jobs.append(("rolling", rc))
+    if spec.flaps is not None:
+        f = spec.flaps
+        rho0 = ctx.atmosphere(0.0)[0]
+        s_ref = ctx.models.lattice.s_ref
+        fcs, w = ru.flap_cases(f.flap, f.deflection_deg, d.v_stall_pos, f.v_sf,
+                               mass * G0 / s_ref, rho0, s_ref / ctx.models.lattice.b_ref,
+                               ctx.models.lift_slope(0.0), f.v_f)
+        warnings += w
+        jobs += [("flaps", fc) for fc in fcs]
+    cgs = list(zip(CG_LABELS, spec.cg_x_m)) if spec.tail is not None else [("", None)]
+    results = []
+    total = len(jobs) * len(cgs)
+    for kind, rc in jobs:
+        for label, x_cg in cgs:
+            results.append(_one(kind, rc, label, x_cg, h, mass, ctx, cms, solve_case))
+            progress("unsymmetric cases", len(results), total)
+    warnings += cms.warnings
+    return results, warnings
+
+
+def _lc(name, v_eas, h, n, mass, lift_share):
+    return LoadCase(name=name, speed_m_s=v_eas, speed_type="EAS", altitude_m=h, load_factor=n,
+                    lift_share=lift_share, mass_kg=mass)
+
+
+def _one(kind, rc, label, x_cg, h, mass, ctx, cms, solve_case) -> CaseResult:
+    from geomload.loads import rules_unsymmetric as ru
+
+    case = ctx.case
+    name = rc.name + (f" {label}" if label else "")
+    share = case.envelope.lift_share if case.envelope is not None else 1.0
+    lc = _lc(name, rc.v_eas_m_s, h, rc.load_factor, mass, share)
+    if kind == "rolling" and rc.method == "simplified":
+        # condition A trimmed symmetric, then the airload of each side scaled by its factor
+        if x_cg is not None:
+            base = symmetric_with_tail(dataclasses.replace(lc, name=rc.name), ctx, solve_case)
+            base = base[CG_LABELS.index(label)]
+        else:
+            base = solve_case(lc, ctx)
+        return _simplified(base, rc, name, ctx)
+    v_eas, v_tas = airspeeds(lc.speed_m_s, "EAS", h, ctx.atmosphere)
+    mach = mach_number(v_tas, h, ctx.atmosphere)
+    q = dynamic_pressure(v_tas, h, ctx.atmosphere)
+    cm = cms.get(mach)
+    defl = ({rc.flap: rc.flap_deg} if kind == "flaps" else {rc.aileron: rc.aileron_deg})
+    weight = mass * G0
+    tail = None
+    if x_cg is not None:
+        tail = _pitch(ctx, lambda a: cm.coefficients(a, defl), rc.load_factor, weight, q, x_cg)
+        force = tail.wing_lift_N
+    else:
+        force = share * rc.load_factor * weight
+    cd0 = case.aircraft.cd0 or 0.0
+    lift = force
+    for _ in range(BODY_AXIS_ITER):  # the force on the load-factor axis, from the lift
+        st = ru.lattice_state(cm, rc, q, lift)
+        sol = st.solution
+        if not case.body_axis:
+            break
+        a = math.radians(st.alpha_deg)
+        drag = q * sum(float(np.sum((s.drag_per_q + cd0 * s.chord_m) * s.width_m))
+                       for s in (sol.starboard, sol.port))
+        new = (force - drag * math.sin(a)) / math.cos(a)
+        if abs(new - lift) <= BODY_AXIS_TOL * max(abs(force), 1.0):
+            break
+        lift = new
+    sides = {}
+    for side in SIDES:
+        s = getattr(sol, side)
+        trimmed = TrimmedCase(
+            name=f"{name}__{side}", v_eas=v_eas, v_tas=v_tas, altitude_m=h, mach=mach,
+            mach_lattice=lattice_mach(mach), q_pa=q, load_factor=rc.load_factor, mass_kg=mass,
+            lift_share=share, force_required_N=force, cf_required=force / (q * cm.lattice.s_ref),
+            CL_required=st.CL, alpha_deg=st.alpha_deg, cd0=cd0, body_axis=case.body_axis,
+            solution=SideSolution(s.y_m, s.chord_m, s.lift_per_q, s.drag_per_q,
+                                  s.moment_per_q))
+        applied = applied_loads(ctx.grid, trimmed, s.width_m, ctx.masses_for(1.0),
+                                case.point_masses)
+        sides[side] = case_loads(ctx.grid, trimmed, applied, ctx.stations.semispan,
+                                 case.ultimate_factor)
+    stb, port = sides["starboard"], sides["port"]
+    ctl = ControlState(rule=rc.rule, deflections_deg=st.deflections_deg, pb_2V=st.pb_2V,
+                       CL=st.CL, Cl_airload=airload_rolling_moment(stb, port, cm.lattice))
+    if kind == "rolling":
+        cld, clp = cm.roll_derivatives(rc.aileron, st.alpha_deg, rc.aileron_deg, st.pb_2V)
+        ctl = dataclasses.replace(ctl, Cl_delta_per_rad=cld, Cl_p=clp,
+                                  Cl_aileron=cld * math.radians(rc.aileron_deg),
+                                  Cl_damping=clp * st.pb_2V,
+                                  **_aileron_torsion(sol, ctx.case.controls.surface(rc.aileron),
+                                                     rc.aileron_deg, q))
+    aero = ctx.models.get(mach).solve(st.alpha_deg)  # the clean wing at the case's angle
+    res = max(stb.equilibrium.residual, port.equilibrium.residual)
+    return CaseResult(name=name, v_eas=v_eas, v_tas=v_tas, altitude_m=h, mach=mach, q_pa=q,
+                      load_factor=rc.load_factor, mass_kg=mass, lift_share=share, aero=aero,
+                      loads=stb, residual=res, kind=kind, port_loads=port,
+                      tail_load_N=None if tail is None else tail.tail_load_N,
+                      wing_normal_force_N=normal_force(stb, port, case.body_axis),
+                      x_cg_m=x_cg, control=ctl)
+
+
+def _aileron_torsion(sol, ail, delta_deg, q) -> dict:
+    """The aileron's section pitching-moment increment on the down-aileron side over its span
+    (N m, nose-up +): by the 23.349 rule (delta_cm = -0.01 deg^-1 x delta, on q c^2) and from
+    the lattice (half the difference of the two sides' strip moments)."""
+    from geomload.loads.rules_unsymmetric import aileron_torsion_increment
+
+    down, up = (sol.port, sol.starboard) if delta_deg > 0 else (sol.starboard, sol.port)
+    inside = (down.y_m >= ail.y_from_m) & (down.y_m <= ail.y_to_m)
+    rule = aileron_torsion_increment(down.y_m, down.chord_m, q, ail.y_from_m, ail.y_to_m,
+                                     abs(delta_deg))
+    dm = 0.5 * (down.moment_per_q - np.interp(down.y_m, up.y_m, up.moment_per_q)) * q
+    return {"aileron_torsion_rule_Nm": float(np.sum((rule * down.width_m)[inside])),
+            "aileron_torsion_lattice_Nm": float(np.sum((dm * down.width_m)[inside]))}
+
+
+def _simplified(base: CaseResult, rc, name, ctx) -> CaseResult:
+    """23.349(a)(1): the airload (lift, drag, side force, pitching moment) of each side of the
+    trimmed condition-A case times the side's factor; the inertia relief stays whole."""
+    sides = {}
+    for side, fac in zip(SIDES, (rc.factor_starboard, rc.factor_port)):
+        a = base.loads.applied
+        applied = dataclasses.replace(a, lift_N_per_m=fac * a.lift_N_per_m,
+                                      drag_N_per_m=fac * a.drag_N_per_m,
+                                      side_N_per_m=fac * a.side_N_per_m,
+                                      pitch_Nm_per_m=fac * a.pitch_Nm_per_m)
+        tr = _TrimView(f"{name}__{side}", base.loads.trim)
+        sides[side] = case_loads(ctx.grid, tr, applied, ctx.stations.semispan,
+                                 ctx.case.ultimate_factor)
+    stb, port = sides["starboard"], sides["port"]
+    ctl = ControlState(rule=rc.rule, CL=base.aero.CL,
+                       side_factors=(rc.factor_starboard, rc.factor_port),
+                       Cl_airload=airload_rolling_moment(stb, port, ctx.models.lattice))
+    return dataclasses.replace(
+        base, name=name, kind="rolling", loads=stb, port_loads=port,
+        residual=max(stb.equilibrium.residual, port.equilibrium.residual),
+        wing_normal_force_N=normal_force(stb, port, ctx.case.body_axis), control=ctl)
+
+
+@dataclass(frozen=True)
+class _TrimView:
+    """The fields `case_loads` reads of a trimmed case, for a side built from another case."""
+
+    name: str
+    trim: object
+
+    @property
+    def CL_required(self):
+        return self.trim.CL_required
+
+    @property
+    def q_pa(self):
+        return self.trim.q_pa
+
+    @property
+    def body_axis(self):
+        return self.trim.load_factor_axis == "body"
+
+    @property
+    def force_required_N(self):
+        return self.trim.force_required_N
+
+    @property
+    def mach_lattice(self):
+        return self.trim.mach_lattice
+
+
+def airload_rolling_moment(stb, port, lattice) -> float:
+    """Rolling moment coefficient (right wing down positive, about the wing-frame x axis) of
+    the two sides' applied airloads on the load grid: the force normal to the x axis
+    (lift cos a + drag sin a) times y, less the side force times its height z, port minus
+    starboard, over q S b."""
+    q = stb.trim.q_pa
+
+    def mx(s):
+        a = s.applied
+        al = math.radians(a.alpha_deg)
+        fz = a.lift_N_per_m * math.cos(al) + a.drag_N_per_m * math.sin(al)
+        f = s.y * fz - a.load_z_m * a.side_N_per_m
+        return float(np.sum(0.5 * (f[1:] + f[:-1]) * np.diff(s.y)))
+
+    return (mx(port) - mx(stb)) / (q * lattice.s_ref * lattice.b_ref)
+
+
+__all__ = ["symmetric_with_tail", "unsymmetric_cases", "normal_force", "ControlModels",
+           "airload_rolling_moment", "CaseError"]
