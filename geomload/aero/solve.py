@@ -172,6 +172,8 @@ class AeroModel:
         self._Fq_tot = self._Fq.sum(axis=1)
         self._My_strip = self._moment(self._Fq, self._arm_strip).reshape(3, ns, nc).sum(axis=2)
         self._My_ref = self._moment(self._Fq, self._arm_ref).sum(axis=1)
+        self._Fq_tot_xz = tuple((float(f[0]), float(f[2])) for f in self._Fq_tot)
+        self._My_ref_f = tuple(float(m) for m in self._My_ref)
         # Trefftz plane: nodes at the trailing-edge strip edges; wash at strip midpoints
         ny, nz = c[:, -1, 1], c[:, -1, 2]
         dy, dz = np.diff(ny), np.diff(nz)
@@ -197,11 +199,15 @@ class AeroModel:
         return np.array([ca * ca, ca * sa, sa * sa]), ca, sa
 
     def _cl_cm(self, alpha: float):
-        w, ca, sa = self._w(alpha)
-        T = w @ self._Fq_tot
-        lift = -sa * T[0] + ca * T[2]
+        # scalar arithmetic: the trim calls this a few dozen times per load case
+        ca, sa = math.cos(alpha), math.sin(alpha)
+        w0, w1, w2 = ca * ca, ca * sa, sa * sa
+        (x0, z0), (x1, z1), (x2, z2) = self._Fq_tot_xz
+        m0, m1, m2 = self._My_ref_f
+        lift = -sa * (w0 * x0 + w1 * x1 + w2 * x2) + ca * (w0 * z0 + w1 * z1 + w2 * z2)
         S = self.lattice.s_ref
-        return (self._fac * lift / S, self._fac * (w @ self._My_ref) / (S * self.lattice.c_ref))
+        return (self._fac * lift / S,
+                self._fac * (w0 * m0 + w1 * m1 + w2 * m2) / (S * self.lattice.c_ref))
 
     def _zero_lift(self, alpha: float, cla: float) -> float:
         a = alpha
