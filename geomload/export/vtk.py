@@ -200,9 +200,14 @@ def decimate_soup(triangles, target: int):
     v = t.reshape(-1, 3)
     lo, hi = np.array([v[:, k].min() for k in range(3)]), np.array([v[:, k].max() for k in range(3)])
     h = max(float(np.sqrt(2.0 * area / max(target, 1))), 1e-12)
-    q = ((v - lo) * (1.0 / h)).astype(np.int64)  # non-negative: truncation is the floor
     dims = np.floor((hi - lo) / h).astype(np.int64) + 2
-    key = (q[:, 0] * dims[1] + q[:, 1]) * dims[2] + q[:, 2]
+    # the cell key, in blocks of vertices (no full-size temporaries besides the key itself):
+    # key = (q0 d1 + q1) d2 + q2 with q = floor((v - lo) / h) (non-negative: truncation)
+    inv_h = 1.0 / h
+    key = np.empty(v.shape[0], np.int64)
+    for a in range(0, v.shape[0], _KEY_BLOCK):
+        q = ((v[a:a + _KEY_BLOCK] - lo) * inv_h).astype(np.int64)
+        key[a:a + _KEY_BLOCK] = (q[:, 0] * dims[1] + q[:, 1]) * dims[2] + q[:, 2]
     n_cells = int(np.prod(dims))
     if n_cells <= DENSE_GRID_MAX:  # a counting pass over a dense grid: no sort of the vertices
         occupied = np.bincount(key, minlength=n_cells) > 0
@@ -211,12 +216,14 @@ def decimate_soup(triangles, target: int):
     else:
         _, inv = np.unique(key, return_inverse=True)
         n = int(inv.max()) + 1
+    del key
     cnt = np.bincount(inv, minlength=n).astype(float)
     pts = np.column_stack([np.bincount(inv, weights=v[:, k], minlength=n) / cnt for k in range(3)])
     f = inv.reshape(-1, 3)
     ok = (f[:, 0] != f[:, 1]) & (f[:, 1] != f[:, 2]) & (f[:, 0] != f[:, 2])
     f = f[ok]
-    s = np.sort(f, axis=1).astype(np.int64)
+    del inv, ok
+    s = np.sort(f, axis=1).astype(np.int64, copy=False)
     if n ** 3 < 2 ** 62:
         _, first = np.unique((s[:, 0] * n + s[:, 1]) * n + s[:, 2], return_index=True)
     else:
@@ -225,6 +232,7 @@ def decimate_soup(triangles, target: int):
     return pts, f[np.sort(first)]
 
 
+_KEY_BLOCK = 1 << 16  # vertices per block of the cell-key pass
 DENSE_GRID_MAX = 40_000_000  # grid cells counted densely (320 MB of int64 at most)
 
 
