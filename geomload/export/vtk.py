@@ -307,17 +307,15 @@ def panel_forces(run, case_result) -> np.ndarray:
     return (f + (target - f.sum(axis=1))[:, None] * share).ravel()
 
 
-def pressure_jump(run, surface: Surface, case_result) -> np.ndarray:
-    """(m,) lift per unit plan area (Pa) each surface cell carries for one case (split rule in the
-    module docstring). Panels nearest to no cell hand their force to the nearest panel that has
-    cells (same side), so the surface total equals the lattice lift of the wing in the file."""
+def _jump_map(run, surface: Surface) -> tuple:
+    """The case-independent part of `pressure_jump`: (bins (m,) cell -> panel bin, area (2N,)
+    plan area per bin, [(slice, dest)] per side: the panel each panel's force goes to)."""
     n_pan = int(np.asarray(run.lattice.area).size)
-    fp = panel_forces(run, case_result)
     bins = surface.panel + n_pan * (surface.side < 0)
     sides = (1, -1) if np.any(surface.side < 0) else (1,)
-    force = np.zeros(2 * n_pan)
     area = np.bincount(bins, weights=surface.plan_area_m2, minlength=2 * n_pan)
     cen = panel_centres(run.lattice)[:, :2]
+    routes = []
     for k, sgn in enumerate(sides):
         sl = slice(k * n_pan, (k + 1) * n_pan)
         have = area[sl] > 0
@@ -327,6 +325,19 @@ def pressure_jump(run, surface: Surface, case_result) -> np.ndarray:
         if not have.all():
             idx = np.flatnonzero(have)
             dest[~have] = idx[nearest_centre(cen[idx], cen[~have])]
+        routes.append((sl, dest))
+    return bins, area, routes
+
+
+def pressure_jump(run, surface: Surface, case_result, _map=None) -> np.ndarray:
+    """(m,) lift per unit plan area (Pa) each surface cell carries for one case (split rule in the
+    module docstring). Panels nearest to no cell hand their force to the nearest panel that has
+    cells (same side), so the surface total equals the lattice lift of the wing in the file."""
+    bins, area, routes = _jump_map(run, surface) if _map is None else _map
+    n_pan = area.size // 2
+    fp = panel_forces(run, case_result)
+    force = np.zeros(2 * n_pan)
+    for sl, dest in routes:
         force[sl] = np.bincount(dest, weights=fp, minlength=n_pan)
     with np.errstate(divide="ignore", invalid="ignore"):
         per_area = np.where(area > 0, force / np.where(area > 0, area, 1.0), 0.0)
@@ -337,8 +348,9 @@ def surface_cell_data(run, surface: Surface) -> dict:
     """The cell arrays of surface.vtp (see the module docstring)."""
     crit = ea.critical_case(run)
     cells = {"panel": surface.panel, "plan_area_m2": surface.plan_area_m2}
+    jmap = _jump_map(run, surface)
     for key, cr in zip(case_keys(run), run.cases):
-        p = pressure_jump(run, surface, cr)
+        p = pressure_jump(run, surface, cr, jmap)
         cells[f"pressure_jump_Pa_{key}"] = p.astype(np.float32) if len(run.cases) > 50 else p
         if cr is crit:
             cells["pressure_jump_Pa_critical"] = p
