@@ -164,7 +164,8 @@ def _reverse_cumsum(a):
 
 
 def integrate(y, spar_x, spar_z, applied: AppliedLoads, *, case: str = "",
-              ultimate_factor: float = 1.5, schrenk_lift_N_per_m=None) -> SpanLoads:
+              ultimate_factor: float = 1.5, schrenk_lift_N_per_m=None, trim=None, chord_m=None,
+              output_rows=None, check_equilibrium: bool = False) -> SpanLoads:
     """Integrate one semi-span's AppliedLoads from tip to root on the stations y (m), with the
     spar axis (spar_x, spar_z) (m); see :func:`integrate_loads` for the meaning of each load.
 
@@ -172,6 +173,9 @@ def integrate(y, spar_x, spar_z, applied: AppliedLoads, *, case: str = "",
     segment's own moment about P_j plus (P_j - P_i) x its force: with cumulative sums from the
     tip, M_i = S_m,i + S_pf,i - P_i x F_i (positions taken relative to the tip point, so the
     subtraction loses nothing near the tip).
+
+    trim, chord_m, output_rows: stored in the record as given; check_equilibrium: also store
+    :func:`equilibrium_residual` (one record built per case instead of two).
     """
     y = np.asarray(y, dtype=float)
     n = y.size
@@ -210,6 +214,7 @@ def integrate(y, spar_x, spar_z, applied: AppliedLoads, *, case: str = "",
     s, b, nrm = spar_frame(y, sx, sz)
     dot = lambda u, e: np.einsum("ij,ij->i", u, e)  # noqa: E731
     pitch_spar = pitch + (az - sz) * fx_aero - (ax - sx) * fz_aero
+    eq = _equilibrium(case, y, applied, p, force, moment) if check_equilibrium else None
     return SpanLoads(
         case=case, y=y, lift_N_per_m=lift, drag_N_per_m=drag, pitch_Nm_per_m=pitch_spar,
         inertia_N_per_m=q, shear_N=dot(force, nrm), bending_Nm=dot(moment, b),
@@ -218,7 +223,8 @@ def integrate(y, spar_x, spar_z, applied: AppliedLoads, *, case: str = "",
         schrenk_lift_N_per_m=(np.full(n, np.nan) if schrenk_lift_N_per_m is None
                               else _col(schrenk_lift_N_per_m, n, "schrenk_lift_N_per_m")),
         ultimate_factor=float(ultimate_factor), force_N=force, moment_Nm=moment, axis_s=s,
-        axis_b=b, axis_n=nrm, spar_points_m=p, applied=applied)
+        axis_b=b, axis_n=nrm, spar_points_m=p, applied=applied, trim=trim, equilibrium=eq,
+        chord_m=chord_m, output_rows=output_rows)
 
 
 def ultimate(loads: SpanLoads) -> dict:
@@ -246,11 +252,15 @@ def equilibrium_residual(loads: SpanLoads) -> Equilibrium:
     the summed moment), shear_residual_rel, bending_residual_rel (vector differences relative to
     the size of the loads carried, so a case whose net load is about zero is judged fairly).
     """
-    a = loads.applied
-    if a is None or loads.spar_points_m is None or loads.force_N is None:
+    if loads.applied is None or loads.spar_points_m is None or loads.force_N is None:
         raise InputError(f"equilibrium_residual: case {loads.case!r} carries no beam detail")
-    y = loads.y
-    p0 = loads.spar_points_m[0]
+    return _equilibrium(loads.case, loads.y, loads.applied, loads.spar_points_m, loads.force_N,
+                        loads.moment_Nm)
+
+
+def _equilibrium(case, y, a, spar_points, force_N, moment_Nm) -> Equilibrium:
+    """equilibrium_residual on the pieces of a SpanLoads (see there)."""
+    p0 = spar_points[0]
     al, bi = np.radians(a.alpha_deg), np.radians(a.inertia_alpha_deg)
     lift, drag, q, side = a.lift_N_per_m, a.drag_N_per_m, a.inertia_N_per_m, a.side_N_per_m
     zero = np.zeros_like(y)
@@ -278,7 +288,7 @@ def equilibrium_residual(loads: SpanLoads) -> Equilibrium:
             force += fv
             moment += _cross(r, fv)
         gross += float(np.abs(fv).sum())
-    f0, m0 = loads.force_N[0], loads.moment_Nm[0]
+    f0, m0 = force_N[0], moment_Nm[0]
     span = float(y[-1] - y[0]) or 1.0
     f_ref = max(float(np.linalg.norm(force)), gross, 1e-300)
     m_ref = max(float(np.linalg.norm(moment)), gross * span, 1e-300)
