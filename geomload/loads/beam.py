@@ -75,7 +75,7 @@ def _cross(a, b):
     """a x b over the last axis (length 3), with numpy.cross's arithmetic (a1 b2 - a2 b1, ...)
     but without its per-call axis handling (it is called a dozen times per load case)."""
     a, b = np.asarray(a, float), np.asarray(b, float)
-    out = np.empty(np.broadcast_shapes(a.shape, b.shape))
+    out = np.empty(a.shape if a.shape == b.shape else np.broadcast_shapes(a.shape, b.shape))
     a0, a1, a2 = a[..., 0], a[..., 1], a[..., 2]
     b0, b1, b2 = b[..., 0], b[..., 1], b[..., 2]
     out[..., 0] = a1 * b2 - a2 * b1
@@ -275,9 +275,9 @@ def _equilibrium(case, y, a, spar_points, force_N, moment_Nm) -> Equilibrium:
     for r, f in ((ra, fa), (ri, fi)):
         force += np.sum(0.5 * h * (f[1:] + f[:-1]), axis=0)  # trapezoid, exact for linear f
         # integral of r x f with r and f linear between stations: h/6 (2 r0 x f0 + r0 x f1 +
-        # r1 x f0 + 2 r1 x f1) per segment (exact)
-        moment += np.sum(h / 6.0 * (2.0 * _cross(r[:-1], f[:-1]) + _cross(r[:-1], f[1:])
-                                    + _cross(r[1:], f[:-1]) + 2.0 * _cross(r[1:], f[1:])), axis=0)
+        # r1 x f0 + 2 r1 x f1) = h/6 (r0 x (2 f0 + f1) + r1 x (f0 + 2 f1)) per segment (exact)
+        moment += np.sum(h / 6.0 * (_cross(r[:-1], 2.0 * f[:-1] + f[1:])
+                                    + _cross(r[1:], f[:-1] + 2.0 * f[1:])), axis=0)
     moment[1] += _trapz(y, a.pitch_Nm_per_m)
     tol = 1e-12 * max(1.0, float(y[-1] - y[0]))
     gross = float(np.sum(0.5 * np.diff(y) * (np.abs(lift[1:]) + np.abs(lift[:-1]) + np.abs(q[1:])
