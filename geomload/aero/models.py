@@ -1,7 +1,7 @@
 """Factorised vortex-lattice models, one per Mach number, built on first use and shared.
 
-A model (:class:`geomload.aero.solve.AeroModel`) holds the LU factorisation of its influence
-matrix and two basis solutions; every angle of attack is their superposition. The pipeline asks
+A model (:class:`geomload.aero.solve.AeroModel`) holds the two basis solutions of its influence
+matrix (solved once, the matrix then released); every angle of attack is their superposition. The pipeline asks
 this cache for the model at a case's Mach; a caller running many variants passes a dict-like
 ``store`` so models of the same lattice and Mach are built once across runs.
 """

@@ -1,4 +1,4 @@
-"""Vortex-lattice solution: influence matrix, one LU factorisation per Mach, loads, Trefftz plane.
+"""Vortex-lattice solution: influence matrix, two basis solutions per Mach, loads, Trefftz plane.
 
 Method (Katz & Plotkin, Low-Speed Aerodynamics, 2nd ed., ch. 12; Bertin & Cummings, ch. 7):
 horseshoe vortices (see `vortex`), flow tangency at the collocation points,
@@ -48,7 +48,8 @@ def _alpha_rad(alpha_deg) -> float:
 
 
 class AeroModel:
-    """Vortex-lattice model of `lattice` at Mach `mach`, assembled and factorised once.
+    """Vortex-lattice model of `lattice` at Mach `mach`: assembled and solved once for the two
+    basis right-hand sides (every angle of attack is their superposition).
 
     Parameters
     ----------
@@ -60,8 +61,6 @@ class AeroModel:
     """
 
     def __init__(self, lattice: Lattice, mach: float = 0.0):
-        from scipy.linalg import lu_factor, lu_solve
-
         try:
             m = float(mach)
         except (TypeError, ValueError):
@@ -81,7 +80,6 @@ class AeroModel:
                 "moments (torsion) are not resolved below 4; use 8 or more for loads")
         self.lattice, self.mach = lattice, m
         self.beta = beta = math.sqrt(1.0 - m * m)
-        self._lu_solve = lu_solve
         lat = lattice
         self._fac = 2.0 if lat.mirrored else 1.0
         self._core = 1e-6 * lat.b_ref
@@ -92,15 +90,16 @@ class AeroModel:
         if not np.allclose(lat.bound_b.reshape(ns, nc, 3)[:-1] * stretch, nodes[1:-1]):
             raise AeroError("lattice: bound vortices of neighbouring strips do not share ends")
         hs = vortex.HorseshoeSet(nodes, self._core, x_scale=beta, mirror=lat.mirrored)
-        A = hs.normalwash(lat.colloc * stretch, lat.normal)
-        if not np.all(np.isfinite(A)):
-            raise AeroError("lattice: influence matrix is not finite (degenerate panels)")
-        self._lu = lu_factor(A, overwrite_a=True, check_finite=False)
-        if not np.all(np.isfinite(self._lu[0])) or np.min(np.abs(np.diag(self._lu[0]))) == 0.0:
-            raise AeroError("lattice: influence matrix is singular (degenerate panels)")
-        self._basis = self._solve_rhs(np.column_stack([-lat.normal[:, 0], -lat.normal[:, 2]]))
+        self._hs, self._colloc_s = hs, lat.colloc * stretch
+        # Every angle of attack is the superposition cos(a) G_x + sin(a) G_z of two basis
+        # solutions, so they are the only right-hand sides a model needs: one LAPACK solve
+        # (LU + back-substitution) of the assembled matrix, which is then released (a kept LU
+        # is 8 N^2 bytes: 69 MB at 3000 panels). Other right-hand sides (control surfaces,
+        # roll) reassemble it in `solve_rhs`.
+        self._basis = self._solve_assembled(
+            np.column_stack([-lat.normal[:, 0], -lat.normal[:, 2]]))
         mid_s = 0.5 * (lat.bound_a + lat.bound_b) * stretch
-        self._hs, self._mid_s = hs, mid_s
+        self._mid_s = mid_s
         self._vind = hs.velocity(mid_s, self._basis, self_panels=True)
         self._prepare_geometry()
         self._check_lift_slope()
@@ -123,8 +122,36 @@ class AeroModel:
                 "more chordwise panels (lattice.n_span / lattice.n_chord, --panels-span / "
                 "--panels-chord)")
 
+    def _assemble(self) -> np.ndarray:
+        lat = self.lattice
+        A = self._hs.normalwash(self._colloc_s, lat.normal)
+        if not np.all(np.isfinite(A)):
+            raise AeroError("lattice: influence matrix is not finite (degenerate panels)")
+        return A
+
+    def _solve_assembled(self, rhs) -> np.ndarray:
+        """Solutions (N, k) of the influence matrix, assembled for this call and released after
+        (numpy.linalg.solve: LAPACK gesv, the LU with partial pivoting and its back-substitution)."""
+        A = self._assemble()
+        try:
+            # one BLAS thread (see vortex.BLAS_LIMIT_PAIRS): on 2 shared cores the threaded LU of
+            # 3000 panels took more wall time (1.26 against 0.86 s) and 1.5 x the CPU, and one
+            # thread does the same operations on any machine and in batch workers
+            with vortex._single_blas_thread(A.size):
+                g = np.linalg.solve(A, rhs)
+        except np.linalg.LinAlgError:
+            raise AeroError("lattice: influence matrix is singular (degenerate panels)") from None
+        if not np.all(np.isfinite(g)):
+            raise AeroError("lattice: influence matrix is singular (degenerate panels)")
+        return g
+
     def _solve_rhs(self, rhs):
-        return self._lu_solve(self._lu, rhs, check_finite=False)
+        return self._solve_assembled(rhs)
+
+    def _gamma(self, alphas) -> np.ndarray:
+        """Circulations (N, k) at angles `alphas` (rad): the superposition of the basis."""
+        a = np.asarray(alphas, float)
+        return self._basis @ np.vstack([np.cos(a), np.sin(a)])
 
     def _prepare_geometry(self):
         lat = self.lattice
@@ -150,6 +177,8 @@ class AeroModel:
         self._Fq_tot = self._Fq.sum(axis=1)
         self._My_strip = self._moment(self._Fq, self._arm_strip).reshape(3, ns, nc).sum(axis=2)
         self._My_ref = self._moment(self._Fq, self._arm_ref).sum(axis=1)
+        self._Fq_tot_xz = tuple((float(f[0]), float(f[2])) for f in self._Fq_tot)
+        self._My_ref_f = tuple(float(m) for m in self._My_ref)
         # Trefftz plane: nodes at the trailing-edge strip edges; wash at strip midpoints
         ny, nz = c[:, -1, 1], c[:, -1, 2]
         dy, dz = np.diff(ny), np.diff(nz)
@@ -175,11 +204,15 @@ class AeroModel:
         return np.array([ca * ca, ca * sa, sa * sa]), ca, sa
 
     def _cl_cm(self, alpha: float):
-        w, ca, sa = self._w(alpha)
-        T = w @ self._Fq_tot
-        lift = -sa * T[0] + ca * T[2]
+        # scalar arithmetic: the trim calls this a few dozen times per load case
+        ca, sa = math.cos(alpha), math.sin(alpha)
+        w0, w1, w2 = ca * ca, ca * sa, sa * sa
+        (x0, z0), (x1, z1), (x2, z2) = self._Fq_tot_xz
+        m0, m1, m2 = self._My_ref_f
+        lift = -sa * (w0 * x0 + w1 * x1 + w2 * x2) + ca * (w0 * z0 + w1 * z1 + w2 * z2)
         S = self.lattice.s_ref
-        return (self._fac * lift / S, self._fac * (w @ self._My_ref) / (S * self.lattice.c_ref))
+        return (self._fac * lift / S,
+                self._fac * (w0 * m0 + w1 * m1 + w2 * m2) / (S * self.lattice.c_ref))
 
     def _zero_lift(self, alpha: float, cla: float) -> float:
         a = alpha
@@ -212,8 +245,8 @@ class AeroModel:
     # ------------------------------------------------------------------------------ public
     def solve_rhs(self, rhs) -> np.ndarray:
         """Circulations (N, k) per unit free-stream speed for right-hand sides rhs (N, k) (the
-        negative free-stream normal velocity at each collocation point), on the one factorised
-        influence matrix."""
+        negative free-stream normal velocity at each collocation point): the influence matrix is
+        reassembled and solved for them (one LAPACK solve; pass every column at once)."""
         r = np.asarray(rhs, float)
         n = self.lattice.colloc.shape[0]
         if r.shape[0] != n or not np.all(np.isfinite(r)):
@@ -233,14 +266,14 @@ class AeroModel:
         """Loads at angle of attack `alpha_deg` (deg), per unit dynamic pressure q where the
         field says so (see records.AeroSolution); circulation per unit free-stream speed."""
         alpha = _alpha_rad(alpha_deg)
-        gamma = self._solve_rhs(self._rhs([alpha]))[:, 0]
+        gamma = self._gamma([alpha])[:, 0]
         return self._solution(float(alpha_deg), alpha, gamma)
 
     def solve_many(self, alphas_deg) -> list:
-        """`solve` at each angle (deg); one factorisation and one multi-RHS back-substitution."""
+        """`solve` at each angle (deg), by superposition of the two basis solutions."""
         degs = [float(a) for a in np.atleast_1d(alphas_deg)]
         rads = [_alpha_rad(a) for a in degs]
-        G = self._solve_rhs(self._rhs(rads))
+        G = self._gamma(rads)
         return [self._solution(d, r, G[:, k]) for k, (d, r) in enumerate(zip(degs, rads))]
 
     def _solution(self, alpha_deg: float, alpha: float, g) -> AeroSolution:

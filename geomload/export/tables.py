@@ -31,7 +31,10 @@ FRAME = ("wing frame: x aft along the root chord, y along the span (starboard po
 
 def _clean(s) -> str:
     """One line of text safe inside a '#' comment line."""
-    return " ".join(textsafe.printable(s).split())
+    s = str(s)
+    if not (s.isascii() and s.isprintable()):  # printable ASCII has nothing to escape
+        s = textsafe.printable(s)
+    return " ".join(s.split())
 
 
 def _csv(header_lines, columns: dict) -> str:

@@ -207,9 +207,14 @@ def decimate_soup(triangles, target: int):
     v = t.reshape(-1, 3)
     lo, hi = np.array([v[:, k].min() for k in range(3)]), np.array([v[:, k].max() for k in range(3)])
     h = max(float(np.sqrt(2.0 * area / max(target, 1))), 1e-12)
-    q = ((v - lo) * (1.0 / h)).astype(np.int64)  # non-negative: truncation is the floor
     dims = np.floor((hi - lo) / h).astype(np.int64) + 2
-    key = (q[:, 0] * dims[1] + q[:, 1]) * dims[2] + q[:, 2]
+    # the cell key, in blocks of vertices (no full-size temporaries besides the key itself):
+    # key = (q0 d1 + q1) d2 + q2 with q = floor((v - lo) / h) (non-negative: truncation)
+    inv_h = 1.0 / h
+    key = np.empty(v.shape[0], np.int64)
+    for a in range(0, v.shape[0], _KEY_BLOCK):
+        q = ((v[a:a + _KEY_BLOCK] - lo) * inv_h).astype(np.int64)
+        key[a:a + _KEY_BLOCK] = (q[:, 0] * dims[1] + q[:, 1]) * dims[2] + q[:, 2]
     n_cells = int(np.prod(dims))
     if n_cells <= DENSE_GRID_MAX:  # a counting pass over a dense grid: no sort of the vertices
         occupied = np.bincount(key, minlength=n_cells) > 0
@@ -218,12 +223,14 @@ def decimate_soup(triangles, target: int):
     else:
         _, inv = np.unique(key, return_inverse=True)
         n = int(inv.max()) + 1
+    del key
     cnt = np.bincount(inv, minlength=n).astype(float)
     pts = np.column_stack([np.bincount(inv, weights=v[:, k], minlength=n) / cnt for k in range(3)])
     f = inv.reshape(-1, 3)
     ok = (f[:, 0] != f[:, 1]) & (f[:, 1] != f[:, 2]) & (f[:, 0] != f[:, 2])
     f = f[ok]
-    s = np.sort(f, axis=1).astype(np.int64)
+    del inv, ok
+    s = np.sort(f, axis=1).astype(np.int64, copy=False)
     if n ** 3 < 2 ** 62:
         _, first = np.unique((s[:, 0] * n + s[:, 1]) * n + s[:, 2], return_index=True)
     else:
@@ -232,18 +239,45 @@ def decimate_soup(triangles, target: int):
     return pts, f[np.sort(first)]
 
 
+_KEY_BLOCK = 1 << 16  # vertices per block of the cell-key pass
 DENSE_GRID_MAX = 40_000_000  # grid cells counted densely (320 MB of int64 at most)
+
+
+BRUTE_NEAREST_MAX = 100_000_000  # query-centre pairs up to which the nearest centre is found by
+# direct distances in numpy (the sample: 24,000 triangles x 400 panels in about 0.05 s, x 3000
+# panels about 0.4 s); above it a k-d tree pays for its import (scipy.spatial, about 0.5 s)
+_BRUTE_CHUNK = 1 << 15  # pairs per block of the direct search (cache-sized temporaries)
+
+
+def nearest_centre(centres, query) -> np.ndarray:
+    """Index of the nearest of `centres` (k, 2) to each of `query` (m, 2) (Euclidean; the lowest
+    index among equally near ones)."""
+    cen = np.asarray(centres, float)
+    q = np.asarray(query, float)
+    if cen.shape[0] * q.shape[0] > BRUTE_NEAREST_MAX:
+        from scipy.spatial import cKDTree
+
+        return cKDTree(cen).query(q)[1]
+    out = np.empty(q.shape[0], dtype=np.intp)
+    step = max(1, _BRUTE_CHUNK // max(cen.shape[0], 1))
+    cx, cy = cen[:, 0], cen[:, 1]
+    for i in range(0, q.shape[0], step):
+        dx = q[i:i + step, 0:1] - cx
+        dy = q[i:i + step, 1:2] - cy
+        dx *= dx
+        dy *= dy
+        dx += dy
+        out[i:i + step] = np.argmin(dx, axis=1)
+    return out
 
 
 def map_to_panels(points_xy, lattice) -> np.ndarray:
     """Index of the nearest lattice panel centre in the (x, y) projection; |y| for a half lattice."""
-    from scipy.spatial import cKDTree
-
     cen = panel_centres(lattice)[:, :2]
     q = np.array(points_xy, float)
     if lattice.mirrored:
         q[:, 1] = np.abs(q[:, 1])
-    return cKDTree(cen).query(q)[1]
+    return nearest_centre(cen, q)
 
 
 def surface_data(run, full: bool = False) -> Surface:
@@ -280,19 +314,15 @@ def panel_forces(run, case_result) -> np.ndarray:
     return (f + (target - f.sum(axis=1))[:, None] * share).ravel()
 
 
-def pressure_jump(run, surface: Surface, case_result) -> np.ndarray:
-    """(m,) lift per unit plan area (Pa) each surface cell carries for one case (split rule in the
-    module docstring). Panels nearest to no cell hand their force to the nearest panel that has
-    cells (same side), so the surface total equals the lattice lift of the wing in the file."""
-    from scipy.spatial import cKDTree
-
+def _jump_map(run, surface: Surface) -> tuple:
+    """The case-independent part of `pressure_jump`: (bins (m,) cell -> panel bin, area (2N,)
+    plan area per bin, [(slice, dest)] per side: the panel each panel's force goes to)."""
     n_pan = int(np.asarray(run.lattice.area).size)
-    fp = panel_forces(run, case_result)
     bins = surface.panel + n_pan * (surface.side < 0)
     sides = (1, -1) if np.any(surface.side < 0) else (1,)
-    force = np.zeros(2 * n_pan)
     area = np.bincount(bins, weights=surface.plan_area_m2, minlength=2 * n_pan)
     cen = panel_centres(run.lattice)[:, :2]
+    routes = []
     for k, sgn in enumerate(sides):
         sl = slice(k * n_pan, (k + 1) * n_pan)
         have = area[sl] > 0
@@ -301,7 +331,20 @@ def pressure_jump(run, surface: Surface, case_result) -> np.ndarray:
         dest = np.arange(n_pan)
         if not have.all():
             idx = np.flatnonzero(have)
-            dest[~have] = idx[cKDTree(cen[idx]).query(cen[~have])[1]]
+            dest[~have] = idx[nearest_centre(cen[idx], cen[~have])]
+        routes.append((sl, dest))
+    return bins, area, routes
+
+
+def pressure_jump(run, surface: Surface, case_result, _map=None) -> np.ndarray:
+    """(m,) lift per unit plan area (Pa) each surface cell carries for one case (split rule in the
+    module docstring). Panels nearest to no cell hand their force to the nearest panel that has
+    cells (same side), so the surface total equals the lattice lift of the wing in the file."""
+    bins, area, routes = _jump_map(run, surface) if _map is None else _map
+    n_pan = area.size // 2
+    fp = panel_forces(run, case_result)
+    force = np.zeros(2 * n_pan)
+    for sl, dest in routes:
         force[sl] = np.bincount(dest, weights=fp, minlength=n_pan)
     with np.errstate(divide="ignore", invalid="ignore"):
         per_area = np.where(area > 0, force / np.where(area > 0, area, 1.0), 0.0)
@@ -312,8 +355,9 @@ def surface_cell_data(run, surface: Surface) -> dict:
     """The cell arrays of surface.vtp (see the module docstring)."""
     crit = ea.critical_case(run)
     cells = {"panel": surface.panel, "plan_area_m2": surface.plan_area_m2}
+    jmap = _jump_map(run, surface)
     for key, cr in zip(case_keys(run), run.cases):
-        p = pressure_jump(run, surface, cr)
+        p = pressure_jump(run, surface, cr, jmap)
         cells[f"pressure_jump_Pa_{key}"] = p.astype(np.float32) if len(run.cases) > 50 else p
         if cr is crit:
             cells["pressure_jump_Pa_critical"] = p

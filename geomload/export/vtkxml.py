@@ -30,14 +30,12 @@ _TYPES = {np.dtype("<f8"): "Float64", np.dtype("<f4"): "Float32", np.dtype("<i8"
 
 def _norm(a) -> np.ndarray:
     a = np.asarray(a)
-    if a.dtype.kind == "b":
-        a = a.astype("<u1")
-    elif a.dtype == np.uint8:
-        a = a.astype("<u1")
+    if a.dtype.kind == "b" or a.dtype == np.uint8:
+        a = a.astype("<u1", copy=False)
     elif a.dtype.kind in "iu":
-        a = a.astype("<i8")
+        a = a.astype("<i8", copy=False)
     elif a.dtype.kind == "f":
-        a = a.astype("<f4" if a.dtype.itemsize <= 4 else "<f8")
+        a = a.astype("<f4" if a.dtype.itemsize <= 4 else "<f8", copy=False)
     else:
         raise TypeError(f"vtp: unsupported array type {a.dtype}")
     return np.ascontiguousarray(a)

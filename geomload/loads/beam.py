@@ -49,7 +49,25 @@ def spar_frame(y, spar_x, spar_z):
     s /= np.linalg.norm(s, axis=1)[:, None]
     b = np.array([1.0, 0.0, 0.0]) - s[:, :1] * s
     b /= np.linalg.norm(b, axis=1)[:, None]
-    return s, b, np.cross(b, s)
+    return s, b, _cross(b, s)
+
+
+_FRAMES: dict = {}  # (y, spar_x, spar_z) bytes -> read-only (s, b, n): every case of a run
+_FRAMES_KEEP = 8  # shares one grid, and np.gradient costs about 0.2 ms per call
+
+
+def _shared_spar_frame(y, spar_x, spar_z):
+    """spar_frame, computed once per grid (the arrays are returned read-only and shared)."""
+    key = (y.tobytes(), spar_x.tobytes(), spar_z.tobytes())
+    hit = _FRAMES.get(key)
+    if hit is None:
+        hit = spar_frame(y, spar_x, spar_z)
+        for a in hit:
+            a.setflags(write=False)
+        if len(_FRAMES) >= _FRAMES_KEEP:
+            _FRAMES.clear()
+        _FRAMES[key] = hit
+    return hit
 
 
 def spar_line(y, x_le, x_te, z_le, z_te, chord_fraction=0.25, line=()):
@@ -71,6 +89,19 @@ def spar_line(y, x_le, x_te, z_le, z_te, chord_fraction=0.25, line=()):
     return out[0], out[1]
 
 
+def _cross(a, b):
+    """a x b over the last axis (length 3), with numpy.cross's arithmetic (a1 b2 - a2 b1, ...)
+    but without its per-call axis handling (it is called a dozen times per load case)."""
+    a, b = np.asarray(a, float), np.asarray(b, float)
+    out = np.empty(a.shape if a.shape == b.shape else np.broadcast_shapes(a.shape, b.shape))
+    a0, a1, a2 = a[..., 0], a[..., 1], a[..., 2]
+    b0, b1, b2 = b[..., 0], b[..., 1], b[..., 2]
+    out[..., 0] = a1 * b2 - a2 * b1
+    out[..., 1] = a2 * b0 - a0 * b2
+    out[..., 2] = a0 * b1 - a1 * b0
+    return out
+
+
 def _segment_moments(y, p, r, f):
     """Per segment j: force integral (3,) and moment integral about p[j] of the linear load
     f(eta) applied on the linear line r(eta); Simpson's rule, exact for these quadratics."""
@@ -78,7 +109,7 @@ def _segment_moments(y, p, r, f):
     fa, fb = f[:-1], f[1:]
     ra, rb = r[:-1] - p[:-1], r[1:] - p[:-1]
     force = 0.5 * h * (fa + fb)
-    mom = h / 6.0 * (np.cross(ra, fa) + np.cross(ra + rb, fa + fb) + np.cross(rb, fb))
+    mom = h / 6.0 * (_cross(ra, fa) + _cross(ra + rb, fa + fb) + _cross(rb, fb))
     return force, mom
 
 
@@ -151,7 +182,8 @@ def _reverse_cumsum(a):
 
 
 def integrate(y, spar_x, spar_z, applied: AppliedLoads, *, case: str = "",
-              ultimate_factor: float = 1.5, schrenk_lift_N_per_m=None) -> SpanLoads:
+              ultimate_factor: float = 1.5, schrenk_lift_N_per_m=None, trim=None, chord_m=None,
+              output_rows=None, check_equilibrium: bool = False) -> SpanLoads:
     """Integrate one semi-span's AppliedLoads from tip to root on the stations y (m), with the
     spar axis (spar_x, spar_z) (m); see :func:`integrate_loads` for the meaning of each load.
 
@@ -159,6 +191,9 @@ def integrate(y, spar_x, spar_z, applied: AppliedLoads, *, case: str = "",
     segment's own moment about P_j plus (P_j - P_i) x its force: with cumulative sums from the
     tip, M_i = S_m,i + S_pf,i - P_i x F_i (positions taken relative to the tip point, so the
     subtraction loses nothing near the tip).
+
+    trim, chord_m, output_rows: stored in the record as given; check_equilibrium: also store
+    :func:`equilibrium_residual` (one record built per case instead of two).
     """
     y = np.asarray(y, dtype=float)
     n = y.size
@@ -185,18 +220,19 @@ def integrate(y, spar_x, spar_z, applied: AppliedLoads, *, case: str = "",
     seg_m = ma + mi + couple
     rel = p - p[-1]
     force = _reverse_cumsum(seg_f)
-    moment = (_reverse_cumsum(seg_m) + _reverse_cumsum(np.cross(rel[:-1], seg_f))
-              - np.cross(rel, force))
+    moment = (_reverse_cumsum(seg_m) + _reverse_cumsum(_cross(rel[:-1], seg_f))
+              - _cross(rel, force))
     tol = 1e-12 * max(1.0, float(y[-1] - y[0]))
     for pl in a.point_loads:
         r, fv = pl.position, pl.force
         on = y <= r[1] + tol
         force[on] += fv
-        moment[on] += np.cross(r[None, :] - p[on], fv[None, :])
+        moment[on] += _cross(r[None, :] - p[on], fv[None, :])
 
-    s, b, nrm = spar_frame(y, sx, sz)
+    s, b, nrm = _shared_spar_frame(y, sx, sz)
     dot = lambda u, e: np.einsum("ij,ij->i", u, e)  # noqa: E731
     pitch_spar = pitch + (az - sz) * fx_aero - (ax - sx) * fz_aero
+    eq = _equilibrium(case, y, applied, p, force, moment) if check_equilibrium else None
     return SpanLoads(
         case=case, y=y, lift_N_per_m=lift, drag_N_per_m=drag, pitch_Nm_per_m=pitch_spar,
         inertia_N_per_m=q, shear_N=dot(force, nrm), bending_Nm=dot(moment, b),
@@ -205,7 +241,8 @@ def integrate(y, spar_x, spar_z, applied: AppliedLoads, *, case: str = "",
         schrenk_lift_N_per_m=(np.full(n, np.nan) if schrenk_lift_N_per_m is None
                               else _col(schrenk_lift_N_per_m, n, "schrenk_lift_N_per_m")),
         ultimate_factor=float(ultimate_factor), force_N=force, moment_Nm=moment, axis_s=s,
-        axis_b=b, axis_n=nrm, spar_points_m=p, applied=applied)
+        axis_b=b, axis_n=nrm, spar_points_m=p, applied=applied, trim=trim, equilibrium=eq,
+        chord_m=chord_m, output_rows=output_rows)
 
 
 def ultimate(loads: SpanLoads) -> dict:
@@ -218,14 +255,6 @@ def ultimate(loads: SpanLoads) -> dict:
 def _trapz(y, f):
     """Integral over y of f, linear between stations (trapezoid rule, exact)."""
     return float(np.sum(0.5 * np.diff(y) * (f[1:] + f[:-1])))
-
-
-def _lin_product(y, a, b):
-    """Integral over y of a(y) b(y), both linear between stations: exact, h/6 (2 a0 b0 + a0 b1 +
-    a1 b0 + 2 a1 b1) per segment."""
-    h = np.diff(y)
-    return float(np.sum(h / 6.0 * (2 * a[:-1] * b[:-1] + a[:-1] * b[1:] + a[1:] * b[:-1]
-                                   + 2 * a[1:] * b[1:])))
 
 
 def equilibrium_residual(loads: SpanLoads) -> Equilibrium:
@@ -241,11 +270,15 @@ def equilibrium_residual(loads: SpanLoads) -> Equilibrium:
     the summed moment), shear_residual_rel, bending_residual_rel (vector differences relative to
     the size of the loads carried, so a case whose net load is about zero is judged fairly).
     """
-    a = loads.applied
-    if a is None or loads.spar_points_m is None or loads.force_N is None:
+    if loads.applied is None or loads.spar_points_m is None or loads.force_N is None:
         raise InputError(f"equilibrium_residual: case {loads.case!r} carries no beam detail")
-    y = loads.y
-    p0 = loads.spar_points_m[0]
+    return _equilibrium(loads.case, loads.y, loads.applied, loads.spar_points_m, loads.force_N,
+                        loads.moment_Nm)
+
+
+def _equilibrium(case, y, a, spar_points, force_N, moment_Nm) -> Equilibrium:
+    """equilibrium_residual on the pieces of a SpanLoads (see there)."""
+    p0 = spar_points[0]
     al, bi = np.radians(a.alpha_deg), np.radians(a.inertia_alpha_deg)
     lift, drag, q, side = a.lift_N_per_m, a.drag_N_per_m, a.inertia_N_per_m, a.side_N_per_m
     zero = np.zeros_like(y)
@@ -254,12 +287,15 @@ def equilibrium_residual(loads: SpanLoads) -> Equilibrium:
     fi = np.column_stack([q * np.sin(bi), zero, -q * np.cos(bi)])
     ra = np.column_stack([a.load_x_m, y, a.load_z_m]) - p0
     ri = np.column_stack([a.inertia_x_m, y, a.inertia_z_m]) - p0
-    force = np.array([_trapz(y, f[:, k]) for f in (fa, fi) for k in range(3)]).reshape(2, 3).sum(0)
+    h = np.diff(y)[:, None]
+    force = np.zeros(3)
     moment = np.zeros(3)
-    for r, f in ((ra, fa), (ri, fi)):  # (r x f) components, each a product of linear functions
-        moment += [_lin_product(y, r[:, 1], f[:, 2]) - _lin_product(y, r[:, 2], f[:, 1]),
-                   _lin_product(y, r[:, 2], f[:, 0]) - _lin_product(y, r[:, 0], f[:, 2]),
-                   _lin_product(y, r[:, 0], f[:, 1]) - _lin_product(y, r[:, 1], f[:, 0])]
+    for r, f in ((ra, fa), (ri, fi)):
+        force += np.sum(0.5 * h * (f[1:] + f[:-1]), axis=0)  # trapezoid, exact for linear f
+        # integral of r x f with r and f linear between stations: h/6 (2 r0 x f0 + r0 x f1 +
+        # r1 x f0 + 2 r1 x f1) = h/6 (r0 x (2 f0 + f1) + r1 x (f0 + 2 f1)) per segment (exact)
+        moment += np.sum(h / 6.0 * (_cross(r[:-1], 2.0 * f[:-1] + f[1:])
+                                    + _cross(r[1:], f[:-1] + 2.0 * f[1:])), axis=0)
     moment[1] += _trapz(y, a.pitch_Nm_per_m)
     tol = 1e-12 * max(1.0, float(y[-1] - y[0]))
     gross = float(np.sum(0.5 * np.diff(y) * (np.abs(lift[1:]) + np.abs(lift[:-1]) + np.abs(q[1:])
@@ -268,9 +304,9 @@ def equilibrium_residual(loads: SpanLoads) -> Equilibrium:
         r, fv = pl.position - p0, pl.force
         if r[1] >= -tol:
             force += fv
-            moment += np.cross(r, fv)
+            moment += _cross(r, fv)
         gross += float(np.abs(fv).sum())
-    f0, m0 = loads.force_N[0], loads.moment_Nm[0]
+    f0, m0 = force_N[0], moment_Nm[0]
     span = float(y[-1] - y[0]) or 1.0
     f_ref = max(float(np.linalg.norm(force)), gross, 1e-300)
     m_ref = max(float(np.linalg.norm(moment)), gross * span, 1e-300)

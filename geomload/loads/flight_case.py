@@ -9,12 +9,11 @@ The lattice force is normal to the local (dihedral) surface: its y component per
 
 from __future__ import annotations
 
-import dataclasses
 import math
 
 import numpy as np
 
-from .beam import equilibrium_residual, integrate
+from .beam import integrate
 from .grid import strip_to_grid
 from .masses import inertia_loads
 from .schrenk_twist import schrenk_with_twist
@@ -75,14 +74,14 @@ def case_loads(grid: LoadGrid, trimmed, applied: AppliedLoads, semispan: float,
     the grid's reported rows."""
     y, lift = grid.y, applied.lift_N_per_m
     half_lift = float(np.sum(0.5 * (lift[1:] + lift[:-1]) * np.diff(y)))
-    loads = integrate(y, grid.spar_x, grid.spar_z, applied, case=trimmed.name,
-                      ultimate_factor=ultimate_factor,
-                      schrenk_lift_N_per_m=schrenk_with_twist(
-                          y, grid.chord, semispan, half_lift, trimmed.q_pa, grid_twist_deg(grid)))
     trim = TrimState(CL_required=trimmed.CL_required, q_pa=trimmed.q_pa,
                      load_factor_axis="body" if trimmed.body_axis else "flight-path",
                      force_required_N=trimmed.force_required_N, lift_total_N=2.0 * half_lift,
                      mach_lattice=trimmed.mach_lattice)
-    return dataclasses.replace(loads, trim=trim, equilibrium=equilibrium_residual(loads),
-                               chord_m=grid.chord,
-                               output_rows=None if grid.output_rows.all() else grid.output_rows)
+    return integrate(y, grid.spar_x, grid.spar_z, applied, case=trimmed.name,
+                     ultimate_factor=ultimate_factor,
+                     schrenk_lift_N_per_m=schrenk_with_twist(
+                         y, grid.chord, semispan, half_lift, trimmed.q_pa, grid_twist_deg(grid)),
+                     trim=trim, chord_m=grid.chord,
+                     output_rows=None if grid.output_rows.all() else grid.output_rows,
+                     check_equilibrium=True)
