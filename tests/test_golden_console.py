@@ -59,10 +59,22 @@ def test_run_text_groups_warnings_and_flags_stall(texts):
     for col in ("n", "V_EAS", "mass", "CL", "CN"):
         assert re.search(rf"\s{col}\s", head + " "), col
     # at the positive stall corner of the V-n diagram the wing flies at its maximum normal-force
-    # coefficient (14 CFR 23.333(b): the line OA is n = CN_max q S / W); the sample's is 1.35
-    row = next(ln for ln in out.splitlines() if ln.startswith("pos-stall-corner-22kg-0m "))
+    # coefficient (14 CFR 23.333(b): the line OA is n = CN_max q S / W); the sample's is 1.35.
+    # With the sample's tail the wing carries n W minus the balancing tail load, so the check runs
+    # on the sample without its tail (the lift share case) ...
+    import tempfile
+
+    from sample_variants import symmetric_sample
+
+    with tempfile.TemporaryDirectory() as tmp:
+        sym = regenerate.console_text(["run", str(symmetric_sample(tmp)), "--out",
+                                       regenerate.OUT_TOKEN, "--no-render"], tmp)
+    row = next(ln for ln in sym.splitlines() if ln.startswith("pos-stall-corner-22kg-0m "))
     cn = float(row.split()[6])
     check("14 CFR 23.333(b): V-n stall corner at CN_max", "CN at the positive stall corner (-)",
           expected=1.35, measured=cn, rel=1e-3)
+    # ... and with the tail the forward c.g. (tail down-load) needs a wing CN above it: flagged
+    fwd = next(ln for ln in out.splitlines() if ln.startswith("pos-stall-corner-22kg-0m cg f"))
+    assert "*" in fwd[:34] and float(fwd[34:].split()[5]) > 1.35
     crit = out.split("Critical cases", 1)[1]
     assert re.search(r"bending max\s+N·m\s", crit)
