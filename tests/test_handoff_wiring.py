@@ -32,9 +32,9 @@ RIBS_NO_ROOT = (0.2, 0.55, 1.0)
 def sample_text(extra_spar="", structure=None, envelope=False) -> str:
     """The sample case with an absolute geometry path, its two load cases (no envelope unless
     asked, to stay fast), extra [spar] keys and a replaced [structure] table."""
-    text = SAMPLE.read_text()
-    text = text.replace('file = "pellin_half_wing_mm.stl"',
-                        f'file = "{(SAMPLE.parent / "pellin_half_wing_mm.stl").as_posix()}"')
+    from sample_variants import symmetric_text
+
+    text = symmetric_text()  # without control surfaces, tail and c.g.: the lift-share cases
     if not envelope:
         text = text[:text.index("[envelope]")]
     text = text.replace("chord_fraction = 0.28\n", "chord_fraction = 0.28\n" + extra_spar)
