@@ -173,7 +173,8 @@ def connect(address: str, timeout: float = CONNECT_TIMEOUT_S):
     except ImportError:
         raise ClusterError("--cluster: dask.distributed is not installed "
                            "(pip install 'dask[distributed]')") from None
-    quiet = [logging.getLogger(n) for n in ("distributed", "tornado", "asyncio")]
+    # the scheduler client and the event-loop libraries under it log through the root logger too
+    quiet = [logging.getLogger(n) for n in ("distributed", "asyncio", "")]
     levels = [lg.level for lg in quiet]
     for lg in quiet:
         lg.setLevel(logging.CRITICAL)
