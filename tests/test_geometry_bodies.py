@@ -13,7 +13,7 @@ import pytest
 from aircraftfactory import aircraft, fuselage, wing_with_aileron
 from geomload.errors import GeometryError
 from geomload.geometry import read_wing
-from geomload.geometry.read import STL_RECORD
+from wingfactory import write_stl  # noqa: E402
 from validation import check
 from wingfactory import design, expected_stations, wing_triangles
 
@@ -21,14 +21,7 @@ NACA = "NACA Report 460 / 824 equations, farthest-point chord line"
 TAPER = "straight-taper formulas (Raymer ch. 4)"
 
 
-def _stl(path, tris):
-    tris = np.concatenate(tris) if isinstance(tris, list) else tris
-    rec = np.zeros(len(tris), STL_RECORD)
-    rec["v"] = tris
-    with open(path, "wb") as f:
-        f.write(b"x" * 80 + np.uint32(len(tris)).tobytes())
-        rec.tofile(f)
-    return path
+_stl = write_stl  # binary STL writer shared by the geometry tests
 
 
 def _worst(label, expected, measured, rel=0.0, abs=0.0):

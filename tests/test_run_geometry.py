@@ -22,7 +22,7 @@ sys.path.insert(0, str(Path(__file__).resolve().parent))
 
 from aircraftfactory import fuselage, panel  # noqa: E402
 from geomload.cli import cli  # noqa: E402
-from geomload.geometry.readers import STL_RECORD  # noqa: E402
+from wingfactory import write_stl  # noqa: E402
 from validation import check  # noqa: E402
 from wingcopies import three_copies  # noqa: E402
 from wingfactory import design, wing_triangles  # noqa: E402
@@ -59,14 +59,7 @@ n_chord = 5
 """
 
 
-def _stl(path, tris):
-    tris = np.concatenate(tris) if isinstance(tris, list) else tris
-    rec = np.zeros(len(tris), STL_RECORD)
-    rec["v"] = tris
-    with open(path, "wb") as f:
-        f.write(b"x" * 80 + np.uint32(len(tris)).tobytes())
-        rec.tofile(f)
-    return path
+_stl = write_stl  # binary STL writer shared by the geometry tests
 
 
 def _case(folder, name, tris, units='units = "m"\n'):

@@ -190,3 +190,16 @@ def expected_max_camber(code, t, blunt_te=True):
     h = (p @ n) / cl
     i = int(np.argmax(h))
     return float(h[i]), float((p[i] @ u) / cl)
+
+
+def write_stl(path, tris):
+    """Write triangles (m, 3, 3), or a list of such arrays, as a binary STL; returns path."""
+    from geomload.geometry.readers.stl import STL_RECORD
+
+    tris = np.concatenate(tris) if isinstance(tris, list) else tris
+    rec = np.zeros(len(tris), STL_RECORD)
+    rec["v"] = tris
+    with open(path, "wb") as f:
+        f.write(b"x" * 80 + np.uint32(len(tris)).tobytes())
+        rec.tofile(f)
+    return path
