@@ -9,7 +9,6 @@ copies) and the committed copies are checked against that build.
 
 from __future__ import annotations
 
-import hashlib
 import os
 import shutil
 import subprocess
@@ -21,6 +20,8 @@ import pytest
 from click.testing import CliRunner
 
 from geomload.cli import cli
+from geomload.export.run_marker import write_marker
+from nothinglost import snapshot
 
 HERE = Path(__file__).resolve().parent
 CORPUS_DIR = HERE / "bad_inputs"
@@ -75,11 +76,9 @@ def _setup(kind, tmp, corpus):
         (tmp / "real" / "keep.txt").write_text("behind the link\n")
         (tmp / "out").symlink_to(tmp / "real")
     elif kind == "marked_out_with_user_file":  # an earlier geomload run the user added notes to
-        from geomload.export.run_folder import _write_marker
-
         (tmp / "out").mkdir()
         (tmp / "out" / "stations.csv").write_text("y_m\n0\n")
-        _write_marker(tmp / "out", corpus / "good.toml")
+        write_marker(tmp / "out", corpus / "good.toml")
         (tmp / "out" / "notes.txt").write_text("added by the user\n")
     elif kind == "locked_out":  # another run holds the lock of {out}
         import fcntl
@@ -106,22 +105,6 @@ def _setup(kind, tmp, corpus):
     elif kind:
         raise AssertionError(f"unknown setup {kind!r} in cases.toml")
     return done
-
-
-def snapshot(folder) -> dict:
-    """Every file, folder and symlink below `folder` (links not followed): path -> content."""
-    out = {}
-    for root, dirs, names in os.walk(folder):
-        for n in dirs + names:
-            p = os.path.join(root, n)
-            rel = os.path.relpath(p, folder)
-            if os.path.islink(p):
-                out[rel] = "link:" + os.readlink(p)
-            elif os.path.isfile(p):
-                out[rel] = hashlib.sha256(Path(p).read_bytes()).hexdigest()
-            else:
-                out[rel] = "dir" if os.path.isdir(p) else "special"
-    return out
 
 
 def test_corpus_is_large_enough_and_ids_unique():

@@ -9,7 +9,6 @@ file").
 
 from __future__ import annotations
 
-import hashlib
 import json
 import os
 import subprocess
@@ -23,6 +22,7 @@ import geomload.export.vtk
 import geomload.geometry
 import geomload.pipeline
 from geomload.cli import cli
+from nothinglost import leftovers, snapshot
 
 HERE = Path(__file__).resolve().parent
 sys.path.insert(0, str(HERE / "bad_inputs"))
@@ -36,30 +36,21 @@ def corpus(tmp_path_factory):
     return folder
 
 
-def _digest(folder) -> dict:
-    return {p.name: hashlib.sha256(p.read_bytes()).hexdigest() for p in Path(folder).iterdir()
-            if p.is_file()}
-
-
-def _leftovers(folder) -> list:
-    return [p.name for p in Path(folder).iterdir() if "partial" in p.name or ".old-" in p.name]
-
-
 def _run(args, **kw):
     return CliRunner().invoke(cli, [str(a) for a in args], **kw)
 
 
 # ---------------------------------------------------------------------------- exit code 0
 def test_exit_0_run_writes_the_folder_and_keeps_inputs(corpus, tmp_path):
-    before = _digest(corpus)
+    before = snapshot(corpus)
     out = tmp_path / "run"
     res = _run(["run", corpus / "good.toml", "--out", out, "--no-render"])
     assert res.exit_code == 0, res.stderr
     for rel in ("stations.csv", "summary.json", "loads/pull-up.csv", "lattice.vtp",
                 "spar_axis.vtp", "surface.vtp", "report.html"):
         assert (out / rel).is_file(), rel
-    assert _digest(corpus) == before  # inputs untouched
-    assert not _leftovers(tmp_path)
+    assert snapshot(corpus) == before  # inputs untouched
+    assert not leftovers(tmp_path)
     # the run ends with the table and the caution (issue 4)
     caution = geomload.CAUTION.strip().splitlines()[-1]
     assert "pull-up" in res.stdout and caution in res.stdout
@@ -139,12 +130,12 @@ def test_debug_variable_lets_the_traceback_through(corpus, monkeypatch):
 def test_exit_3_mid_export_leaves_nothing(corpus, tmp_path, monkeypatch):
     """A crash after some outputs were staged: no run folder, no staging folder, inputs intact."""
     monkeypatch.delenv("GEOMLOAD_DEBUG", raising=False)
-    before = _digest(corpus)
+    before = snapshot(corpus)
     monkeypatch.setattr(geomload.export.vtk, "write_all_vtk", _boom)
     r = _run(["run", corpus / "good.toml", "--out", tmp_path / "out", "--no-render"])
     assert r.exit_code == 3 and "please report" in r.stderr
     assert list(tmp_path.iterdir()) == []
-    assert _digest(corpus) == before
+    assert snapshot(corpus) == before
 
 
 def test_failed_forced_run_keeps_the_previous_run(corpus, tmp_path, monkeypatch):
@@ -157,7 +148,7 @@ def test_failed_forced_run_keeps_the_previous_run(corpus, tmp_path, monkeypatch)
     assert r.exit_code == 3
     now = {p.relative_to(out): p.read_bytes() for p in out.rglob("*") if p.is_file()}
     assert now == old
-    assert not _leftovers(tmp_path)
+    assert not leftovers(tmp_path)
 
 
 def test_forced_run_replaces_an_earlier_run_only(corpus, tmp_path):
@@ -168,7 +159,7 @@ def test_forced_run_replaces_an_earlier_run_only(corpus, tmp_path):
     r = _run(["run", corpus / "good.toml", "--out", out, "--no-render", "--force"])
     assert r.exit_code == 0, r.stderr
     assert (out / "summary.json").is_file() and (out / "geomload-run.json").is_file()
-    assert not _leftovers(tmp_path)
+    assert not leftovers(tmp_path)
     # a folder geomload did not make is refused even with --force, and survives byte for byte
     mine = tmp_path / "mine"
     mine.mkdir()
@@ -190,12 +181,12 @@ def test_exit_130_interrupted_run_leaves_no_folder(where, corpus, tmp_path, monk
         monkeypatch.setattr(geomload.pipeline, "compute", _interrupt)
     else:  # after stations.csv, loads/*.csv and summary.json are staged
         monkeypatch.setattr(geomload.export.vtk, "write_all_vtk", _interrupt)
-    before = _digest(corpus)
+    before = snapshot(corpus)
     r = _run(["run", corpus / "good.toml", "--out", tmp_path / "out", "--no-render"])
     assert r.exit_code == 130
     assert "interrupted" in r.stderr and "Traceback" not in r.stdout + r.stderr
     assert list(tmp_path.iterdir()) == []
-    assert _digest(corpus) == before
+    assert snapshot(corpus) == before
 
 
 def test_exit_130_inspect(corpus, monkeypatch):

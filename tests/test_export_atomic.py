@@ -3,7 +3,6 @@ replacing a folder geomload did not make. Every data-loss test builds real files
 FIFOs and folders in a temporary folder and checks them byte for byte afterwards (the rule is
 the product's own contract, common practice for safe file output, no source)."""
 
-import hashlib
 import json
 import os
 import subprocess
@@ -18,22 +17,7 @@ from geomload.export.atomic import OutputDir, safe_name, write_text_atomic
 from geomload.export.run_folder import MARKER, held_signals, leftovers, read_marker
 
 import fakerun
-
-
-def snapshot(folder) -> dict:
-    """Every file and symlink below `folder`: relative path -> sha256 of the bytes / link text."""
-    out = {}
-    for root, dirs, names in os.walk(folder):
-        for n in dirs + names:
-            p = os.path.join(root, n)
-            rel = os.path.relpath(p, folder)
-            if os.path.islink(p):
-                out[rel] = "link:" + os.readlink(p)
-            elif os.path.isfile(p):
-                out[rel] = hashlib.sha256(Path(p).read_bytes()).hexdigest()
-            elif os.path.isdir(p):
-                out[rel] = "dir"
-    return out
+from nothinglost import snapshot
 
 
 @pytest.fixture()

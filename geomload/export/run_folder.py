@@ -21,168 +21,25 @@ Rules (what geomload will never do to your files):
 from __future__ import annotations
 
 import contextlib
+import dataclasses
 import datetime as _dt
 import errno
-import json
 import os
 import shutil
-import signal
 import stat
 import tempfile
-import threading
+import time
 from pathlib import Path
 
-from geomload import __version__
 from geomload.errors import OutputError
-from geomload.export import atomic
+from geomload.export import atomic, write_all
 from geomload.export.atomic import _STAGING, _UMASK, _cause, _real, _resolved, shown
+from geomload.export.run_lock import LOCK_TAG, RunLock, held_signals
+from geomload.export.run_marker import (MARKER, MARKER_KIND, read_marker,  # noqa: F401
+                                        replaceable_reason, write_marker)
+from geomload.records import Message, no_progress
 
-MARKER = "geomload-run.json"
-MARKER_KIND = "geomload run folder"
-STAGING_TAG, OLD_TAG, LOCK_TAG = ".partial-", ".old-", ".geomload-lock"
-_HELD = (signal.SIGINT, signal.SIGTERM, signal.SIGHUP)
-
-
-@contextlib.contextmanager
-def held_signals():
-    """Hold SIGINT/SIGTERM/SIGHUP for the duration of a short critical section (folder renames
-    and removals); a signal that arrives meanwhile is delivered right after. Outside the main
-    thread (where Python cannot change handlers) the block runs unprotected."""
-    if threading.current_thread() is not threading.main_thread():
-        yield
-        return
-    got, old = [], {}
-
-    def defer(signum, frame):
-        got.append(signum)
-
-    for s in _HELD:
-        with contextlib.suppress(ValueError, OSError):
-            old[s] = signal.signal(s, defer)
-    try:
-        yield
-    finally:
-        for s, h in old.items():
-            with contextlib.suppress(ValueError, OSError):
-                signal.signal(s, h)
-        for s in dict.fromkeys(got):
-            h = old.get(s)
-            if callable(h):
-                h(s, None)
-            elif h == signal.SIG_DFL:
-                os.kill(os.getpid(), s)
-
-
-# ------------------------------------------------------------------------------------ marker
-def read_marker(folder) -> dict | None:
-    """The marker of a run folder, or None when it has none (or it is not geomload's)."""
-    p = Path(folder) / MARKER
-    try:
-        if not stat.S_ISREG(os.lstat(p).st_mode):
-            return None
-        data = json.loads(p.read_text(encoding="utf-8"))
-    except (OSError, ValueError, UnicodeDecodeError):
-        return None
-    if not isinstance(data, dict) or data.get("kind") != MARKER_KIND:
-        return None
-    if not isinstance(data.get("files"), dict):
-        return None
-    return data
-
-
-def _tree(folder: Path) -> tuple[dict, list]:
-    """(relative file path -> size, list of symlinks/specials) below `folder`, links not followed."""
-    files, odd = {}, []
-    for root, dirs, names in os.walk(folder, followlinks=False):
-        for n in dirs + names:
-            p = os.path.join(root, n)
-            st = os.lstat(p)
-            rel = os.path.relpath(p, folder).replace(os.sep, "/")
-            if stat.S_ISLNK(st.st_mode) or not (stat.S_ISREG(st.st_mode) or stat.S_ISDIR(st.st_mode)):
-                odd.append(rel)
-            elif stat.S_ISREG(st.st_mode):
-                files[rel] = st.st_size
-    return files, odd
-
-
-def replaceable_reason(folder) -> str:
-    """'' when `folder` is an earlier geomload run holding only what that run wrote, else why not."""
-    f = Path(folder)
-    m = read_marker(f)
-    if m is None:
-        return (f"has no geomload run marker ({MARKER}), so it was not made by geomload; it is "
-                "never replaced (choose another --out)")
-    try:
-        files, odd = _tree(f)
-    except OSError as exc:
-        return f"cannot be checked ({_cause(exc)})"
-    if odd:
-        return f"holds {odd[0]!r}, a link or special file geomload never makes; not replaced"
-    files.pop(MARKER, None)
-    made = m["files"]
-    for rel, size in sorted(files.items()):
-        if rel not in made:
-            return (f"holds {rel!r}, which the earlier geomload run did not write; move it out "
-                    "or choose another --out (nothing was replaced)")
-        if made[rel] != size:
-            return (f"{rel!r} was changed since the earlier geomload run wrote it; not replaced "
-                    "(choose another --out)")
-    return ""
-
-
-def _write_marker(staging: Path, case_file) -> None:
-    files, _ = _tree(staging)
-    files.pop(MARKER, None)
-    data = {"kind": MARKER_KIND, "geomload_version": __version__,
-            "case_file": None if case_file is None else str(_resolved(case_file)),
-            "created": _dt.datetime.now(_dt.timezone.utc).isoformat(timespec="seconds"),
-            "note": "written by geomload; with --force geomload replaces this folder only while it "
-                    "holds exactly these files", "files": dict(sorted(files.items()))}
-    atomic.write_bytes_atomic(staging / MARKER, (json.dumps(data, indent=1) + "\n").encode())
-
-
-# ------------------------------------------------------------------------------------- lock
-class _Lock:
-    """An exclusive, non-blocking flock on `<parent>/.<name>.geomload-lock`, removed on release."""
-
-    def __init__(self, final: Path):
-        self.final = final
-        self.path = final.parent / f".{final.name}{LOCK_TAG}"
-        self.fd = None
-
-    def acquire(self) -> None:
-        import fcntl
-
-        for _ in range(20):
-            try:
-                fd = os.open(self.path, os.O_RDWR | os.O_CREAT | os.O_NOFOLLOW, 0o644)
-            except OSError as exc:
-                raise OutputError(f"{shown(self.final)}: cannot create the output folder "
-                                  f"({_cause(exc)})") from None
-            try:
-                fcntl.flock(fd, fcntl.LOCK_EX | fcntl.LOCK_NB)
-            except OSError:
-                os.close(fd)
-                raise OutputError(f"{shown(self.final)}: another geomload run is writing this "
-                                  "folder now; wait for it to finish or choose another --out") from None
-            try:  # the file we locked must still be the one at the path (not an unlinked one)
-                same = os.fstat(fd).st_ino == os.stat(self.path, follow_symlinks=False).st_ino
-            except OSError:
-                same = False
-            if same:
-                self.fd = fd
-                return
-            os.close(fd)
-        raise OutputError(f"{shown(self.final)}: cannot take the output lock {self.path}")
-
-    def release(self) -> None:
-        if self.fd is None:
-            return
-        with contextlib.suppress(OSError):
-            os.unlink(self.path)  # still holding the lock: no one else can be using this inode
-        with contextlib.suppress(OSError):
-            os.close(self.fd)
-        self.fd = None
+STAGING_TAG, OLD_TAG = ".partial-", ".old-"
 
 
 # ------------------------------------------------------------------------------ output folder
@@ -315,7 +172,7 @@ class OutputDir:
             self._made_parents = missing
         except OSError as exc:
             raise OutputError(f"{shown(f)}: cannot create output folder ({_cause(exc)})") from None
-        self._lock = _Lock(f)
+        self._lock = RunLock(f)
         try:
             self._lock.acquire()
             self.removed_stale = _remove_stale_staging(f)
@@ -352,7 +209,7 @@ class OutputDir:
         try:
             with held_signals():
                 try:
-                    _write_marker(self.staging, self.case_file)
+                    write_marker(self.staging, self.case_file)
                     os.chmod(self.staging, 0o777 & ~_UMASK)
                     if os.path.lexists(f):
                         self._check_existing()  # again: the folder may have changed meanwhile
@@ -456,3 +313,52 @@ def leftovers(folder) -> list:
                                       or ".tmp" in n):
                 out.append(os.path.join(root, n))
     return out
+
+
+# ------------------------------------------------------------------------------ a whole run
+def run_inputs(case_path, case) -> list:
+    """The inputs of a run that no output may overwrite or hold: the case file, its geometry
+    file and the structural mesh of ``[structure]`` (if any)."""
+    s = getattr(case, "structure", None)
+    return [case_path, case.geometry.file, *([s.mesh] if s is not None and s.mesh else [])]
+
+
+def open_run_folder(out_dir, inputs, force: bool = False) -> OutputDir:
+    """The OutputDir of a run, opened: a bad output folder is refused before the heavy work."""
+    od = OutputDir(out_dir, force=force, inputs=inputs)
+    od.open()
+    return od
+
+
+def fill_run_folder(od: OutputDir, inputs, result=None, *, compute=None, force: bool = False,
+                    render: bool = True, progress=None, t0: float | None = None) -> tuple:
+    """Write every output of a run into the opened ``od`` and move it into place, whole or not
+    at all: on any exception (a signal included) the staging folder is removed.
+
+    result: the RunResult; compute: instead, a callable returning it, called inside that
+    cleanup (the run is computed once its folder was accepted). t0: time.perf_counter() at the
+    start of the run (the report's run time). Returns (RunResult with the export timing and the
+    writers' warnings added, list of files written relative to the folder).
+    """
+    progress = progress or no_progress
+    t0 = time.perf_counter() if t0 is None else t0
+    try:
+        if compute is not None:
+            result = compute()
+        t_exp = time.perf_counter()
+        written = write_all(result, od.staging, inputs=inputs, render=render,
+                            progress=progress, options={"render": render, "force": force},
+                            run_time_s=time.perf_counter() - t0)
+        od.commit()
+        result = dataclasses.replace(  # a record is never changed: a new one with the timing
+            result, timings={**result.timings, "export": time.perf_counter() - t_exp},
+            messages=result.messages + tuple(Message("warning", w)
+                                             for w in written.get("warnings", ())))
+    except BaseException:
+        od.abort()
+        raise
+    finally:
+        close = getattr(progress, "close", None)
+        if callable(close):
+            close()
+    return result, written["files"]
