@@ -13,6 +13,7 @@ import numpy as np
 import pytest
 
 from geomload import CAUTION
+from geomload.errors import InputError
 from geomload.export import fe
 from geomload.export.tables import read_csv_table, write_loads_csv
 from geomload.loads.beam import equilibrium_residual, integrate_loads
@@ -212,7 +213,7 @@ def test_write_fe_decks_writes_both_files_with_caution(sample_run, tmp_path):
         first = p.read_text().splitlines()[:3]
         assert any(CAUTION in line for line in first)
     bad = replace(loads[0], force_N=None)
-    with pytest.raises(fe.InputError, match="force_N"):
+    with pytest.raises(InputError, match="force_N"):
         fe.write_fe_decks(tmp_path / "x", [loads[1], bad])
     assert not (tmp_path / "x").exists()
 
@@ -273,6 +274,6 @@ def test_one_call_writes_the_handoff_and_refuses_a_bad_mesh(sample_run, tmp_path
     assert any("thickness shape" in w for w in out["warnings"])
     bad = tmp_path / "bad.vtu"
     bad.write_text("<VTKFile>not really</VTKFile>")
-    with pytest.raises(fe.InputError, match="bad.vtu"):
+    with pytest.raises(InputError, match="bad.vtu"):
         fe.write_structural_handoff(sample_run, tmp_path / "no", structural_mesh=bad)
     assert not (tmp_path / "no").exists()

@@ -30,7 +30,7 @@ import math
 import numpy as np
 
 from geomload.errors import AeroError
-from geomload.records import AeroSolution, Lattice, Stations
+from geomload.records import AeroSolution, Lattice
 from geomload.aero import vortex
 
 MACH_WARN = 0.7
@@ -175,7 +175,6 @@ class AeroModel:
         Fs = self._Fq.reshape(3, ns, nc, 3)
         self._Fq_strip = Fs.sum(axis=2)
         self._Fq_tot = self._Fq.sum(axis=1)
-        self._My_strip = self._moment(self._Fq, self._arm_strip).reshape(3, ns, nc).sum(axis=2)
         self._My_ref = self._moment(self._Fq, self._arm_ref).sum(axis=1)
         self._Fq_tot_xz = tuple((float(f[0]), float(f[2])) for f in self._Fq_tot)
         self._My_ref_f = tuple(float(m) for m in self._My_ref)
@@ -314,11 +313,8 @@ class AeroModel:
             x_ac_m=float(lat.x_ref[0] - lat.c_ref * dcm_dcl),
         )
 
-    def strip_cl(self, alpha_deg: float) -> np.ndarray:
-        """Section cl of every strip at `alpha_deg` (deg), by superposition (cheap)."""
-        return self._strip_cl(_alpha_rad(alpha_deg))
-
     def _strip_cl(self, alpha):
+        """Section cl of every strip at `alpha` (rad), by superposition (cheap)."""
         w, ca, sa = self._w(alpha)
         T = np.tensordot(w, self._Fq_strip, axes=1)
         lat = self.lattice
@@ -392,48 +388,12 @@ class AeroModel:
                     alpha_at_onset=math.degrees(hi), warnings=warnings)
 
 
-def root_bending_coefficient(sol: AeroSolution, lattice: Lattice) -> float:
-    """Root bending coefficient C_B = int_0^s cl c y dy / (S/2 * s) (starboard strips).
+def __getattr__(name):  # the lattice refinement study lives in refinement.py; old imports work
+    if name in ("check_convergence", "root_bending_coefficient"):
+        from geomload.aero import refinement
 
-    For an elliptic load C_B = CL * 4 / (3 pi) (centroid 4s/(3 pi); beam statics)."""
-    right = sol.y > 0
-    m = np.sum(sol.cl_c[right] * sol.y[right] * lattice.strip_width[right])
-    return float(m / (0.25 * lattice.s_ref * lattice.b_ref))
-
-
-def _richardson(f, r: float) -> dict:
-    f1, f2, f3 = (float(v) for v in f)
-    d12, d23 = f1 - f2, f2 - f3
-    order, ext = float("nan"), f3
-    if d12 * d23 > 0 and abs(d23) < abs(d12):
-        order = math.log(abs(d12) / abs(d23)) / math.log(r)
-        ext = f3 - d23 / (r**order - 1.0)
-        err = abs(ext - f3)
-    else:
-        err = max(abs(d12), abs(d23))
-    return dict(values=[f1, f2, f3], extrapolated=ext, order=order, error=err)
+        return getattr(refinement, name)
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
 
 
-def check_convergence(stations: Stations, alpha_deg: float, mach: float = 0.0,
-                      n_span: int = 12, n_chord: int = 4, ratio: int = 2) -> dict:
-    """Discretisation error by solving at three lattice densities (n_span, n_chord) * ratio^k.
-
-    Richardson extrapolation (L. F. Richardson, Phil. Trans. R. Soc. A 210, 1911; observed order
-    p = ln((f1 - f2)/(f2 - f3)) / ln r, f_ext = f3 - (f2 - f3)/(r^p - 1)) of CL, e and the root
-    bending coefficient (see root_bending_coefficient). When the three values do not converge
-    monotonically the order is nan, f_ext is the finest value and the error the largest change.
-    """
-    from geomload.aero.lattice import build_lattice
-
-    _alpha_rad(alpha_deg)
-    if isinstance(ratio, bool) or not isinstance(ratio, int) or ratio < 2:
-        raise AeroError(f"ratio: refinement ratio must be an integer >= 2, got {ratio!r}")
-    levels, cl, e, cb = [], [], [], []
-    for k in range(3):
-        ns, nc = n_span * ratio**k, n_chord * ratio**k
-        lat = build_lattice(stations, n_span=ns, n_chord=nc)
-        sol = AeroModel(lat, mach).solve(alpha_deg)
-        levels.append(dict(n_span=ns, n_chord=nc, panels=ns * nc))
-        cl.append(sol.CL), e.append(sol.e), cb.append(root_bending_coefficient(sol, lat))
-    return dict(levels=levels, ratio=ratio, CL=_richardson(cl, ratio), e=_richardson(e, ratio),
-                root_bending=_richardson(cb, ratio))
+__all__ = ["AeroModel", "MACH_WARN", "DEFAULT_CL_MAX"]

@@ -37,6 +37,8 @@ import numpy as np
 
 from geomload import CAUTION
 from geomload.errors import InputError
+from geomload.export.atomic import atomic_path, safe_name, write_text_atomic
+from geomload.export.fe_nodes import nodal_loads
 
 OUTLINE_MARGIN = 0.05    # x chord: a node this far outside the section outline still counts
 DEGENERATE_RATIO = 1e-9  # smallest/largest eigenvalue of tr(S) I - S below this: nodes on a line
@@ -131,8 +133,6 @@ def inside_wing(points_wing, stations):
 
 def map_loads(smesh: StructuralMesh, loads, frame, unit_scale_m: float, stations) -> MappedLoads:
     """Distribute one case (SpanLoads) onto the mesh's nodes; see the module docstring."""
-    from geomload.export.fe import nodal_loads
-
     nl = nodal_loads(loads)
     pw = frame.to_wing(smesh.points * float(unit_scale_m)) if frame is not None \
         else smesh.points * float(unit_scale_m)
@@ -230,8 +230,6 @@ def write_mesh_loads(folder, mesh_path, loads_list, frame, unit_scale_m: float, 
     fe/mesh_<case>.vtu (the mesh with point data force_N). Everything is computed before the
     first file is written: bad input writes nothing. Returns (paths, warnings)."""
     import meshio
-
-    from geomload.export.atomic import atomic_path, safe_name, write_text_atomic
 
     smesh = read_structural_mesh(mesh_path)
     inputs = [*inputs, mesh_path]

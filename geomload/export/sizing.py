@@ -25,6 +25,8 @@ import numpy as np
 
 from geomload import CAUTION
 from geomload.errors import InputError
+from geomload.export.atomic import atomic_path, write_text_atomic
+from geomload.geometry.airfoil import naca4_thickness
 
 DEPTH_FACTOR = 0.9  # h_eff / h: cap centroids inside the outer mould line (common practice,
                     # no source; the user can change it)
@@ -80,8 +82,6 @@ def depth_from_thickness_shape(chord, thickness_ratio, fraction):
     """Wing depth (m) at a chord fraction, from the NACA 4-digit thickness shape (NACA Report
     824) scaled to each station's t/c: an estimate when the section's own shape is not at hand.
     chord, thickness_ratio : (n,) arrays; fraction : chord fraction 0..1."""
-    from geomload.geometry.airfoil import naca4_thickness
-
     f = float(fraction)
     if not 0.0 < f < 1.0:
         raise InputError(f"sizing: chord fraction {fraction!r} must lie strictly between 0 and 1")
@@ -185,8 +185,6 @@ def sizing_csv(s: Sizing) -> str:
 
 def write_sizing(folder, s: Sizing, inputs=(), plot: bool = True) -> list:
     """Write sizing.csv (and sizing.png when plot) into folder; returns the paths."""
-    from geomload.export.atomic import atomic_path, write_text_atomic
-
     f = Path(folder)
     paths = [write_text_atomic(f / "sizing.csv", sizing_csv(s), inputs)]
     if plot:
