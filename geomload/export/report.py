@@ -10,7 +10,6 @@ from __future__ import annotations
 import base64
 import dataclasses
 import datetime as _dt
-import html
 import math
 from pathlib import Path
 
@@ -20,7 +19,10 @@ from geomload import CAUTION, __version__
 from geomload.export import envelope_access as ea
 from geomload.export import report_tables as rt
 from geomload.export.atomic import write_text_atomic
-from geomload.textsafe import printable
+from geomload.export.html_table import esc, fmt as _fmt, table as _table  # noqa: F401
+from geomload.export.report_controls import controls_section
+from geomload.export.view3d import view3d_from_run
+from geomload.report_text import case_cn
 
 SECTIONS = (("job", "The job"), ("geometry", "Geometry check"),
             ("masses", "Masses and inertia"), ("aerodynamics", "Aerodynamics"),
@@ -55,29 +57,6 @@ td,th{border:1px solid #bbb;padding:.2em .5em;text-align:right}th{background:#ee
 td.t,th.t{text-align:left}figure{margin:1em 0}img{max-width:100%;border:1px solid #ddd}
 figcaption{font-size:.85em;color:#555}pre{background:#f6f6f6;padding:.6em;overflow-x:auto}
 .na{background:#fbe9e9;border:1px dashed #c66;padding:.8em}tr.stall td{background:#fdf0dc}"""
-
-
-def esc(s) -> str:
-    """HTML-escaped user text; control characters (terminal escapes) shown as backslash escapes."""
-    return html.escape(printable(s, keep_newlines=True), quote=True)
-
-
-def _fmt(v, nd=4) -> str:
-    if isinstance(v, (float, np.floating)):
-        return f"{float(v):.{nd}g}"
-    return esc(v)
-
-
-def _table(header, rows, text_cols=(0,), row_class=None) -> str:
-    th = "".join(f'<th class="{"t" if i in text_cols else ""}">{esc(h)}</th>' for i, h in enumerate(header))
-    def tr(k, r):
-        cls = row_class(k, r) if row_class else ""
-        return (f'<tr{f" class={chr(34)}{cls}{chr(34)}" if cls else ""}>'
-                + "".join(f'<td class="{"t" if i in text_cols else ""}">{_fmt(v)}</td>'
-                          for i, v in enumerate(r)) + "</tr>")
-
-    body = "".join(tr(k, r) for k, r in enumerate(rows))
-    return f"<table><tr>{th}</tr>{body}</table>"
 
 
 def image_bytes(value) -> bytes:
@@ -132,8 +111,6 @@ def _planform_table(p) -> str:
 
 def _aero_table(run) -> str:
     stalled = rt.stalled_names(run)
-    from geomload.report_text import case_cn
-
     rows = [(rt.case_label(c.name, stalled), c.aero.alpha_deg, c.aero.CL, case_cn(run, c),
              c.aero.CDi, rt.e_text(c), c.aero.Cm, c.mach, c.aero.CL_alpha_per_rad)
             for c in run.cases]
@@ -317,12 +294,6 @@ def _view3d(fragment) -> str:
             "WebGL.</p>" + fragment)
 
 
-def _controls(run) -> str:
-    from .report_controls import controls_section
-
-    return controls_section(run)
-
-
 def render_html(run, images: dict, options=None, run_time_s=None, view3d=None) -> str:
     """The report as one HTML string (see module docstring).
 
@@ -341,7 +312,7 @@ def render_html(run, images: dict, options=None, run_time_s=None, view3d=None) -
               "the spar axis. Ultimate = limit x ultimate factor (1.5 unless set).</p>",
             "vn": (_images(images, ("vn",)) + _speeds(run) if run.vn is not None and "vn" in images
                    else "<p>No V-n diagram: the case file defines no envelope.</p>"),
-            "critical": _critical(run) + _controls(run), "basis": _basis(run), "inputs": _inputs(run, options),
+            "critical": _critical(run) + controls_section(run), "basis": _basis(run), "inputs": _inputs(run, options),
             "versions": _versions(run, run_time_s)}
     known = {n for names in SECTION_IMAGES.values() for n in names}
     extra = [n for n in images if n not in known]
@@ -361,8 +332,6 @@ def render_html(run, images: dict, options=None, run_time_s=None, view3d=None) -
 def view3d_fragment(run, surface=None):
     """The 3-D view fragment of `run`, or the Exception that stopped it (never raises)."""
     try:
-        from geomload.export.view3d import view3d_from_run
-
         return view3d_from_run(run, surface=surface)
     except Exception as exc:  # noqa: BLE001 - the report says why, the run keeps its outputs
         return exc

@@ -6,7 +6,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from .report import _table, esc
+from geomload.export.html_table import table as _table
 
 QUANTITIES = (("shear_N", "shear"), ("bending_Nm", "bending"), ("torsion_Nm", "torsion"))
 
