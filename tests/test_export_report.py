@@ -3,7 +3,6 @@
 import base64
 import io
 import json
-import os
 import re
 import subprocess
 
@@ -15,6 +14,7 @@ from geomload.export import report, write_all
 from geomload.export.atomic import OutputDir
 
 import fakerun
+from browser import CHROMIUM, VIEW_STATE_JS, Browser, need_chromium, requested_urls, shot, wait_for
 
 EVIL = "<script>alert(1)</script>"
 
@@ -93,11 +93,8 @@ def test_report_without_envelope(rundir):
     assert "No envelope was defined" in html and "No V-n diagram" in html
 
 
-CHROMIUM = next((p for p in ("/usr/bin/chromium", "/usr/bin/chromium-browser") if os.path.exists(p)), None)
-
-
-@pytest.mark.skipif(CHROMIUM is None, reason="no headless Chromium installed")
 def test_chromium_screenshot(rundir, tmp_path):
+    need_chromium()
     _, out, _ = rundir
     shot = tmp_path / "shot.png"
     subprocess.run([CHROMIUM, "--headless", "--no-sandbox", "--disable-gpu",
@@ -111,9 +108,7 @@ def test_chromium_screenshot(rundir, tmp_path):
 def test_report_in_chromium_draws_3d_view_offline(rundir, tmp_path):
     """The whole report.html in headless Chromium: the new sections are there, the 3-D view
     draws (canvas pixels not blank, many colours) and the page makes no network request."""
-    from test_view3d import Browser, _need_chromium, _shot, _wait
-
-    _need_chromium()
+    need_chromium()
     run, out, _ = rundir
     page = out / "report.html"
     html = page.read_text()
@@ -129,23 +124,16 @@ def test_report_in_chromium_draws_3d_view_offline(rundir, tmp_path):
     (tmp_path / "profile").mkdir()
     b = Browser(tmp_path / "profile")
     try:
-        target = b.send("Target.createTarget", {"url": "about:blank"})["targetId"]
-        s = b.send("Target.attachToTarget", {"targetId": target, "flatten": True})["sessionId"]
-        for d in ("Network.enable", "Page.enable", "Runtime.enable"):
-            b.send(d, session=s)
-        b.send("Emulation.setDeviceMetricsOverride",
-               {"width": 1100, "height": 900, "deviceScaleFactor": 1, "mobile": False}, s)
-        b.send("Page.navigate", {"url": page.as_uri()}, s)
+        s = b.open_page(page.as_uri(), 1100, 900)
         b.eval("document.getElementById('view3d').scrollIntoView()", s)
-        state = _wait(b, s, "(function(){var r=document.querySelector('.gl3');"
-                            "return r&&(r.dataset.drawn||r.dataset.error&&('error: '+r.dataset.error))})()")
+        state = wait_for(b, s, VIEW_STATE_JS)
         assert state == "1", state
         b.eval("document.querySelector('.gl3-canvas').scrollIntoView()", s)
         rect = json.loads(b.eval("JSON.stringify((function(){var r=document.querySelector("
                                  "'.gl3-canvas').getBoundingClientRect();return {x:r.x+scrollX,y:r.y+scrollY,"
                                  "width:r.width,height:r.height}})())", s))
         assert rect["width"] > 300 and rect["height"] > 300
-        px = _shot(b, s, rect)
+        px = shot(b, s, rect)
         shown = b.eval("document.querySelector('.gl3').dataset.shown", s)
         events = list(b.events)
     finally:
@@ -157,8 +145,7 @@ def test_report_in_chromium_draws_3d_view_offline(rundir, tmp_path):
     drawn = np.any(np.abs(px - bg) > 6, axis=2)
     assert drawn.mean() > 0.02, "3-D canvas is (nearly) blank"
     assert len({tuple(c) for c in (px[drawn] // 4).tolist()}) > 50
-    urls = [e["params"]["request"]["url"] for e in events
-            if e.get("method") == "Network.requestWillBeSent"]
+    urls = requested_urls(events)
     assert urls and all(u.split(":", 1)[0] in ("file", "blob", "data") for u in urls), urls
     errors = [e for e in events if e.get("method") == "Runtime.exceptionThrown"]
     assert not errors, errors[:3]

@@ -1,21 +1,10 @@
 """The interactive 3-D view: display-surface decimation, colour-bar scales, and the page drawn for
-real in headless Chromium (WebGL in software) with no network request.
-
-Chromium is driven over the DevTools protocol on a pipe (``--remote-debugging-pipe``: commands
-on fd 3, replies on fd 4, NUL-separated JSON), so no extra client library is needed.
+real in headless Chromium (WebGL in software, tests/browser.py) with no network request.
 """
 
 from __future__ import annotations
 
-import base64
-import io
 import json
-import math
-import os
-import select
-import shutil
-import subprocess
-import time
 
 import numpy as np
 import pytest
@@ -25,28 +14,9 @@ from geomload.export import view3d
 from validation import check
 
 import fakerun
-
-CHROMIUM = next((p for p in (os.environ.get("GEOMLOAD_CHROMIUM"), shutil.which("chromium"),
-                             shutil.which("chromium-browser"), "/usr/bin/chromium")
-                 if p and os.path.exists(p)), None)
-# flags that give a software WebGL context in headless Chromium with no GPU, and keep the
-# browser from reaching out on its own (updates, sync, field trials, DNS)
-FLAGS = ["--headless", "--no-sandbox", "--disable-gpu", "--use-angle=swiftshader",
-         "--enable-unsafe-swiftshader", "--disable-quic", "--no-first-run",
-         "--disable-background-networking", "--disable-component-update", "--disable-sync",
-         "--disable-extensions", "--mute-audio", "--host-resolver-rules=MAP * ~NOTFOUND",
-         "--remote-debugging-pipe"]
-TIMEOUT_S = 30.0  # generous per step: software WebGL on 2 shared cores
+from browser import VIEW_STATE_JS, Browser, need_chromium, requested_urls, shot, wait_for
 
 
-def _need_chromium():
-    if CHROMIUM is None:
-        if os.environ.get("GEOMLOAD_REQUIRE_CHROMIUM") == "1":
-            pytest.fail("chromium not found but GEOMLOAD_REQUIRE_CHROMIUM=1")
-        pytest.skip("chromium not installed (Debian package `chromium`)")
-
-
-# ---------------------------------------------------------------- synthetic wing
 def naca_wing(ns=40, nc=30, semispan=6.0, c_root=1.5, c_tip=0.8, t_c=0.12):
     """A closed, tapered NACA 00xx half wing (NACA Report 824 thickness equation), indexed."""
     th = np.linspace(0.0, np.pi, nc)
@@ -178,89 +148,8 @@ def test_fragment_is_self_contained_and_escaped():
     assert h.count("</script>") == 4  # library, controls, data, code: each closed once
 
 
-# ---------------------------------------------------------------- the page in Chromium
-class Browser:
-    """Headless Chromium on a DevTools pipe."""
-
-    def __init__(self, user_dir):
-        self.cmd_r, self.cmd_w = os.pipe()
-        self.res_r, self.res_w = os.pipe()
-
-        def fds():
-            os.dup2(self.cmd_r, 3)
-            os.dup2(self.res_w, 4)
-
-        self.proc = subprocess.Popen([CHROMIUM, *FLAGS, f"--user-data-dir={user_dir}"],
-                                     stdin=subprocess.DEVNULL, stdout=subprocess.DEVNULL,
-                                     stderr=subprocess.DEVNULL, preexec_fn=fds, pass_fds=(3, 4))
-        os.close(self.cmd_r)
-        os.close(self.res_w)
-        self.buf, self.next_id, self.events = b"", 0, []
-
-    def _read(self, deadline):
-        while b"\0" not in self.buf:
-            left = deadline - time.monotonic()
-            if left <= 0 or not select.select([self.res_r], [], [], left)[0]:
-                raise TimeoutError("no reply from chromium")
-            chunk = os.read(self.res_r, 1 << 20)
-            if not chunk:
-                raise RuntimeError("chromium closed the DevTools pipe")
-            self.buf += chunk
-        msg, self.buf = self.buf.split(b"\0", 1)
-        return json.loads(msg)
-
-    def send(self, method, params=None, session=None):
-        self.next_id += 1
-        msg = {"id": self.next_id, "method": method, "params": params or {}}
-        if session:
-            msg["sessionId"] = session
-        os.write(self.cmd_w, json.dumps(msg).encode() + b"\0")
-        deadline = time.monotonic() + TIMEOUT_S
-        while True:
-            m = self._read(deadline)
-            if m.get("id") == self.next_id:
-                if "error" in m:
-                    raise RuntimeError(f"{method}: {m['error']}")
-                return m["result"]
-            self.events.append(m)
-
-    def eval(self, expr, session):
-        r = self.send("Runtime.evaluate", {"expression": expr, "returnByValue": True}, session)
-        return r["result"].get("value")
-
-    def close(self):
-        try:
-            self.send("Browser.close")
-        except Exception:  # noqa: BLE001 - it may already be gone
-            pass
-        try:
-            self.proc.wait(timeout=10)
-        except subprocess.TimeoutExpired:
-            self.proc.kill()
-            self.proc.wait()
-        os.close(self.cmd_w)
-        os.close(self.res_r)
-
-
-def _shot(b, session, rect):
-    from PIL import Image
-
-    r = b.send("Page.captureScreenshot", {"format": "png", "clip": {**rect, "scale": 1}}, session)
-    return np.asarray(Image.open(io.BytesIO(base64.b64decode(r["data"]))).convert("RGB"), int)
-
-
-def _wait(b, session, expr):
-    deadline = time.monotonic() + TIMEOUT_S
-    while time.monotonic() < deadline:
-        v = b.eval(expr, session)
-        if v:
-            return v
-        time.sleep(0.2)
-    raise TimeoutError(expr)
-
-
 def test_view_draws_in_chromium_offline(tmp_path):
-    _need_chromium()
+    need_chromium()
     pts, tri = naca_wing()
     cases, spar, bend = elliptic_cases(pts, tri)
     frag = view3d.view3d_html(pts, tri, cases, spar, bend, CAUTION, "QM-36 Pellin half wing",
@@ -271,21 +160,14 @@ def test_view_draws_in_chromium_offline(tmp_path):
     (tmp_path / "profile").mkdir()
     b = Browser(tmp_path / "profile")
     try:
-        target = b.send("Target.createTarget", {"url": "about:blank"})["targetId"]
-        s = b.send("Target.attachToTarget", {"targetId": target, "flatten": True})["sessionId"]
-        for d in ("Network.enable", "Page.enable", "Runtime.enable"):
-            b.send(d, session=s)
-        b.send("Emulation.setDeviceMetricsOverride",
-               {"width": 900, "height": 800, "deviceScaleFactor": 1, "mobile": False}, s)
-        b.send("Page.navigate", {"url": page.as_uri()}, s)
-        state = _wait(b, s, "(function(){var r=document.querySelector('.gl3');"
-                            "return r&&(r.dataset.drawn||r.dataset.error&&('error: '+r.dataset.error))})()")
+        s = b.open_page(page.as_uri(), 900, 800)
+        state = wait_for(b, s, VIEW_STATE_JS)
         assert state == "1", state
         rect = json.loads(b.eval("JSON.stringify((function(){var r=document.querySelector("
                                  "'.gl3-canvas').getBoundingClientRect();return {x:r.x,y:r.y,"
                                  "width:r.width,height:r.height}})())", s))
         assert rect["width"] > 300 and rect["height"] > 300
-        px1 = _shot(b, s, rect)
+        px1 = shot(b, s, rect)
         # upper skin at 70 % chord (clear of the spar), near the root and near the tip
         probes = [b.eval(f"document.querySelector('.gl3').gl3.project({x},{y},{z})", s)
                   for x, y, z in upper_points((0.3, 5.7))]
@@ -294,8 +176,8 @@ def test_view_draws_in_chromium_offline(tmp_path):
         # switch to the second case as a user would
         b.eval("(function(){var s=document.querySelector('.gl3-case');s.value='1';"
                "s.dispatchEvent(new Event('change'));})()", s)
-        _wait(b, s, "document.querySelector('.gl3').dataset.shown==='push-over -1.5 g'")
-        px2 = _shot(b, s, rect)
+        wait_for(b, s, "document.querySelector('.gl3').dataset.shown==='push-over -1.5 g'")
+        px2 = shot(b, s, rect)
         ticks2 = b.eval("[...document.querySelectorAll('.gl3-tick')].map(e=>e.textContent).join('|')", s)
         caution_shown = b.eval("document.querySelector('.gl3-caution').innerText", s)
         events = list(b.events)
@@ -328,8 +210,7 @@ def test_view_draws_in_chromium_offline(tmp_path):
         assert len(t.replace("\u2212", "").replace(".", "")) <= 4, t
     assert "preliminary estimates" in caution_shown
     # no request left the page: every request the page made is its own file or a blob/data URL
-    urls = [e["params"]["request"]["url"] for e in events
-            if e.get("method") == "Network.requestWillBeSent"]
+    urls = requested_urls(events)
     assert urls and urls[0] == page.as_uri()
     assert all(u.split(":", 1)[0] in ("file", "blob", "data") for u in urls), urls
     errors = [e for e in events if e.get("method") == "Runtime.exceptionThrown"
