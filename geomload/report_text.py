@@ -7,6 +7,7 @@ import math
 import numpy as np
 
 from geomload import CAUTION
+from geomload.loads.envelope import critical_rows as critical_table
 from geomload.textsafe import printable
 
 
@@ -289,8 +290,6 @@ def run_table(result) -> str:
                      "coefficient CN exceeds its maximum; their loads are kept in the envelope "
                      "(conservative)")
     if result.envelope is not None:
-        from geomload.loads.envelope import critical_rows as critical_table
-
         lines.append("")
         lines.append("Critical cases (envelope of limit loads at the root; ultimate = "
                      f"{result.case.ultimate_factor:g} x limit)")

@@ -1,4 +1,19 @@
-"""Aerodynamics stage: ISA atmosphere, vortex lattice on the mean surface, linear solution.
+"""Aerodynamics stage: ISA atmosphere, vortex lattice on the mean surface, linear solution,
+trim. Stages take typed records; nothing here reads the case file or prints.
 
-Submodules import numpy only at import time; scipy is imported inside AeroModel.
+Public functions (the ones other stages, the pipeline and the CLI call):
+
+- ``atmosphere``: ``isa``, ``density_and_sound`` (the atmosphere form every stage takes),
+  ``airspeeds``, ``tas_from_eas``, ``eas_from_tas``, ``mach``, ``dynamic_pressure``;
+- ``lattice``: ``build_lattice``; ``controls``: ``check_controls``, ``deflection_rhs``;
+- ``solve``: ``AeroModel`` (``.solve``, ``.solve_many``, ``.coefficients``, ``.alpha_for_cl``,
+  ``.stall``, ``.solve_rhs``);
+- ``models``: ``MachModels``, ``cached_lattice``, ``lattice_mach``, ``analyse_at_alpha``;
+- ``trim``: ``trim_case``, ``trim``, ``stall_messages``; ``pitch_trim``: ``trim_pitch``,
+  ``check_cg``; ``roll``: ``ControlModel``, ``side_strip_loads``;
+- ``sweep``: ``lift_curve`` (the run's CL-alpha curve);
+- ``refinement``: ``check_convergence`` (three lattice densities, Richardson);
+  ``convergence``: ``error_bars`` (the run's discretization error bars).
+
+Submodules import numpy only at import time; scipy is imported inside the functions that use it.
 """

@@ -3,9 +3,12 @@
 from __future__ import annotations
 
 import json
+import math
 
 import click
 
+from geomload.errors import AeroError
+from geomload.export.atomic import check_target
 from geomload.textsafe import printable
 
 from .common import echo_err, geometry_options, guarded, print_messages, read_geometry, wing_messages
@@ -31,11 +34,7 @@ def aero(geometry, units, span_axis, up_axis, side, n_stations, spacing, body, a
          panels_span,
          panels_chord, cl_max, check_convergence, csv_path, as_json):
     """Solve the vortex lattice on a CAD wing at one angle of attack."""
-    import math
-
-    from geomload.errors import AeroError
-    from geomload.export.atomic import check_target
-    from geomload.report_text import aero_json, aero_text
+    from geomload.report_text import aero_json, aero_text  # numpy: loaded when a command runs
 
     if csv_path is not None:  # the target is refused before any work
         check_target(csv_path, [geometry])

@@ -5,17 +5,20 @@ from __future__ import annotations
 
 import functools
 import os
+import re
 import signal
 import sys
 
 import click
 
 from geomload.errors import GeomloadError, Interrupted
+from geomload import geometry as geometry_stage
+from geomload.progress import make_progress
+from geomload.run_geometry import wing_messages  # noqa: F401  (the commands print them)
 from geomload.textsafe import printable
 
 EXIT_OK, EXIT_INPUT, EXIT_USAGE, EXIT_INTERNAL = 0, 1, 2, 3
 EXIT_SIGNAL_BASE = 128  # a run stopped by signal N exits 128 + N: 130 SIGINT, 143 SIGTERM, 129 SIGHUP
-EXIT_INTERRUPTED = EXIT_SIGNAL_BASE + signal.SIGINT
 REPORT_HINT = "this is a bug in geomload; please report it with the command line and input files"
 HANDLED_SIGNALS = tuple(getattr(signal, n) for n in ("SIGTERM", "SIGHUP") if hasattr(signal, n))
 
@@ -74,8 +77,7 @@ def guarded(fn):
 
 
 def progress_bar():
-    from geomload.progress import make_progress
-
+    """The terminal progress bar of a command (silent when stderr is not a terminal)."""
     return make_progress()
 
 
@@ -108,49 +110,22 @@ def geometry_options(fn):
     return fn
 
 
-import_options = geometry_options  # the earlier name
-
-
 def read_geometry(geometry, units, span_axis, up_axis, n_stations, spacing, body, side=None):
     """The `Wing` record of a CAD wing read with the shared options (a unit-less mesh read
     without --units is read in metres with a warning: the commands that print geometry do not
     refuse it; `run` does)."""
-    from geomload.geometry import read_wing
-
     if n_stations is not None and n_stations < 3:
         raise GeomloadError(f"--stations: need at least 3 stations, got {n_stations}")
-    return read_wing(geometry, units=units, body=body, span_axis=span_axis, up_axis=up_axis,
-                     n_stations=n_stations, spacing=spacing, progress=progress_bar(), side=side,
-                     require_units=False, units_hint="give --units")
-
-
-def load_geometry(geometry, units, span_axis, up_axis, n_stations, spacing, body, side=None):
-    """(mesh, frame, stations, planform) of a CAD wing read with the shared options."""
-    w = read_geometry(geometry, units, span_axis, up_axis, n_stations, spacing, body, side)
-    return w.mesh, w.frame, w.stations, w.planform
-
-
-def wing_messages(wing) -> list:
-    """The geometry stage's warnings and notes of a `Wing` as Message records."""
-    from geomload.run_geometry import wing_messages as _messages
-
-    return _messages(wing)
-
-
-def geometry_messages(mesh, frame, stations) -> list:
-    """The geometry stage's prefixed notes as Message records."""
-    from geomload.records import Message
-
-    return [Message.from_prefixed(n) for n in
-            list(mesh.notes) + list(frame.notes) + list(stations.notes)]
+    return geometry_stage.read_wing(
+        geometry, units=units, body=body, span_axis=span_axis, up_axis=up_axis,
+        n_stations=n_stations, spacing=spacing, progress=progress_bar(), side=side,
+        require_units=False, units_hint="give --units")
 
 
 def group_messages(messages) -> list:
     """(kind, count, text) with alike messages merged: same kind, same config key (or a varying
     case label) and the same words; the numbers that differ are listed as "a / b", the labels
     as "N cases (a, b, ...)". Order: first appearance."""
-    import re
-
     num = re.compile(r"(-?\d+(?:\.\d+)?)")
     key_like = re.compile(r"[A-Za-z_\[\]]+(\.[A-Za-z_0-9\[\]]+)+")
     groups: dict = {}

@@ -6,6 +6,8 @@ import json
 
 import click
 
+from geomload.export.atomic import check_target
+from geomload.run_geometry import planform_summary
 from geomload.textsafe import printable
 
 from .common import (echo_err, geometry_options, guarded, print_messages, read_geometry,
@@ -24,8 +26,7 @@ from .common import (echo_err, geometry_options, guarded, print_messages, read_g
 def inspect(geometry, units, span_axis, up_axis, side, n_stations, spacing, body, csv_path,
             as_json, png_path):
     """Read a CAD wing, detect its frame and print its stations and planform."""
-    from geomload.export.atomic import check_target
-    from geomload.report_text import inspect_json, inspect_text
+    from geomload.report_text import inspect_json, inspect_text  # numpy: loaded when run
 
     for out in (csv_path, png_path):  # each target is refused before any work
         if out is not None:
@@ -34,8 +35,6 @@ def inspect(geometry, units, span_axis, up_axis, side, n_stations, spacing, body
     mesh, frame, stations, planform = wing.mesh, wing.frame, wing.stations, wing.planform
     messages = wing_messages(wing)
     if as_json:
-        from geomload.run_geometry import planform_summary
-
         out = inspect_json(mesh, frame, stations, planform)
         out["planform_gross_exposed"] = planform_summary(wing)
         out["warnings"] = [m.text for m in messages if m.kind == "warning"]

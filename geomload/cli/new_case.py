@@ -2,9 +2,14 @@
 
 from __future__ import annotations
 
+import os
+
 import click
 
+from geomload.errors import InputError
+
 from .common import echo_err, guarded
+from .new_case_paths import case_relative_path, likely_units, write_new_file
 
 
 @click.command("new-case")
@@ -22,12 +27,7 @@ def new_case(geometry, units, output):
     The geometry path in it is relative to the case file: to the -o file's folder, to the file
     standard output is redirected to, or else to the current folder (the command says which).
     """
-    import os
-
-    from geomload.config.template import case_template
-    from geomload.errors import InputError
-
-    from .new_case_paths import case_relative_path, likely_units, write_new_file
+    from geomload.config.template import case_template  # numpy (the TOML writer's values)
 
     if not os.path.isfile(geometry):
         raise InputError(f"{geometry}: no such geometry file"
@@ -47,9 +47,3 @@ def new_case(geometry, units, output):
         click.echo(text, nl=False)
         echo_err(f"geomload: note: geometry path {rel!r} is {where}")
 
-
-def guess_units(geometry):
-    """The likely unit of a unit-less mesh, or None (a unit-carrying file, or unreadable)."""
-    from .new_case_paths import likely_units
-
-    return likely_units(geometry)[0]

@@ -6,14 +6,17 @@ from __future__ import annotations
 import os
 import stat
 import sys
+import tempfile
+
+from geomload.errors import InputError
+from geomload.geometry.units import guess_unit
 
 
 def likely_units(geometry):
     """(unit, reason) for a unit-less mesh (the geometry stage's `guess_unit` on its extent), or
     (None, None) when the file carries its own unit or cannot be read (`inspect`/`run` then
     report the real problem)."""
-    from geomload.geometry.readers import read_mesh
-    from geomload.geometry.units import guess_unit
+    from geomload.geometry.readers import read_mesh  # numpy: loaded when a unit is guessed
 
     try:
         mesh = read_mesh(geometry)
@@ -63,10 +66,6 @@ def case_relative_path(geometry, output=None):
 def write_new_file(path, text, inputs=()):
     """Write `text` to a new file `path`: refused if anything exists there or it is an input;
     written to a temporary file beside it and linked into place (never replaces a file)."""
-    import tempfile
-
-    from geomload.errors import InputError
-
     if os.path.lexists(path):
         raise InputError(f"{path}: already exists; geomload does not replace it (choose another "
                          "name)")

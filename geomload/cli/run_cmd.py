@@ -4,6 +4,8 @@ from __future__ import annotations
 
 import click
 
+from geomload.textsafe import printable
+
 from .common import guarded, print_grouped, progress_bar
 
 
@@ -16,9 +18,8 @@ from .common import guarded, print_grouped, progress_bar
 @guarded
 def run(case_file, out_dir, force, no_render):
     """Run every load case of CASE_FILE and write loads, VTK and an HTML report to --out."""
-    from geomload.pipeline import run_case_file
+    from geomload.pipeline import run_case_file  # the whole library: loaded when a run starts
     from geomload.report_text import run_table
-    from geomload.textsafe import printable
 
     result, written = run_case_file(case_file, out_dir, force=force, render=not no_render,
                                     progress=progress_bar())

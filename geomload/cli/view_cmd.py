@@ -2,7 +2,12 @@
 
 from __future__ import annotations
 
+from pathlib import Path
+
 import click
+
+from geomload.export.atomic import check_target
+from geomload.textsafe import printable
 
 from .common import guarded
 
@@ -15,14 +20,9 @@ from .common import guarded
 @guarded
 def view(run_dir, case_name, screenshot):
     """Open the CAD surface, lattice and spar axis of a finished run in a 3D window."""
-    from pathlib import Path
-
-    from geomload.export.atomic import check_target
-    from geomload.textsafe import printable
-
     if screenshot is not None:  # refused before any work; the run's files are inputs
         check_target(screenshot, [p for p in Path(run_dir).glob("*") if p.is_file()])
-    from geomload.export.render import view as _view
+    from geomload.export.render import view as _view  # numpy, VTK: loaded when asked for
 
     _view(run_dir, case=case_name, screenshot=screenshot)
     if screenshot is not None:

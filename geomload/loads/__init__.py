@@ -1,9 +1,20 @@
 """Loads stage: masses, the load grid, one flight case's applied and integrated loads, the
-flight envelope (Part 23 rules, V-n) and the envelope of loads.
+flight envelope (Part 23 rules, V-n) and the envelope of loads. The stage takes typed records
+(``geomload.config.schema``), never the case file; nothing here prints.
 
-Public: ``grid.load_grid``, ``masses.mass_distribution``, ``masses.inertia_loads``,
-``flight_case.applied_loads``, ``flight_case.case_loads``, ``beam.integrate``,
-``beam.integrate_loads``, ``beam.equilibrium_residual``, ``beam.schrenk``, ``vn.vn_diagram``,
-``vn.flight_envelope_cases``, ``rules_part23.*``, ``envelope.envelope_of``; records in
-``records``. The stage takes typed records (``geomload.config.schema``), never the case file.
+Public functions:
+
+- ``cases``: ``CaseContext``, ``case_grid``, ``solve_case`` (one LoadCase trimmed and
+  integrated into a CaseResult), ``check_case_names``;
+- ``grid``: ``load_grid``, ``strip_to_grid``; ``masses``: ``mass_distribution``,
+  ``inertia_loads``;
+- ``flight_case``: ``applied_loads``, ``case_loads``;
+- ``beam``: ``integrate``, ``integrate_loads``, ``equilibrium_residual``, ``schrenk``,
+  ``spar_line``, ``spar_frame``;
+- ``rules_part23``: the rule values (``limit_load_factors``, ``design_speeds``, gusts);
+  ``rules_unsymmetric``: the rolling and flaps-down cases;
+- ``vn``: ``vn_diagram``, ``critical_points``, ``flight_envelope_cases``;
+- ``envelope``: ``envelope_of``, ``critical_rows``;
+- ``records``: the stage's records (``LoadGrid``, ``AppliedLoads``, ``SpanLoads``,
+  ``LoadsEnvelope``, ``VnDiagram``...).
 """
