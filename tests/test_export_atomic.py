@@ -13,8 +13,8 @@ import pytest
 
 from geomload.errors import OutputError
 from geomload.export import atomic
-from geomload.export.atomic import OutputDir, safe_name, write_text_atomic
-from geomload.export.run_folder import MARKER, held_signals, leftovers, read_marker
+from geomload.export.atomic import safe_name, write_text_atomic
+from geomload.export.run_folder import MARKER, OutputDir, held_signals, leftovers, read_marker
 
 import fakerun
 from nothinglost import snapshot
@@ -210,7 +210,7 @@ def test_second_run_into_the_same_folder_is_refused(tmp_path, project):
     with pytest.raises(OutputError, match="another geomload run"):
         OutputDir(out, force=True, inputs=inputs_of(project)).open()
     # a real second process too (flock is per open file, so it holds across processes)
-    code = ("import sys; from geomload.export.atomic import OutputDir\n"
+    code = ("import sys; from geomload.export.run_folder import OutputDir\n"
             "try:\n    OutputDir(sys.argv[1]).open()\nexcept Exception as e:\n"
             "    print(e); sys.exit(1)\n")
     p = subprocess.run([sys.executable, "-c", code, str(out)], capture_output=True, text=True,

@@ -11,7 +11,7 @@ import pytest
 
 from geomload import CAUTION
 from geomload.export import report, write_all
-from geomload.export.atomic import OutputDir
+from geomload.export.run_folder import OutputDir
 
 import fakerun
 from browser import CHROMIUM, VIEW_STATE_JS, Browser, need_chromium, requested_urls, shot, wait_for
