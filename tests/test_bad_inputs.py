@@ -1,6 +1,6 @@
 """The bad-input corpus (tests/bad_inputs): every case gives its exit code and one clean line.
 
-Contract under test (issue 7 / README "Exit codes"): 0 ok, 1 bad input, 2 usage; an error is
+Contract under test (README "Exit codes"): 0 ok, 1 bad input, 2 usage; an error is
 one line on stderr starting "geomload: error:", naming the file or key, never a traceback; a
 failed `run` leaves no output folder and no partial file. The corpus files are rebuilt by
 tests/bad_inputs/make_corpus.py into a scratch folder (so no command can touch the committed
@@ -108,7 +108,7 @@ def _setup(kind, tmp, corpus):
 
 
 def test_corpus_is_large_enough_and_ids_unique():
-    # issue 7: at least 30 cases across geometry and case files
+    # the corpus covers at least 30 cases across geometry and case files
     ids = [c["id"] for c in CASES]
     assert len(ids) == len(set(ids))
     geometry = [c for c in CASES if c["args"][0] in ("inspect", "aero")]

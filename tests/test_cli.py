@@ -1,10 +1,10 @@
 """Command-line contract: exit codes, one-line errors, atomic run folders, never a lost input.
 
-Exit codes (README "Exit codes", geomload/cli.py): 0 ok, 1 bad input, 2 usage, 3 internal error
+Exit codes (README "Exit codes", geomload/cli/): 0 ok, 1 bad input, 2 usage, 3 internal error
 with a pointer to report it, 130 interrupted (128 + SIGINT 2, the POSIX shell convention for a
 process ended by a signal; common practice, no source). Failures are injected by monkeypatching
-a library step; the folder checks follow issue 7 ("a run that fails part-way leaves no partial
-file").
+a library step; the folder checks follow the product's rule: a run that fails part-way leaves
+no partial file.
 """
 
 from __future__ import annotations
@@ -51,7 +51,7 @@ def test_exit_0_run_writes_the_folder_and_keeps_inputs(corpus, tmp_path):
         assert (out / rel).is_file(), rel
     assert snapshot(corpus) == before  # inputs untouched
     assert not leftovers(tmp_path)
-    # the run ends with the table and the caution (issue 4)
+    # the run ends with the table and the caution (the product's output rule)
     caution = geomload.CAUTION.strip().splitlines()[-1]
     assert "pull-up" in res.stdout and caution in res.stdout
     assert res.stdout.index("pull-up") < res.stdout.index(caution)
@@ -68,7 +68,7 @@ def test_exit_0_inspect_csv_and_json(corpus, tmp_path):
     lines = csv.read_text().splitlines()
     header = next(ln for ln in lines if not ln.startswith("#"))
     for col in ("y_m", "x_le_m", "z_le_m", "chord_m", "twist_deg", "thickness_ratio", "camber_ratio"):
-        assert col in header.split(","), col  # issue 2: the station-table columns
+        assert col in header.split(","), col  # the station-table columns
     assert lines[0].startswith("#")
 
 
@@ -245,7 +245,7 @@ SAMPLE_MM = Path(__file__).resolve().parent.parent / "sample_geometry" / "pellin
 
 def test_new_case_guesses_millimetres_and_run_refuses_a_3600_m_wing(tmp_path):
     # the sample STL is in millimetres (pellin_design.json: 3.6 m span); read as metres it spans
-    # 3600 m, beyond the 200 m plausibility limit of issue 2
+    # 3600 m, beyond the 200 m plausibility limit of the geometry stage
     r = _run(["new-case", SAMPLE_MM])
     assert r.exit_code == 0, r.output
     assert '\nunits = "mm"' in r.stdout

@@ -5,10 +5,10 @@ Checks and their sources:
   Aircraft Structures for Engineering Students, ch. 16 on shear and bending of wings): the root
   shear is the integral of lift minus inertia minus the point loads, the root bending moment
   the first moment of the same loads. Recomputed here from the loads CSV columns and the case
-  masses, relative 1e-9 (issue 4).
+  masses, relative 1e-9.
 - Trim: in steady symmetric flight at load factor n the wing carries share x n x W (definition
   of the load factor n = L / W, e.g. 14 CFR 23.321), within 0.1 %.
-- Envelope of loads: the station-wise maximum and minimum over the individual cases (issue 5).
+- Envelope of loads: the station-wise maximum and minimum over the individual cases.
 - Elliptic wing: an elliptic planform with an untwisted symmetric section carries an elliptic
   load (Prandtl lifting-line theory; Anderson, Fundamentals of Aerodynamics, sec. 5.3), whose
   centroid on the semi-span lies at 4 s / (3 pi); so the root bending is (L/2)(4 s / 3 pi)
@@ -348,7 +348,7 @@ def test_csv_headers_carry_caution_sign_convention_and_units(sample_run):
         assert "units" in text and "wing frame" in text
         assert case_name(comments) == name
         for c in ("y_m", "lift_N_per_m", "inertia_N_per_m", "shear_N", "bending_Nm", "torsion_Nm"):
-            assert c in col, c  # issue 4: the minimum column set
+            assert c in col, c  # the minimum column set
     for f in ("envelope.csv", "stations.csv"):
         comments, _ = read_table(out / f)
         assert caution in "\n".join(comments), f
