@@ -12,6 +12,11 @@ path (a symlink, a device, a FIFO, an input reached through another name).
 - Every OSError while writing (ENOSPC, EROFS, EACCES...) becomes one OutputError line naming the
   folder and the cause; inside a staged run folder the final folder's name is shown, not the
   hidden staging folder's.
+- `ResolvedInputs(inputs)` resolves the inputs once (absolute name, real name, device/inode) for
+  the many writes of one run; `check_not_input` accepts it in place of a plain list.
+- `sync_at_end(folder)`: inside a staged run folder, every file written in the block is flushed
+  to disk (fsync) in one pass when the block ends, instead of one fsync per file. The staging
+  folder is moved into place only after that pass, so outputs still appear whole or not at all.
 
 Run folders (`OutputDir`) live in geomload.export.run_folder; the names are re-exported here.
 """
@@ -71,27 +76,56 @@ def write_error(path, exc: OSError) -> OutputError:
     return OutputError(f"{p.parent}: cannot write {p.name} ({_cause(exc)})")
 
 
-def _same(a, b) -> bool:
+def _ident(p: str):
+    """(device, inode) of the file `p` names (symlinks followed), or None."""
     try:
-        return os.path.samefile(a, b)
-    except OSError:
-        return False
+        st = os.stat(p)
+    except (OSError, ValueError):
+        return None
+    return st.st_dev, st.st_ino
+
+
+def _under(child: str, folder: str) -> bool:
+    """True if the normalised path `child` lies strictly inside the normalised path `folder`."""
+    pre = folder if folder.endswith(os.sep) else folder + os.sep
+    return child != folder and child.startswith(pre)
+
+
+class ResolvedInputs(tuple):
+    """The input paths of a run (a tuple of the given paths, empty names dropped), each resolved
+    once: its absolute name, its real name (symlinks resolved) and its (device, inode).
+
+    `check_not_input` compares a target with these instead of resolving every input again at
+    every file written (a run writes thousands). Build one per run, just before its writes.
+    """
+
+    def __new__(cls, inputs=()):
+        if isinstance(inputs, ResolvedInputs):
+            return inputs
+        items = tuple(i for i in (inputs or ()) if i is not None and str(i) != "")
+        self = super().__new__(cls, items)
+        self.entries = tuple((str(_resolved(i)), str(_real(i)), _ident(str(_resolved(i))))
+                             for i in items)
+        return self
 
 
 def check_not_input(path, inputs) -> None:
     """Raise OutputError if `path` is one of `inputs` or a folder holding one of them.
 
     Compared after resolving symlinks (of the path and of every parent) and by device/inode,
-    so a hard link, a symlinked parent or a bind mount cannot hide an input.
+    so a hard link, a symlinked parent or a bind mount cannot hide an input. `inputs` is a list
+    of paths or a `ResolvedInputs` (resolved once for many checks).
     """
-    p, pr = _resolved(path), _real(path)
-    for inp in inputs or ():
-        if inp is None or str(inp) == "":
-            continue
-        q, qr = _resolved(inp), _real(inp)
-        if p == q or pr == qr or _same(p, q):
+    entries = ResolvedInputs(inputs).entries
+    if not entries:
+        return
+    p = str(_resolved(path))
+    pr = str(_real(path))
+    ident = _ident(p)
+    for q, qr, qid in entries:
+        if p == q or pr == qr or (ident is not None and ident == qid):
             raise OutputError(f"{shown(p)}: refusing to overwrite the input file {shown(q)}")
-        if pr in qr.parents or p in q.parents:
+        if _under(qr, pr) or _under(q, p):
             raise OutputError(f"{shown(p)}: output folder contains the input file {shown(q)}; "
                               "choose another --out")
 
@@ -129,9 +163,11 @@ def atomic_path(path, inputs=()):
     Refused targets: see `check_target`. Any OSError (in the block or the rename) becomes an
     OutputError naming the folder and the cause; the temporary file is always removed.
     """
+    inputs = ResolvedInputs(inputs)  # resolved once for both checks
     final = check_target(path, inputs)
     try:
-        final.parent.mkdir(parents=True, exist_ok=True)
+        if not os.path.isdir(final.parent):
+            final.parent.mkdir(parents=True, exist_ok=True)
         fd, tmp = tempfile.mkstemp(prefix=f".{final.stem[:60]}.", suffix=".tmp" + final.suffix[-12:],
                                    dir=final.parent)
         os.close(fd)
@@ -152,17 +188,78 @@ def atomic_path(path, inputs=()):
         raise
 
 
+_SYNC_AT_END: dict = {}  # folder (str) -> files written below it whose fsync waits (sync_at_end)
+
+
+def _staged(folder: str) -> bool:
+    """True if `folder` is a staging folder of an open run folder, or lies inside one."""
+    return any(folder == st or _under(folder, st) for st in _STAGING)
+
+
+def _pending(final: str):
+    """The list collecting `final` for one fsync pass (see `sync_at_end`), or None."""
+    for folder, files in _SYNC_AT_END.items():
+        if _under(final, folder):
+            return files
+    return None
+
+
+@contextlib.contextmanager
+def sync_at_end(folder):
+    """Flush every file written below `folder` in the block to disk in one pass at its end.
+
+    Only inside a staged run folder (`run_folder.OutputDir.staging`, or a folder inside it): no
+    output is visible under its final name until the staging folder is moved into place, which
+    happens after this pass, so a file only needs to be on disk by then, not at its own rename.
+    One pass is cheaper than an fsync per file: the file system commits its journal once for
+    many files instead of once per file. A failed fsync (EIO, a full disk found at write-back)
+    raises the OutputError naming that file, and the run folder is not committed. In any other
+    folder the block changes nothing (each file is flushed before its rename, as always).
+    """
+    f = str(_resolved(folder))
+    if f in _SYNC_AT_END or not _staged(f):
+        yield
+        return
+    files = _SYNC_AT_END[f] = []
+    try:
+        yield
+    finally:
+        _SYNC_AT_END.pop(f, None)
+    for path in files:  # only reached when the block succeeded
+        try:
+            fd = os.open(path, os.O_RDONLY)
+            try:
+                os.fsync(fd)
+            finally:
+                os.close(fd)
+        except OSError as exc:
+            raise write_error(path, exc) from None
+
+
+def flush_to_disk(fh, final) -> None:
+    """fsync the open file `fh` that will be renamed onto `final`, or, inside a `sync_at_end`
+    block, note `final` for that block's fsync pass."""
+    fh.flush()
+    pending = _pending(str(_resolved(final))) if _SYNC_AT_END else None
+    if pending is None:
+        os.fsync(fh.fileno())
+    else:
+        pending.append(str(final))
+
+
 def write_bytes_atomic(path, data: bytes, inputs=(), fsync: bool = True) -> Path:
     """Write `data` to `path` atomically (temporary file in the same folder, then rename).
-    Every byte is checked written (a short write raises); fsync before the rename."""
+    Every byte is checked written (a short write raises); fsync before the rename (inside a
+    `sync_at_end` block: in that block's pass, before the run folder is committed)."""
     with atomic_path(path, inputs) as tmp:
         with open(tmp, "wb") as fh:
             n = fh.write(data)
             if n != len(data):
                 raise OSError(28, f"short write ({n} of {len(data)} bytes)")
-            fh.flush()
             if fsync:
-                os.fsync(fh.fileno())
+                flush_to_disk(fh, path)
+            else:
+                fh.flush()
     return _resolved(path)
 
 
