@@ -44,14 +44,24 @@ _UMASK = _umask()  # mkstemp/mkdtemp create private entries; outputs get the usu
 _STAGING: dict = {}  # staging folder (str) -> final run folder (str), for messages only
 
 
+def _abs(p) -> str:
+    """Absolute, '~' expanded, not symlink-resolved (the name the user gave), as a string."""
+    return os.path.abspath(os.path.expanduser(str(p)))
+
+
+def _real_str(p) -> str:
+    """Absolute with every symlink resolved (as far as the path exists), as a string."""
+    return os.path.realpath(os.path.expanduser(str(p)))
+
+
 def _resolved(p) -> Path:
     """Absolute, '~' expanded, not symlink-resolved (the name the user gave)."""
-    return Path(os.path.abspath(os.path.expanduser(str(p))))
+    return Path(_abs(p))
 
 
 def _real(p) -> Path:
     """Absolute with every symlink resolved (as far as the path exists)."""
-    return Path(os.path.realpath(os.path.expanduser(str(p))))
+    return Path(_real_str(p))
 
 
 def shown(path) -> str:
@@ -104,8 +114,7 @@ class ResolvedInputs(tuple):
             return inputs
         items = tuple(i for i in (inputs or ()) if i is not None and str(i) != "")
         self = super().__new__(cls, items)
-        self.entries = tuple((str(_resolved(i)), str(_real(i)), _ident(str(_resolved(i))))
-                             for i in items)
+        self.entries = tuple((_abs(i), _real_str(i), _ident(_abs(i))) for i in items)
         return self
 
 
@@ -119,8 +128,7 @@ def check_not_input(path, inputs) -> None:
     entries = ResolvedInputs(inputs).entries
     if not entries:
         return
-    p = str(_resolved(path))
-    pr = str(_real(path))
+    p, pr = _abs(path), _real_str(path)
     ident = _ident(p)
     for q, qr, qid in entries:
         if p == q or pr == qr or (ident is not None and ident == qid):
@@ -133,7 +141,12 @@ def check_not_input(path, inputs) -> None:
 def check_target(path, inputs=()) -> Path:
     """Refuse a target that is a symlink, a device, a FIFO, a socket or a folder, or an input.
     Returns the absolute target path."""
-    final = _resolved(path)
+    return Path(_check_target(path, inputs))
+
+
+def _check_target(path, inputs) -> str:
+    """`check_target` on strings (the absolute target path as a string)."""
+    final = _abs(path)
     if str(path).strip() == "":
         raise OutputError("output file name is empty")
     check_not_input(final, inputs)
@@ -164,18 +177,20 @@ def atomic_path(path, inputs=()):
     OutputError naming the folder and the cause; the temporary file is always removed.
     """
     inputs = ResolvedInputs(inputs)  # resolved once for both checks
-    final = check_target(path, inputs)
+    final = _check_target(path, inputs)
+    pf = Path(final)
     try:
-        if not os.path.isdir(final.parent):
-            final.parent.mkdir(parents=True, exist_ok=True)
-        fd, tmp = tempfile.mkstemp(prefix=f".{final.stem[:60]}.", suffix=".tmp" + final.suffix[-12:],
-                                   dir=final.parent)
+        parent = os.path.dirname(final)
+        if not os.path.isdir(parent):
+            os.makedirs(parent, exist_ok=True)
+        fd, tmp = tempfile.mkstemp(prefix=f".{pf.stem[:60]}.", suffix=".tmp" + pf.suffix[-12:],
+                                   dir=parent)
         os.close(fd)
     except OSError as exc:
         raise write_error(final, exc) from None
     try:
         yield Path(tmp)
-        check_target(final, inputs)  # again: something may have appeared there meanwhile
+        _check_target(final, inputs)  # again: something may have appeared there meanwhile
         os.chmod(tmp, 0o666 & ~_UMASK)
         os.rename(tmp, final)
     except OSError as exc:
@@ -240,7 +255,7 @@ def flush_to_disk(fh, final) -> None:
     """fsync the open file `fh` that will be renamed onto `final`, or, inside a `sync_at_end`
     block, note `final` for that block's fsync pass."""
     fh.flush()
-    pending = _pending(str(_resolved(final))) if _SYNC_AT_END else None
+    pending = _pending(_abs(final)) if _SYNC_AT_END else None
     if pending is None:
         os.fsync(fh.fileno())
     else:
@@ -251,16 +266,17 @@ def write_bytes_atomic(path, data: bytes, inputs=(), fsync: bool = True) -> Path
     """Write `data` to `path` atomically (temporary file in the same folder, then rename).
     Every byte is checked written (a short write raises); fsync before the rename (inside a
     `sync_at_end` block: in that block's pass, before the run folder is committed)."""
+    final = _abs(path)
     with atomic_path(path, inputs) as tmp:
         with open(tmp, "wb") as fh:
             n = fh.write(data)
             if n != len(data):
                 raise OSError(28, f"short write ({n} of {len(data)} bytes)")
             if fsync:
-                flush_to_disk(fh, path)
+                flush_to_disk(fh, final)
             else:
                 fh.flush()
-    return _resolved(path)
+    return Path(final)
 
 
 def write_text_atomic(path, text: str, inputs=()) -> Path:
