@@ -77,6 +77,11 @@ def write_all(run, folder, inputs=(), render=True, progress=None, options=None,
         with sync_at_end(f):  # a staged run folder: one fsync pass at the end, not per file
             # the plots (matplotlib) and the renders (pyvista) in child processes while this
             # one writes the tables, FE decks and VTK files; each child sends back file bytes
+            if parallel and getattr(run.case, "structure", None) is not None:
+                # the sizing plot draws in this process anyway: import matplotlib before the
+                # fork, so the plot child inherits it instead of importing it a second time
+                import matplotlib.backends.backend_agg  # noqa: F401
+                import matplotlib.figure  # noqa: F401
             plot_job = plots.start_plot_process(run) if parallel else None
             surface = vtk.surface_data(run, full=full_surface)  # once: surface.vtp, pictures
             if render:
