@@ -65,6 +65,8 @@ def main() -> dict:
         "sample_no_render_s": (None, t_nr, None, "absolute"),
         "help_wall_s": (TARGET_HELP_S, t_help, t_help / TARGET_HELP_S, f"absolute; {f_pass}"),
         "help_vs_bare_python_ratio": (None, r_help, None, f_pass),
+        "help_cpu_s": (None, t.best_cpu("help"), None,
+                       f"absolute; python -c pass cpu {t.best_cpu('pass'):.3f} s"),
     }
 
 

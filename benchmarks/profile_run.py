@@ -9,6 +9,10 @@ Not a benchmark (run_all.py does not run it): a tool that tells the speed work w
     python benchmarks/profile_run.py stl4m             # the cached 4-million-triangle wing
     python benchmarks/profile_run.py imports           # -X importtime by top-level package
 
+The plots and 3-D renders run in child processes when a CPU is free (`export.forked`), where
+the profile does not see them: the profiled run draws them in its own process (`--children`
+leaves the choice to the run).
+
 Prints (1) the stages: cumulative time of the pipeline's main functions as a share of the
 profiled run (stages nest: "solve_case" contains "_trim"); (2) the top functions by own time
 (file:function, calls, share); (3) with --importtime, import cost by top-level package. cProfile
@@ -39,33 +43,38 @@ STAGES = [
     ("load_case (parse TOML)", "geomload/case.py", "load_case"),
     ("compute (geometry+aero+loads)", "geomload/pipeline.py", "compute"),
     ("  load_wing (read, frame, cut)", "geomload/geometry/__init__.py", "load_wing"),
-    ("    read_mesh", "geomload/geometry/read.py", "read_mesh"),
-    ("    cut_stations", "geomload/geometry/sections.py", "cut_stations"),
+    ("    read_mesh", "geomload/geometry/readers/__init__.py", "read_mesh"),
+    ("    detect_frame_indexed", "geomload/geometry/frame.py", "detect_frame_indexed"),
+    ("    cut_stations", "geomload/geometry/stations.py", "cut_stations"),
     ("  build_lattice", "geomload/aero/lattice.py", "build_lattice"),
-    ("  AeroModel.__init__ (assembly+LU)", "geomload/aero/solve.py", "__init__"),
-    ("    scipy lu_factor", "scipy/linalg/_decomp_lu.py", "lu_factor"),
-    ("  critical_points (envelope)", "geomload/loads/envelope.py", "critical_points"),
-    ("  vn_diagram", "geomload/loads/envelope.py", "vn_diagram"),
+    ("  AeroModel.__init__ (assembly+solve)", "geomload/aero/solve.py", "__init__"),
+    ("  critical_points (envelope)", "geomload/loads/vn.py", "critical_points"),
+    ("  vn_diagram", "geomload/loads/vn.py", "vn_diagram"),
     ("  solve_case (all cases)", "geomload/pipeline.py", "solve_case"),
-    ("    _trim", "geomload/pipeline.py", "_trim"),
+    ("    trim_case", "geomload/aero/trim.py", "trim_case"),
     ("      AeroModel.solve", "geomload/aero/solve.py", "solve"),
     ("      AeroModel.alpha_for_cl", "geomload/aero/solve.py", "alpha_for_cl"),
-    ("    integrate_loads (beam)", "geomload/loads/beam.py", "integrate_loads"),
-    ("    equilibrium_residual", "geomload/loads/beam.py", "equilibrium_residual"),
-    ("    inertia_loads", "geomload/loads/masses.py", "inertia_loads"),
+    ("    case_loads (grid, beam)", "geomload/loads/flight_case.py", "case_loads"),
+    ("      beam.integrate", "geomload/loads/beam.py", "integrate"),
+    ("      equilibrium_residual", "geomload/loads/beam.py", "equilibrium_residual"),
+    ("      inertia_loads", "geomload/loads/masses.py", "inertia_loads"),
+    ("  error_bars (coarser lattices)", "geomload/aero/convergence.py", "error_bars"),
     ("  envelope_of", "geomload/loads/envelope.py", "envelope_of"),
     ("  _versions (metadata)", "geomload/pipeline.py", "_versions"),
     ("write_all (every output)", "geomload/export/__init__.py", "write_all"),
     ("  write_loads_csv (per case)", "geomload/export/tables.py", "write_loads_csv"),
     ("  write_summary_json", "geomload/export/tables.py", "write_summary_json"),
-    ("  surface_polydata", "geomload/export/vtk.py", "surface_polydata"),
+    ("  write_structural_handoff (fe/)", "geomload/export/fe.py", "write_structural_handoff"),
+    ("    beam_deck", "geomload/export/fe.py", "beam_deck"),
+    ("  surface_data", "geomload/export/vtk.py", "surface_data"),
     ("  write_all_vtk", "geomload/export/vtk.py", "write_all_vtk"),
-    ("  make_plots", "geomload/export/plots.py", "make_plots"),
-    ("    plot_loads", "geomload/export/plots.py", "plot_loads"),
+    ("  plot_images (in this process)", "geomload/export/plots.py", "plot_images"),
     ("    savefig", "matplotlib/figure.py", "savefig"),
-    ("  render_all (3-D pictures)", "geomload/export/render.py", "render_all"),
+    ("  render_images (in this process)", "geomload/export/render.py", "render_images"),
     ("  write_report", "geomload/export/report.py", "write_report"),
-    ("OutputDir.commit", "geomload/export/atomic.py", "commit"),
+    ("  atomic writes (checks, fsync)", "geomload/export/atomic.py", "write_bytes_atomic"),
+    ("  one fsync pass (sync_at_end)", "geomload/export/atomic.py", "sync_at_end"),
+    ("OutputDir.commit", "geomload/export/run_folder.py", "commit"),
     ("every import (incl. module code)", "<frozen importlib._bootstrap>", "_find_and_load"),
 ]
 
@@ -103,8 +112,14 @@ def _short(fn: str) -> str:
     return fn
 
 
-def profile(argv: list, out: str | None, top: int, cpu: bool = False) -> None:
+def profile(argv: list, out: str | None, top: int, cpu: bool = False,
+            children: bool = False) -> None:
     from geomload import cli
+
+    if not children:  # plots and renders in this process, where the profile sees them
+        from geomload.export import forked
+
+        forked.parallel_pays = lambda jobs=1: False
 
     prof = cProfile.Profile(time.process_time) if cpu else cProfile.Profile()
     t0 = time.perf_counter()
@@ -173,6 +188,8 @@ def main(argv=None) -> int:
     ap.add_argument("--cpu", action="store_true",
                     help="profile CPU time of the process (all threads) instead of wall time: "
                          "steadier when other work shares the cores; blind to waiting")
+    ap.add_argument("--children", action="store_true",
+                    help="let the run draw plots and renders in child processes (unprofiled)")
     ap.add_argument("--load", default=None, metavar="FILE.prof",
                     help="print the tables of a saved profile instead of running one")
     a = ap.parse_args(argv)
@@ -186,7 +203,7 @@ def main(argv=None) -> int:
         if a.no_render or kind != "sample":
             args.append("--no-render")
         if a.kind != "imports":
-            profile(args, a.out, a.top, a.cpu)
+            profile(args, a.out, a.top, a.cpu, a.children)
         if a.importtime or a.kind == "imports":
             import_costs(args)
     return 0

@@ -55,6 +55,8 @@ def printable(s, keep_newlines: bool = False) -> str:
     Windows).
     """
     s = str(s)
+    if s.isascii() and s.isprintable():  # nothing to escape: printable ASCII has no Cc/Cf/Z*
+        return s
     out = []
     for ch in s:
         if keep_newlines and ch in "\n\t":
@@ -118,6 +120,8 @@ _NON_KEY = re.compile(r"[^A-Za-z0-9_.+-]+")
 
 def ascii_key(s) -> str:
     """An ASCII identifier part of `s` (may be '' when nothing ASCII remains)."""
-    t = unicodedata.normalize("NFKD", str(s))
-    t = "".join(ch for ch in t if not unicodedata.combining(ch))
+    t = str(s)
+    if not t.isascii():  # ASCII is its own NFKD form and holds no combining marks
+        t = unicodedata.normalize("NFKD", t)
+        t = "".join(ch for ch in t if not unicodedata.combining(ch))
     return _NON_KEY.sub("_", t).strip("._")

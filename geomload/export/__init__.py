@@ -1,6 +1,8 @@
 """Export stage: CSV/JSON tables, VTK files, plots, 3-D renders and the HTML report.
 
 Heavy libraries (matplotlib, pyvista, scipy) are imported inside the functions that need them.
+Inside a staged run folder every file is flushed to disk in one pass before `write_all` returns
+(`atomic.sync_at_end`), so the folder is complete on disk before it is moved into place.
 
 Run folder layout written by `write_all`::
 
@@ -33,8 +35,9 @@ def write_all(run, folder, inputs=(), render=True, progress=None, options=None,
     progress : records.Progress callback, called as progress("export", done, total).
     options : dict of extra options echoed in the report's inputs section.
     run_time_s : total run time shown in the report (default: the sum of run.timings).
-    parallel : render the 3-D pictures in a second process while the rest is written (None:
-        when a second CPU is available).
+    parallel : draw the plots, and render the 3-D pictures, in child processes while this one
+        writes the tables, FE decks and VTK files (None: when a second CPU is free, see
+        `forked.parallel_pays`).
     full_surface : surface.vtp with every CAD triangle (default: a decimated display surface
         above vtk.MAX_DISPLAY_TRIANGLES).
 
@@ -45,12 +48,13 @@ def write_all(run, folder, inputs=(), render=True, progress=None, options=None,
     that picture), "loads" (case name -> CSV path), "warnings" (one-line warnings of the
     writers, e.g. the structural hand-off's).
     """
-    from geomload.export import plots, report, tables, vtk
-    from geomload.export.atomic import safe_name
+    from geomload.export import plots, report, vtk
+    from geomload.export.atomic import ResolvedInputs, sync_at_end
+    from geomload.export.forked import parallel_pays
 
     f = Path(folder)
     f.mkdir(parents=True, exist_ok=True)
-    inputs = [*inputs, run.case_path, run.mesh.source]
+    inputs = ResolvedInputs([*inputs, run.case_path, run.mesh.source])  # resolved once per run
     files, loads, warnings = [], {}, []
     has_env, has_vn = run.envelope is not None, run.vn is not None
     total = 3 + len(run.cases) + has_env + has_vn + 3 + 1 + (1 if render else 0) + 1
@@ -61,68 +65,88 @@ def write_all(run, folder, inputs=(), render=True, progress=None, options=None,
         if progress is not None:
             progress("export", step[0], total)
 
-    def rec(p):
+    def rec(p, tick_too=True):
         files.append(Path(p).relative_to(f) if Path(p).is_absolute() else Path(p))
-        tick()
-
-    surface = vtk.surface_data(run, full=full_surface)  # built once: surface.vtp and pictures
-    job = None
-    try:
-        if render:
-            from geomload.export import render as rnd
-
-            if parallel is None:
-                parallel = rnd.parallel_pays()
-            job = rnd.RenderProcess.start(run, surface) if parallel else None
-        rec(tables.write_stations_csv(f / "stations.csv", run.stations, run.frame, run.mesh.source,
-                                      run.mesh.units, inputs))
-        taken: set = set()
-        for cr in run.cases:
-            if cr.port_loads is None:
-                rel = Path("loads") / f"{safe_name(cr.name, taken)}.csv"
-                rec(tables.write_loads_csv(f / rel, cr, frame=run.frame, inputs=inputs))
-                loads[cr.name] = rel
-                continue
-            for side, sl in cr.sides:  # an unsymmetric case: one file per side
-                name = f"{cr.name}__{side}"
-                rel = Path("loads") / f"{safe_name(name, taken)}.csv"
-                one = dataclasses.replace(cr, name=name, loads=sl,
-                                          residual=sl.equilibrium.residual)
-                p = Path(tables.write_loads_csv(f / rel, one, frame=run.frame, inputs=inputs))
-                files.append(p.relative_to(f) if p.is_absolute() else p)
-                loads[name] = rel
+        if tick_too:
             tick()
-        if has_env:
-            rec(tables.write_envelope_csv(f / "envelope.csv", run.envelope, inputs))
-        if has_vn:
-            rec(tables.write_vn_csv(f / "vn.csv", run.vn, inputs))
-        rec(tables.write_summary_json(f / "summary.json", run, inputs))
-        structure = getattr(run.case, "structure", None)
-        if structure is not None:  # [structure]: FE beam decks, mapped loads, sizing (fe.py)
-            from geomload.export.fe import write_structural_handoff
 
-            handoff = write_structural_handoff(run, f, inputs, **structure.handoff_options())
-            for p in handoff["files"]:
+    if parallel is None:
+        parallel = parallel_pays()
+    plot_job = job = None
+    try:
+        with sync_at_end(f):  # a staged run folder: one fsync pass at the end, not per file
+            # the plots (matplotlib) and the renders (pyvista) in child processes while this
+            # one writes the tables, FE decks and VTK files; each child sends back file bytes
+            if parallel and getattr(run.case, "structure", None) is not None:
+                # the sizing plot draws in this process anyway: import matplotlib before the
+                # fork, so the plot child inherits it instead of importing it a second time
+                import matplotlib.backends.backend_agg  # noqa: F401
+                import matplotlib.figure  # noqa: F401
+            plot_job = plots.start_plot_process(run) if parallel else None
+            surface = vtk.surface_data(run, full=full_surface)  # once: surface.vtp, pictures
+            if render:
+                from geomload.export import render as rnd
+
+                job = rnd.RenderProcess.start(run, surface) if parallel else None
+            _write_tables(run, f, inputs, rec, loads)
+            structure = getattr(run.case, "structure", None)
+            if structure is not None:  # [structure]: FE beam decks, mapped loads, sizing (fe.py)
+                from geomload.export.fe import write_structural_handoff
+
+                handoff = write_structural_handoff(run, f, inputs, **structure.handoff_options())
+                for p in handoff["files"]:
+                    rec(p)
+                warnings += handoff["warnings"]
+            for p in vtk.write_all_vtk(f, run, inputs, surface):
                 rec(p)
-            warnings += handoff["warnings"]
-        for p in vtk.write_all_vtk(f, run, inputs, surface):
-            rec(p)
-        images = plots.make_plots(run, f / "plots", inputs)
-        tick()
-        if render:
-            shots = job.result() if job is not None else rnd.render_images(run, surface)
-            images.update(rnd.write_images(shots, f / "plots", inputs))
+            shots = plot_job.result() if plot_job is not None else plots.plot_images(run)
+            images = plots.write_plot_images(shots, f / "plots", inputs)
+            tick()
+            if render:
+                shots = job.result() if job is not None else rnd.render_images(run, surface)
+                images.update(rnd.write_images(shots, f / "plots", inputs))
+                tick()
+            for v in images.values():
+                if isinstance(v, Path):
+                    files.append(v.relative_to(f))
+            if has_vn and isinstance(images.get("vn"), Path):
+                files.append(images["vn"].with_suffix(".svg").relative_to(f))
+            frag = report.view3d_fragment(run, surface) if render else None
+            rec(report.write_report(f / "report.html", run, images, options, run_time_s, inputs,
+                                    frag))
             tick()
     finally:
-        if job is not None:
-            job.stop()
-    for v in images.values():
-        if isinstance(v, Path):
-            files.append(v.relative_to(f))
-    if has_vn and isinstance(images.get("vn"), Path):
-        files.append(images["vn"].with_suffix(".svg").relative_to(f))
-    frag = report.view3d_fragment(run, surface) if render else None
-    rec(report.write_report(f / "report.html", run, images, options, run_time_s, inputs, frag))
-    tick()
+        for j in (plot_job, job):
+            if j is not None:
+                j.stop()
     images = {k: (v.relative_to(f) if isinstance(v, Path) else v) for k, v in images.items()}
     return {"files": files, "images": images, "loads": loads, "warnings": warnings}
+
+
+def _write_tables(run, f, inputs, rec, loads) -> None:
+    """stations.csv, loads/<case>.csv (an unsymmetric case: one file per side), envelope.csv,
+    vn.csv and summary.json into the run folder f; rec(path, tick_too) records each file written."""
+    from geomload.export import tables
+    from geomload.export.atomic import safe_name
+
+    rec(tables.write_stations_csv(f / "stations.csv", run.stations, run.frame, run.mesh.source,
+                                  run.mesh.units, inputs))
+    taken: set = set()
+    for cr in run.cases:
+        if cr.port_loads is None:
+            rel = Path("loads") / f"{safe_name(cr.name, taken)}.csv"
+            rec(tables.write_loads_csv(f / rel, cr, frame=run.frame, inputs=inputs))
+            loads[cr.name] = rel
+            continue
+        for k, (side, sl) in enumerate(cr.sides):  # one progress step per case
+            name = f"{cr.name}__{side}"
+            rel = Path("loads") / f"{safe_name(name, taken)}.csv"
+            one = dataclasses.replace(cr, name=name, loads=sl, residual=sl.equilibrium.residual)
+            rec(tables.write_loads_csv(f / rel, one, frame=run.frame, inputs=inputs),
+                tick_too=k == len(cr.sides) - 1)
+            loads[name] = rel
+    if run.envelope is not None:
+        rec(tables.write_envelope_csv(f / "envelope.csv", run.envelope, inputs))
+    if run.vn is not None:
+        rec(tables.write_vn_csv(f / "vn.csv", run.vn, inputs))
+    rec(tables.write_summary_json(f / "summary.json", run, inputs))

@@ -12,6 +12,11 @@ path (a symlink, a device, a FIFO, an input reached through another name).
 - Every OSError while writing (ENOSPC, EROFS, EACCES...) becomes one OutputError line naming the
   folder and the cause; inside a staged run folder the final folder's name is shown, not the
   hidden staging folder's.
+- `ResolvedInputs(inputs)` resolves the inputs once (absolute name, real name, device/inode) for
+  the many writes of one run; `check_not_input` accepts it in place of a plain list.
+- `sync_at_end(folder)`: inside a staged run folder, every file written in the block is flushed
+  to disk (fsync) in one pass when the block ends, instead of one fsync per file. The staging
+  folder is moved into place only after that pass, so outputs still appear whole or not at all.
 
 Run folders (`OutputDir`) live in geomload.export.run_folder; the names are re-exported here.
 """
@@ -39,14 +44,24 @@ _UMASK = _umask()  # mkstemp/mkdtemp create private entries; outputs get the usu
 _STAGING: dict = {}  # staging folder (str) -> final run folder (str), for messages only
 
 
+def _abs(p) -> str:
+    """Absolute, '~' expanded, not symlink-resolved (the name the user gave), as a string."""
+    return os.path.abspath(os.path.expanduser(str(p)))
+
+
+def _real_str(p) -> str:
+    """Absolute with every symlink resolved (as far as the path exists), as a string."""
+    return os.path.realpath(os.path.expanduser(str(p)))
+
+
 def _resolved(p) -> Path:
     """Absolute, '~' expanded, not symlink-resolved (the name the user gave)."""
-    return Path(os.path.abspath(os.path.expanduser(str(p))))
+    return Path(_abs(p))
 
 
 def _real(p) -> Path:
     """Absolute with every symlink resolved (as far as the path exists)."""
-    return Path(os.path.realpath(os.path.expanduser(str(p))))
+    return Path(_real_str(p))
 
 
 def shown(path) -> str:
@@ -71,27 +86,54 @@ def write_error(path, exc: OSError) -> OutputError:
     return OutputError(f"{p.parent}: cannot write {p.name} ({_cause(exc)})")
 
 
-def _same(a, b) -> bool:
+def _ident(p: str):
+    """(device, inode) of the file `p` names (symlinks followed), or None."""
     try:
-        return os.path.samefile(a, b)
-    except OSError:
-        return False
+        st = os.stat(p)
+    except (OSError, ValueError):
+        return None
+    return st.st_dev, st.st_ino
+
+
+def _under(child: str, folder: str) -> bool:
+    """True if the normalised path `child` lies strictly inside the normalised path `folder`."""
+    pre = folder if folder.endswith(os.sep) else folder + os.sep
+    return child != folder and child.startswith(pre)
+
+
+class ResolvedInputs(tuple):
+    """The input paths of a run (a tuple of the given paths, empty names dropped), each resolved
+    once: its absolute name, its real name (symlinks resolved) and its (device, inode).
+
+    `check_not_input` compares a target with these instead of resolving every input again at
+    every file written (a run writes thousands). Build one per run, just before its writes.
+    """
+
+    def __new__(cls, inputs=()):
+        if isinstance(inputs, ResolvedInputs):
+            return inputs
+        items = tuple(i for i in (inputs or ()) if i is not None and str(i) != "")
+        self = super().__new__(cls, items)
+        self.entries = tuple((_abs(i), _real_str(i), _ident(_abs(i))) for i in items)
+        return self
 
 
 def check_not_input(path, inputs) -> None:
     """Raise OutputError if `path` is one of `inputs` or a folder holding one of them.
 
     Compared after resolving symlinks (of the path and of every parent) and by device/inode,
-    so a hard link, a symlinked parent or a bind mount cannot hide an input.
+    so a hard link, a symlinked parent or a bind mount cannot hide an input. `inputs` is a list
+    of paths or a `ResolvedInputs` (resolved once for many checks).
     """
-    p, pr = _resolved(path), _real(path)
-    for inp in inputs or ():
-        if inp is None or str(inp) == "":
-            continue
-        q, qr = _resolved(inp), _real(inp)
-        if p == q or pr == qr or _same(p, q):
+    entries = ResolvedInputs(inputs).entries
+    if not entries:
+        return
+    p, pr = _abs(path), _real_str(path)
+    ident = _ident(p)
+    for q, qr, qid in entries:
+        if p == q or pr == qr or (ident is not None and ident == qid):
             raise OutputError(f"{shown(p)}: refusing to overwrite the input file {shown(q)}")
-        if pr in qr.parents or p in q.parents:
+        if _under(qr, pr) or _under(q, p):
             raise OutputError(f"{shown(p)}: output folder contains the input file {shown(q)}; "
                               "choose another --out")
 
@@ -99,7 +141,12 @@ def check_not_input(path, inputs) -> None:
 def check_target(path, inputs=()) -> Path:
     """Refuse a target that is a symlink, a device, a FIFO, a socket or a folder, or an input.
     Returns the absolute target path."""
-    final = _resolved(path)
+    return Path(_check_target(path, inputs))
+
+
+def _check_target(path, inputs) -> str:
+    """`check_target` on strings (the absolute target path as a string)."""
+    final = _abs(path)
     if str(path).strip() == "":
         raise OutputError("output file name is empty")
     check_not_input(final, inputs)
@@ -129,17 +176,21 @@ def atomic_path(path, inputs=()):
     Refused targets: see `check_target`. Any OSError (in the block or the rename) becomes an
     OutputError naming the folder and the cause; the temporary file is always removed.
     """
-    final = check_target(path, inputs)
+    inputs = ResolvedInputs(inputs)  # resolved once for both checks
+    final = _check_target(path, inputs)
+    pf = Path(final)
     try:
-        final.parent.mkdir(parents=True, exist_ok=True)
-        fd, tmp = tempfile.mkstemp(prefix=f".{final.stem[:60]}.", suffix=".tmp" + final.suffix[-12:],
-                                   dir=final.parent)
+        parent = os.path.dirname(final)
+        if not os.path.isdir(parent):
+            os.makedirs(parent, exist_ok=True)
+        fd, tmp = tempfile.mkstemp(prefix=f".{pf.stem[:60]}.", suffix=".tmp" + pf.suffix[-12:],
+                                   dir=parent)
         os.close(fd)
     except OSError as exc:
         raise write_error(final, exc) from None
     try:
         yield Path(tmp)
-        check_target(final, inputs)  # again: something may have appeared there meanwhile
+        _check_target(final, inputs)  # again: something may have appeared there meanwhile
         os.chmod(tmp, 0o666 & ~_UMASK)
         os.rename(tmp, final)
     except OSError as exc:
@@ -152,18 +203,80 @@ def atomic_path(path, inputs=()):
         raise
 
 
+_SYNC_AT_END: dict = {}  # folder (str) -> files written below it whose fsync waits (sync_at_end)
+
+
+def _staged(folder: str) -> bool:
+    """True if `folder` is a staging folder of an open run folder, or lies inside one."""
+    return any(folder == st or _under(folder, st) for st in _STAGING)
+
+
+def _pending(final: str):
+    """The list collecting `final` for one fsync pass (see `sync_at_end`), or None."""
+    for folder, files in _SYNC_AT_END.items():
+        if _under(final, folder):
+            return files
+    return None
+
+
+@contextlib.contextmanager
+def sync_at_end(folder):
+    """Flush every file written below `folder` in the block to disk in one pass at its end.
+
+    Only inside a staged run folder (`run_folder.OutputDir.staging`, or a folder inside it): no
+    output is visible under its final name until the staging folder is moved into place, which
+    happens after this pass, so a file only needs to be on disk by then, not at its own rename.
+    One pass is cheaper than an fsync per file: the file system commits its journal once for
+    many files instead of once per file. A failed fsync (EIO, a full disk found at write-back)
+    raises the OutputError naming that file, and the run folder is not committed. In any other
+    folder the block changes nothing (each file is flushed before its rename, as always).
+    """
+    f = str(_resolved(folder))
+    if f in _SYNC_AT_END or not _staged(f):
+        yield
+        return
+    files = _SYNC_AT_END[f] = []
+    try:
+        yield
+    finally:
+        _SYNC_AT_END.pop(f, None)
+    for path in files:  # only reached when the block succeeded
+        try:
+            fd = os.open(path, os.O_RDONLY)
+            try:
+                os.fsync(fd)
+            finally:
+                os.close(fd)
+        except OSError as exc:
+            raise write_error(path, exc) from None
+
+
+def flush_to_disk(fh, final) -> None:
+    """fsync the open file `fh` that will be renamed onto `final`, or, inside a `sync_at_end`
+    block, note `final` for that block's fsync pass."""
+    fh.flush()
+    pending = _pending(_abs(final)) if _SYNC_AT_END else None
+    if pending is None:
+        os.fsync(fh.fileno())
+    else:
+        pending.append(str(final))
+
+
 def write_bytes_atomic(path, data: bytes, inputs=(), fsync: bool = True) -> Path:
     """Write `data` to `path` atomically (temporary file in the same folder, then rename).
-    Every byte is checked written (a short write raises); fsync before the rename."""
+    Every byte is checked written (a short write raises); fsync before the rename (inside a
+    `sync_at_end` block: in that block's pass, before the run folder is committed)."""
+    final = _abs(path)
     with atomic_path(path, inputs) as tmp:
         with open(tmp, "wb") as fh:
             n = fh.write(data)
             if n != len(data):
                 raise OSError(28, f"short write ({n} of {len(data)} bytes)")
-            fh.flush()
             if fsync:
-                os.fsync(fh.fileno())
-    return _resolved(path)
+                flush_to_disk(fh, final)
+            else:
+                fh.flush()
+    return Path(final)
 
 
 def write_text_atomic(path, text: str, inputs=()) -> Path:

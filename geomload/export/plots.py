@@ -210,14 +210,21 @@ INPLANE_SIGNS = ("In-plane (chordwise) loads, limit; shear positive aft (+x), "
 
 def plot_inplane(run):
     """In-plane (chordwise) shear and bending against span, with their sign convention."""
+    from matplotlib.collections import LineCollection
+
     fig, axes = _figure(2, 1, size=(8, 6), margins=(0.12, 0.97, 0.09, 0.93), sharex=True)
     env = ea.table(run.envelope) if run.envelope is not None else None
     many = len(run.cases) > MAX_CASE_LINES
     for ax, (attr, q, label) in zip(axes, INPLANE):
-        for k, c in enumerate(run.cases):
-            kw = {"color": "0.7", "lw": 0.6} if many else {"lw": 1.2}
-            lab = (f"{len(run.cases)} cases, limit" if k == 0 else None) if many else mpl_text(c.name)
-            ax.plot(c.loads.y, getattr(c.loads, attr), label=lab, **kw)
+        if many:  # one collection for all cases (as in plot_loads)
+            segs = [np.column_stack([np.asarray(c.loads.y, float),
+                                     np.asarray(getattr(c.loads, attr), float)]) for c in run.cases]
+            ax.add_collection(LineCollection(segs, colors="0.7", linewidths=0.6,
+                                             label=f"{len(segs)} cases, limit"))
+            ax.autoscale_view()
+        else:
+            for c in run.cases:
+                ax.plot(c.loads.y, getattr(c.loads, attr), lw=1.2, label=mpl_text(c.name))
         if env is not None:
             for side in ("max", "min"):
                 ax.plot(env["y"], env[f"{q}_{side}"], "r-", lw=2.0,
@@ -283,6 +290,16 @@ def plot_vn(vn):
     return fig
 
 
+def plot_names(run) -> tuple:
+    """The names of the plots `build_figures` makes for `run` (file names without suffix)."""
+    return ("planform", "spanwise", "cl_alpha", "loads", "inplane") + (
+        ("vn",) if run.vn is not None else ())
+
+
+def _formats(name) -> tuple:
+    return ("png", "svg") if name == "vn" else ("png",)
+
+
 def build_figures(run) -> dict:
     """name -> Figure (or the Exception that stopped it, so the report can say so)."""
     makers = {"planform": lambda: plot_planform(run.stations, run.planform, run.lattice),
@@ -299,13 +316,53 @@ def build_figures(run) -> dict:
     return out
 
 
-def make_plots(run, folder, inputs=()) -> dict:
-    """Write every plot as folder/<name>.png (vn also .svg); returns name -> PNG path or Exception."""
+def plot_images(run) -> dict:
+    """name -> {format: file bytes} for every plot (PNG; the V-n diagram also SVG), or the
+    Exception that stopped that plot. Writes no file, so it can run in another process."""
     out = {}
     for name, fig in build_figures(run).items():
         if isinstance(fig, Exception):
             out[name] = fig
             continue
-        fmts = ("png", "svg") if name == "vn" else ("png",)
-        out[name] = save_figure(fig, Path(folder) / name, fmts, inputs)[0]
+        try:
+            out[name] = {fmt: figure_bytes(fig, fmt) for fmt in _formats(name)}
+        except Exception as exc:  # a drawing failure costs only this plot
+            out[name] = exc
     return out
+
+
+def write_plot_images(images: dict, folder, inputs=()) -> dict:
+    """Write `plot_images`'s bytes as folder/<name>.<format> atomically; name -> PNG path, or the
+    Exception kept from drawing. A write failure (full disk...) raises OutputError."""
+    out = {}
+    for name, v in images.items():
+        if isinstance(v, dict):
+            paths = []
+            for fmt, data in v.items():
+                p = Path(folder) / f"{name}.{fmt}"
+                write_bytes_atomic(p, bytes(data), inputs)
+                paths.append(p)
+            out[name] = paths[0]
+        else:
+            out[name] = v
+    return out
+
+
+def make_plots(run, folder, inputs=()) -> dict:
+    """Write every plot as folder/<name>.png (vn also .svg); returns name -> PNG path or Exception."""
+    return write_plot_images(plot_images(run), folder, inputs)
+
+
+def _plot_images_sendable(run) -> dict:
+    """`plot_images` with each Exception replaced by a RuntimeError carrying its text (an
+    exception of any type may not survive the trip back to the parent process)."""
+    return {k: (v if isinstance(v, dict) else RuntimeError(f"{type(v).__name__}: {v}"))
+            for k, v in plot_images(run).items()}
+
+
+def start_plot_process(run):
+    """`plot_images(run)` in a forked child (`forked.ForkedJob`; None where fork is unavailable):
+    ``job.result()`` gives its dict, ``job.stop()`` in a finally block ends it."""
+    from geomload.export.forked import ForkedJob
+
+    return ForkedJob.start(_plot_images_sendable, (run,), plot_names(run), "plot")

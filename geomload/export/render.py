@@ -350,95 +350,18 @@ def view(run_dir, case=None, screenshot=None):
 
 
 # ------------------------------------------------------------------ pictures in another process
-def _render_child(conn, run, surface) -> None:  # pragma: no cover - runs in the child
-    import os
-    import signal
-
-    try:  # end with the parent: the kernel sends SIGTERM when the parent dies (Linux)
-        import ctypes
-
-        ctypes.CDLL(None, use_errno=True).prctl(1, signal.SIGTERM)  # PR_SET_PDEATHSIG
-    except Exception:  # noqa: BLE001 - not Linux: the parent still stops the child itself
-        pass
-    for s in (signal.SIGINT, signal.SIGTERM, signal.SIGHUP):
-        signal.signal(s, signal.SIG_DFL)
-    code = 0
-    try:
-        conn.send(render_images(run, surface))
-    except BaseException:  # noqa: BLE001 - the parent reports the pictures as unavailable
-        code = 1
-    finally:
-        conn.close()
-        os._exit(code)
+from geomload.export.forked import BUSY_MARGIN, ForkedJob, parallel_pays  # noqa: E402,F401
 
 
-class RenderProcess:
+class RenderProcess(ForkedJob):
     """`render_images(run, surface)` in a forked child process, while the parent writes tables,
-    VTK files and plots. The child writes no file: it sends the PNG bytes back and the parent
-    writes them (so a full disk or an interrupt is handled in one place). A crash of the child
-    (VTK/OpenGL) costs only the pictures: `result()` then returns the reason for each.
+    VTK files and plots (see `forked.ForkedJob`: the child writes no file; a crash of the child
+    costs only the pictures, `result()` then gives the reason for each of RENDERS).
 
     Use ``job = RenderProcess.start(run, surface)`` (None where fork is unavailable), then
     ``job.result()``; ``job.stop()`` in a finally block ends the child if still running.
     """
 
-    def __init__(self, proc, conn):
-        self.proc, self.conn = proc, conn
-
     @classmethod
     def start(cls, run, surface=None):
-        import multiprocessing as mp
-
-        try:
-            ctx = mp.get_context("fork")
-        except ValueError:
-            return None
-        recv, send = ctx.Pipe(duplex=False)
-        proc = ctx.Process(target=_render_child, args=(send, run, surface), daemon=True)
-        proc.start()
-        send.close()
-        return cls(proc, recv)
-
-    def result(self) -> dict:
-        try:
-            out = self.conn.recv()
-        except (EOFError, OSError):
-            self.proc.join(5)
-            why = RuntimeError(f"the render process ended without pictures (exit code "
-                               f"{self.proc.exitcode})")
-            out = {name: why for name in RENDERS}
-        finally:
-            self.conn.close()
-        self.proc.join(5)
-        return out
-
-    def stop(self) -> None:
-        if self.proc.is_alive():
-            self.proc.terminate()
-            self.proc.join(5)
-            if self.proc.is_alive():
-                self.proc.kill()
-                self.proc.join(5)
-        with __import__("contextlib").suppress(OSError):
-            self.conn.close()
-
-
-BUSY_MARGIN = 0.5  # a CPU counts as free when the 1-minute load leaves at least half of it idle
-
-
-def parallel_pays() -> bool:
-    """Render in a second process only when a second CPU is free for it: at least two CPUs
-    for this process and a 1-minute load average below (CPUs - 1 + BUSY_MARGIN). On a busy
-    machine the two processes would only take turns (measured: no gain at load 10 on 2 CPUs)."""
-    import os
-
-    try:
-        ncpu = len(os.sched_getaffinity(0))
-    except AttributeError:
-        ncpu = os.cpu_count() or 1
-    if ncpu < 2:
-        return False
-    try:
-        return os.getloadavg()[0] < ncpu - 1 + BUSY_MARGIN
-    except OSError:
-        return True
+        return super().start(render_images, (run, surface), tuple(RENDERS), "render")

@@ -11,8 +11,9 @@ of each string, each ended by a NUL byte. Any Unicode name therefore survives th
 array *names* are ASCII (see textsafe.ascii_key).
 
 The file is written through `atomic.atomic_path` (temporary file, every write's byte count
-checked, fsync, rename): a full disk or a read-only file system raises one OutputError and
-leaves nothing behind.
+checked, fsync (inside a staged run folder: the folder's one pass, `atomic.sync_at_end`),
+rename): a full disk or a read-only file system raises one OutputError and leaves nothing
+behind.
 """
 
 from __future__ import annotations
@@ -22,7 +23,7 @@ from xml.sax.saxutils import quoteattr
 
 import numpy as np
 
-from geomload.export.atomic import atomic_path
+from geomload.export.atomic import atomic_path, flush_to_disk
 
 _TYPES = {np.dtype("<f8"): "Float64", np.dtype("<f4"): "Float32", np.dtype("<i8"): "Int64",
           np.dtype("<i4"): "Int32", np.dtype("<u1"): "UInt8", np.dtype("<i1"): "Int8"}
@@ -117,8 +118,7 @@ def write_vtp(path, points, polys=None, lines=None, point_data=None, cell_data=N
                 _put(fh, np.uint64(nbytes).astype("<u8").tobytes())
                 _put(fh, memoryview(a).cast("B") if a.size else b"")
             _put(fh, tail)
-            fh.flush()
-            os.fsync(fh.fileno())
+            flush_to_disk(fh, path)
             size = os.fstat(fh.fileno()).st_size
         if size != expect:
             raise OSError(5, f"file is {size} bytes, expected {expect}")

@@ -37,7 +37,7 @@ def _col(a, n, name, default=0.0):
     a = np.asarray(a, dtype=float)
     if a.ndim == 0:
         return np.full(n, float(a))
-    if a.shape != (n,) or not np.all(np.isfinite(a)):
+    if a.shape != (n,) or not np.isfinite(a).all():
         raise InputError(f"integrate_loads: {name} must be {n} finite values, got shape {a.shape}")
     return a
 

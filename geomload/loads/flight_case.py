@@ -52,12 +52,29 @@ def applied_loads(grid: LoadGrid, trimmed, strip_width, masses: MassDistribution
     point_loads = tuple(PointLoad(p.name, p.position,
                                   np.array([-p.force[2] * sa, 0.0, p.force[2] * ca]))
                         for p in point_loads)
-    side = -lift * np.gradient(grid.load_z, y)
+    side = -lift * _slope(grid.load_z, y)
     return AppliedLoads(lift_N_per_m=lift, drag_N_per_m=drag, side_N_per_m=side,
                         pitch_Nm_per_m=pitch, load_x_m=grid.load_x, load_z_m=grid.load_z,
                         inertia_N_per_m=inertia, inertia_x_m=masses.x_m, inertia_z_m=masses.z_m,
                         point_loads=point_loads, alpha_deg=trimmed.alpha_deg,
                         inertia_alpha_deg=tilt)
+
+
+_SLOPES: dict = {}  # (z, y) bytes -> read-only dz/dy: every case of a run shares one grid
+_SLOPES_KEEP = 8
+
+
+def _slope(z, y) -> np.ndarray:
+    """np.gradient(z, y), computed once per grid (returned read-only and shared)."""
+    key = (z.tobytes(), y.tobytes())
+    hit = _SLOPES.get(key)
+    if hit is None:
+        hit = np.gradient(z, y)
+        hit.setflags(write=False)
+        if len(_SLOPES) >= _SLOPES_KEEP:
+            _SLOPES.clear()
+        _SLOPES[key] = hit
+    return hit
 
 
 def grid_twist_deg(grid: LoadGrid) -> np.ndarray:

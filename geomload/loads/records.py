@@ -26,7 +26,7 @@ def _vector(name: str, a, n: int, *, finite: bool = True, width: Optional[int] =
     shape = (n,) if width is None else (n, width)
     if a.shape != shape:
         raise InputError(f"{name}: expected shape {shape}, got {a.shape}")
-    if finite and not np.all(np.isfinite(a)):
+    if finite and not np.isfinite(a).all():  # the method: no dispatch overhead per call
         raise InputError(f"{name}: must be finite")
     return a
 

@@ -1,4 +1,5 @@
-"""STL reader: binary fast path (one structured `numpy.fromfile`) and a line-checked ASCII parser.
+"""STL reader: binary fast path (structured `numpy.fromfile`, block by block) and a line-checked
+ASCII parser.
 
 Binary STL: an 80-byte header, a little-endian uint32 triangle count, then 50-byte records
 (normal, three vertices as float32, a 16-bit attribute). No vertex welding: plane cutting works
@@ -9,7 +10,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from ...errors import GeometryError
+from ...errors import GeometryError, InputError
 
 STL_RECORD = np.dtype([("n", "<f4", (3,)), ("v", "<f4", (3, 3)), ("attr", "<u2")])
 _KEYWORDS = {"solid", "facet", "outer", "vertex", "endloop", "endfacet", "endsolid"}
@@ -20,13 +21,51 @@ def read(path, ext, size):
     return [read_stl(path, size)], None
 
 
+class BinaryStl:
+    """The vertices (m, 3, 3) float32 of a binary STL, read from the file block by block when
+    sliced: the float64 copy (`readers._to_metres`) is then made without the whole file's
+    50-byte records in memory beside it (a 4-million-triangle file: 200 MB of records next to
+    the 288 MB copy). Only contiguous slices; `np.asarray(obj)` / `astype` read everything.
+    """
+
+    def __init__(self, path, count):
+        self.path, self.shape = path, (count, 3, 3)
+
+    def __len__(self):
+        return self.shape[0]
+
+    def __getitem__(self, sl):
+        if not isinstance(sl, slice):
+            raise IndexError("binary STL: only contiguous slices")
+        start, stop, step = sl.indices(self.shape[0])
+        if step != 1:
+            raise IndexError("binary STL: only contiguous slices")
+        n = max(0, stop - start)
+        try:
+            rec = np.fromfile(self.path, dtype=STL_RECORD, count=n,
+                              offset=84 + STL_RECORD.itemsize * start)
+        except OSError as exc:
+            raise InputError(f"{self.path}: cannot be read ({exc.strerror or exc})") from None
+        if rec.shape[0] != n:
+            raise GeometryError(f"{self.path}: truncated binary STL (the file changed while it "
+                                f"was read: {rec.shape[0]} of {n} triangles at {start})")
+        return rec["v"]
+
+    def astype(self, dtype, copy=True):
+        return self[:].astype(dtype)
+
+    def __array__(self, dtype=None, copy=None):
+        v = self[:]
+        return v if dtype is None else v.astype(dtype)
+
+
 def read_stl(path, size):
     with open(path, "rb") as f:
         head = f.read(84)
     if len(head) >= 84:
         count = int(np.frombuffer(head[80:84], "<u4")[0])
         if size == 84 + 50 * count:
-            return np.fromfile(path, dtype=STL_RECORD, count=count, offset=84)["v"]
+            return BinaryStl(path, count)
     if head.lstrip()[:5].lower() == b"solid":
         return _read_ascii_stl(path)
     if len(head) < 84:

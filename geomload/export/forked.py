@@ -1,0 +1,102 @@
+"""Pictures made in a forked child process while the parent writes the other outputs.
+
+The child writes no file: it sends back {name: bytes-like value or Exception} and the parent
+writes the files (so a full disk, an interrupt or an input check is handled in one place). A
+crash of the child (a segfault in VTK or OpenGL, a kill) costs only its pictures: `result()` then
+returns the reason for each expected name. Used for the 3-D renders (`render.RenderProcess`) and
+the 2-D plots (`plots.PlotProcess`).
+"""
+
+from __future__ import annotations
+
+import contextlib
+import os
+
+BUSY_MARGIN = 0.5  # a CPU counts as free when the 1-minute load leaves at least half of it idle
+
+
+def parallel_pays(jobs: int = 1) -> bool:
+    """True when `jobs` child processes would each find a CPU: at least jobs + 1 CPUs for this
+    process and a 1-minute load average below (CPUs - jobs + BUSY_MARGIN). On a busy machine the
+    processes would only take turns (measured: no gain at load 10 on 2 CPUs)."""
+    try:
+        ncpu = len(os.sched_getaffinity(0))
+    except AttributeError:
+        ncpu = os.cpu_count() or 1
+    if ncpu < jobs + 1:
+        return False
+    try:
+        return os.getloadavg()[0] < ncpu - jobs + BUSY_MARGIN
+    except OSError:
+        return True
+
+
+def _child(conn, fn, args) -> None:  # pragma: no cover - runs in the child
+    import signal
+
+    try:  # end with the parent: the kernel sends SIGTERM when the parent dies (Linux)
+        import ctypes
+
+        ctypes.CDLL(None, use_errno=True).prctl(1, signal.SIGTERM)  # PR_SET_PDEATHSIG
+    except Exception:  # noqa: BLE001 - not Linux: the parent still stops the child itself
+        pass
+    for s in (signal.SIGINT, signal.SIGTERM, signal.SIGHUP):
+        signal.signal(s, signal.SIG_DFL)
+    code = 0
+    try:
+        conn.send(fn(*args))
+    except BaseException:  # noqa: BLE001 - the parent reports the pictures as unavailable
+        code = 1
+    finally:
+        conn.close()
+        os._exit(code)
+
+
+class ForkedJob:
+    """`fn(*args)` (returning a dict) in a forked child process.
+
+    Use ``job = ForkedJob.start(fn, args, names, what)`` (None where fork is unavailable), then
+    ``job.result()``; ``job.stop()`` in a finally block ends the child if still running.
+    `names`: the keys expected back, each given the reason when the child dies without a result;
+    `what`: the job's name in that reason ("render", "plot").
+    """
+
+    def __init__(self, proc, conn, names=(), what="picture"):
+        self.proc, self.conn, self.names, self.what = proc, conn, tuple(names), what
+
+    @classmethod
+    def start(cls, fn, args=(), names=(), what="picture"):
+        import multiprocessing as mp
+
+        try:
+            ctx = mp.get_context("fork")
+        except ValueError:
+            return None
+        recv, send = ctx.Pipe(duplex=False)
+        proc = ctx.Process(target=_child, args=(send, fn, tuple(args)), daemon=True)
+        proc.start()
+        send.close()
+        return cls(proc, recv, names, what)
+
+    def result(self) -> dict:
+        try:
+            out = self.conn.recv()
+        except (EOFError, OSError):
+            self.proc.join(5)
+            why = RuntimeError(f"the {self.what} process ended without pictures (exit code "
+                               f"{self.proc.exitcode})")
+            out = {name: why for name in self.names}
+        finally:
+            self.conn.close()
+        self.proc.join(5)
+        return out
+
+    def stop(self) -> None:
+        if self.proc.is_alive():
+            self.proc.terminate()
+            self.proc.join(5)
+            if self.proc.is_alive():
+                self.proc.kill()
+                self.proc.join(5)
+        with contextlib.suppress(OSError):
+            self.conn.close()
