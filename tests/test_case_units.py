@@ -1,10 +1,13 @@
-"""Case-file values written with their unit ("52 kt", "1500 ft") and the renamed keys (old
-spellings still read, with a warning naming the new key).
+"""Case-file values written with their unit ("52 kt", "1500 ft", "1320 lb", "350 mm") and the
+renamed keys (old spellings still read: keys ending in their unit as they were, the others with
+a warning naming the new key).
 
-Unit factors, exact by definition (NIST SP 811): knot = 1852 m / 3600 s, foot = 0.3048 m,
-statute mile = 1609.344 m, km/h = 1000 m / 3600 s.
+Unit factors, exact by definition (NIST SP 811, Appendix B; the 1959 international yard and
+pound agreement): knot = 1852 m / 3600 s, foot = 0.3048 m, inch = 0.0254 m, pound = 0.45359237
+kg, statute mile = 1609.344 m, km/h = 1000 m / 3600 s.
 """
 
+import numpy as np
 import pytest
 
 from geomload.config import read_case_file
@@ -15,7 +18,7 @@ HEAD = """\
 [geometry]
 file = "wing.stl"
 [aircraft]
-gross_mass_kg = 36.0
+{gross}
 {aircraft}
 [[load_case]]
 name = "pull-up"
@@ -27,10 +30,10 @@ load_factor = 3.8
 
 
 def read(tmp_path, aircraft="section_cl_max = 1.3", speed='speed = "52 kt"',
-         altitude='altitude = "1500 ft"', extra=""):
+         altitude='altitude = "1500 ft"', extra="", gross="gross_mass_kg = 36.0"):
     (tmp_path / "wing.stl").write_text("solid x\nendsolid x\n")
     p = tmp_path / "case.toml"
-    p.write_text(HEAD.format(aircraft=aircraft, speed=speed, altitude=altitude) + extra)
+    p.write_text(HEAD.format(aircraft=aircraft, speed=speed, altitude=altitude, gross=gross) + extra)
     return read_case_file(p)
 
 
@@ -87,3 +90,94 @@ def test_batch_variant_of_a_value_with_its_unit_keeps_the_unit():
 
     assert _typed("load_case[1].speed", "40", "30 kt", 40) == "40 kt"
     assert _typed("title", "x", "QM-36", "x") == "x"
+
+
+MASSES = """\
+[wing_mass]
+mass = {wing}
+[[point_mass]]
+name = "pod"
+mass = {pod}
+x = {x}
+y = {y}
+z = {z}
+[[fuel_tank]]
+name = "tank"
+mass = {tank}
+y_from = {y_from}
+y_to = {y_to}
+[spar]
+points = [[{sx}, 0.0, 0.0], [0.1, {sy}, 0.0]]
+rib_y = [0.0, {rib}]
+[moment_reference]
+x = {rx}
+"""
+TEXT = dict(wing='"6.6 lb"', pod='"1320 lb"', x='"4 in"', y='"350 mm"', z='"-2 in"',
+            tank='"2.5 kg"', y_from='"0.5 ft"', y_to='"3 ft"', sx='"80 mm"', sy='"5 ft"',
+            rib='"4.5 ft"', rx='"3.5 in"')
+
+
+def test_masses_and_lengths_with_their_unit(tmp_path):
+    # exact by definition (NIST SP 811, App. B; 1959 international yard and pound agreement):
+    # 1 lb = 0.45359237 kg, 1 in = 0.0254 m, 1 ft = 0.3048 m, 1 mm = 1e-3 m
+    c = read(tmp_path, gross='gross_mass = "3000 lb"', extra=MASSES.format(**TEXT))
+    src = "NIST SP 811 App. B (1959 yard and pound, exact)"
+    check(src, "gross mass 3000 lb (kg)", 3000 * 0.45359237, c.aircraft.gross_mass_kg, rel=1e-15)
+    check(src, "point mass 1320 lb (kg)", 598.7419284, c.point_masses[0].mass, rel=1e-15)
+    check(src, "wing mass 6.6 lb (kg)", 6.6 * 0.45359237, c.wing_mass.total_kg, rel=1e-15)
+    assert c.point_masses[0].position == pytest.approx([0.1016, 0.35, -0.0508], rel=1e-15)
+    check(src, "tank end 3 ft (m)", 0.9144, c.fuel_tanks[0].y_to_m, rel=1e-15)
+    assert c.fuel_tanks[0].y_from_m == pytest.approx(0.1524, rel=1e-15)
+    assert np.array(c.spar.line) == pytest.approx(np.array([[0.0, 0.08, 0.0], [1.524, 0.1, 0.0]]),
+                                                  rel=1e-15)  # (y, x, z) rows
+    assert c.spar.rib_y_m == pytest.approx((0.0, 1.3716), rel=1e-15)
+    check(src, "moment reference x 3.5 in (m)", 0.0889, c.moment_reference[0], rel=1e-15)
+    assert c.warnings == ()
+
+
+def test_older_spellings_read_the_same(tmp_path):
+    # a key ending in its unit takes a number in that unit; a plain number is SI (kg, m)
+    new = read(tmp_path, gross="gross_mass = 700.0", extra=MASSES.format(
+        wing=3.0, pod=1.5, x=0.1, y=0.35, z=0.0, tank=2.5, y_from=0.15, y_to=0.9, sx=0.08,
+        sy=1.5, rib=1.3, rx=0.09))
+    old_text = (MASSES.replace("mass = {wing}", "total_kg = {wing}")
+                .replace("mass = {pod}", "mass_kg = {pod}").replace("mass = {tank}", "mass_kg = {tank}")
+                .replace("x = {x}", "x_m = {x}").replace("y = {y}", "y_m = {y}")
+                .replace("z = {z}", "z_m = {z}").replace("y_from = ", "y_from_m = ")
+                .replace("y_to = ", "y_to_m = ").replace("rib_y = ", "rib_y_m = ")
+                .replace("x = {rx}", "x_m = {rx}")
+                .replace("points = [[{sx}, 0.0, 0.0], [0.1, {sy}, 0.0]]",
+                         "line = [[0.0, {sx}, 0.0], [{sy}, 0.1, 0.0]]"))
+    old = read(tmp_path, gross="gross_mass_kg = 700.0", extra=old_text.format(
+        wing=3.0, pod=1.5, x=0.1, y=0.35, z=0.0, tank=2.5, y_from=0.15, y_to=0.9, sx=0.08,
+        sy=1.5, rib=1.3, rx=0.09))
+    assert old.aircraft == new.aircraft and old.wing_mass == new.wing_mass
+    assert old.fuel_tanks == new.fuel_tanks and old.spar == new.spar
+    assert old.point_masses[0].position.tolist() == new.point_masses[0].position.tolist()
+    assert old.moment_reference.tolist() == new.moment_reference.tolist()
+    # only the spar line's older row order is worth a warning: the unit suffixes are exact
+    assert len(old.warnings) == 1 and "spar.line" in old.warnings[0]
+    assert old.key("point_mass[1].y") == "point_mass[1].y_m"
+
+
+@pytest.mark.parametrize("edit,msg", [
+    (("pod", '"3 m"'), "point_mass[1].mass: unit 'm' is not one of kg, lb (a mass)"),
+    (("y", '"35 cm/s"'), "point_mass[1].y: unit 'cm/s' is not one of m, cm, mm, in, ft"),
+    (("y_to", '"3 yd"'), "fuel_tank[1].y_to: unit 'yd' is not one of m, cm, mm, in, ft"),
+    (("rib", '"1 mi"'), "spar.rib_y: spanwise positions (wing-frame y): unit 'mi' is not one of"),
+    (("sy", '"fast"'), "spar.points: [x, y, z] points: write a number and a unit"),
+])
+def test_a_wrong_unit_names_the_key_and_the_units(tmp_path, edit, msg):
+    with pytest.raises(CaseError) as exc:
+        read(tmp_path, gross="gross_mass = 700.0", extra=MASSES.format(**{**TEXT, edit[0]:
+                                                                             edit[1]}))
+    assert msg in str(exc.value) and "\n" not in str(exc.value), str(exc.value)
+
+
+def test_a_key_ending_in_its_unit_refuses_another_unit(tmp_path):
+    with pytest.raises(CaseError) as exc:
+        read(tmp_path, gross='gross_mass_kg = "1500 lb"')
+    assert ('aircraft.gross_mass_kg: its name fixes the unit (kg): give a number, or write the '
+            'value with its unit as gross_mass = "1500 lb"') in str(exc.value)
+    with pytest.raises(CaseError, match="give either gross_mass_kg or gross_mass, not both"):
+        read(tmp_path, gross="gross_mass_kg = 700.0\ngross_mass = 700.0")
