@@ -181,3 +181,25 @@ def test_a_key_ending_in_its_unit_refuses_another_unit(tmp_path):
             'value with its unit as gross_mass = "1500 lb"') in str(exc.value)
     with pytest.raises(CaseError, match="give either gross_mass_kg or gross_mass, not both"):
         read(tmp_path, gross="gross_mass_kg = 700.0\ngross_mass = 700.0")
+
+
+def test_flap_speeds_with_their_unit(tmp_path):
+    import tomllib
+    from pathlib import Path
+
+    from geomload.config import toml_value
+
+    sample = Path(__file__).resolve().parent.parent / "sample_geometry" / "pellin_case.toml"
+    text = sample.read_text(encoding="utf-8")
+    geo = tomllib.loads(text)["geometry"]["file"]
+    text = text.replace(f'"{geo}"', toml_value(str((sample.parent / geo).resolve())), 1)
+    assert "v_sf = 13.5" in text and "v_f = 25.0" in text
+    p = tmp_path / "flaps.toml"
+    p.write_text(text.replace("v_sf = 13.5", 'v_sf = "48.6 km/h"').replace(
+        "v_f = 25.0", 'v_f = "55.923 mph"'), encoding="utf-8")
+    flaps = read_case_file(p).controls.flaps
+    # km/h = 1000 m / 3600 s, mph = 1609.344 m / 3600 s (NIST SP 811, exact)
+    check("NIST SP 811 (exact unit definitions)", "v_sf 48.6 km/h (m/s)", 13.5, flaps.v_sf,
+          rel=1e-12)
+    check("NIST SP 811 (exact unit definitions)", "v_f 55.923 mph (m/s)",
+          55.923 * 1609.344 / 3600, flaps.v_f, rel=1e-12)
