@@ -39,7 +39,7 @@ def _cad_row(t, k) -> tuple:
     if len(v) != 3:
         t.fail(k, "must be one [x, y, z] point in CAD coordinates")
     vals, unit = t.rows(k, 1, "length", "coordinates", min_rows=3)
-    return tuple(vals[:, 0]), tuple(unit[:, 0])
+    return tuple(float(v) for v in vals[:, 0]), tuple(bool(u) for u in unit[:, 0])
 
 
 WING_ONLY = 'is a wing-frame key (metres); with frame = "cad" give the CAD coordinates'
@@ -118,8 +118,8 @@ def spar(t, cad: list) -> SparSpec:
         arr, unit = t.rows("points", 3, "length", "[x, y, z] points", min_rows=2)
         key = "points"
         if frame == "cad":
-            cad.append(CadPosition(t.key("points"), ("spar",), tuple(map(tuple, arr)),
-                                   tuple(map(tuple, unit))))
+            cad.append(CadPosition(t.key("points"), ("spar",), tuple(map(tuple, arr.tolist())),
+                                   tuple(map(tuple, unit.tolist()))))
             return SparSpec(None, (), rib_y_m=ribs)
     else:
         if frame == "cad":

@@ -74,7 +74,7 @@ def resolve_positions(case: Case, wing) -> tuple:
             names.update({f"{cp.key}.y_from": what, f"{cp.key}.y_to": what})
             notes.append(f"{what}: the tank spans wing-frame y {y_from:.4g} to {y_to:.4g} m")
         elif kind == "spar":
-            line = _spar_line(case, what, wing_pts, frame.full_span)
+            line = _spar_line(case, what, wing_pts, frame.full_span, _tolerance(st))
             spar = dataclasses.replace(spar, chord_fraction=None, line=line)
             names["spar.points"] = what
             notes.append(f"{what}: the spar line runs from wing-frame (x, y, z) = "
@@ -137,12 +137,16 @@ def _starboard(case, what, q, frame, st) -> tuple:
     return q, False
 
 
-def _spar_line(case, what, pts, full_span) -> tuple:
+def _spar_line(case, what, pts, full_span, tol) -> tuple:
     """((y, x, z), ...) of the spar points, root to tip, all on the starboard side."""
     y = pts[:, 1]
-    if full_span and np.all(y < 0):
+    if full_span and np.all(y <= tol):
         pts = pts * np.array([1.0, -1.0, 1.0])  # the port half of a full wing: its mirror image
         y = pts[:, 1]
+    if np.any(y < -tol):
+        _fail(case, what, "the points must lie on one side of the plane of symmetry (wing-frame "
+                          f"y {', '.join(f'{v:.4g}' for v in y)} m): check the CAD coordinates "
+                          "and unit")
     d = np.diff(y)
     if np.all(d < 0):
         pts, d = pts[::-1], -d[::-1]
