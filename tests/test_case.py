@@ -109,7 +109,8 @@ def test_template_alternatives_in_the_cad_frame_load(tmp_path):
     replaced = {"point_mass": ("x", "y", "z"), "fuel_tank": ("y_from", "y_to"),
                 "spar": ("chord_fraction",)}
     for line in text.splitlines():
-        table = re.match(r"#? ?\[\[?([a-z_]+)", line).group(1) if re.match(r"#? ?\[", line) else table
+        head = re.match(r"#? ?\[\[?([a-z_]+)", line)
+        table = head.group(1) if head else table
         alt = re.match(r"#   ([a-z_]+ = .*?)(\s+#.*)?$", line)
         main = re.match(r"(# )?(([a-z_]+) = .*)", line)
         if alt and table in replaced:
@@ -124,7 +125,8 @@ def test_template_alternatives_in_the_cad_frame_load(tmp_path):
     c = load_case(write(tmp_path, "\n".join(lines) + "\n"))
     assert [p.key for p in c.cad_positions] == ["point_mass[1]", "fuel_tank[1]"]
     assert c.cad_positions[0].values == ((512.0, -830.5, 40.2),)
-    assert c.spar.line == ((0.0, 0.09, 0.0), (1.5, 0.12, 0.08)) and c.spar.rib_y_m == (0.0, 0.3, 0.6)
+    assert c.spar.line == ((0.0, 0.09, 0.0), (1.5, 0.12, 0.08))
+    assert c.spar.rib_y_m == (0.0, 0.3, 0.6)
 
 
 def test_template_escapes_the_geometry_path():

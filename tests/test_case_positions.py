@@ -205,3 +205,24 @@ def test_cad_entry_errors_name_the_key(model, pod, key, fragment):
         read_case_file(p)
     msg = str(err.value)
     assert f"{key}:" in msg and fragment in msg and "\n" not in msg, msg
+
+
+def test_port_point_of_a_full_wing_is_its_starboard_mirror(tmp_path):
+    # a full wing in metres, Z up (the design frame): a pod measured on the port wing is the
+    # mirror image of the starboard one (mirror symmetry of the model: a geometric identity)
+    write_stl(tmp_path / "full.stl", wing_triangles(design(), 60, 24, full_span=True))
+    text = CASE.replace('"port_yup_mm.stl"\nunits = "mm"', '"full.stl"\nunits = "m"')
+    got, notes = {}, {}
+    for side, y in (("starboard", 0.9), ("port", -0.9)):
+        p = tmp_path / f"{side}.toml"
+        p.write_text(text.format(pod='frame = "cad"\n' + toml_xyz([0.12, y, -0.03]),
+                                 tank="y_from = 0.25\ny_to = 0.7", spar="chord_fraction = 0.3",
+                                 ref="x = 0.09"), encoding="utf-8")
+        case = read_case_file(p)
+        _, wing = case_wing(case, no_progress, CACHE)
+        resolved, msgs = resolve_positions(case, wing)
+        got[side], notes[side] = resolved.point_masses[0].position, [m.text for m in msgs]
+    for k, c in enumerate("xyz"):
+        check(SAME_POINT, f"full wing: port pod {c} against the starboard one (m)",
+              got["starboard"][k], got["port"][k], abs=1e-6)
+    assert "mirror image" in notes["port"][0] and "mirror image" not in notes["starboard"][0]

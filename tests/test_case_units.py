@@ -141,7 +141,8 @@ def test_older_spellings_read_the_same(tmp_path):
         wing=3.0, pod=1.5, x=0.1, y=0.35, z=0.0, tank=2.5, y_from=0.15, y_to=0.9, sx=0.08,
         sy=1.5, rib=1.3, rx=0.09))
     old_text = (MASSES.replace("mass = {wing}", "total_kg = {wing}")
-                .replace("mass = {pod}", "mass_kg = {pod}").replace("mass = {tank}", "mass_kg = {tank}")
+                .replace("mass = {pod}", "mass_kg = {pod}")
+                .replace("mass = {tank}", "mass_kg = {tank}")
                 .replace("x = {x}", "x_m = {x}").replace("y = {y}", "y_m = {y}")
                 .replace("z = {z}", "z_m = {z}").replace("y_from = ", "y_from_m = ")
                 .replace("y_to = ", "y_to_m = ").replace("rib_y = ", "rib_y_m = ")

@@ -72,6 +72,6 @@ def check_spar_inside(case: Case, stations) -> None:
     bad = np.nonzero((sx < lo) | (sx > hi))[0]
     if bad.size:
         k = int(bad[0])
-        raise CaseError(f"{case.path}: {case.key('spar.points')}: at y {stations.y[k]:.4g} m the spar x "
-                        f"{sx[k]:.4g} m is outside the section (leading edge {stations.x_le[k]:.4g} "
-                        f"m, trailing edge {stations.x_te[k]:.4g} m)")
+        raise CaseError(f"{case.path}: {case.key('spar.points')}: at y {stations.y[k]:.4g} m the "
+                        f"spar x {sx[k]:.4g} m is outside the section (leading edge "
+                        f"{stations.x_le[k]:.4g} m, trailing edge {stations.x_te[k]:.4g} m)")

@@ -157,12 +157,12 @@ def _spar_line(case, what, pts, full_span, tol) -> tuple:
 
 
 def _on_wing(case, key, q, st) -> None:
-    """CaseError naming key(coordinate) when the wing-frame point q lies beyond the tip or further than
-    POSITION_MARGIN_CHORDS local chords from the section."""
+    """CaseError naming key(coordinate) when the wing-frame point q lies beyond the tip or
+    further than POSITION_MARGIN_CHORDS local chords from the section."""
     y = float(q[1])
     if y > st.semispan + _tolerance(st):
-        _fail(case, key("y"), f"the point lies at wing-frame y {y:.4g} m, beyond the tip (semi-span "
-                         f"{st.semispan:.4g} m): check its unit and frame")
+        _fail(case, key("y"), f"the point lies at wing-frame y {y:.4g} m, beyond the tip "
+                              f"(semi-span {st.semispan:.4g} m): check its unit and frame")
     at = lambda a: float(np.interp(y, st.y, a))  # noqa: E731
     x_le, x_te, z_le, z_te, c = (at(st.x_le), at(st.x_te), at(st.z_le), at(st.z_te),
                                  at(st.chord))

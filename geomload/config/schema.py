@@ -253,7 +253,8 @@ class Case:
     # config.positions.resolve_positions(case, wing) converts them (the checks refuse a Case
     # that still has some)
     cad_positions: tuple = ()
-    key_names: tuple = ()  # (current key, key as written) pairs, e.g. ("point_mass[1].y", "point_mass[1].y_m")
+    # (current key, key as written) pairs, e.g. ("point_mass[1].y", "point_mass[1].y_m")
+    key_names: tuple = ()
 
     def __post_init__(self):
         if self.load_factor_axis not in LOAD_FACTOR_AXES:
