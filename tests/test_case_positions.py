@@ -226,3 +226,20 @@ def test_port_point_of_a_full_wing_is_its_starboard_mirror(tmp_path):
         check(SAME_POINT, f"full wing: port pod {c} against the starboard one (m)",
               got["starboard"][k], got["port"][k], abs=1e-6)
     assert "mirror image" in notes["port"][0] and "mirror image" not in notes["starboard"][0]
+
+
+def test_cad_coordinates_written_with_their_unit(model, both):
+    # the pod's CAD coordinates in inches instead of CAD millimetres: 1 in = 25.4 mm exactly
+    # (NIST SP 811, App. B); the text's unit wins over the CAD unit
+    folder, _ = model
+    pod = cad_mm(POD)[0]
+    text = 'frame = "cad"\n' + "\n".join(f'{c} = "{float(v) / 25.4!r} in"' for c, v in
+                                         zip("xyz", pod))
+    p = write_case(folder, "inches.toml", text, "y_from = 0.25\ny_to = 0.7",
+                   "chord_fraction = 0.3", "x = 0.09")
+    case = read_case_file(p)
+    resolved, _ = resolve_positions(case, case_wing(case, no_progress, CACHE)[1])
+    mm = both[2].point_masses[0].position
+    for k, c in enumerate("xyz"):
+        check("NIST SP 811 App. B: 1 in = 0.0254 m", f"pod {c} from CAD inches against CAD mm (m)",
+              mm[k], resolved.point_masses[0].position[k], abs=1e-12)

@@ -204,3 +204,53 @@ def test_flap_speeds_with_their_unit(tmp_path):
           rel=1e-12)
     check("NIST SP 811 (exact unit definitions)", "v_f 55.923 mph (m/s)",
           55.923 * 1609.344 / 3600, flaps.v_f, rel=1e-12)
+
+
+NEW_STYLE = (  # the sample's keys ending in their unit, written the one way: value with its unit
+    ("gross_mass_kg = 22.0", 'gross_mass = "22 kg"'), ("total_kg = 3.4", 'mass = "3.4 kg"'),
+    ("mass_kg = 0.12", 'mass = "0.12 kg"'), ("y_m = 1.25", 'y = "1250 mm"'),
+    ("x_m = 0.20", 'x = "200 mm"'), ("z_m = 0.06", 'z = "60 mm"'),
+    ("mass_kg = 0.85", 'mass = "0.85 kg"'), ("y_m = 0.55", 'y = "550 mm"'),
+    ("x_m = 0.10", 'x = "100 mm"'), ("z_m = -0.05", 'z = "-50 mm"'),
+    ("mass_kg = 2.6", 'mass = "2.6 kg"'), ("y_from_m = 0.12", 'y_from = "120 mm"'),
+    ("y_to_m = 0.80", 'y_to = "800 mm"'), ("min_mass_kg = 19.4", 'min_mass = "19.4 kg"'),
+)
+
+
+def test_the_sample_written_with_units_in_its_values_reads_the_same(tmp_path):
+    import tomllib
+    from pathlib import Path
+
+    from geomload.config import toml_value
+
+    sample = Path(__file__).resolve().parent.parent / "sample_geometry" / "pellin_case.toml"
+    text = sample.read_text(encoding="utf-8")
+    geo = tomllib.loads(text)["geometry"]["file"]
+    text = text.replace(f'"{geo}"', toml_value(str((sample.parent / geo).resolve())), 1)
+    new = text
+    for old, value in NEW_STYLE:
+        assert old in new, old
+        new = new.replace(old, value, 1)
+    (tmp_path / "old.toml").write_text(text, encoding="utf-8")
+    (tmp_path / "new.toml").write_text(new, encoding="utf-8")
+    a, b = read_case_file(tmp_path / "old.toml"), read_case_file(tmp_path / "new.toml")
+    # 1 mm = 1e-3 m exactly by definition; the sample's values convert to the same floats
+    assert a.aircraft == b.aircraft and a.wing_mass == b.wing_mass and a.envelope == b.envelope
+    assert a.fuel_tanks == b.fuel_tanks and a.warnings == b.warnings == ()
+    for p, q in zip(a.point_masses, b.point_masses):
+        assert p.name == q.name and p.mass == q.mass
+        assert p.position.tolist() == q.position.tolist()
+
+
+def test_flying_masses_with_their_unit(tmp_path):
+    c = read(tmp_path, speed='speed = "52 kt"\nmass = "70 lb"',
+             extra='[envelope]\ncategory = "normal"\nwing_cn_max_pos = 1.3\n'
+                   'wing_cn_max_neg = 0.8\nmin_mass = "60 lb"\n')
+    # 1 lb = 0.45359237 kg exactly (NIST SP 811 App. B; 1959 yard and pound agreement)
+    check("NIST SP 811 App. B (1959 yard and pound, exact)", "load case mass 70 lb (kg)",
+          70 * 0.45359237, c.load_cases[0].mass_kg, rel=1e-15)
+    check("NIST SP 811 App. B (1959 yard and pound, exact)", "envelope min mass 60 lb (kg)",
+          60 * 0.45359237, c.envelope.min_mass_kg, rel=1e-15)
+    with pytest.raises(CaseError, match=r"load_case\[1\]\.mass: 45\.3592 kg is above "
+                                        r"aircraft\.gross_mass_kg \(36 kg\)"):
+        read(tmp_path, speed='speed = "52 kt"\nmass = "100 lb"')
