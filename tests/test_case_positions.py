@@ -243,3 +243,17 @@ def test_cad_coordinates_written_with_their_unit(model, both):
     for k, c in enumerate("xyz"):
         check("NIST SP 811 App. B: 1 in = 0.0254 m", f"pod {c} from CAD inches against CAD mm (m)",
               mm[k], resolved.point_masses[0].position[k], abs=1e-12)
+
+
+def test_cad_tank_from_the_root_plane(model):
+    # a tank whose inboard end is on the root face: wing-frame y_from = 0 (design, exact)
+    folder, _ = model
+    ends = cad_mm([[0.1, 0.0, 0.0], [0.1, 0.5, 0.0]])
+    p = write_case(folder, "root_tank.toml", toml_xyz(POD),
+                   'frame = "cad"\n' + f"inboard_end = {toml_rows(ends[:1])[1:-1]}\n"
+                   f"outboard_end = {toml_rows(ends[1:])[1:-1]}", "chord_fraction = 0.3",
+                   "x = 0.09")
+    case = read_case_file(p)
+    tank = resolve_positions(case, case_wing(case, no_progress, CACHE)[1])[0].fuel_tanks[0]
+    check(NACA, "tank from the root face: y_from (m)", 0.0, tank.y_from_m, abs=1e-6)
+    check(NACA, "tank from the root face: y_to (m)", 0.5, tank.y_to_m, abs=1e-3)

@@ -65,7 +65,12 @@ def resolve_positions(case: Case, wing) -> tuple:
             names.update({f"{cp.key}.{c}": what for c in "xyz"})
             notes.append(_landed(what, q, flipped))
         elif kind == "fuel_tank":
-            ys = [_starboard(case, what, p, frame, st)[0][1] for p in wing_pts]
+            ends = [_starboard(case, what, p, frame, st, on_root=True) for p in wing_pts]
+            ys = [float(q[1]) for q, _ in ends]
+            if any(f for _, f in ends) and any(not f and y > _tolerance(st) for (_, f), y in
+                                               zip(ends, ys)):
+                _fail(case, what, "the tank's ends lie on both sides of the plane of symmetry: "
+                                  "give the ends of the tank on one side (it is mirrored)")
             y_from, y_to = min(ys), max(ys)
             if not y_to > y_from:
                 _fail(case, what, f"the tank's ends lie at the same wing-frame y ({y_to:.4g} m)")
@@ -121,8 +126,9 @@ def _tolerance(st) -> float:
     return SPAN_TOLERANCE_REL * max(float(st.semispan), 1e-3)
 
 
-def _starboard(case, what, q, frame, st) -> tuple:
-    """(point on the starboard side, mirrored?) of a CAD-frame point in wing coordinates."""
+def _starboard(case, what, q, frame, st, on_root=False) -> tuple:
+    """(point on the starboard side, mirrored?) of a CAD-frame point in wing coordinates.
+    on_root: a point on the plane of symmetry is valid (a tank's inboard end), at y = 0."""
     q = np.asarray(q, float).copy()
     tol = _tolerance(st)
     if q[1] < -tol:
@@ -131,7 +137,9 @@ def _starboard(case, what, q, frame, st) -> tuple:
                               "plane of this half wing: check the CAD coordinates and unit")
         q[1] = -q[1]
         return q, True
-    if q[1] <= tol:
+    if q[1] <= tol and on_root:
+        q[1] = max(q[1], 0.0)
+    elif q[1] <= tol:
         _fail(case, what, "the point lies on the plane of symmetry (wing-frame y = 0); a wing "
                           "item is on one side (it is mirrored to the other)")
     return q, False
