@@ -99,6 +99,7 @@ def test_template_parses_and_loads(tmp_path):
     assert full.point_masses[0].name == "servo" and full.fuel_tanks[0].mass_kg == 2.0
     assert full.moment_reference.tolist() == [0.08, 0.0, 0.0]
     assert full.point_masses[0].position.tolist() == pytest.approx([0.12, 0.8, 0.0], rel=1e-15)
+    assert full.spar.rib_y_m == (0.0, 0.3, 0.6)
 
 
 def test_template_alternatives_in_the_cad_frame_load(tmp_path):
@@ -126,7 +127,6 @@ def test_template_alternatives_in_the_cad_frame_load(tmp_path):
     assert [p.key for p in c.cad_positions] == ["point_mass[1]", "fuel_tank[1]"]
     assert c.cad_positions[0].values == ((512.0, -830.5, 40.2),)
     assert c.spar.line == ((0.0, 0.09, 0.0), (1.5, 0.12, 0.08))
-    assert c.spar.rib_y_m == (0.0, 0.3, 0.6)
 
 
 def test_template_escapes_the_geometry_path():
