@@ -88,7 +88,8 @@ def test_template_parses_and_loads(tmp_path):
     c = load_case(write(tmp_path, text))
     assert c.load_cases[0].name == "pull-up" and c.envelope is None
     # uncommenting the optional point mass, fuel tank, reference and envelope blocks still loads
-    keep = ("table", "cg_chord_fraction", "units", "span_axis", "up_axis", "mass_kg = 22", "fuel_fraction")
+    keep = ("table", "cg_chord_fraction", "units", "span_axis", "up_axis", 'mass = "22',
+            "fuel_fraction")
     lines = []
     for line in text.splitlines():
         m = re.match(r"# ((\[|[a-z_]+ = ).*)", line)
@@ -97,6 +98,35 @@ def test_template_parses_and_loads(tmp_path):
     assert full.envelope.category == "custom" and full.envelope.n_neg == -2.0
     assert full.point_masses[0].name == "servo" and full.fuel_tanks[0].mass_kg == 2.0
     assert full.moment_reference.tolist() == [0.08, 0.0, 0.0]
+    assert full.point_masses[0].position.tolist() == pytest.approx([0.12, 0.8, 0.0], rel=1e-15)
+    assert full.spar.rib_y_m == (0.0, 0.3, 0.6)
+
+
+def test_template_alternatives_in_the_cad_frame_load(tmp_path):
+    """The template's indented alternatives (CAD-frame point mass and tank ends, spar points
+    and ribs) switched on instead of the wing-frame keys they replace: the case reads, the CAD
+    positions wait for the wing."""
+    text, table, lines = template("wing.stl"), "", []
+    replaced = {"point_mass": ("x", "y", "z"), "fuel_tank": ("y_from", "y_to"),
+                "spar": ("chord_fraction",)}
+    for line in text.splitlines():
+        head = re.match(r"#? ?\[\[?([a-z_]+)", line)
+        table = head.group(1) if head else table
+        alt = re.match(r"#   ([a-z_]+ = .*?)(\s+#.*)?$", line)
+        main = re.match(r"(# )?(([a-z_]+) = .*)", line)
+        if alt and table in replaced:
+            lines.append(alt.group(1))
+        elif main and main.group(3) in replaced.get(table, ()):
+            continue
+        elif table in ("point_mass", "fuel_tank") and line.startswith("# ") and (
+                main or line.startswith("# [")):
+            lines.append(line[2:])
+        else:
+            lines.append(line)
+    c = load_case(write(tmp_path, "\n".join(lines) + "\n"))
+    assert [p.key for p in c.cad_positions] == ["point_mass[1]", "fuel_tank[1]"]
+    assert c.cad_positions[0].values == ((512.0, -830.5, 40.2),)
+    assert c.spar.line == ((0.0, 0.09, 0.0), (1.5, 0.12, 0.08))
 
 
 def test_template_escapes_the_geometry_path():

@@ -18,16 +18,22 @@ def check_against_wing(case: Case, stations) -> None:
     """Raise CaseError when a spanwise position of the case lies beyond the semi-span of the
     wing's stations (a Stations record, or the semi-span in metres) by more than
     SPAN_TOLERANCE_REL."""
+    if case.cad_positions:
+        raise CaseError(f"{case.path}: {case.cad_positions[0].key}: given in the CAD frame but not "
+                        "converted to the wing frame (geomload.config.positions.resolve_positions "
+                        "must run once the wing is read)")
     semispan = float(getattr(stations, "semispan", stations))
     tol = SPAN_TOLERANCE_REL * max(semispan, 1e-3)
     span = f"the span (semi-span {semispan:.4g} m)"
     for i, p in enumerate(case.point_masses):
         if p.position[1] > semispan + tol:
-            raise CaseError(f"{case.path}: point_mass[{i + 1}].y_m: {p.position[1]:g} m is outside "
+            raise CaseError(f"{case.path}: {case.key(f'point_mass[{i + 1}].y')}: "
+                            f"{p.position[1]:g} m is outside "
                             f"{span}")
     for i, k in enumerate(case.fuel_tanks):
         if k.y_to_m > semispan + tol:
-            raise CaseError(f"{case.path}: fuel_tank[{i + 1}].y_to_m: {k.y_to_m:g} m is outside "
+            raise CaseError(f"{case.path}: {case.key(f'fuel_tank[{i + 1}].y_to')}: "
+                            f"{k.y_to_m:g} m is outside "
                             f"{span}")
     table_y = case.wing_mass.table_y_m if case.wing_mass is not None else ()
     if table_y and table_y[-1] > semispan + tol:
@@ -43,7 +49,7 @@ def check_against_wing(case: Case, stations) -> None:
                         f"of the root station ({root:.4g} m); give rows from the root to the tip")
     for r in case.spar.rib_y_m:
         if r > semispan + tol:
-            raise CaseError(f"{case.path}: spar.rib_y_m: {r:g} m is outside {span}")
+            raise CaseError(f"{case.path}: {case.key('spar.rib_y')}: {r:g} m is outside {span}")
     if hasattr(stations, "y"):
         check_spar_inside(case, stations)
 
@@ -66,6 +72,6 @@ def check_spar_inside(case: Case, stations) -> None:
     bad = np.nonzero((sx < lo) | (sx > hi))[0]
     if bad.size:
         k = int(bad[0])
-        raise CaseError(f"{case.path}: spar.line: at y {stations.y[k]:.4g} m the spar x "
-                        f"{sx[k]:.4g} m is outside the section (leading edge {stations.x_le[k]:.4g} "
-                        f"m, trailing edge {stations.x_te[k]:.4g} m)")
+        raise CaseError(f"{case.path}: {case.key('spar.points')}: at y {stations.y[k]:.4g} m the "
+                        f"spar x {sx[k]:.4g} m is outside the section (leading edge "
+                        f"{stations.x_le[k]:.4g} m, trailing edge {stations.x_te[k]:.4g} m)")

@@ -1,7 +1,12 @@
-"""Case-file values written with their unit as text ("52 kt", "1500 ft", "48.5 lb", "550 mm"),
-and the keys renamed so that one name means one thing (old spellings read with a warning).
+"""How a case file writes a physical quantity, and the keys renamed so that one name means one
+thing (old spellings still read).
 
-Every factor comes from :mod:`geomload.units`; the result is SI.
+One way across the whole file: a key is named for its quantity (``mass``, ``y``, ``speed``) and
+takes either a plain number in SI (kg, m, m/s: the unit the template and docs/case_file.md give
+for it) or a text ``"<number> <unit>"`` ("1320 lb", "350 mm", "52 kt", "1500 ft"). The older
+spellings keep working: a key ending in its unit (``mass_kg``, ``y_m``) takes a number in that
+unit, and the separate ``*_unit`` keys (with a warning). Every factor comes from
+:mod:`geomload.units`; the result is SI.
 """
 
 from __future__ import annotations
@@ -19,9 +24,17 @@ _TEXT = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*([A-Za-z/
 
 # keys whose value may be written as "<number> <unit>" text, by table -> key -> kind
 QUANTITY_KEYS = {
-    "load_case": {"speed": "speed", "altitude": "altitude"},
+    "aircraft": {"gross_mass": "mass"},
+    "wing_mass": {"mass": "mass"},
+    "point_mass": {"mass": "mass", "x": "length", "y": "length", "z": "length"},
+    "fuel_tank": {"mass": "mass", "y_from": "length", "y_to": "length"},
+    "moment_reference": {"x": "length", "y": "length", "z": "length"},
+    "spar": {"rib_y": "length"},
+    "load_case": {"speed": "speed", "altitude": "altitude", "mass": "mass"},
     "envelope": {"v_cruise": "speed", "v_dive": "speed", "v_maneuver": "speed",
-                 "gust_cruise": "gust", "gust_dive": "gust", "altitudes": "altitude"},
+                 "gust_cruise": "gust", "gust_dive": "gust", "altitudes": "altitude",
+                 "min_mass": "mass"},
+    "flaps": {"v_sf": "speed", "v_f": "speed"},
 }
 # (table, old key) -> new key: the old spelling still works, with a warning naming the new one
 RENAMED = {
@@ -31,6 +44,25 @@ RENAMED = {
     ("load_case", "cd0"): "section_cd0",
     ("envelope", "cl_max_pos"): "wing_cn_max_pos",
     ("envelope", "cl_max_neg"): "wing_cn_max_neg",
+}
+# (table, key ending in its unit) -> (quantity key, that unit): the older spelling, read as a
+# number in the unit its name gives (no warning: it is unambiguous, and SI)
+SUFFIXED = {
+    ("aircraft", "gross_mass_kg"): ("gross_mass", "kg"),
+    ("wing_mass", "total_kg"): ("mass", "kg"),
+    ("point_mass", "mass_kg"): ("mass", "kg"),
+    ("point_mass", "x_m"): ("x", "m"),
+    ("point_mass", "y_m"): ("y", "m"),
+    ("point_mass", "z_m"): ("z", "m"),
+    ("fuel_tank", "mass_kg"): ("mass", "kg"),
+    ("fuel_tank", "y_from_m"): ("y_from", "m"),
+    ("fuel_tank", "y_to_m"): ("y_to", "m"),
+    ("moment_reference", "x_m"): ("x", "m"),
+    ("moment_reference", "y_m"): ("y", "m"),
+    ("moment_reference", "z_m"): ("z", "m"),
+    ("spar", "rib_y_m"): ("rib_y", "m"),
+    ("load_case", "mass_kg"): ("mass", "kg"),
+    ("envelope", "min_mass_kg"): ("min_mass", "kg"),
 }
 # separate unit keys: still read; writing the unit in the value is the one way now
 UNIT_KEYS = {"speed_unit": ("speed", "v_cruise", "v_dive", "v_maneuver"),
@@ -43,29 +75,49 @@ def table_kind(where: str) -> str:
 
 
 def parse_quantity(text: str, kind: str) -> float:
-    """SI value of '<number> <unit>' text of a quantity kind; ValueError with the reason."""
+    """SI value of '<number> <unit>' text of a quantity kind; ValueError with the reason (one
+    line naming the allowed units)."""
     units = UNITS_BY_KIND[kind]
     m = _TEXT.match(text)
     if not m:
-        raise ValueError(f"write a number and a unit, e.g. \"{example(kind)}\"; got {text!r}")
+        raise ValueError(f"write a number and a unit, e.g. \"{example(kind)}\" (units: "
+                         f"{', '.join(units)}); got {text!r}")
     num, unit = float(m.group(1)), m.group(2)
     key = next((u for u in units if u.lower() == unit.lower()), None)
     if key is None:
-        raise ValueError(f"unit {unit!r} is not one of {', '.join(units)}")
+        raise ValueError(f"unit {unit!r} is not one of {', '.join(units)} (a {kind})")
     v = num * units[key]
     if not math.isfinite(v):
         raise ValueError(f"{text!r} is not a finite {kind}")
     return v
 
 
+def number_or_quantity(v, kind: str) -> tuple:
+    """(value, written with its unit) of a case-file value: a number is returned as it is (the
+    caller knows its unit), '<number> <unit>' text in SI. ValueError with the reason."""
+    if isinstance(v, str):
+        return parse_quantity(v, kind), True
+    if isinstance(v, bool) or not isinstance(v, (int, float)):
+        raise ValueError(f"must be a number, or a text such as \"{example(kind)}\"; got {v!r}")
+    try:
+        f = float(v)
+    except OverflowError:
+        raise ValueError("must be a number, got an integer too large to be one") from None
+    if not math.isfinite(f):
+        raise ValueError(f"must be a number, got {v!r} (only finite values are allowed)")
+    return f, False
+
+
 def example(kind: str) -> str:
-    return {"speed": "52 kt", "altitude": "1500 ft", "gust": "15 m/s", "mass": "22 kg",
-            "length": "550 mm"}[kind]
+    return {"speed": "52 kt", "altitude": "1500 ft", "gust": "15 m/s", "mass": "1320 lb",
+            "length": "350 mm"}[kind]
 
 
 def rename_keys(data: dict, where: str, warnings: list) -> str | None:
-    """Move old spellings to their new keys in `data` (in place), adding a warning each; returns
-    the first old key given together with its new key (an error for the caller), else None."""
+    """Move old spellings to their new keys in `data` (in place), adding a warning for each
+    renamed key (none for a key ending in its unit); returns the first old key given together
+    with its new key (an error for the caller), else None. A key ending in its unit whose value
+    is text is left in place for the caller to refuse (see :func:`suffix_conflict`)."""
     kind = table_kind(where)
     for (tab, old), new in RENAMED.items():
         if tab != kind or old not in data:
@@ -74,4 +126,33 @@ def rename_keys(data: dict, where: str, warnings: list) -> str | None:
             return old
         data[new] = data.pop(old)
         warnings.append(f"{where}.{old} is now written {where}.{new} (the old name still works)")
+    for (tab, old), (new, _unit) in SUFFIXED.items():
+        if tab != kind or old not in data or isinstance(data[old], str):
+            continue
+        if new in data:
+            return old
+        data[new] = data.pop(old)
+    return None
+
+
+def suffix_conflict(data: dict, where: str) -> tuple | None:
+    """(key, message) for a key ending in its unit whose value is text ("mass_kg = '2 lb'"):
+    the name fixes the unit, so the text is refused; else None."""
+    kind = table_kind(where)
+    for (tab, old), (new, unit) in SUFFIXED.items():
+        if tab == kind and isinstance(data.get(old), str):
+            if not _TEXT.match(data[old]):
+                return old, f"must be a number (in {unit}), got {data[old]!r}"
+            return old, (f"its name fixes the unit ({unit}): give a number, or write the value "
+                         f"with its unit as {new} = \"{data[old]}\"")
+    return None
+
+
+def new_name(where: str, old: str) -> str | None:
+    """The current name of an old key of table `where`, or None."""
+    kind = table_kind(where)
+    if (kind, old) in RENAMED:
+        return RENAMED[(kind, old)]
+    if (kind, old) in SUFFIXED:
+        return SUFFIXED[(kind, old)][0]
     return None

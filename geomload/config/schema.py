@@ -195,6 +195,35 @@ class LatticeSpec:
             raise CaseError("lattice.n_span: need n_span >= 2 and n_chord >= 1")
 
 
+FRAMES = ("wing", "cad")  # the frames a case-file position may be given in
+
+
+@dataclass(frozen=True)
+class CadPosition:
+    """A position the case file gives in the CAD frame, waiting for the wing's frame transform
+    (:func:`geomload.config.positions.resolve_positions` converts it once the wing is read).
+
+    key: the entry as the file names it ("point_mass[2]", "spar.points"); target: where the
+    converted value goes: ("point_mass", index), ("fuel_tank", index), ("spar",) or
+    ("moment_reference",); values: ((x, y, z), ...) CAD coordinates, one row per point (a
+    point mass and the moment reference: one; a fuel tank: its inboard and outboard ends; the
+    spar: its points); with_unit: the same shape, True where the value was written with its
+    unit (already metres), False where it is a number in the CAD unit.
+    """
+
+    key: str
+    target: tuple
+    values: tuple
+    with_unit: tuple
+
+    def __post_init__(self):
+        v = np.asarray(self.values, float)
+        if v.ndim != 2 or v.shape[1] != 3 or np.asarray(self.with_unit).shape != v.shape:
+            raise CaseError(f"{self.key}: a CAD position needs (x, y, z) rows")
+        if not np.all(np.isfinite(v)):
+            raise CaseError(f"{self.key}: CAD coordinates must be finite")
+
+
 @dataclass(frozen=True)
 class Case:
     """A whole case file, validated, SI. path: absolute path of the case file.
@@ -220,6 +249,12 @@ class Case:
     structure: Optional[object] = None  # config.structure.StructureSpec: the hand-off outputs
     warnings: tuple = ()  # what the case file should say differently (old key names)
     controls: Optional["ControlsSpec"] = None  # config.controls_parse: surfaces, rolling, tail
+    # positions given in the CAD frame: their records above hold placeholders until
+    # config.positions.resolve_positions(case, wing) converts them (the checks refuse a Case
+    # that still has some)
+    cad_positions: tuple = ()
+    # (current key, key as written) pairs, e.g. ("point_mass[1].y", "point_mass[1].y_m")
+    key_names: tuple = ()
 
     def __post_init__(self):
         if self.load_factor_axis not in LOAD_FACTOR_AXES:
@@ -231,6 +266,13 @@ class Case:
             raise CaseError("fuel_tank: entries must be FuelTank records")
         if not all(isinstance(c, LoadCase) for c in self.load_cases):
             raise CaseError("load_case: entries must be LoadCase records")
+        if not all(isinstance(p, CadPosition) for p in self.cad_positions):
+            raise CaseError("cad_positions: entries must be CadPosition records")
+
+    def key(self, name: str) -> str:
+        """A dotted case-file key as the file writes it ("point_mass[1].y" -> "point_mass[1].y_m"
+        when the file used the older spelling)."""
+        return dict(self.key_names).get(name, name)
 
     @property
     def fuel_mass_kg(self) -> float:
@@ -243,6 +285,6 @@ class Case:
         return self.load_factor_axis == "body"
 
 
-__all__ = ["GeometrySpec", "AircraftSpec", "WingMassSpec", "FuelTank", "SparSpec", "LoadCase",
+__all__ = ["CadPosition", "FRAMES", "GeometrySpec", "AircraftSpec", "WingMassSpec", "FuelTank", "SparSpec", "LoadCase",
            "FlightEnvelopeSpec", "EnvelopeSpec", "LatticeSpec", "Case", "PointMass",
            "CATEGORIES", "MAX_ALTITUDE_M"]
