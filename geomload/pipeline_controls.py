@@ -165,11 +165,14 @@ def _resolved(ctx, progress) -> tuple:
 
     if not ctx.case.controls.from_geometry:
         return ctx, []
+    names = [g.name for g in ctx.case.controls.from_geometry]
     _, wing = case_wing(ctx.case, progress, ctx.cache)
     case, warnings = case_with_geometry_controls(ctx.case, wing)
     pf = wing.planform
-    warnings += check_controls_against_wing(case.controls, ctx.stations.semispan, pf.mac,
-                                            pf.x_mac_le, case.path)
+    more = check_controls_against_wing(case.controls, ctx.stations.semispan, pf.mac,
+                                       pf.x_mac_le, case.path)
+    # the run has given the other surfaces' warnings already
+    warnings += [w for w in more if any(w.startswith(f"control_surface.{n}.") for n in names)]
     return dataclasses.replace(ctx, case=case), warnings
 
 

@@ -174,3 +174,19 @@ def test_parse_refuses_a_body_named_twice(tmp_path, stl):
     with pytest.raises(CaseError, match=r"control_surface\[2\]\.geometry_body: body 5 is "
                                         r"already 'aileron'"):
         read_case_file(p)
+
+
+def test_cad_surface_beyond_linear_theory_warns_once(tmp_path, stl):
+    # a deflection limit above 30 deg can change a number (linear theory overpredicts): one
+    # warning naming the surface's key, also for a surface taken from the CAD
+    text = CASE.format(stl=Path(stl).as_posix(), surface=f"geometry_body = {AILERON_BODY}")
+    text = text.replace("delta_min_deg = -20.0\ndelta_max_deg = 20.0",
+                        "delta_min_deg = -35.0\ndelta_max_deg = 35.0")
+    text = text.replace('methods = ["lattice"]', 'methods = ["lattice"]\nroll_states = ["initial"]')
+    p = tmp_path / "wide.toml"
+    p.write_text(text)
+    result = compute(read_case_file(p))
+    hits = [m.text for m in result.messages
+            if m.text.startswith("control_surface.aileron.delta_max_deg")]
+    assert len(hits) == 1 and "35 deg exceeds 30 deg" in hits[0], hits
+    assert {c.kind for c in result.cases if c.port_loads is not None} == {"rolling_initial"}
