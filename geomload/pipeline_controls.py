@@ -1,6 +1,9 @@
 """Orchestration of the cases that need control surfaces or a tail: the pitch trim with the
-balancing tail load (forward and aft c.g.), the rolling cases (14 CFR 23.349 simplified and
-lattice methods, 23.455 deflections, steady roll) and the flaps-down cases (23.345).
+balancing tail load (forward and aft c.g.), the rolling cases (14 CFR 23.349 simplified
+method, conditions A and, acrobatic, F; lattice method with the 23.455 deflections in steady
+roll and at the initial instant with no roll rate) and the flaps-down cases (23.345); control
+surfaces a case file takes from the CAD's bodies (``geometry_body``) are resolved here when
+the run has not resolved them (:func:`case_with_geometry_controls`).
 
 Each stage keeps its physics: the lattice with control surfaces and roll rate
 (:mod:`geomload.aero.roll`), the pitch trim (:mod:`geomload.aero.pitch_trim`), the rule cases

@@ -139,9 +139,7 @@ def test_case_with_geometry_controls_resolves_and_warns(tmp_path, stl, wing):
     assert len(warns) == 1 and "body 5" in warns[0]
 
 
-BAD = {
-    "body that is not a control surface": ("geometry_body = 2",
-                                           "control_surface[1].geometry_body"),
+PARSE_BAD = {
     "span given as well": ("geometry_body = 5\ny_from_m = 1.0", "control_surface[1].y_from_m"),
     "hinge given as well": ("geometry_body = 5\nhinge_fraction = 0.7",
                             "control_surface[1].hinge_fraction"),
@@ -150,10 +148,19 @@ BAD = {
 }
 
 
-@pytest.mark.parametrize("label", sorted(BAD))
-def test_bad_geometry_body_one_line_exit_1_nothing_written(label, tmp_path, stl):
-    surface, key = BAD[label]
+@pytest.mark.parametrize("label", sorted(PARSE_BAD))
+def test_bad_geometry_body_keys_name_the_key(label, tmp_path, stl):
+    surface, key = PARSE_BAD[label]
     case = _case(tmp_path, stl, surface)
+    with pytest.raises(CaseError) as e:
+        read_case_file(case)
+    msg = str(e.value)
+    assert "\n" not in msg and f"{case}: {key}: " in msg, msg
+
+
+def test_body_that_is_not_a_control_surface_one_line_exit_1_nothing_written(tmp_path, stl):
+    # known only once the CAD is read: the run refuses it before writing anything
+    case = _case(tmp_path, stl, "geometry_body = 2")
     out = tmp_path / "out"
     p = subprocess.run([sys.executable, "-m", "geomload.cli", "run", str(case), "--out",
                         str(out), "--no-render"], capture_output=True, text=True,
@@ -161,7 +168,8 @@ def test_bad_geometry_body_one_line_exit_1_nothing_written(label, tmp_path, stl)
     assert p.returncode == 1, p.stderr
     lines = [ln for ln in p.stderr.splitlines() if ln.strip()]
     assert len(lines) == 1 and "Traceback" not in p.stderr, p.stderr
-    assert key in lines[0] and str(case) in lines[0], lines[0]
+    assert "control_surface[1].geometry_body: body 2 is not a control surface" in lines[0]
+    assert str(case) in lines[0] and "bodies found: 5" in lines[0], lines[0]
     assert not out.exists()
 
 
