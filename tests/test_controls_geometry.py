@@ -8,6 +8,7 @@ lies at x/c = hinge + gap of the design chord, from y = 1.0 + end gap to 1.6 - e
 
 from __future__ import annotations
 
+import dataclasses
 import subprocess
 import sys
 from pathlib import Path
@@ -16,8 +17,13 @@ import numpy as np
 import pytest
 
 from aircraftfactory import wing_with_aileron
+from geomload.aero.controls import ControlSurface
+from geomload.aero.lattice import build_lattice
+from geomload.aero.roll import ControlModel
+from geomload.aero.solve import AeroModel
 from geomload.config import read_case_file
-from geomload.config.controls_parse import resolve_geometry_controls
+from geomload.config.controls_parse import ControlsSpec, GeometrySurface, \
+    resolve_geometry_controls
 from geomload.errors import CaseError
 from geomload.geometry import read_wing
 from geomload.pipeline import compute
@@ -198,3 +204,29 @@ def test_cad_surface_beyond_linear_theory_warns_once(tmp_path, stl):
             if m.text.startswith("control_surface.aileron.delta_max_deg")]
     assert len(hits) == 1 and "35 deg exceeds 30 deg" in hits[0], hits
     assert {c.kind for c in result.cases if c.port_loads is not None} == {"rolling_initial"}
+
+
+def test_a_hinge_that_varies_along_the_span_becomes_a_hinge_table(wing):
+    """A CAD surface whose hinge fraction spreads more than 0.5 % c (e.g. a constant-chord
+    aileron on a tapered wing) keeps its hinge per station; its rolling power lies between
+    those of the constant hinges at the two ends of the spread (a larger control-surface chord
+    gives more, thin-airfoil theory: Glauert's tau grows as the hinge moves forward)."""
+    (rec,) = wing.control_surfaces
+    h = np.linspace(0.70, 0.80, len(rec.stations))
+    varied = dataclasses.replace(wing, control_surfaces=(dataclasses.replace(
+        rec, hinge_x_over_c=h),))
+    spec = ControlsSpec(from_geometry=(GeometrySurface(0, "ail", "aileron", 5,
+                                                       mode="antisymmetric"),))
+    (surf,) = resolve_geometry_controls(spec, varied)[0].surfaces
+    ys = wing.stations.y[list(rec.stations)]
+    assert surf.hinge_table == tuple(zip(ys.tolist(), h.tolist()))
+    assert surf.hinge_fraction == pytest.approx(0.75)
+
+    def cl_delta(s):
+        lat = build_lattice(wing.stations, n_span=16, n_chord=8, full_span=True, controls=[s])
+        return ControlModel(AeroModel(lat), [s]).roll_derivatives("ail")[0]
+
+    ends = [ControlSurface("ail", "aileron", surf.y_from_m, surf.y_to_m, f,
+                           mode="antisymmetric") for f in (0.80, 0.70)]
+    lo, mid, hi = cl_delta(ends[0]), cl_delta(surf), cl_delta(ends[1])
+    assert 0 < lo < mid < hi
