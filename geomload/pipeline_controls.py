@@ -1,6 +1,9 @@
 """Orchestration of the cases that need control surfaces or a tail: the pitch trim with the
-balancing tail load (forward and aft c.g.), the rolling cases (14 CFR 23.349 simplified and
-lattice methods, 23.455 deflections, steady roll) and the flaps-down cases (23.345).
+balancing tail load (forward and aft c.g.), the rolling cases (14 CFR 23.349 simplified
+method, conditions A and, acrobatic, F; lattice method with the 23.455 deflections in steady
+roll and at the initial instant with no roll rate) and the flaps-down cases (23.345); control
+surfaces a case file takes from the CAD's bodies (``geometry_body``) are resolved here when
+the run has not resolved them (:func:`case_with_geometry_controls`).
 
 Each stage keeps its physics: the lattice with control surfaces and roll rate
 (:mod:`geomload.aero.roll`), the pitch trim (:mod:`geomload.aero.pitch_trim`), the rule cases
@@ -143,27 +146,66 @@ def normal_force(stb, port, body_axis: bool) -> float:
 
 
 # -------------------------------------------------------------------------- unsymmetric cases
+def case_with_geometry_controls(case, wing) -> tuple:
+    """(Case, warnings): the case with its ``geometry_body`` control surfaces taken from the
+    CAD's control-surface bodies (`config.controls_parse.resolve_geometry_controls`), and a
+    warning for each CAD control-surface body no [[control_surface]] describes (analysed
+    undeflected). The case is returned unchanged when there is nothing to resolve."""
+    from geomload.config.controls_parse import resolve_geometry_controls
+
+    spec, warnings = resolve_geometry_controls(case.controls, wing, case.path)
+    if spec is not case.controls:
+        case = dataclasses.replace(case, controls=spec)
+    return case, warnings
+
+
+def _resolved(ctx, progress) -> tuple:
+    """(ctx, warnings): ctx with the case's geometry_body surfaces resolved, reading the wing
+    through the run's geometry stage (from compute()'s cache when it holds it) when the run
+    has not resolved them already; then the surfaces checked against the wing."""
+    from geomload.config.controls_parse import check_controls_against_wing
+    from geomload.run_geometry import case_wing
+
+    if not ctx.case.controls.from_geometry:
+        return ctx, []
+    names = [g.name for g in ctx.case.controls.from_geometry]
+    _, wing = case_wing(ctx.case, progress, ctx.cache)
+    case, warnings = case_with_geometry_controls(ctx.case, wing)
+    pf = wing.planform
+    more = check_controls_against_wing(case.controls, ctx.stations.semispan, pf.mac,
+                                       pf.x_mac_le, case.path)
+    # the run has given the other surfaces' warnings already
+    warnings += [w for w in more if any(w.startswith(f"control_surface.{n}.") for n in names)]
+    return dataclasses.replace(ctx, case=case), warnings
+
+
 def unsymmetric_cases(ctx, vn, solve_case, progress) -> tuple:
     """(CaseResults, warnings) of the [rolling] and [flaps] cases, at the gross mass and the
     altitude of the first V-n diagram, each at every c.g. of [cg] when a tail is given."""
     from geomload.loads import rules_unsymmetric as ru
 
-    spec, case = ctx.case.controls, ctx.case
+    spec = ctx.case.controls
     if spec is None or (spec.rolling is None and spec.flaps is None):
         return [], []
+    ctx, warnings = _resolved(ctx, progress)
+    spec, case = ctx.case.controls, ctx.case
     d = vn[0]
     sp, h, mass = d.speeds, d.altitude_m, d.mass_kg
-    warnings, jobs = [], []
+    jobs = []
     cms = ControlModels(case, ctx.stations, progress, ctx.cache, ctx.lattice_key)
     if spec.rolling is not None:
         r = spec.rolling
         if "simplified" in r.methods:
-            for rc in ru.simplified_rolling_cases(r.category, sp.v_maneuver, d.n_pos):
+            acro = r.category == "acrobatic"  # 23.349(a)(1): conditions A and F
+            for rc in ru.simplified_rolling_cases(r.category, sp.v_maneuver, d.n_pos,
+                                                  sp.v_cruise if acro else None,
+                                                  d.n_neg if acro else None):
                 jobs.append(("rolling", rc))
         if "lattice" in r.methods:
             ail = spec.surface(r.aileron)
             for rc in ru.lattice_rolling_cases(r.aileron, ail.delta_max_deg, sp.v_maneuver,
-                                               sp.v_cruise, sp.v_dive, d.n_pos):
+                                               sp.v_cruise, sp.v_dive, d.n_pos,
+                                               states=r.roll_states):
                 jobs.append(("rolling", rc))
     if spec.flaps is not None:
         f = spec.flaps
@@ -183,6 +225,15 @@ def unsymmetric_cases(ctx, vn, solve_case, progress) -> tuple:
             progress("unsymmetric cases", len(results), total)
     warnings += cms.warnings
     return results, warnings
+
+
+def case_kind(kind: str, rc) -> str:
+    """The CaseResult kind: "symmetric", "rolling" (23.349 simplified, or the lattice method in
+    steady roll), "rolling_initial" (the lattice method at the instant of the sudden aileron
+    deflection, no roll rate yet) or "flaps"."""
+    if kind == "rolling" and getattr(rc, "roll_state", "steady") == "initial":
+        return "rolling_initial"
+    return kind
 
 
 def _lc(name, v_eas, h, n, mass, lift_share):
@@ -252,14 +303,14 @@ def _one(kind, rc, label, x_cg, h, mass, ctx, cms, solve_case) -> CaseResult:
         cld, clp = cm.roll_derivatives(rc.aileron, st.alpha_deg, rc.aileron_deg, st.pb_2V)
         ctl = dataclasses.replace(ctl, Cl_delta_per_rad=cld, Cl_p=clp,
                                   Cl_aileron=cld * math.radians(rc.aileron_deg),
-                                  Cl_damping=clp * st.pb_2V,
+                                  Cl_damping=clp * st.pb_2V + 0.0,  # no -0.0 at p = 0
                                   **_aileron_torsion(sol, ctx.case.controls.surface(rc.aileron),
                                                      rc.aileron_deg, q))
     aero = ctx.models.get(mach).solve(st.alpha_deg)  # the clean wing at the case's angle
     res = max(stb.equilibrium.residual, port.equilibrium.residual)
     return CaseResult(name=name, v_eas=v_eas, v_tas=v_tas, altitude_m=h, mach=mach, q_pa=q,
                       load_factor=rc.load_factor, mass_kg=mass, lift_share=share, aero=aero,
-                      loads=stb, residual=res, kind=kind, port_loads=port,
+                      loads=stb, residual=res, kind=case_kind(kind, rc), port_loads=port,
                       tail_load_N=None if tail is None else tail.tail_load_N,
                       wing_normal_force_N=normal_force(stb, port, case.body_axis),
                       x_cg_m=x_cg, control=ctl)
@@ -349,4 +400,4 @@ def airload_rolling_moment(stb, port, lattice) -> float:
 
 
 __all__ = ["symmetric_with_tail", "unsymmetric_cases", "normal_force", "ControlModels",
-           "airload_rolling_moment", "CaseError"]
+           "airload_rolling_moment", "case_with_geometry_controls", "case_kind", "CaseError"]

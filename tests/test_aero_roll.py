@@ -125,3 +125,19 @@ def test_rolling_moment_signs(tapered):
         tapered.solve(0.0, {"rudder": 3.0})
     with pytest.raises(AeroError, match="^deflection.ail: 30 deg is outside"):
         tapered.solve(0.0, {"ail": 30.0})
+
+
+def test_quadratic_forms_equal_the_panel_force_sums(tapered):
+    # algebraic identity (the forces are quadratic in the basis weights): the trim's and the
+    # steady roll's coefficients from the K x K forms equal the sums over the panel forces
+    a, defl, p = 5.0, {"ail": 12.0, "flap": 20.0}, 0.07
+    sol = tapered.solve(a, defl, p)
+    d = {k: math.radians(v) for k, v in defl.items()}
+    assert tapered._CL(math.radians(a), d, p) == pytest.approx(sol.CL, rel=1e-12)
+    assert tapered._cl_roll(math.radians(a), d, p) == pytest.approx(sol.Cl_roll, rel=1e-12)
+    F = tapered._forces(math.radians(a), d, p)[1]
+    assert tapered._cl_roll(math.radians(a), d, p) == pytest.approx(tapered._rolling(F),
+                                                                    rel=1e-12)
+    CL, Cm = tapered.coefficients(a, defl)
+    ref = tapered.solve(a, defl)
+    assert (CL, Cm) == pytest.approx((ref.CL, ref.Cm), rel=1e-12)

@@ -43,7 +43,7 @@ def _trapz(y, f):
 def test_the_sample_has_every_kind_of_case(run):
     result, _ = run
     kinds = {c.kind for c in result.cases}
-    assert kinds == {"symmetric", "rolling", "flaps"}
+    assert kinds == {"symmetric", "rolling", "rolling_initial", "flaps"}
     assert all(c.tail_load_N is not None for c in result.cases)
 
 
@@ -81,7 +81,8 @@ def test_rolling_moment_of_the_side_airloads_balances_in_steady_roll(run):
     aileron plus damping moments of the lattice (whose sum is zero there), within 1 % of the
     aileron moment (Etkin & Reid, steady roll: Cl_delta delta + Cl_p pb/2V = 0)."""
     result, _ = run
-    rolls = [c for c in result.cases if c.control is not None and math.isfinite(c.control.Cl_p)]
+    rolls = [c for c in result.cases if c.kind == "rolling" and c.control is not None
+             and math.isfinite(c.control.Cl_p)]
     assert len(rolls) == 12
     for c in rolls:
         k = c.control
@@ -90,6 +91,27 @@ def test_rolling_moment_of_the_side_airloads_balances_in_steady_roll(run):
         check("steady roll, Etkin & Reid (Dynamics of Flight): airload rolling moment = "
               "aileron + damping moments", f"{c.name}: Cl of the side airloads",
               k.Cl_aileron + k.Cl_damping, k.Cl_airload, abs=0.01 * abs(k.Cl_aileron))
+
+
+def test_initial_roll_cases_carry_the_aileron_moment_alone(run):
+    """At the instant of the sudden deflection (no roll rate yet) the rolling moment of the two
+    sides' airloads on the load grid is the aileron's alone, Cl_delta delta, within 1 % (linear
+    lattice superposition, common practice, no source); the down-aileron side then carries
+    more root bending than in the steady roll at the same speed, c.g. and deflection."""
+    result, _ = run
+    by_name = {c.name: c for c in result.cases}
+    ini = [c for c in result.cases if c.kind == "rolling_initial"]
+    assert len(ini) == 12  # 3 speeds x 2 senses x 2 c.g.
+    for c in ini:
+        k = c.control
+        assert k.pb_2V == 0.0 and k.Cl_damping == 0.0 and k.Cl_aileron != 0.0
+        check("linear lattice superposition (common practice, no source): initial roll",
+              f"{c.name}: Cl of the side airloads vs Cl_delta delta", k.Cl_aileron,
+              k.Cl_airload, rel=0.01)
+        steady = by_name[c.name.replace("_initial", "")]
+        down = "port" if dict(k.deflections_deg)["aileron"] > 0 else "starboard"
+        b_ini, b_std = (dict(x.sides)[down].bending_Nm[0] for x in (c, steady))
+        assert b_ini > 1.1 * b_std, c.name
 
 
 def _airload_root_bending(s):
@@ -138,7 +160,7 @@ def test_outputs_contract(run):
     keys = {"root_shear_N", "root_bending_Nm", "root_torsion_Nm", "root_shear_ult_N",
             "root_bending_ult_Nm", "root_torsion_ult_Nm", "equilibrium_residual"}
     for c in summary["cases"]:
-        assert c["kind"] in ("symmetric", "rolling", "flaps")
+        assert c["kind"] in ("symmetric", "rolling", "rolling_initial", "flaps")
         assert "tail_load_N" in c and "wing_normal_force_N" in c
         if c["kind"] != "symmetric":
             assert set(c["sides"]) == {"starboard", "port"}
@@ -148,7 +170,10 @@ def test_outputs_contract(run):
     assert ctl["Cl_delta_a_per_rad"] > 0 and ctl["Cl_p"] < 0 and ctl["pb_2V"] < 0
     files = {p.name for p in (out / "loads").glob("*.csv")}
     assert {"roll_V_D_right_cg_aft__starboard.csv", "roll_V_D_right_cg_aft__port.csv",
-            "flaps_gust_up_cg_fwd__port.csv"} <= files
+            "roll_V_A_left_initial_cg_fwd__port.csv", "flaps_gust_up_cg_fwd__port.csv"} <= files
+    kinds = {c["name"]: c["kind"] for c in summary["cases"]}
+    assert kinds["roll_V_A_left_initial cg fwd"] == "rolling_initial"
+    assert kinds["roll_V_A_left cg fwd"] == "rolling"
     env = result.envelope
     for c in result.cases:
         for _, s in c.sides:

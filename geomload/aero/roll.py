@@ -128,6 +128,31 @@ class ControlModel:
         self._V = np.concatenate([model._vind, V], axis=2)  # (N, 3, K)
         self._mid = 0.5 * (lat.bound_a + lat.bound_b)
         self._fac = 2.0 if lat.mirrored else 1.0
+        self._quadratic_forms()
+
+    def _quadratic_forms(self):
+        """The total forces, rolling and pitching moments as quadratic forms of the weights w.
+
+        With w = (cos a, sin a, cos a d_1, sin a d_1, ..., p_hat) the circulation B w, the
+        velocity at the bound vortices (induced V w, free stream (cos a, 0, sin a) and the roll
+        rate's (0, -z, y) 2 p_hat / b) are linear in w, so every panel force
+        F = 2 (B w) ((V~ w) x l) and every sum of them is w^T M w: the Newton loops of the trim
+        and the steady roll then cost K^2 per step instead of a pass over the panels."""
+        lat = self.lattice
+        vt = self._V.copy()
+        vt[:, 0, 0] += 1.0
+        vt[:, 2, 1] += 1.0
+        if not lat.mirrored:
+            k = 2.0 / lat.b_ref
+            vt[:, 1, -1] -= k * self._mid[:, 2]
+            vt[:, 2, -1] += k * self._mid[:, 1]
+        C = np.cross(np.swapaxes(vt, 1, 2), self.model._l[:, None, :])  # (N, K, 3)
+        Bt2 = 2.0 * self._B.T
+        m, arm = self._mid, self.model._arm_ref
+        self._Mx = Bt2 @ C[:, :, 0]
+        self._Mz = Bt2 @ C[:, :, 2]
+        self._Mroll = Bt2 @ (m[:, 1, None] * C[:, :, 2] - m[:, 2, None] * C[:, :, 1])
+        self._Mpitch = Bt2 @ (arm[:, 2, None] * C[:, :, 0] - arm[:, 0, None] * C[:, :, 2])
 
     def _index(self, name):
         try:
@@ -168,13 +193,16 @@ class ControlModel:
             self.lattice.s_ref * self.lattice.b_ref)
 
     def _cl_roll(self, alpha, defl, p_hat):
+        """Body-axis rolling moment coefficient (the quadratic form of `_rolling`)."""
         if self.lattice.mirrored:
             return 0.0  # images: symmetric by construction
-        return self._rolling(self._forces(alpha, defl, p_hat)[1])
+        w = self._weights(alpha, defl, p_hat)[0]
+        return -float(w @ self._Mroll @ w) / (self.lattice.s_ref * self.lattice.b_ref)
 
     def _CL(self, alpha, defl, p_hat=0.0):
-        _, F, ca, sa = self._forces(alpha, defl, p_hat)
-        return self._fac * float(np.sum(F @ np.array([-sa, 0.0, ca]))) / self.lattice.s_ref
+        w, ca, sa = self._weights(alpha, defl, p_hat)
+        lift = -sa * float(w @ self._Mx @ w) + ca * float(w @ self._Mz @ w)
+        return self._fac * lift / self.lattice.s_ref
 
     def _defl_rad(self, deflections_deg, key="deflection"):
         out, warns = {}, []
@@ -225,7 +253,7 @@ class ControlModel:
             roll_rate_pb2v=float(roll_rate_pb2v), starboard=stb, port=port,
             CL=self._fac * float(lift_s.sum()) / S, CDi=self._fac * float(drag_s.sum()) / S,
             Cm=self._fac * float(m._moment(F, m._arm_ref).sum()) / (S * lat.c_ref),
-            Cl_roll=self._cl_roll(alpha, defl, float(roll_rate_pb2v)), Cl_airload=air)
+            Cl_roll=0.0 if lat.mirrored else self._rolling(F), Cl_airload=air)
 
     def roll_derivatives(self, aileron: str, alpha_deg: float = 0.0, delta_deg: float = 0.0,
                          roll_rate_pb2v: float = 0.0) -> tuple:
@@ -294,11 +322,11 @@ class ControlModel:
     def coefficients(self, alpha_deg: float, deflections_deg=None) -> tuple:
         """(CL, Cm about lattice.x_ref) at alpha (deg) with deflections {name: deg}."""
         defl, _ = self._defl_rad(deflections_deg)
-        _, F, ca, sa = self._forces(math.radians(float(alpha_deg)), defl, 0.0)
-        lat, m = self.lattice, self.model
-        CL = self._fac * float(np.sum(F @ np.array([-sa, 0.0, ca]))) / lat.s_ref
-        Cm = self._fac * float(m._moment(F, m._arm_ref).sum()) / (lat.s_ref * lat.c_ref)
-        return CL, Cm
+        a = math.radians(float(alpha_deg))
+        w = self._weights(a, defl, 0.0)[0]
+        lat = self.lattice
+        Cm = self._fac * float(w @ self._Mpitch @ w) / (lat.s_ref * lat.c_ref)
+        return self._CL(a, defl, 0.0), Cm
 
 
 def side_strip_loads(model: ControlModel, alpha_deg: float, deflections_deg=None,

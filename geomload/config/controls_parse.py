@@ -6,8 +6,14 @@ Sections (our own key names; all SI, angles in degrees):
   (hinge line as a fraction of the local chord from the leading edge), side ("both",
   "starboard", "port"), mode ("symmetric" or "antisymmetric"; default antisymmetric for an
   aileron, symmetric for a flap), delta_min_deg, delta_max_deg (trailing edge down positive).
+  Or, instead of y_from_m, y_to_m and hinge_fraction, ``geometry_body = N``: the span range
+  and hinge of the control-surface body N of the CAD file (the body number the run's warnings
+  and `geomload inspect` give), taken from the geometry when the run has read it
+  (:func:`resolve_geometry_controls`).
 - ``[rolling]``: category ("normal", "utility", "commuter", "acrobatic"; default from
-  [envelope]), aileron (a control_surface name), methods (["simplified", "lattice"]).
+  [envelope]), aileron (a control_surface name), methods (["simplified", "lattice"]),
+  roll_states (the lattice method's roll states, ["steady", "initial"] by default: steady roll,
+  and the instant of the sudden deflection with no roll rate yet).
 - ``[flaps]``: flap (a control_surface name), deflection_deg, v_sf (stall speed flaps down,
   m/s EAS, required), v_f (flap design speed, m/s EAS; default the rule minimum).
 - ``[tail]``: area_m2, x_ac_m (x of the tailplane aerodynamic centre, wing frame, aft +),
@@ -21,6 +27,7 @@ the MAC) when the run has cut it (:func:`check_controls_against_wing`).
 
 from __future__ import annotations
 
+import dataclasses
 import math
 from dataclasses import dataclass
 from typing import Optional
@@ -30,16 +37,44 @@ from geomload.errors import AeroError, CaseError
 
 SECTION_KEYS = ("control_surface", "rolling", "flaps", "tail", "cg")
 ROLL_METHODS = ("simplified", "lattice")
+ROLL_STATES = ("steady", "initial")
 ROLL_CATEGORIES = ("normal", "utility", "commuter", "acrobatic")
+GEOMETRY_KEYS = ("y_from_m", "y_to_m", "hinge_fraction")  # what geometry_body supplies
+HINGE_UNIFORM_TOL = 0.005  # hinge fractions of a CAD surface spread less than 0.5 % of the
+# chord are one constant hinge (their mean): below what the geometry measures the hinge to
+# (about 1 % c) and a small part of one chordwise panel of the lattice
 
 
 @dataclass(frozen=True)
 class RollingSpec:
-    """[rolling]: category of 23.349 (side factor), aileron surface name, methods."""
+    """[rolling]: category of 23.349 (side factor), aileron surface name, methods, and the
+    roll states of the lattice method ("steady", "initial")."""
 
     category: str
     aileron: str
     methods: tuple = ROLL_METHODS
+    roll_states: tuple = ROLL_STATES
+
+
+@dataclass(frozen=True)
+class GeometrySurface:
+    """A [[control_surface]] whose span range and hinge come from a CAD control-surface body.
+
+    index: its position in the file's control_surface list (0-based); body: the 1-based body
+    number of the CAD file; the other fields as `ControlSurface` (kind, side, mode, limits)."""
+
+    index: int
+    name: str
+    kind: str
+    body: int
+    side: str = "both"
+    mode: str = "symmetric"
+    delta_min_deg: float = -20.0
+    delta_max_deg: float = 20.0
+
+    @property
+    def key(self) -> str:
+        return f"control_surface[{self.index + 1}]"
 
 
 @dataclass(frozen=True)
@@ -67,23 +102,47 @@ class ControlsSpec:
     """The control surfaces and what the run does with them.
 
     surfaces: tuple of ControlSurface; rolling, flaps, tail: the sections or None;
-    cg_x_m: (forward, aft) c.g. x (m) or () when no [cg]."""
+    cg_x_m: (forward, aft) c.g. x (m) or () when no [cg]; from_geometry: GeometrySurface
+    entries not yet resolved against the CAD (`resolve_geometry_controls` moves them into
+    `surfaces`, in file order)."""
 
     surfaces: tuple = ()
     rolling: Optional[RollingSpec] = None
     flaps: Optional[FlapsSpec] = None
     tail: Optional[TailSpec] = None
     cg_x_m: tuple = ()
+    from_geometry: tuple = ()
 
     def surface(self, name: str) -> ControlSurface:
-        return next(c for c in self.surfaces if c.name == name)
+        for c in self.surfaces:
+            if c.name == name:
+                return c
+        for g in self.from_geometry:
+            if g.name == name:
+                raise CaseError(f"{g.key}.geometry_body: surface {name!r} (body {g.body}) has "
+                                "not been taken from the geometry yet")
+        raise CaseError(f"control_surface: no surface named {name!r}")
 
 
-def _surface(t, i: int) -> ControlSurface:
+def _surface(t, i: int):
+    """A ControlSurface, or a GeometrySurface when the entry has geometry_body."""
     name = t.get("name", str, f"surface_{i + 1}")
     kind = t.choice("kind", ("aileron", "flap"), required=True)
     mode = t.choice("mode", ("symmetric", "antisymmetric"),
                     "antisymmetric" if kind == "aileron" else "symmetric")
+    if "geometry_body" in t.data:
+        body = t.get("geometry_body", int, required=True)
+        if body < 1:
+            t.fail("geometry_body", f"must be a body number >= 1, got {body}")
+        for k in GEOMETRY_KEYS:
+            if k in t.data:
+                t.fail(k, "not allowed with geometry_body (the span range and the hinge come "
+                          "from the CAD body)")
+        return GeometrySurface(
+            index=i, name=name, kind=kind, body=body,
+            side=t.choice("side", ("both", "starboard", "port"), "both"), mode=mode,
+            delta_min_deg=t.get("delta_min_deg", float, -20.0),
+            delta_max_deg=t.get("delta_max_deg", float, 20.0))
     return ControlSurface(
         name=name, kind=kind, y_from_m=t.positive("y_from_m", required=True, allow_zero=True),
         y_to_m=t.positive("y_to_m", required=True),
@@ -100,16 +159,18 @@ def parse_controls(top, raw: dict, path: str, table_cls, envelope) -> Optional[C
     envelope: the FlightEnvelopeSpec or None (rolling and flaps cases need one)."""
     if not any(k in raw for k in SECTION_KEYS):
         return None
-    surfaces = []
+    surfaces, refs = [], []
     for i, item in enumerate(top.get("control_surface", list, [])):
         t = table_cls(item, f"control_surface[{i + 1}]", path)
-        surfaces.append(_surface(t, i))
+        c = _surface(t, i)
+        (refs if isinstance(c, GeometrySurface) else surfaces).append(c)
         t.done()
     try:
         check_controls(surfaces, math.inf, key="control_surface")
+        _check_refs(refs, surfaces)
     except AeroError as exc:
         raise CaseError(f"{path}: {exc}") from None
-    by_name = {c.name: c for c in surfaces}
+    by_name = {c.name: c for c in surfaces + refs}
 
     def sub(k):
         return table_cls(top.get(k, dict, None) or {}, k, path)
@@ -134,10 +195,14 @@ def parse_controls(top, raw: dict, path: str, table_cls, envelope) -> Optional[C
         methods = t.get("methods", list, list(ROLL_METHODS))
         if not methods or any(m not in ROLL_METHODS for m in methods):
             t.fail("methods", f"a non-empty list of {', '.join(map(repr, ROLL_METHODS))}")
+        states = t.get("roll_states", list, list(ROLL_STATES))
+        if not states or any(m not in ROLL_STATES for m in states):
+            t.fail("roll_states", f"a non-empty list of {', '.join(map(repr, ROLL_STATES))}")
         if envelope is None:
             t.fail("", "rolling cases need an [envelope] (V_A, V_C, V_D and n_pos)")
         t.done()
-        rolling = RollingSpec(cat, ail, tuple(dict.fromkeys(methods)))
+        rolling = RollingSpec(cat, ail, tuple(dict.fromkeys(methods)),
+                              tuple(dict.fromkeys(states)))
     if "flaps" in raw:
         t = sub("flaps")
         flap = named(t, "flap", "flap")
@@ -175,7 +240,96 @@ def parse_controls(top, raw: dict, path: str, table_cls, envelope) -> Optional[C
         t.done()
     elif cg:
         raise CaseError(f"{path}: cg: a c.g. range without a [tail] is not used; give [tail]")
-    return ControlsSpec(tuple(surfaces), rolling, flaps, tail, cg)
+    return ControlsSpec(tuple(surfaces), rolling, flaps, tail, cg, tuple(refs))
+
+
+def _check_refs(refs, surfaces) -> None:
+    """Names unique among all surfaces, each CAD body named once, limits as check_controls."""
+    names = {c.name for c in surfaces}
+    bodies = {}
+    for g in refs:
+        if g.name in names:
+            raise AeroError(f"{g.key}.name: duplicate control-surface name {g.name!r}")
+        names.add(g.name)
+        if g.body in bodies:
+            raise AeroError(f"{g.key}.geometry_body: body {g.body} is already "
+                            f"{bodies[g.body]!r}")
+        bodies[g.body] = g.name
+        probe = ControlSurface(g.name, g.kind, 0.0, 1.0, 0.5, g.side, g.mode, g.delta_min_deg,
+                               g.delta_max_deg)
+        check_controls([probe], 1.0, key="control_surface")
+
+
+def _from_record(g: GeometrySurface, rec, stations_y) -> ControlSurface:
+    """The ControlSurface of GeometrySurface g from the geometry's ControlSurfaceGeometry rec:
+    its span range, and its hinge (one constant fraction when the stations' values spread less
+    than HINGE_UNIFORM_TOL, else a (y, fraction) table at the stations that carry it)."""
+    import numpy as np
+
+    h = np.asarray(rec.hinge_x_over_c, float)
+    ys = np.asarray(stations_y, float)[list(rec.stations)]
+    table = ()
+    if h.size > 1 and float(h.max() - h.min()) > HINGE_UNIFORM_TOL:
+        table = tuple((float(y), float(f)) for y, f in zip(ys, h))
+    return ControlSurface(name=g.name, kind=g.kind, y_from_m=float(rec.y_from_m),
+                          y_to_m=float(rec.y_to_m), hinge_fraction=float(np.mean(h)),
+                          side=g.side, mode=g.mode, delta_min_deg=g.delta_min_deg,
+                          delta_max_deg=g.delta_max_deg, hinge_table=table)
+
+
+def resolve_geometry_controls(spec: Optional[ControlsSpec], wing, path: str = "") -> tuple:
+    """(ControlsSpec, warnings): the `geometry_body` entries of the case file made into
+    ControlSurface records from the CAD's control-surface bodies (`wing.control_surfaces`,
+    `geometry.records.ControlSurfaceGeometry`), in file order among the others.
+
+    CaseError (one line naming ``control_surface[i].geometry_body``) when the body is not a
+    control surface the geometry found. A warning for every control-surface body of the CAD
+    that no [[control_surface]] names or overlaps: it is in the sections (their chord runs to
+    its trailing edge) but no case deflects it. `spec` None (no control sections): only those
+    warnings."""
+    pre = f"{path}: " if path else ""
+    recs = tuple(getattr(wing, "control_surfaces", ()) or ())
+    y_st = wing.stations.y
+    out = spec
+    if spec is not None and spec.from_geometry:
+        by_body = {int(r.body): r for r in recs}
+        made = {}
+        for g in spec.from_geometry:
+            rec = by_body.get(int(g.body))
+            if rec is None:
+                found = ", ".join(str(b) for b in sorted(by_body)) or "none"
+                raise CaseError(f"{pre}{g.key}.geometry_body: body {g.body} is not a control "
+                                f"surface the geometry found in the CAD file (control-surface "
+                                f"bodies found: {found})")
+            made[g.index] = _from_record(g, rec, y_st)
+        order = sorted([(g.index, made[g.index]) for g in spec.from_geometry]
+                       + [(None, c) for c in spec.surfaces], key=lambda p: _file_order(p, spec))
+        out = dataclasses.replace(spec, surfaces=tuple(c for _, c in order), from_geometry=())
+    warnings = []
+    used = out.surfaces if out is not None else ()
+    named = {int(g.body) for g in (spec.from_geometry if spec is not None else ())}
+    for r in recs:
+        if int(r.body) in named:
+            continue
+        if any(c.y_from_m < r.y_to_m and r.y_from_m < c.y_to_m for c in used):
+            continue
+        warnings.append(
+            f"control_surface: body {r.body} of the CAD file is a control surface (y = "
+            f"{r.y_from_m:.4g} to {r.y_to_m:.4g} m) that no [[control_surface]] describes: it "
+            f"is analysed undeflected; add a [[control_surface]] with geometry_body = {r.body} "
+            "to deflect it")
+    return out, warnings
+
+
+def _file_order(pair, spec):
+    """Sort key: a resolved entry's own index; a hand-described surface keeps its place among
+    the hand-described ones, placed by the indices the GeometrySurface entries leave free."""
+    idx, c = pair
+    if idx is not None:
+        return idx
+    taken = {g.index for g in spec.from_geometry}
+    free = [i for i in range(len(spec.surfaces) + len(spec.from_geometry)) if i not in taken]
+    return free[spec.surfaces.index(c)]
 
 
 def check_controls_against_wing(spec: Optional[ControlsSpec], semispan: float, mac: float,

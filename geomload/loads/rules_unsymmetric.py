@@ -121,25 +121,32 @@ def side_factors(category: str) -> tuple:
 def simplified_rolling_cases(category: str, v_a: float, n1: float, v_f_neg=None,
                              n_neg=None) -> list:
     """23.349(a)(1) simplified cases: condition A (V_A, n1) with 100 % / 75 % (60 % acrobatic)
-    airload, each side being the more loaded one in turn; acrobatic adds condition F (v_f_neg,
-    n_neg: the negative-side point the V-n diagram gives; required for acrobatic)."""
+    airload, each side being the more loaded one in turn; acrobatic adds condition F.
+
+    Condition F is the negative-maneuver corner of the 23.333(d) V-n diagram at the design
+    cruising speed: V_C with the negative limit maneuvering load factor n3 (pre-2017 figure,
+    from memory); v_f_neg, n_neg: its speed (m/s EAS) and load factor (< 0), required for the
+    acrobatic category (CaseError naming them otherwise)."""
     hi, lo = side_factors(category)
     v_a, n1 = _positive(v_a, "speeds.v_a"), _positive(n1, "load_factor.n_pos")
-    pts = [("A", v_a, n1)]
+    pts = [("A", "V_A", v_a, n1)]
     if str(category).lower() == "acrobatic":
         if v_f_neg is None or n_neg is None:
             raise CaseError("rolling: acrobatic category needs condition F (speed and negative "
                             "load factor) for 23.349(a)(1)")
-        pts.append(("F", _positive(v_f_neg, "speeds.v_f_neg"), float(n_neg)))
+        nf = float(n_neg)
+        if not (math.isfinite(nf) and nf < 0.0):
+            raise CaseError(f"load_factor.n_neg: condition F needs a negative load factor, got "
+                            f"{n_neg!r}")
+        pts.append(("F", "V_C", _positive(v_f_neg, "speeds.v_c"), nf))
     out = []
-    for label, v, n in pts:
+    for label, speed, v, n in pts:
         for heavy in ("starboard", "port"):
             fs, fp = (hi, lo) if heavy == "starboard" else (lo, hi)
             out.append(RollingCase(
                 name=f"roll_simplified_{label}_{heavy}", method="simplified",
-                rule="14 CFR 23.349(a)(1), pre-2017, from memory", speed_label="V_A" if label ==
-                "A" else "V_F_neg", v_eas_m_s=v, load_factor=n, factor_starboard=fs,
-                factor_port=fp))
+                rule="14 CFR 23.349(a)(1), pre-2017, from memory", speed_label=speed,
+                v_eas_m_s=v, load_factor=n, factor_starboard=fs, factor_port=fp))
     return out
 
 
