@@ -84,10 +84,10 @@ def fuselage(length=3.4, radius=0.2, x0=-1.0, z0=0.0):
     return t + np.array([x0 + 0.5 * length, 0.0, z0])
 
 
-def aircraft():
+def aircraft(**wing_kw):
     """(bodies, wing design, tail design): wing (full span through the fuselage), fuselage,
-    tailplane at x = 2.2 m, fin at x = 2.2 m."""
-    dw = design()
+    tailplane at x = 2.2 m, fin at x = 2.2 m. wing_kw: the wing's `design` arguments."""
+    dw = design(**wing_kw)
     wing = wing_triangles(dw, 60, 16, full_span=True)
     dt = design(semispan=0.6, root_chord=0.22, taper=0.6, sweep_le_deg=5.0, dihedral_deg=0.0,
                 washout_deg=0.0, t_root=0.10, t_tip=0.10, code="0010")
@@ -97,6 +97,21 @@ def aircraft():
     fin = wing_triangles(df, 40, 8) @ np.array([[1.0, 0, 0], [0, 0, -1.0], [0, 1.0, 0]]).T
     fin = fin + np.array([2.15, 0.0, 0.12])
     return [wing, fuselage(), tail, fin], dw, dt
+
+
+def fused(bodies):
+    """One closed shell: the boolean union of the bodies (manifold3d through trimesh, a
+    general-purpose mesh boolean library; test-only dependency)."""
+    import trimesh
+
+    meshes = []
+    for b in bodies:
+        m = trimesh.Trimesh(**trimesh.triangles.to_kwargs(np.asarray(b, float)))
+        m.merge_vertices()
+        meshes.append(m)
+    u = trimesh.boolean.union(meshes, engine="manifold")
+    assert u.is_watertight  # a closed shell, as a CAD boolean union exports it
+    return np.asarray(u.triangles, float)
 
 
 def winglet_path(s, y_straight=1.5, radius=0.15):

@@ -340,3 +340,24 @@ def test_winglet_run_writes_the_arc_length_in_stations_csv(tmp_path):
 
     w = read_wing(SAMPLE / "pellin_half_wing_mm.stl", units="mm", n_stations=8)
     assert not is_nonplanar(w.stations)
+
+
+def test_fused_aircraft_gives_the_loads_of_the_separate_shells(tmp_path):
+    """The same untwisted aircraft (tests/aircraftfactory.py) as separate shells (the wing
+    through the fuselage) and as one shell fused by a boolean union (manifold3d): the fused
+    wing is cut out at the fuselage side and carried through by extending its straight edges at
+    its root incidence, which for an untwisted straight-tapered wing is the wing inside the
+    fuselage again, so the loads at y = 0 agree."""
+    from aircraftfactory import aircraft, fused
+
+    bodies, dw, _ = aircraft(washout_deg=0.0)
+    r = _run_ok(_case(tmp_path, "fused", fused(bodies)), tmp_path / "out-fused")
+    assert "fuselage side at y = 0.2 m" in r.stderr, r.stderr
+    _run_ok(_case(tmp_path, "shells", bodies), tmp_path / "out-shells")
+    ref, got = _root_loads(tmp_path / "out-shells"), _root_loads(tmp_path / "out-fused")
+    shear = max(abs(v) for (c, q), v in ref.items() if q.startswith("shear"))
+    for k, e in ref.items():
+        # torsion held to 0.1 % of root shear x root chord, as for the exposed wing above
+        tol = dict(rel=INVARIANCE_REL) if not k[1].startswith("torsion") else dict(
+            abs=INVARIANCE_REL * shear * dw["root_chord"])
+        check(SAME_WING, f"fused vs separate shells: root {k[1]} of {k[0]}", e, got[k], **tol)

@@ -29,6 +29,13 @@ def _max3(a):
     return np.maximum(np.maximum(a[:, 0], a[:, 1]), a[:, 2])
 
 
+def slice_all(tris, rotation, origin, levels):
+    """Every closed loop of each plane cut y_frame = level: a list of (k, 2) (x, z) arrays per
+    level (pieces of several bodies, or of one body that the plane meets several times)."""
+    return slice_indexed(SpanIndex(tris, np.asarray(rotation, float)[1]), rotation, origin,
+                         levels, all_loops=True)
+
+
 def slice_loops(tris, rotation, origin, levels, tol=None):
     """Cut the soup by the planes y_frame = level; per level return (loop, n_stray, open).
 
@@ -39,11 +46,12 @@ def slice_loops(tris, rotation, origin, levels, tol=None):
     return slice_indexed(SpanIndex(tris, np.asarray(rotation, float)[1]), rotation, origin, levels, tol)
 
 
-def slice_indexed(index, rotation, origin, levels, tol=None):
+def slice_indexed(index, rotation, origin, levels, tol=None, all_loops=False):
     """`slice_loops` on the soup of a `SpanIndex` (whose axis may differ from the plane normal).
 
     Only the triangles the index finds near the planes are touched; tolerances are relative to
     the extent of the whole soup along the plane normal, as in `slice_loops`.
+    all_loops: return, per level, the list of every closed loop ((k, 2) arrays) instead.
     """
     tris = index.tris
     levels = np.asarray(levels, float)
@@ -104,6 +112,12 @@ def slice_indexed(index, rotation, origin, levels, tol=None):
     srt = np.argsort(pl, kind="stable")
     pl, seg = pl[srt], seg[srt]
     bounds = np.searchsorted(pl, np.arange(lv.size + 1))
+    if all_loops:
+        out = [None] * levels.size
+        for k in range(lv.size):
+            pieces = _pieces(seg[bounds[k]:bounds[k + 1]], tol)
+            out[order[k]] = [p for closed, p in pieces if closed and p.shape[0] >= 3]
+        return out
     res = _chain_oriented(seg, pl, lv.size)
     out = [None] * levels.size
     for k in range(lv.size):
@@ -180,6 +194,23 @@ def _chain(seg, tol):
     """Chain (S, 2, 2) segments into loops; return (largest loop, n_stray, largest_is_open)."""
     if seg.shape[0] < 3:
         return None, 0, seg.shape[0] > 0
+    pieces = _pieces(seg, tol)
+    best, size = None, -1.0
+    for closed, p in pieces:
+        ext = float(np.ptp(p, 0).max()) if p.shape[0] else 0.0
+        if ext > size:
+            best, size = (closed, p), ext
+    n_stray = len(pieces) - 1
+    closed, p = best
+    if not closed or p.shape[0] < 3:
+        return None, n_stray, True
+    return p, n_stray, False
+
+
+def _pieces(seg, tol):
+    """Chain (S, 2, 2) segments into pieces: list of (closed, (k, 2) points)."""
+    if seg.shape[0] == 0:
+        return []
     flat = np.ascontiguousarray(seg.reshape(-1, 2))
     _, node = np.unique(flat.view(np.dtype((np.void, 16))).ravel(), return_inverse=True)
     node = node.ravel()
@@ -228,19 +259,8 @@ def _chain(seg, tol):
                 break
             chain_nodes = seq[::-1] + chain_nodes if direction == 0 else seq
         pieces.append((closed, chain_nodes))
-    # node coordinates
-    xy = np.zeros((nn, 2))
+    xy = np.zeros((nn, 2))  # node coordinates
     xy[node] = flat
-    best, size = None, -1.0
-    for closed, nodes_ in pieces:
-        p = xy[nodes_]
-        ext = float(np.ptp(p, 0).max()) if len(nodes_) else 0.0
-        if ext > size:
-            best, size = (closed, p), ext
-    n_stray = len(pieces) - 1
-    closed, p = best
-    if not closed or p.shape[0] < 3:
-        return None, n_stray, True
-    return p, n_stray, False
+    return [(closed, xy[nodes_]) for closed, nodes_ in pieces]
 
 

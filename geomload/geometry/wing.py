@@ -26,12 +26,18 @@ def read_wing(path, units=None, body=None, span_axis=None, up_axis=None, n_stati
     progress = progress or _no_progress
     mesh = read_mesh(path, units=units, progress=progress, require_units=require_units,
                      units_hint=units_hint, all_bodies=True)
+    fused = None
     if body is None:
         wing_mesh, index, found = _pick_wing(mesh)
+        if found is None and index is None:  # one shell that is not one plain wing
+            fused = _fused(mesh, span_axis, up_axis)
     else:
         wing_mesh, index, found = _given_body(mesh, body), None, None
-    frame, index = detect_frame_indexed(wing_mesh, span_axis=span_axis, up_axis=up_axis, side=side,
-                                        index=index)
+    if fused is not None:
+        wing_mesh, frame, fused_info = fused
+    else:
+        frame, index = detect_frame_indexed(wing_mesh, span_axis=span_axis, up_axis=up_axis,
+                                            side=side, index=index)
     stations = _cut(wing_mesh, frame, n_stations, spacing, progress, index)
     if frame.y_root > 0.0:  # exposed wing: the origin of the wing carried through to y = 0
         from .exposed import carried_through_frame
@@ -42,6 +48,9 @@ def read_wing(path, units=None, body=None, span_axis=None, up_axis=None, n_stati
     if found is not None:
         stations, controls, tail, bodies, extra = _other_bodies(found, frame, stations, n_stations)
         side_y = _fuselage_side(found, frame, stations, extra)
+    elif fused is not None:
+        tail, bodies, extra = _fused_others(mesh, frame, fused_info)
+        side_y = fused_info["y_side"]
     planform = summarize(stations, y_root=frame.y_root)
     warnings, notes = split_notes(list(wing_mesh.notes) + list(frame.notes) + list(stations.notes)
                                   + extra)
@@ -68,6 +77,44 @@ def _cut(mesh, frame, n, spacing, progress, index):
         if st is None:
             raise err
     return st
+
+
+def _fused(mesh, span_axis, up_axis):
+    """(wing mesh, frame, info) of a whole aircraft fused into one shell, or None."""
+    from .fusedwing import find_fused
+
+    return find_fused(mesh, span_axis=span_axis, up_axis=up_axis)
+
+
+def _fused_others(mesh, frame, info):
+    """(tailplane planform or None, BodyInfo tuple, warning lines) of a fused aircraft."""
+    from .fusedwing import others
+
+    found, _ = others(mesh, frame, info)
+    extra = list(info["text"])
+    tail = None
+    for (kind, text), tris in zip([f for f in found if f[0] != "fuselage" and f[0] != "fin"],
+                                  info["tails"]):
+        if kind == "tailplane":
+            part = _Part(tris - info["shift"], 1)
+            tail = _tail_planform(part, frame, None, extra, shift=info["shift"])
+    listed = "; ".join(f"{kind}: {text}" for kind, text in found) or "nothing else"
+    n = int(mesh.triangles.shape[0])
+    if tail is not None:
+        listed += (f"; the tailplane's gross planform (carried through to the plane of "
+                   f"symmetry): S = {tail.area:.4g} m^2, b = {tail.span:.4g} m")
+    extra.append(f"warning: bodies: besides the wing the shell holds {listed}; at stations "
+                 "where another surface lies in the same plane only the wing's loop is kept")
+    bodies = (BodyInfo(1, "aircraft (one fused shell)", n, info["span"], info["span"],
+                       "one shell: " + listed),)
+    return tail, bodies, extra
+
+
+class _Part:
+    """A piece of a shell measured like a body (triangles and a number)."""
+
+    def __init__(self, tris, index):
+        self.tris, self.index = tris, index
 
 
 def _pick_wing(mesh):
@@ -186,14 +233,19 @@ def _fuselage_side(cls, frame, stations, extra):
     return best
 
 
-def _tail_planform(b, frame, cls, extra):
+def _tail_planform(b, frame, cls, extra, shift=None):
     """The tailplane's planform in the wing frame, or None (with a warning) when it cannot be
-    measured."""
+    measured. shift: CAD offset of b's triangles (a fused shell's piece, moved so that its
+    plane of symmetry passes through the CAD origin and its gross planform is measured)."""
     from ..errors import GeometryError
 
     try:
         m = WingMesh(b.tris, "tailplane", "m")
         f, idx = detect_frame_indexed(m)
+        if shift is not None:  # a piece of a fused shell: its root is off the plane of symmetry
+            from .fusedwing import on_symmetry_plane
+
+            f = on_symmetry_plane(f, np.zeros(3))
         st = cut_stations(m, f, n=11, index=idx)
         pf = summarize(st, y_root=f.y_root)
     except GeometryError as exc:
@@ -201,8 +253,9 @@ def _tail_planform(b, frame, cls, extra):
         return None
     # quarter-chord point of the tail's MAC, carried from the tail frame to the wing frame
     p_tail = np.array([pf.x_mac_qc, pf.y_mac, float(np.interp(pf.y_mac, st.y, st.z_qc))])
-    p_wing = frame.to_wing(f.to_cad(p_tail))
-    z0 = frame.to_wing(f.to_cad(np.array([st.x_qc[0], 0.0, st.z_qc[0]])))[2]
+    d = np.zeros(3) if shift is None else np.asarray(shift, float)
+    p_wing = frame.to_wing(f.to_cad(p_tail) + d)
+    z0 = frame.to_wing(f.to_cad(np.array([st.x_qc[0], 0.0, st.z_qc[0]])) + d)[2]
     return TailPlanform(area=pf.area, span=pf.span, x_qc_mac=float(p_wing[0]), mac=pf.mac,
                         z_m=float(z0))
 
