@@ -115,13 +115,14 @@ def slice_indexed(index, rotation, origin, levels, tol=None, all_loops=False):
     if all_loops:
         out = [None] * levels.size
         for k in range(lv.size):
-            pieces = _pieces(seg[bounds[k]:bounds[k + 1]], tol)
+            pieces = _pieces(_cancel(seg[bounds[k]:bounds[k + 1]]), tol)
             out[order[k]] = [p for closed, p in pieces if closed and p.shape[0] >= 3]
         return out
     res = _chain_oriented(seg, pl, lv.size)
     out = [None] * levels.size
     for k in range(lv.size):
-        out[order[k]] = res[k] if res[k] is not None else _chain(seg[bounds[k]:bounds[k + 1]], tol)
+        out[order[k]] = (res[k] if res[k] is not None
+                         else _chain(_cancel(seg[bounds[k]:bounds[k + 1]]), tol))
     return out
 
 
@@ -133,7 +134,11 @@ def _chain_oriented(seg, pl, n_levels):
         return res
     os_, oe = _point_orders(seg, pl)
     match = (seg[os_, 0] == seg[oe, 1]).all(1)
-    bad = np.unique(pl[os_][~match])
+    # two segments starting at one point (two bodies sharing a joint face's points): chained
+    # with the joint face's opposite segments cancelled (`_cancel`)
+    s0 = seg[os_, 0]
+    twice = np.concatenate([[False], (s0[1:] == s0[:-1]).all(1) & (pl[os_][1:] == pl[os_][:-1])])
+    bad = np.unique(np.concatenate([pl[os_][~match], pl[os_][twice]]))
     nxt = np.empty(S, np.int64)
     nxt[oe] = os_  # the segment that starts where segment oe[i] ends
     badseg = np.isin(pl, bad)
@@ -188,6 +193,20 @@ def _point_orders(seg, pl):
     lo, hi = float(k.min()), float(k.max())
     key = (k - lo) + (pl * (2.0 * (hi - lo) + 1.0))[:, None]
     return np.argsort(key[:, 0], kind="stable"), np.argsort(key[:, 1], kind="stable")
+
+
+def _cancel(seg):
+    """The segments (S, 2, 2) without pairs that run the same points in opposite directions
+    (the cut of a face two touching bodies share: inside their union, no boundary)."""
+    if seg.shape[0] < 2:
+        return seg
+    fwd = np.ascontiguousarray(seg.reshape(-1, 4))
+    rev = np.ascontiguousarray(seg[:, ::-1].reshape(-1, 4))
+    v = np.dtype((np.void, 32))
+    _, ids = np.unique(np.concatenate([fwd, rev]).view(v).ravel(), return_inverse=True)
+    ids = ids.ravel()
+    n = seg.shape[0]
+    return seg[~np.isin(ids[:n], ids[n:])]
 
 
 def _chain(seg, tol):
