@@ -87,9 +87,17 @@ def on_symmetry_plane(frame, shift):
     """The frame of a panel framed with its triangles moved by -shift (so that the aircraft's
     plane of symmetry is the CAD plane through the origin), moved so that y = 0 is that plane
     and `y_root` the panel's root, in the unmoved CAD coordinates."""
-    y_sym = float(frame.to_wing(np.zeros(3))[1])  # the plane of symmetry in the panel's frame
+    f = to_plane(frame, np.zeros(3))
+    return dataclasses.replace(f, origin=np.asarray(f.origin, float) + np.asarray(shift, float))
+
+
+def to_plane(frame, point):
+    """The frame moved along its y so that y = 0 is the plane through the CAD `point` normal to
+    the frame's y (the aircraft's plane of symmetry), `y_root` the root's distance from it; the
+    frame's own exposed-root warning (about the CAD plane) is dropped."""
+    y_sym = float(frame.to_wing(np.asarray(point, float))[1])
     R_w = np.asarray(frame.rotation, float)
-    origin = np.asarray(frame.origin, float) + R_w[1] * y_sym + np.asarray(shift, float)
+    origin = np.asarray(frame.origin, float) + R_w[1] * y_sym
     notes = tuple(n for n in frame.notes if not n.startswith("warning: exposed:"))
     return dataclasses.replace(frame, origin=origin, y_root=float(frame.y_root) - y_sym,
                                notes=notes)

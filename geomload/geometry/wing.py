@@ -38,6 +38,9 @@ def read_wing(path, units=None, body=None, span_axis=None, up_axis=None, n_stati
     else:
         frame, index = detect_frame_indexed(wing_mesh, span_axis=span_axis, up_axis=up_axis,
                                             side=side, index=index)
+    if found is not None and found.get("mirror") is not None:
+        wing_mesh, frame, index = _mirror_halves(found, wing_mesh, frame, index, span_axis,
+                                                 up_axis)
     stations = _cut(wing_mesh, frame, n_stations, spacing, progress, index)
     if frame.y_root > 0.0:  # exposed wing: the origin of the wing carried through to y = 0
         from .exposed import carried_through_frame
@@ -77,6 +80,34 @@ def _cut(mesh, frame, n, spacing, progress, index):
         if st is None:
             raise err
     return st
+
+
+def _mirror_halves(cls, wing_mesh, frame, index, span_axis, up_axis):
+    """Two mirror-image wing halves either side of a fuselage: one wing. The half the frame
+    does not mirror is analysed (the other when the first lies on the port side); y = 0 is the
+    plane midway between the halves, so the root is carried through to it."""
+    import dataclasses
+
+    a, b = cls["wing"][0], cls["mirror"]
+    if frame.mirrored:
+        a, b = b, a
+        a.kind, b.kind = "wing", "wing (other half)"
+        cls["wing"], cls["mirror"] = [a], b
+        notes = tuple(n for n in wing_mesh.notes if not n.startswith(
+            f"warning: bodies: {len(cls['all'])} bodies in "))
+        notes += (_kept_text(wing_mesh, cls["all"], [a]),)
+        wing_mesh = dataclasses.replace(wing_mesh, triangles=a.tris, notes=notes,
+                                        body_sizes=(int(a.tris.shape[0]),))
+        frame, index = detect_frame_indexed(wing_mesh, span_axis=span_axis, up_axis=up_axis)
+    from .fusedwing import to_plane
+
+    frame = to_plane(frame, 0.5 * (a.mean + b.mean))
+    text = (f"warning: bodies: bodies {a.index} and {b.index} are mirror images either side of "
+            f"the plane midway between them, taken as one wing: body {a.index} is analysed and "
+            f"its root (y = {frame.y_root:.4g} m from that plane) carried through to it by "
+            "extending the leading and trailing edges")
+    wing_mesh = dataclasses.replace(wing_mesh, notes=tuple(wing_mesh.notes) + (text,))
+    return wing_mesh, frame, index
 
 
 def _fused(mesh, span_axis, up_axis):
@@ -132,7 +163,16 @@ def _pick_wing(mesh):
     bodies = [Body(i + 1, s) for i, s in enumerate(shells)]
     cls = classify(bodies, mesh.source)
     wing_tris = np.concatenate([p.tris for p in cls["wing"]])
-    wing = cls["wing"]
+    text = _kept_text(mesh, bodies, cls["wing"])
+    wing_mesh = WingMesh(triangles=wing_tris, source=mesh.source, units=mesh.units,
+                         notes=tuple(mesh.notes) + (text,), units_assumed=mesh.units_assumed,
+                         body_sizes=tuple(int(p.tris.shape[0]) for p in cls["wing"]))
+    cls["all"] = bodies
+    return wing_mesh, None, cls
+
+
+def _kept_text(mesh, bodies, wing):
+    """The warning line saying which bodies make the wing and what the others were taken for."""
     if len(wing) == 1:
         why = "the lifting surface of largest span"
         if wing[0].area >= max(b.area for b in bodies):
@@ -142,13 +182,8 @@ def _pick_wing(mesh):
         kept = (f"kept bodies {', '.join(str(p.index) for p in wing)} as the wing (touching parts "
                 "of one lifting surface)")
     left = [f"body {b.index} {b.kind} ({b.describe()})" for b in bodies if b not in wing]
-    text = (f"warning: bodies: {len(bodies)} bodies in {os.path.basename(mesh.source)}: {kept}; "
+    return (f"warning: bodies: {len(bodies)} bodies in {os.path.basename(mesh.source)}: {kept}; "
             f"left out of the wing: {'; '.join(left)}")
-    wing_mesh = WingMesh(triangles=wing_tris, source=mesh.source, units=mesh.units,
-                         notes=tuple(mesh.notes) + (text,), units_assumed=mesh.units_assumed,
-                         body_sizes=tuple(int(p.tris.shape[0]) for p in cls["wing"]))
-    cls["all"] = bodies
-    return wing_mesh, None, cls
 
 
 def _shells(mesh):
