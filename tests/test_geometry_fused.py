@@ -98,3 +98,39 @@ def test_clipped_shell_stays_closed_and_welded():
     assert len(components(kept)) == 1
     v = float(np.einsum("ij,ij->i", shell[:, 0], np.cross(shell[:, 1], shell[:, 2])).sum()) / 6
     check("volume of a box (analytic)", "clipped unit cube: volume (m^3)", 0.7, v, rel=1e-9)
+
+
+def test_fused_aircraft_in_a_y_up_mm_frame_off_the_origin(tmp_path):
+    """The same fused aircraft exported in a right-handed Y-up frame, in millimetres, with its
+    plane of symmetry 200 mm off the CAD origin: the same wing, the same fuselage side."""
+    from wingcopies import Y_UP_RIGHT, in_frame
+
+    bodies, d, _ = aircraft()
+    t = in_frame(fused(bodies), Y_UP_RIGHT, translation=[0.5, 0.3, -0.2]) * 1000.0
+    w = read_wing(write_stl(tmp_path / "aircraft_mm.stl", t), units="mm", n_stations=15)
+    st, pf = w.stations, w.planform
+    ex = expected_stations(d, st.y)
+    _worst("fused aircraft, Y-up mm frame: chord (m)", ex["chord"], st.chord, rel=0.01)
+    _worst("fused aircraft, Y-up mm frame: twist relative to the root (deg)",
+           ex["twist"] - ex["twist"][0], st.twist_deg - st.twist_deg[0], abs=0.25)
+    check(TAPER, "fused aircraft, Y-up mm frame: gross span (m)", d["span"], pf.span, rel=0.005)
+    check("design dihedral", "fused aircraft, Y-up mm frame: dihedral (deg)",
+          d["dihedral_deg"], pf.dihedral_deg, abs=0.3)
+    check("fuselage radius of the generated capsule", "fused, Y-up mm frame: fuselage side y (m)",
+          0.2, w.fuselage_side_y_m, rel=0.02)
+    assert not w.frame.mirrored
+
+
+def test_two_crossing_wings_fused_into_one_shell_are_refused(tmp_path):
+    """Two copies of a wing crossing at right angles, fused by a boolean union: no wing can
+    be chosen without the user; one line naming the file and what was found."""
+    from geomload.errors import GeometryError
+    from wingfactory import design, wing_triangles
+
+    full = wing_triangles(design(), 40, 10, full_span=True)
+    rot = np.array([[0.0, -1.0, 0.0], [1.0, 0.0, 0.0], [0.0, 0.0, 1.0]])
+    p = write_stl(tmp_path / "cross.stl", fused([full, full @ rot.T + np.array([0.2, 0, 0])]))
+    with pytest.raises(GeometryError) as e:
+        read_wing(p, units="m", n_stations=9)
+    msg = str(e.value)
+    assert "\n" not in msg and str(p) in msg and "crossing" in msg and "--body" in msg

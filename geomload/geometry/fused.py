@@ -27,6 +27,9 @@ BODY_GROWTH = 1.5  # the innermost section at least 1.5 x the wing's chord or th
 _LEVELS = 48  # marching steps from 95 % of the half-extent to the centre
 _SCORE_LEVELS = np.linspace(0.02, 0.98, 33)
 _BISECT = 10
+# a second wing-like axis reaching 60 % as far as the first: two crossing surfaces (as
+# bodies.SIMILAR_SPAN for separate ones)
+SIMILAR_SPAN = 0.6
 
 
 def _props(loop):
@@ -47,9 +50,10 @@ def _basis(e, hint):
     return np.vstack([x, e, np.cross(x, e)])
 
 
-def span_axis(tris):
-    """(unit axis, centre level along it) of the wing in a fused shell, or None when no axis
-    gives wing-like cuts."""
+def span_axis(tris, source="<mesh>"):
+    """(unit axis, centre level along it, cut basis) of the wing in a fused shell, or None when
+    no axis gives wing-like cuts. Raises GeometryError (naming `source`) when two axes do
+    alike (two crossing lifting surfaces)."""
     from .bodies import principal
     from .frameutil import snap
     from .slicing import slice_all
@@ -57,7 +61,7 @@ def span_axis(tris):
 
     _, axes, _ = principal(tris)
     pts = tris.reshape(-1, 3)
-    best = None
+    valid = []
     for i in range(3):
         e = snap(axes[i], 5.0)[0]
         R = _basis(e, axes[(i + 1) % 3])
@@ -73,9 +77,18 @@ def span_axis(tris):
                 chords.append(min(sp["chord"] for sp in thin))
         reach = (hi - lo) * n_thin / levels.size
         if chords and reach >= 2.0 * float(np.median(chords)):
-            if best is None or reach > best[0]:
-                best = (reach, e, 0.5 * (lo + hi), R)
-    return None if best is None else (best[1], best[2], best[3])
+            valid.append((reach, e, 0.5 * (lo + hi), R))
+    if not valid:
+        return None
+    valid.sort(key=lambda v: -v[0])
+    best = valid[0]
+    if len(valid) > 1 and valid[1][0] >= SIMILAR_SPAN * best[0]:
+        from ..errors import GeometryError
+
+        raise GeometryError(f"{source}: one shell holding two crossing lifting surfaces of "
+                            f"{best[0]:.3g} m and {valid[1][0]:.3g} m reach; export the wing as a "
+                            "separate body and give --body N")
+    return best[1], best[2], best[3]
 
 
 def _inside(p, loop):

@@ -35,7 +35,7 @@ def find_fused(mesh, span_axis=None, up_axis=None):
     from .fused import cap, clip_above, march, span_axis as find_axis
 
     tris = mesh.triangles
-    found = find_axis(tris)
+    found = find_axis(tris, mesh.source)
     if found is None:
         return None
     e, c, R = found
