@@ -37,7 +37,8 @@ def _props(loop):
 
     try:
         sp = section_properties(loop)
-    except (ValueError, FloatingPointError, IndexError, np.linalg.LinAlgError):
+    except (ValueError, FloatingPointError, IndexError, TypeError, ZeroDivisionError,
+            np.linalg.LinAlgError):  # a loop no airfoil measure fits: not a wing section
         return None
     if not (np.isfinite(sp["chord"]) and sp["chord"] > 0 and np.isfinite(sp["thickness_ratio"])):
         return None
@@ -157,15 +158,18 @@ def march(tris, R, origin, start, stop, steps=_LEVELS):
         loops = slice_all(tris, R, origin, [mid])[0]
         bad, _ = departs(pick(loops, mid), mid)
         lo, hi = (lo, mid) if bad else (mid, hi)
-    # does the section inboard grow into a body (a fuselage), or just end (a tip, a hole)?
-    inner = slice_all(tris, R, origin, [0.5 * (hi + stop)])[0]
+    # does the section inboard grow into a body all the way in (a fuselage), or just end (a
+    # hole), or become the wing again (a nacelle or pod on the wing)?
     sp_w = good[-1][2]
-    sp_in = _props(pick(inner, hi) if inner else None) if inner else None
-    body = sp_in is not None and (
-        sp_in["chord"] >= BODY_GROWTH * sp_w["chord"]
-        or sp_in["chord"] * sp_in["thickness_ratio"]
-        >= BODY_GROWTH * sp_w["chord"] * sp_w["thickness_ratio"])
-    return good, hi, lo, body
+    body = True
+    for loops in slice_all(tris, R, origin, [stop + f * (hi - stop) for f in (0.5, 0.05)]):
+        loop = pick(loops, hi)
+        sp_in = _props(loop) if loop is not None else None
+        body &= sp_in is not None and (
+            sp_in["chord"] >= BODY_GROWTH * sp_w["chord"]
+            or sp_in["chord"] * sp_in["thickness_ratio"]
+            >= BODY_GROWTH * sp_w["chord"] * sp_w["thickness_ratio"])
+    return good, hi, lo, bool(body)
 
 
 def clip_above(tris, n, level):
