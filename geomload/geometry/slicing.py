@@ -112,13 +112,15 @@ def slice_indexed(index, rotation, origin, levels, tol=None, all_loops=False):
     srt = np.argsort(pl, kind="stable")
     pl, seg = pl[srt], seg[srt]
     bounds = np.searchsorted(pl, np.arange(lv.size + 1))
+    res = _chain_oriented(seg, pl, lv.size, all_loops)
     if all_loops:
         out = [None] * levels.size
         for k in range(lv.size):
-            pieces = _pieces(_cancel(seg[bounds[k]:bounds[k + 1]]), tol)
-            out[order[k]] = [p for closed, p in pieces if closed and p.shape[0] >= 3]
+            if res[k] is None:
+                pieces = _pieces(_cancel(seg[bounds[k]:bounds[k + 1]]), tol)
+                res[k] = [p for closed, p in pieces if closed and p.shape[0] >= 3]
+            out[order[k]] = res[k]
         return out
-    res = _chain_oriented(seg, pl, lv.size)
     out = [None] * levels.size
     for k in range(lv.size):
         out[order[k]] = (res[k] if res[k] is not None
@@ -126,10 +128,11 @@ def slice_indexed(index, rotation, origin, levels, tol=None, all_loops=False):
     return out
 
 
-def _chain_oriented(seg, pl, n_levels):
-    """Vectorised chaining of head-to-tail segments; None for levels that need `_chain`."""
+def _chain_oriented(seg, pl, n_levels, all_loops=False):
+    """Vectorised chaining of head-to-tail segments; None for levels that need `_chain`.
+    all_loops: per level the list of every closed loop instead of (largest, n_stray, open)."""
     S = seg.shape[0]
-    res = [(None, 0, False)] * n_levels
+    res = [[] if all_loops else (None, 0, False) for _ in range(n_levels)]
     if S == 0:
         return res
     os_, oe = _point_orders(seg, pl)
@@ -172,6 +175,9 @@ def _chain_oriented(seg, pl, n_levels):
             res[k] = None
             continue
         idx = np.nonzero(cyc_pl == k)[0]
+        if all_loops:
+            res[k] = [p0[starts[i]:starts[i] + size[i]] for i in idx if size[i] >= 3]
+            continue
         if idx.size == 0:
             continue
         best = idx[np.argmax(ext[idx])]
