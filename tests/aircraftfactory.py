@@ -84,10 +84,10 @@ def fuselage(length=3.4, radius=0.2, x0=-1.0, z0=0.0):
     return t + np.array([x0 + 0.5 * length, 0.0, z0])
 
 
-def aircraft():
+def aircraft(**wing_kw):
     """(bodies, wing design, tail design): wing (full span through the fuselage), fuselage,
-    tailplane at x = 2.2 m, fin at x = 2.2 m."""
-    dw = design()
+    tailplane at x = 2.2 m, fin at x = 2.2 m. wing_kw: the wing's `design` arguments."""
+    dw = design(**wing_kw)
     wing = wing_triangles(dw, 60, 16, full_span=True)
     dt = design(semispan=0.6, root_chord=0.22, taper=0.6, sweep_le_deg=5.0, dihedral_deg=0.0,
                 washout_deg=0.0, t_root=0.10, t_tip=0.10, code="0010")
@@ -97,6 +97,21 @@ def aircraft():
     fin = wing_triangles(df, 40, 8) @ np.array([[1.0, 0, 0], [0, 0, -1.0], [0, 1.0, 0]]).T
     fin = fin + np.array([2.15, 0.0, 0.12])
     return [wing, fuselage(), tail, fin], dw, dt
+
+
+def fused(bodies):
+    """One closed shell: the boolean union of the bodies (manifold3d through trimesh, a
+    general-purpose mesh boolean library; test-only dependency)."""
+    import trimesh
+
+    meshes = []
+    for b in bodies:
+        m = trimesh.Trimesh(**trimesh.triangles.to_kwargs(np.asarray(b, float)))
+        m.merge_vertices()
+        meshes.append(m)
+    u = trimesh.boolean.union(meshes, engine="manifold")
+    assert u.is_watertight  # a closed shell, as a CAD boolean union exports it
+    return np.asarray(u.triangles, float)
 
 
 def winglet_path(s, y_straight=1.5, radius=0.15):
@@ -134,3 +149,26 @@ def winglet_wing(s_tip=2.0356, chord_root=0.36, chord_tip=0.15, n=40):
     # the two halves share the root ring: drop both root caps by lofting through -s .. s
     full_rings = [r * np.array([1, -1, 1]) for r in rings[:0:-1]] + rings
     return loft_rings(full_rings), chord
+
+
+def split_at_an_angle(tris, y_split=0.9, angle_deg=30.0, overlap=0.0):
+    """(inner, outer) bodies of one closed soup split by the plane through (0, y_split, 0)
+    swept back by angle_deg (so that stations near y_split cut both bodies), each reaching
+    `overlap` m past the plane into the other (0: they touch). Boolean intersections with a
+    half-space box by manifold3d through trimesh (test-only)."""
+    import trimesh
+
+    m = trimesh.Trimesh(**trimesh.triangles.to_kwargs(np.asarray(tris, float)))
+    m.merge_vertices()
+    a = np.radians(angle_deg)
+    n = np.array([-np.sin(a), np.cos(a), 0.0])  # the plane's normal, outboard
+    pieces = []
+    for sgn in (-1.0, 1.0):  # inner: n . (p - p0) <= overlap; outer: >= -overlap
+        box = trimesh.creation.box(extents=(20.0, 20.0, 20.0))
+        T = np.eye(4)
+        T[:3, :3] = np.column_stack([np.cross(n, [0, 0, 1.0]), n, [0, 0, 1.0]])
+        T[:3, 3] = np.array([0.0, y_split, 0.0]) + n * (sgn * 10.0 - sgn * overlap)
+        box.apply_transform(T)
+        pieces.append(np.asarray(trimesh.boolean.intersection([m, box], engine="manifold")
+                                 .triangles, float))
+    return pieces[0], pieces[1]

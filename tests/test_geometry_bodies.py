@@ -106,3 +106,31 @@ def test_body_option_picks_one_wing_of_a_biplane(tmp_path):
     check(TAPER, "biplane, --body 2: span (m)", d["span"], w.planform.span, rel=0.005)
     with pytest.raises(Exception, match="out of range"):
         read_wing(p, units="m", n_stations=9, body=3)
+
+
+@pytest.mark.parametrize("port_first", [True, False])
+def test_mirror_image_halves_beside_a_fuselage_are_one_wing(tmp_path, port_first):
+    """Separate port and starboard halves from the fuselage side (y = +-0.2 m) outward and a
+    fuselage: one wing (not a biplane, not two wings), the starboard half analysed, the plane
+    midway between the halves kept as y = 0 and the gross planform the design's."""
+    from aircraftfactory import panel
+    from wingcopies import port_of
+
+    d = design()
+    stb = panel(d, 0.2, d["semispan"], n_span=13)
+    halves = [port_of(stb), stb] if port_first else [stb, port_of(stb)]
+    w = read_wing(_stl(tmp_path / "halves.stl", halves + [fuselage()]), units="m", n_stations=15)
+    kinds = [b.kind for b in w.bodies]
+    assert sorted(kinds[:2]) == ["wing", "wing (other half)"] and kinds[2] == "fuselage"
+    assert kinds[1 if port_first else 0] == "wing"  # the starboard half
+    assert not w.frame.mirrored and not w.frame.full_span
+    assert any("mirror images" in x.text for x in w.warnings)
+    check("generator: halves from y = 0.2 m", "mirror halves: exposed root y (m)", 0.2,
+          w.frame.y_root, rel=0.005)
+    _truth_ok(w, d, "mirror halves beside a fuselage")
+    check(TAPER, "mirror halves: gross area S = s (c_r + c_t) (m^2)", d["area"], w.planform.area,
+          rel=0.01)
+    # the carried-through part keeps the exposed root's incidence: washout = twist(0.2) - tip
+    ex = expected_stations(d, np.array([0.2, d["semispan"]]))
+    check(NACA, "mirror halves: washout of the gross wing, root incidence kept inboard (deg)",
+          ex["twist"][0] - ex["twist"][1], w.planform.washout_deg, abs=0.25)

@@ -25,6 +25,8 @@ GAP = 0.03  # a control surface's gap to the wing is under 3 % of the local chor
 SMALL = 0.35  # a control surface has under 35 % of the wing's surface area
 SIMILAR_SPAN = 0.6  # two separate lifting surfaces within this span ratio: a biplane / ambiguous
 AMBIGUOUS = 1.6  # the two largest extents within this factor: the long axis is in doubt
+MIRROR_FIT = 0.01  # mirror-image halves: reflected vertices within 1 % of the chord of the other
+
 _CHECK_LEVELS = np.linspace(0.1, 0.9, 7)
 
 
@@ -182,7 +184,9 @@ def classify(bodies, path):
     for i in range(len(keys)):
         for j in range(i + 1, len(keys)):
             ga, gb = groups.get(keys[i]), groups.get(keys[j])
-            if ga is not None and gb is not None and _end_to_end(ga, gb):
+            if (ga is not None and gb is not None and _end_to_end(ga, gb)
+                    and not _mirror_pair(max(ga, key=lambda p: p.area),
+                                         max(gb, key=lambda p: p.area))):
                 groups[keys[i]] = ga + gb
                 del groups[keys[j]]
     surfaces = []
@@ -203,7 +207,7 @@ def classify(bodies, path):
     rest = [p for _, parts in surfaces[1:] for p in parts]
     up = main.axes[2]
     span_dir = main.axes[0]
-    controls, tail, fins, others = [], None, [], []
+    controls, tail, fins, others, mirror = [], None, [], [], None
     wing_area = sum(p.area for p in wing)
     for b in rest:
         d = min(gap(p, b) for p in wing)
@@ -215,9 +219,10 @@ def classify(bodies, path):
         elif not horizontal:
             b.kind = "fin"
             fins.append(b)
-        elif _mirror_pair(main, b):
+        elif _mirror_pair(main, b) and len(wing) == 1 and mirror is None:
             b.kind = "wing (other half)"
             others.append(b)
+            mirror = b
         elif b.span >= SIMILAR_SPAN * ref_span:
             parallel = abs(b.axes[0] @ span_dir) > np.cos(np.radians(30.0))
             what = ("two separate lifting surfaces of similar span (a biplane or two solids)"
@@ -233,19 +238,30 @@ def classify(bodies, path):
         p.kind = "wing" if p is main else "wing part"
     others += [b for b in bodies if b.kind == "other"]
     return dict(wing=wing, controls=controls, tail=tail, fins=fins,
-                fuselage=[b for b in bodies if b.kind == "fuselage"], others=others)
+                fuselage=[b for b in bodies if b.kind == "fuselage"], others=others,
+                mirror=mirror)
 
 
 def _mirror_pair(a, b):
-    """True when b is a's mirror image across a plane normal to a's span (the two halves of a
-    wing on either side of a fuselage): same extents and area within 2 %, centroids apart along
-    the span only (within 5 % of the chord across it)."""
+    """True when b is a's mirror image across the plane midway between their centroids (the
+    two halves of a wing either side of a fuselage): same area and extents within 2 %,
+    centroids apart by more than half a span roughly along a's span (within 30 deg), and a's
+    vertices reflected across that plane lie on b's surface (median distance to b's nearest
+    vertex under MIRROR_FIT of the chord)."""
+    from scipy.spatial import cKDTree
+
     if abs(b.area / a.area - 1) > 0.02 or np.any(np.abs(b.ext / a.ext - 1) > 0.02):
         return False
     d = b.mean - a.mean
-    along = d @ a.axes[0]
-    across = np.linalg.norm(d - along * a.axes[0])
-    return abs(along) > 0.5 * a.span and across < 0.05 * a.ext[1]
+    dist = float(np.linalg.norm(d))
+    if dist <= 0.5 * a.span or abs(d @ a.axes[0]) < np.cos(np.radians(30.0)) * dist:
+        return False
+    n = d / dist
+    pa = a.tris.reshape(-1, 3)[:: max(1, a.tris.shape[0] // 2000)]
+    mid = 0.5 * (a.mean + b.mean)
+    refl = pa - 2.0 * ((pa - mid) @ n)[:, None] * n
+    gap_, _ = cKDTree(b.tris.reshape(-1, 3)).query(refl)
+    return float(np.median(gap_)) < MIRROR_FIT * a.ext[1]
 
 
 def _end_to_end(ga, gb):

@@ -5,7 +5,8 @@ Definitions (e.g. Raymer, *Aircraft Design: A Conceptual Approach*, ch. 4; Ander
 AR = b^2 / S, taper = c_tip / c_root, MAC = (2/S) int_0^s c^2 dy, y_MAC = (2/S) int c y dy,
 x_LE,MAC = (2/S) int c x_LE dy. Chord, LE and twist are taken piecewise linear between
 stations and extrapolated linearly to the root plane (y = 0) and to the geometric tip (y = s);
-products of two piecewise-linear functions are integrated exactly. Sweep and dihedral are the
+products of two piecewise-linear functions are integrated exactly. An exposed wing's
+carried-through part (y < y_root) keeps its root station's twist, as the lattice does. Sweep and dihedral are the
 slopes of least-squares lines through the LE / quarter-chord points.
 """
 
@@ -69,6 +70,8 @@ def summarize(stations: Stations, y_root: float = 0.0) -> Planform:
     c = np.maximum(_extend(y, st.chord, y0, y1), 0.0)
     xle = _extend(y, st.x_le, y0, y1)
     tw = _extend(y, st.twist_deg, y0, y1)
+    if y_root > 0.0:  # the carried-through part keeps the exposed root's incidence (as the lattice)
+        tw[0] = float(st.twist_deg[0])
     one = np.ones_like(ye)
     half_area = _int_prod(ye, c, one)
     area = 2.0 * half_area

@@ -216,9 +216,12 @@ class ControlSurfaceGeometry:
 class BodyInfo:
     """One body of the file and what the reader took it to be.
 
-    index: 1-based body number (file order); kind: "wing", "wing part", "control surface",
-    "fuselage", "tailplane", "fin", "other lifting surface", "other"; n_triangles; span_m: its
-    extent normal to its chord and thickness; length_m: its largest extent; text: one line.
+    index: 1-based body number (file order); kind: "wing", "wing part", "wing (other half)"
+    (the mirror image of the analysed half across a fuselage), "control surface", "fuselage",
+    "tailplane", "fin", "other lifting surface", "other", or "aircraft (one fused shell)" (the
+    wing, fuselage and tail surfaces in one shell; `text` lists what it holds); n_triangles;
+    span_m: its extent normal to its chord and thickness; length_m: its largest extent;
+    text: one line.
     """
 
     index: int

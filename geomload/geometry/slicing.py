@@ -29,6 +29,13 @@ def _max3(a):
     return np.maximum(np.maximum(a[:, 0], a[:, 1]), a[:, 2])
 
 
+def slice_all(tris, rotation, origin, levels):
+    """Every closed loop of each plane cut y_frame = level: a list of (k, 2) (x, z) arrays per
+    level (pieces of several bodies, or of one body that the plane meets several times)."""
+    return slice_indexed(SpanIndex(tris, np.asarray(rotation, float)[1]), rotation, origin,
+                         levels, all_loops=True)
+
+
 def slice_loops(tris, rotation, origin, levels, tol=None):
     """Cut the soup by the planes y_frame = level; per level return (loop, n_stray, open).
 
@@ -39,11 +46,12 @@ def slice_loops(tris, rotation, origin, levels, tol=None):
     return slice_indexed(SpanIndex(tris, np.asarray(rotation, float)[1]), rotation, origin, levels, tol)
 
 
-def slice_indexed(index, rotation, origin, levels, tol=None):
+def slice_indexed(index, rotation, origin, levels, tol=None, all_loops=False):
     """`slice_loops` on the soup of a `SpanIndex` (whose axis may differ from the plane normal).
 
     Only the triangles the index finds near the planes are touched; tolerances are relative to
     the extent of the whole soup along the plane normal, as in `slice_loops`.
+    all_loops: return, per level, the list of every closed loop ((k, 2) arrays) instead.
     """
     tris = index.tris
     levels = np.asarray(levels, float)
@@ -104,22 +112,36 @@ def slice_indexed(index, rotation, origin, levels, tol=None):
     srt = np.argsort(pl, kind="stable")
     pl, seg = pl[srt], seg[srt]
     bounds = np.searchsorted(pl, np.arange(lv.size + 1))
-    res = _chain_oriented(seg, pl, lv.size)
+    res = _chain_oriented(seg, pl, lv.size, all_loops)
+    if all_loops:
+        out = [None] * levels.size
+        for k in range(lv.size):
+            if res[k] is None:
+                pieces = _pieces(_cancel(seg[bounds[k]:bounds[k + 1]]), tol)
+                res[k] = [p for closed, p in pieces if closed and p.shape[0] >= 3]
+            out[order[k]] = res[k]
+        return out
     out = [None] * levels.size
     for k in range(lv.size):
-        out[order[k]] = res[k] if res[k] is not None else _chain(seg[bounds[k]:bounds[k + 1]], tol)
+        out[order[k]] = (res[k] if res[k] is not None
+                         else _chain(_cancel(seg[bounds[k]:bounds[k + 1]]), tol))
     return out
 
 
-def _chain_oriented(seg, pl, n_levels):
-    """Vectorised chaining of head-to-tail segments; None for levels that need `_chain`."""
+def _chain_oriented(seg, pl, n_levels, all_loops=False):
+    """Vectorised chaining of head-to-tail segments; None for levels that need `_chain`.
+    all_loops: per level the list of every closed loop instead of (largest, n_stray, open)."""
     S = seg.shape[0]
-    res = [(None, 0, False)] * n_levels
+    res = [[] if all_loops else (None, 0, False) for _ in range(n_levels)]
     if S == 0:
         return res
     os_, oe = _point_orders(seg, pl)
     match = (seg[os_, 0] == seg[oe, 1]).all(1)
-    bad = np.unique(pl[os_][~match])
+    # two segments starting at one point (two bodies sharing a joint face's points): chained
+    # with the joint face's opposite segments cancelled (`_cancel`)
+    s0 = seg[os_, 0]
+    twice = np.concatenate([[False], (s0[1:] == s0[:-1]).all(1) & (pl[os_][1:] == pl[os_][:-1])])
+    bad = np.unique(np.concatenate([pl[os_][~match], pl[os_][twice]]))
     nxt = np.empty(S, np.int64)
     nxt[oe] = os_  # the segment that starts where segment oe[i] ends
     badseg = np.isin(pl, bad)
@@ -153,6 +175,9 @@ def _chain_oriented(seg, pl, n_levels):
             res[k] = None
             continue
         idx = np.nonzero(cyc_pl == k)[0]
+        if all_loops:
+            res[k] = [p0[starts[i]:starts[i] + size[i]] for i in idx if size[i] >= 3]
+            continue
         if idx.size == 0:
             continue
         best = idx[np.argmax(ext[idx])]
@@ -176,10 +201,41 @@ def _point_orders(seg, pl):
     return np.argsort(key[:, 0], kind="stable"), np.argsort(key[:, 1], kind="stable")
 
 
+def _cancel(seg):
+    """The segments (S, 2, 2) without pairs that run the same points in opposite directions
+    (the cut of a face two touching bodies share: inside their union, no boundary)."""
+    if seg.shape[0] < 2:
+        return seg
+    fwd = np.ascontiguousarray(seg.reshape(-1, 4))
+    rev = np.ascontiguousarray(seg[:, ::-1].reshape(-1, 4))
+    v = np.dtype((np.void, 32))
+    _, ids = np.unique(np.concatenate([fwd, rev]).view(v).ravel(), return_inverse=True)
+    ids = ids.ravel()
+    n = seg.shape[0]
+    return seg[~np.isin(ids[:n], ids[n:])]
+
+
 def _chain(seg, tol):
     """Chain (S, 2, 2) segments into loops; return (largest loop, n_stray, largest_is_open)."""
     if seg.shape[0] < 3:
         return None, 0, seg.shape[0] > 0
+    pieces = _pieces(seg, tol)
+    best, size = None, -1.0
+    for closed, p in pieces:
+        ext = float(np.ptp(p, 0).max()) if p.shape[0] else 0.0
+        if ext > size:
+            best, size = (closed, p), ext
+    n_stray = len(pieces) - 1
+    closed, p = best
+    if not closed or p.shape[0] < 3:
+        return None, n_stray, True
+    return p, n_stray, False
+
+
+def _pieces(seg, tol):
+    """Chain (S, 2, 2) segments into pieces: list of (closed, (k, 2) points)."""
+    if seg.shape[0] == 0:
+        return []
     flat = np.ascontiguousarray(seg.reshape(-1, 2))
     _, node = np.unique(flat.view(np.dtype((np.void, 16))).ravel(), return_inverse=True)
     node = node.ravel()
@@ -228,19 +284,8 @@ def _chain(seg, tol):
                 break
             chain_nodes = seq[::-1] + chain_nodes if direction == 0 else seq
         pieces.append((closed, chain_nodes))
-    # node coordinates
-    xy = np.zeros((nn, 2))
+    xy = np.zeros((nn, 2))  # node coordinates
     xy[node] = flat
-    best, size = None, -1.0
-    for closed, nodes_ in pieces:
-        p = xy[nodes_]
-        ext = float(np.ptp(p, 0).max()) if len(nodes_) else 0.0
-        if ext > size:
-            best, size = (closed, p), ext
-    n_stray = len(pieces) - 1
-    closed, p = best
-    if not closed or p.shape[0] < 3:
-        return None, n_stray, True
-    return p, n_stray, False
+    return [(closed, xy[nodes_]) for closed, nodes_ in pieces]
 
 

@@ -66,6 +66,7 @@ def cut_stations(mesh, frame, n=20, spacing="cosine", progress=None, index=None)
     ys = station_levels(y0, semispan - INSET * (semispan - y_root), int(n), spacing)
     progress("cut", 0, len(ys))
     cuts = slice_indexed(index, frame.rotation, frame.origin, ys)
+    cuts, joined = _join_pieces(mesh, index, frame, ys, cuts)
     rows, notes, stray = [], [], 0
     for i, (y, (loop, n_stray, is_open)) in enumerate(zip(ys, cuts)):
         stray += n_stray
@@ -77,6 +78,10 @@ def cut_stations(mesh, frame, n=20, spacing="cosine", progress=None, index=None)
         progress("cut", i + 1, len(ys))
     if stray:
         notes.append(f"{stray} stray loop(s) beside the airfoil ignored (over all stations)")
+    if joined:
+        notes.append(f"warning: bodies: at {joined} station(s) the cut meets touching or "
+                     "overlapping pieces of the wing: their loops are joined into one airfoil "
+                     "(the outer boundary of their union)")
     if len(rows) < 3:
         raise GeometryError(f"{mesh.source}: only {len(rows)} of {len(ys)} stations give a closed "
                             f"airfoil section (need 3)")
@@ -104,3 +109,41 @@ def cut_stations(mesh, frame, n=20, spacing="cosine", progress=None, index=None)
                     x_thickness=g["x_thickness"], camber_ratio=g["camber_ratio"], x_camber=g["x_camber"],
                     dihedral_deg=dihedral, camber_x=camber_x(), camber_z=g["camber"],
                     semispan=semispan, notes=tuple(notes))
+
+
+def _join_pieces(mesh, index, frame, ys, cuts):
+    """(cuts, number of stations joined): where a station meets several loops that are pieces
+    of one airfoil (touching or overlapping bodies), those loops joined into one (`joinloops`).
+
+    A mesh of several bodies is cut body by body (two bodies may share points on a joint face,
+    which would chain their loops into one); a single body only where its cut has stray loops.
+    """
+    from .joinloops import join_loops
+    from .slicing import slice_all
+
+    sizes = tuple(getattr(mesh, "body_sizes", ()) or ())
+    ys = np.asarray(ys, float)
+    if len(sizes) > 1 and sum(sizes) == mesh.triangles.shape[0]:
+        several = list(range(ys.size))
+        alls = [[] for _ in several]
+        start = 0
+        for n in sizes:
+            part = mesh.triangles[start:start + n]
+            start += n
+            for k, loops in enumerate(slice_all(part, frame.rotation, frame.origin, ys)):
+                alls[k] += loops
+    else:
+        several = [i for i, (loop, n_stray, _) in enumerate(cuts) if loop is not None and n_stray]
+        if not several:
+            return cuts, 0
+        alls = slice_indexed(index, frame.rotation, frame.origin, ys[several], all_loops=True)
+    cuts = list(cuts)
+    joined = 0
+    for i, loops in zip(several, alls):
+        if len(loops) < 2:
+            continue
+        loop, n = join_loops(loops)
+        if n > 1:
+            joined += 1
+            cuts[i] = (loop, len(loops) - n, False)
+    return cuts, joined

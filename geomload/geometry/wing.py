@@ -26,12 +26,21 @@ def read_wing(path, units=None, body=None, span_axis=None, up_axis=None, n_stati
     progress = progress or _no_progress
     mesh = read_mesh(path, units=units, progress=progress, require_units=require_units,
                      units_hint=units_hint, all_bodies=True)
+    fused = None
     if body is None:
         wing_mesh, index, found = _pick_wing(mesh)
+        if found is None and index is None:  # one shell that is not one plain wing
+            fused = _fused(mesh, span_axis, up_axis)
     else:
         wing_mesh, index, found = _given_body(mesh, body), None, None
-    frame, index = detect_frame_indexed(wing_mesh, span_axis=span_axis, up_axis=up_axis, side=side,
-                                        index=index)
+    if fused is not None:
+        wing_mesh, frame, fused_info = fused
+    else:
+        frame, index = detect_frame_indexed(wing_mesh, span_axis=span_axis, up_axis=up_axis,
+                                            side=side, index=index)
+    if found is not None and found.get("mirror") is not None:
+        wing_mesh, frame, index = _mirror_halves(found, wing_mesh, frame, index, span_axis,
+                                                 up_axis)
     stations = _cut(wing_mesh, frame, n_stations, spacing, progress, index)
     if frame.y_root > 0.0:  # exposed wing: the origin of the wing carried through to y = 0
         from .exposed import carried_through_frame
@@ -42,6 +51,9 @@ def read_wing(path, units=None, body=None, span_axis=None, up_axis=None, n_stati
     if found is not None:
         stations, controls, tail, bodies, extra = _other_bodies(found, frame, stations, n_stations)
         side_y = _fuselage_side(found, frame, stations, extra)
+    elif fused is not None:
+        tail, bodies, extra = _fused_others(mesh, frame, fused_info)
+        side_y = fused_info["y_side"]
     planform = summarize(stations, y_root=frame.y_root)
     warnings, notes = split_notes(list(wing_mesh.notes) + list(frame.notes) + list(stations.notes)
                                   + extra)
@@ -70,6 +82,72 @@ def _cut(mesh, frame, n, spacing, progress, index):
     return st
 
 
+def _mirror_halves(cls, wing_mesh, frame, index, span_axis, up_axis):
+    """Two mirror-image wing halves either side of a fuselage: one wing. The half the frame
+    does not mirror is analysed (the other when the first lies on the port side); y = 0 is the
+    plane midway between the halves, so the root is carried through to it."""
+    import dataclasses
+
+    a, b = cls["wing"][0], cls["mirror"]
+    if frame.mirrored:
+        a, b = b, a
+        a.kind, b.kind = "wing", "wing (other half)"
+        cls["wing"], cls["mirror"] = [a], b
+        notes = tuple(n for n in wing_mesh.notes if not n.startswith(
+            f"warning: bodies: {len(cls['all'])} bodies in "))
+        notes += (_kept_text(wing_mesh, cls["all"], [a]),)
+        wing_mesh = dataclasses.replace(wing_mesh, triangles=a.tris, notes=notes,
+                                        body_sizes=(int(a.tris.shape[0]),))
+        frame, index = detect_frame_indexed(wing_mesh, span_axis=span_axis, up_axis=up_axis)
+    from .fusedwing import to_plane
+
+    frame = to_plane(frame, 0.5 * (a.mean + b.mean))
+    text = (f"warning: bodies: bodies {a.index} and {b.index} are mirror images either side of "
+            f"the plane midway between them, taken as one wing: body {a.index} is analysed and "
+            f"its root (y = {frame.y_root:.4g} m from that plane) carried through to it by "
+            "extending the leading and trailing edges")
+    wing_mesh = dataclasses.replace(wing_mesh, notes=tuple(wing_mesh.notes) + (text,))
+    return wing_mesh, frame, index
+
+
+def _fused(mesh, span_axis, up_axis):
+    """(wing mesh, frame, info) of a whole aircraft fused into one shell, or None."""
+    from .fusedwing import find_fused
+
+    return find_fused(mesh, span_axis=span_axis, up_axis=up_axis)
+
+
+def _fused_others(mesh, frame, info):
+    """(tailplane planform or None, BodyInfo tuple, warning lines) of a fused aircraft."""
+    from .fusedwing import others
+
+    found, _ = others(mesh, frame, info)
+    extra = list(info["text"])
+    tail = None
+    for (kind, text), tris in zip([f for f in found if f[0] != "fuselage" and f[0] != "fin"],
+                                  info["tails"]):
+        if kind == "tailplane":
+            part = _Part(tris - info["shift"], 1)
+            tail = _tail_planform(part, frame, None, extra, shift=info["shift"])
+    listed = "; ".join(f"{kind}: {text}" for kind, text in found) or "nothing else"
+    n = int(mesh.triangles.shape[0])
+    if tail is not None:
+        listed += (f"; the tailplane's gross planform (carried through to the plane of "
+                   f"symmetry): S = {tail.area:.4g} m^2, b = {tail.span:.4g} m")
+    extra.append(f"warning: bodies: besides the wing the shell holds {listed}; at stations "
+                 "where another surface lies in the same plane only the wing's loop is kept")
+    bodies = (BodyInfo(1, "aircraft (one fused shell)", n, info["span"], info["span"],
+                       "one shell: " + listed),)
+    return tail, bodies, extra
+
+
+class _Part:
+    """A piece of a shell measured like a body (triangles and a number)."""
+
+    def __init__(self, tris, index):
+        self.tris, self.index = tris, index
+
+
 def _pick_wing(mesh):
     """(wing mesh, a reusable SpanIndex or None, classification or None)."""
     from .bodies import Body, classify, looks_single
@@ -85,7 +163,16 @@ def _pick_wing(mesh):
     bodies = [Body(i + 1, s) for i, s in enumerate(shells)]
     cls = classify(bodies, mesh.source)
     wing_tris = np.concatenate([p.tris for p in cls["wing"]])
-    wing = cls["wing"]
+    text = _kept_text(mesh, bodies, cls["wing"])
+    wing_mesh = WingMesh(triangles=wing_tris, source=mesh.source, units=mesh.units,
+                         notes=tuple(mesh.notes) + (text,), units_assumed=mesh.units_assumed,
+                         body_sizes=tuple(int(p.tris.shape[0]) for p in cls["wing"]))
+    cls["all"] = bodies
+    return wing_mesh, None, cls
+
+
+def _kept_text(mesh, bodies, wing):
+    """The warning line saying which bodies make the wing and what the others were taken for."""
     if len(wing) == 1:
         why = "the lifting surface of largest span"
         if wing[0].area >= max(b.area for b in bodies):
@@ -95,13 +182,8 @@ def _pick_wing(mesh):
         kept = (f"kept bodies {', '.join(str(p.index) for p in wing)} as the wing (touching parts "
                 "of one lifting surface)")
     left = [f"body {b.index} {b.kind} ({b.describe()})" for b in bodies if b not in wing]
-    text = (f"warning: bodies: {len(bodies)} bodies in {os.path.basename(mesh.source)}: {kept}; "
+    return (f"warning: bodies: {len(bodies)} bodies in {os.path.basename(mesh.source)}: {kept}; "
             f"left out of the wing: {'; '.join(left)}")
-    wing_mesh = WingMesh(triangles=wing_tris, source=mesh.source, units=mesh.units,
-                         notes=tuple(mesh.notes) + (text,), units_assumed=mesh.units_assumed,
-                         body_sizes=tuple(int(p.tris.shape[0]) for p in cls["wing"]))
-    cls["all"] = bodies
-    return wing_mesh, None, cls
 
 
 def _shells(mesh):
@@ -186,14 +268,19 @@ def _fuselage_side(cls, frame, stations, extra):
     return best
 
 
-def _tail_planform(b, frame, cls, extra):
+def _tail_planform(b, frame, cls, extra, shift=None):
     """The tailplane's planform in the wing frame, or None (with a warning) when it cannot be
-    measured."""
+    measured. shift: CAD offset of b's triangles (a fused shell's piece, moved so that its
+    plane of symmetry passes through the CAD origin and its gross planform is measured)."""
     from ..errors import GeometryError
 
     try:
         m = WingMesh(b.tris, "tailplane", "m")
         f, idx = detect_frame_indexed(m)
+        if shift is not None:  # a piece of a fused shell: its root is off the plane of symmetry
+            from .fusedwing import on_symmetry_plane
+
+            f = on_symmetry_plane(f, np.zeros(3))
         st = cut_stations(m, f, n=11, index=idx)
         pf = summarize(st, y_root=f.y_root)
     except GeometryError as exc:
@@ -201,8 +288,9 @@ def _tail_planform(b, frame, cls, extra):
         return None
     # quarter-chord point of the tail's MAC, carried from the tail frame to the wing frame
     p_tail = np.array([pf.x_mac_qc, pf.y_mac, float(np.interp(pf.y_mac, st.y, st.z_qc))])
-    p_wing = frame.to_wing(f.to_cad(p_tail))
-    z0 = frame.to_wing(f.to_cad(np.array([st.x_qc[0], 0.0, st.z_qc[0]])))[2]
+    d = np.zeros(3) if shift is None else np.asarray(shift, float)
+    p_wing = frame.to_wing(f.to_cad(p_tail) + d)
+    z0 = frame.to_wing(f.to_cad(np.array([st.x_qc[0], 0.0, st.z_qc[0]])) + d)[2]
     return TailPlanform(area=pf.area, span=pf.span, x_qc_mac=float(p_wing[0]), mac=pf.mac,
                         z_m=float(z0))
 
