@@ -73,12 +73,23 @@ def test_array_of_tables_by_number(tmp_path):
     ("aircraft=3", "is a table"),
     ("aircraft.gross_mass_kg", "expected KEY=V1,V2"),
     ("aircraft.gross_mass_kg=20,,22", "empty value"),
+    ("aircraft.first_flight=1979-05-27", "cannot write a value of type date"),
 ])
 def test_bad_vary(tmp_path, spec, words):
     case = small_case(tmp_path)
     with pytest.raises(VaryError) as info:
         make_variants([case], [spec])
     assert words in str(info.value) and "\n" not in str(info.value)
+
+
+def test_duplicate_names_differing_only_in_case(tmp_path):
+    # two folders on a case-insensitive file system could not hold both run folders
+    (tmp_path / "a").mkdir()
+    (tmp_path / "b").mkdir()
+    one = small_case(tmp_path / "a")
+    two = small_case(tmp_path / "b").rename(tmp_path / "b" / "SMALL.toml")
+    with pytest.raises(VaryError, match="duplicate variant name 'SMALL'"):
+        make_variants([one, two])
 
 
 def test_closest_key_needs_a_near_spelling():
