@@ -119,3 +119,28 @@ def test_progress_over_variants_and_one_line_errors(tmp_path):
     assert [o.ok for o in outs] == [False, False]
     assert all("Mach" in o.error and "\n" not in o.error and o.files == {} for o in outs)
     assert "variant 01_speed-400.0" in outs[0].error  # the temporary path is not shown
+
+
+def test_run_folder_written_in_place_without_a_ram_disk(tmp_path, monkeypatch):
+    """Without a RAM-backed scratch folder a variant is exported straight into the batch's
+    folder; the tables are the same bytes as through the scratch folder, and nothing hidden
+    (no unfinished .part folder) is left."""
+    from batch_helpers import csv_files
+
+    from geomload.batch import runner
+
+    case = small_case(tmp_path)
+    vs = make_variants([case], ["aircraft.gross_mass_kg=21"])
+    outs = {}
+    for mode in ("scratch", "in place"):
+        dest = tmp_path / mode.replace(" ", "_")
+        dest.mkdir()
+        if mode == "in place":
+            monkeypatch.setattr(runner, "SCRATCH_DIR", str(tmp_path / "no such folder"))
+        outs[mode] = runner.run_variants(vs, [dest / v.name / "case.toml" for v in vs],
+                                         workers=1, dest=dest)[0]
+        assert outs[mode].ok and outs[mode].files == {}, outs[mode].error
+        assert [x.name for x in dest.iterdir()] == [vs[0].name]
+    a, b = csv_files(tmp_path / "scratch"), csv_files(tmp_path / "in_place")
+    assert len(a) > 10 and a == b
+    assert outs["scratch"].paths == outs["in place"].paths

@@ -117,6 +117,21 @@ def _scratch_dir() -> str | None:
     return str(shm) if shm.is_dir() and os.access(shm, os.W_OK | os.X_OK) else None
 
 
+def _copy_files(src: Path, dst: Path, paths, shown_as: Path) -> None:
+    """Copy the files `paths` (relative) from `src` to `dst` (new), as plain writes: the batch
+    flushes its whole folder to disk once before it is moved into place (assemble.flush_to_disk),
+    rather than one fsync per file. OutputError (one line) on a full disk or another OSError."""
+    import shutil
+
+    try:
+        for rel in paths:
+            (dst / rel).parent.mkdir(parents=True, exist_ok=True)
+            shutil.copyfile(src / rel, dst / rel)
+    except OSError as exc:
+        raise OutputError(f"{shown_as}: cannot write the variant's run folder "
+                          f"({exc.strerror or exc})") from None
+
+
 def run_variant(name: str, toml_text: str, final_case_path: str, render: bool = False,
                 cache=None, error_bars: bool = True, dest: str | None = None) -> Outcome:
     """Run one variant case file (given as text).
@@ -124,9 +139,10 @@ def run_variant(name: str, toml_text: str, final_case_path: str, render: bool = 
     The case file is written to a private temporary folder. `final_case_path` is the path the
     case file will have in the batch folder (recorded in the run's summary and report).
     dest: the folder (on this machine) that receives the run folder ``dest/<name>``: it is
-    written beside it as a hidden ``.<name>.part`` folder and renamed into place whole, and
-    Outcome.paths lists it. Without `dest` (a remote worker) the run folder is built in the
-    temporary folder and returned as bytes (Outcome.files).
+    built in a RAM-backed scratch folder (SCRATCH_DIR; written straight into `dest` where there
+    is none), copied beside its place as a hidden ``.<name>.part`` folder and renamed into place
+    whole; Outcome.paths lists it. Without `dest` (a remote worker) the run folder is built in
+    the scratch folder and returned as bytes (Outcome.files).
     error_bars: estimate the discretization error of the root loads as `run` does (two coarser
     lattices; through `cache` their geometry and factorisations are shared with the other
     variants of the same wing in this process).
@@ -138,7 +154,9 @@ def run_variant(name: str, toml_text: str, final_case_path: str, render: bool = 
 
     t0 = time.perf_counter()
     part = None
-    with tempfile.TemporaryDirectory(prefix="geomload-variant-", dir=_scratch_dir()) as tmp:
+    scratch = _scratch_dir()
+    in_place = dest is not None and scratch is None  # no RAM disk: export straight into dest
+    with tempfile.TemporaryDirectory(prefix="geomload-variant-", dir=scratch) as tmp:
         case_file = Path(tmp) / "case.toml"
         case_file.write_text(toml_text, encoding="utf-8")
         try:
@@ -146,19 +164,22 @@ def run_variant(name: str, toml_text: str, final_case_path: str, render: bool = 
             with threadpool_limits(limits=1):
                 result = _api.compute(case, cache=cache, error_bars=error_bars)
             result = dataclasses.replace(result, case_path=str(final_case_path))
-            run_dir = Path(tmp) / "run" if dest is None else Path(dest) / f".{name}.part"
-            part = None if dest is None else run_dir
+            run_dir = Path(dest) / f".{name}.part" if in_place else Path(tmp) / "run"
+            part = run_dir if in_place else None
             with _EXPORT_LOCK, threadpool_limits(limits=1):
                 _api.write_run(result, run_dir, inputs=[str(case_file)], render=render,
                                run_time_s=time.perf_counter() - t0)
             paths = tuple(p.relative_to(run_dir).as_posix() for p in sorted(run_dir.rglob("*"))
                           if p.is_file())
+            files = {}
             if dest is None:
                 files = {rel: (run_dir / rel).read_bytes() for rel in paths}
             else:
-                files = {}
+                if not in_place:
+                    part = Path(dest) / f".{name}.part"
+                    _copy_files(run_dir, part, paths, Path(dest) / name)
                 try:
-                    os.rename(run_dir, Path(dest) / name)
+                    os.rename(part, Path(dest) / name)
                 except OSError as exc:
                     raise OutputError(f"{Path(dest) / name}: cannot move the variant's run "
                                       f"folder into place ({exc.strerror or exc})") from None
