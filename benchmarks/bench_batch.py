@@ -48,8 +48,9 @@ def main() -> dict:
     ratio = sweep / one
     cpu_ratio = statistics.median(t.cpu["sweep"]) / statistics.median(t.cpu["one run"])
     print(u.machine_line() + f"; load average during the pairs {min(loads):.2f}-{max(loads):.2f}")
-    print(t.line("one run", "one sample run (--no-render)"))
-    print(t.line("sweep", "12-variant sweep, 2 workers"))
+    for name, label in (("one run", "one sample run (--no-render)"),
+                        ("sweep", "12-variant sweep, 2 workers")):
+        print(t.line(name, label) + f"  median cpu {statistics.median(t.cpu[name]):.3f} s")
     print(f"sweep / one run: median wall {ratio:.2f} (best {t.best('sweep') / t.best('one run'):.2f}),"
           f" median CPU {cpu_ratio:.2f}; target <= {TARGET_RATIO:g}")
     return {"batch_12_variants_2_workers_vs_one_run_ratio": (TARGET_RATIO, ratio,
