@@ -6,6 +6,7 @@ from __future__ import annotations
 
 import csv
 import io
+import json
 import math
 import os
 import socket
@@ -20,6 +21,9 @@ from geomload import CAUTION
 
 # the launch pull-up at 400 m/s EAS is supersonic at sea level (Mach > 1): that variant fails
 GRID = ["--vary", "load_case[1].speed=30,34,400"]
+ERR_COLS = [f"root_{q}_{s}_err_{u}" for q, u in (("shear", "N"), ("bending", "Nm"),
+                                                 ("torsion", "Nm")) for s in ("max", "min")]
+ERR_SUMMARY = {"shear": "root_shear_N", "bending": "root_bending_Nm", "torsion": "root_torsion_Nm"}
 
 
 def _rows(path):
@@ -55,6 +59,17 @@ def test_serial_batch_table_and_failure(serial):
                 "root_torsion_max_Nm", "root_torsion_min_Nm", "root_bending_governing_case",
                 "run_folder"):
         assert rows[0][col] and rows[1][col], col
+    # every root load has its error bar beside it, positive, as the run's summary.json has it
+    cols = list(rows[0])
+    for col in ERR_COLS:
+        assert cols[cols.index(col) - 1] == col.replace("_err", "")
+        assert float(rows[0][col]) > 0 and float(rows[1][col]) > 0 and rows[2][col] == "", col
+    for r in rows[:2]:
+        env = json.loads((out / r["run_folder"] / "summary.json").read_text())["envelope"]
+        for col in ERR_COLS:
+            key = ERR_SUMMARY[col.split("_")[1]]
+            assert float(r[col]) == pytest.approx(env["error_estimate"][key], rel=1e-9), col
+        assert r["error_not_monotone"] == "; ".join(env["error_estimate"]["not_monotone"])
     assert rows[2]["root_shear_max_N"] == "" and "Mach" in rows[2]["error"]
     assert sorted(x.name for x in (out / "runs").iterdir()) == ["01_speed-30.0", "02_speed-34.0",
                                                                  "03_speed-400.0"]
@@ -86,19 +101,45 @@ def test_variant_equals_single_run(serial, tmp_path):
             check("geomload run of the same case file (single-run pipeline)",
                   f"root {q} {side} of variant 02 ({u})", float(env_rows[0][f"{q}_{side}_{u}"]),
                   float(row[f"root_{q}_{side}_{u}"]), rel=1e-9)
+    # the error bars too: the single run's summary.json (its envelope's root error estimate)
+    single_err = json.loads((single / "summary.json").read_text())["envelope"]["error_estimate"]
+    for col in ERR_COLS:
+        check("geomload run of the same case file (single-run pipeline)",
+              f"{col} of variant 02", single_err[ERR_SUMMARY[col.split('_')[1]]], float(row[col]),
+              rel=1e-9)
     bmax, bmin = float(env_rows[0]["bending_max_Nm"]), float(env_rows[0]["bending_min_Nm"])
     gov = env_rows[0]["bending_max_case" if abs(bmax) >= abs(bmin) else "bending_min_case"]
     assert row["root_bending_governing_case"] == gov
 
 
+def _same_as_serial(serial_out, other):
+    """Every CSV byte for byte (batch.csv with its error-bar columns included), and the error
+    estimates of every case in each run's summary.json (the rest of it records times)."""
+    a, b = csv_files(serial_out), csv_files(other)
+    assert sorted(a) == sorted(b) and len(a) > 10
+    assert [k for k in a if a[k] != b[k]] == []
+    rows = _rows(other / "batch.csv")
+    assert all(r[c] for r in rows if r["status"] == "ok" for c in ERR_COLS)
+    for r in rows:
+        if r["status"] == "ok":
+            x, y = (json.loads((d / r["run_folder"] / "summary.json").read_text())
+                    for d in (serial_out, other))
+            assert [c["error_estimate"] for c in x["cases"]] == \
+                [c["error_estimate"] for c in y["cases"]]
+            assert x["envelope"]["error_estimate"] == y["envelope"]["error_estimate"]
+
+
 def test_local_pool_equals_serial(serial, cases, tmp_path):
     out, _ = serial
     pool = tmp_path / "pool"
-    p = cli("batch", cases, *GRID, "--out", pool, "--workers", "2", "--no-render")
+    p = cli("batch", cases, *GRID, "--out", pool, "--workers", "2")  # no 3-D pictures by default
     assert p.returncode == 1, p.stderr
-    a, b = csv_files(out), csv_files(pool)
-    assert sorted(a) == sorted(b) and len(a) > 10
-    assert [k for k in a if a[k] != b[k]] == []
+    _same_as_serial(out, pool)
+
+    def names(d):
+        return sorted(x.relative_to(d).as_posix() for x in d.rglob("*"))
+
+    assert names(pool) == names(out)  # the same files (none hidden, no pictures)
 
 
 def test_cluster_equals_serial(serial, cases, tmp_path):
@@ -107,9 +148,7 @@ def test_cluster_equals_serial(serial, cases, tmp_path):
         dist = tmp_path / "cluster"
         p = cli("batch", cases, *GRID, "--out", dist, "--cluster", address, "--no-render")
     assert p.returncode == 1, p.stderr
-    a, b = csv_files(out), csv_files(dist)
-    assert sorted(a) == sorted(b) and len(a) > 10
-    assert [k for k in a if a[k] != b[k]] == []
+    _same_as_serial(out, dist)
 
 
 def test_compare_two_variants(serial, tmp_path):
@@ -161,6 +200,48 @@ def test_unreachable_cluster(cases, tmp_path):
     line = _one_line_error(p)
     assert f"tcp://127.0.0.1:{port}" in line and "cannot reach" in line
     assert not (tmp_path / "o").exists() and list(tmp_path.iterdir()) == []
+
+
+@pytest.mark.parametrize("reply", [None, b"HTTP/1.1 400 Bad Request\r\n\r\n" * 64])
+def test_cluster_address_that_is_not_a_scheduler(cases, tmp_path, reply):
+    """A port that accepts connections but never answers (None), or answers with something that
+    is not Dask: one line, exit 1, nothing written; the subprocess timeout guards a hang."""
+    import threading
+
+    with socket.socket() as srv:
+        srv.bind(("127.0.0.1", 0))
+        srv.listen(8)
+        port = srv.getsockname()[1]
+        stop = threading.Event()
+        held = []
+
+        def serve():
+            srv.settimeout(0.2)
+            while not stop.is_set():
+                try:
+                    conn, _ = srv.accept()
+                except OSError:
+                    continue
+                held.append(conn)
+                if reply is not None:
+                    conn.sendall(reply)
+
+        t = threading.Thread(target=serve, daemon=True)
+        t.start()
+        try:
+            p = cli("batch", cases, "--vary", "aircraft.gross_mass_kg=20,22", "--out",
+                    tmp_path / "o", "--cluster", f"tcp://127.0.0.1:{port}", "--cluster-timeout",
+                    "2", timeout=120)
+        finally:
+            stop.set()
+            t.join(timeout=5)
+            for c in held:
+                c.close()
+    line = _one_line_error(p)
+    assert f"tcp://127.0.0.1:{port}" in line
+    assert ("cannot reach a Dask scheduler within 2 s" in line) if reply is None else \
+        ("not a Dask scheduler" in line or "cannot reach" in line), line
+    assert not (tmp_path / "o").exists()
 
 
 def test_duplicate_variant_names(cases, tmp_path):

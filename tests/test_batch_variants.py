@@ -73,12 +73,23 @@ def test_array_of_tables_by_number(tmp_path):
     ("aircraft=3", "is a table"),
     ("aircraft.gross_mass_kg", "expected KEY=V1,V2"),
     ("aircraft.gross_mass_kg=20,,22", "empty value"),
+    ("aircraft.first_flight=1979-05-27", "cannot write a value of type date"),
 ])
 def test_bad_vary(tmp_path, spec, words):
     case = small_case(tmp_path)
     with pytest.raises(VaryError) as info:
         make_variants([case], [spec])
     assert words in str(info.value) and "\n" not in str(info.value)
+
+
+def test_duplicate_names_differing_only_in_case(tmp_path):
+    # two folders on a case-insensitive file system could not hold both run folders
+    (tmp_path / "a").mkdir()
+    (tmp_path / "b").mkdir()
+    one = small_case(tmp_path / "a")
+    two = small_case(tmp_path / "b").rename(tmp_path / "b" / "SMALL.toml")
+    with pytest.raises(VaryError, match="duplicate variant name 'SMALL'"):
+        make_variants([one, two])
 
 
 def test_closest_key_needs_a_near_spelling():
@@ -108,3 +119,28 @@ def test_progress_over_variants_and_one_line_errors(tmp_path):
     assert [o.ok for o in outs] == [False, False]
     assert all("Mach" in o.error and "\n" not in o.error and o.files == {} for o in outs)
     assert "variant 01_speed-400.0" in outs[0].error  # the temporary path is not shown
+
+
+def test_run_folder_written_in_place_without_a_ram_disk(tmp_path, monkeypatch):
+    """Without a RAM-backed scratch folder a variant is exported straight into the batch's
+    folder; the tables are the same bytes as through the scratch folder, and nothing hidden
+    (no unfinished .part folder) is left."""
+    from batch_helpers import csv_files
+
+    from geomload.batch import runner
+
+    case = small_case(tmp_path)
+    vs = make_variants([case], ["aircraft.gross_mass_kg=21"])
+    outs = {}
+    for mode in ("scratch", "in place"):
+        dest = tmp_path / mode.replace(" ", "_")
+        dest.mkdir()
+        if mode == "in place":
+            monkeypatch.setattr(runner, "SCRATCH_DIR", str(tmp_path / "no such folder"))
+        outs[mode] = runner.run_variants(vs, [dest / v.name / "case.toml" for v in vs],
+                                         workers=1, dest=dest)[0]
+        assert outs[mode].ok and outs[mode].files == {}, outs[mode].error
+        assert [x.name for x in dest.iterdir()] == [vs[0].name]
+    a, b = csv_files(tmp_path / "scratch"), csv_files(tmp_path / "in_place")
+    assert len(a) > 10 and a == b
+    assert outs["scratch"].paths == outs["in place"].paths

@@ -3,9 +3,11 @@
 When the pipeline's names or signatures change, only this module needs adapting:
 
 - `load_case(path)`: parse and validate a case file (geomload.case).
-- `compute(case, progress=None, cache=None)`: the in-memory run; `cache` (a dict) is handed to
-  the pipeline when its `compute` accepts a ``cache`` argument (sharing the geometry read and cut
-  and the factorised aero models between calls in one process), and dropped otherwise.
+- `compute(case, progress=None, cache=None, error_bars=False)`: the in-memory run; `cache` (a
+  dict) is handed to the pipeline when its `compute` accepts a ``cache`` argument (sharing the
+  geometry read and cut and the factorised aero models between calls in one process), and
+  dropped otherwise; `error_bars` asks for the discretization error estimates of the root loads
+  (as `run` gives them; the coarser lattices go through the same cache).
 - `write_run(result, folder, inputs, render)`: every output of one run into `folder`.
 - `OutputDir`: the atomic output folder.
 """
@@ -25,29 +27,42 @@ def load_case(path):
     return fn(path)
 
 
-@functools.lru_cache(maxsize=1)
-def compute_takes_cache() -> bool:
-    """True when geomload.pipeline.compute accepts a ``cache`` keyword."""
+@functools.lru_cache(maxsize=4)
+def compute_takes(keyword: str) -> bool:
+    """True when geomload.pipeline.compute accepts `keyword`."""
     from geomload.pipeline import compute as _compute
 
     try:
         params = inspect.signature(_compute).parameters
     except (TypeError, ValueError):
         return False
-    return "cache" in params or any(p.kind is p.VAR_KEYWORD for p in params.values())
+    return keyword in params or any(p.kind is p.VAR_KEYWORD for p in params.values())
 
 
-def compute(case, progress=None, cache=None):
+def compute_takes_cache() -> bool:
+    """True when geomload.pipeline.compute accepts a ``cache`` keyword."""
+    return compute_takes("cache")
+
+
+def compute(case, progress=None, cache=None, error_bars=False):
     """Run every load case of `case` in memory; returns a RunResult.
 
     cache: a dict shared between calls in one process (same geometry, same lattice and Mach);
-    passed on only when the pipeline supports it.
+    passed on only when the pipeline supports it. error_bars: also estimate the discretization
+    error of the root loads (RunResult.error_bars); an error (GeomloadError) when the pipeline
+    cannot, rather than a run that silently lacks them.
     """
+    from geomload.errors import GeomloadError
     from geomload.pipeline import compute as _compute
 
-    if cache is not None and compute_takes_cache():
-        return _compute(case, progress=progress, cache=cache)
-    return _compute(case, progress)
+    kw = {}
+    if cache is not None and compute_takes("cache"):
+        kw["cache"] = cache
+    if error_bars:
+        if not compute_takes("error_bars"):
+            raise GeomloadError("this geomload's pipeline cannot estimate error bars")
+        kw["error_bars"] = True
+    return _compute(case, progress, **kw) if kw else _compute(case, progress)
 
 
 def write_run(result, folder, inputs=(), render=False, run_time_s=None) -> list:

@@ -9,15 +9,18 @@ Layout::
 
 from __future__ import annotations
 
-import base64
+import dataclasses
 import html
 import math
+import os
 from dataclasses import dataclass
 from pathlib import Path
 
 from geomload import CAUTION, __version__
 from geomload.batch import _api
-from geomload.batch.runner import ROOT_KEYS, Outcome, connect, default_workers, run_variants
+from geomload.batch.html_page import page, png_img
+from geomload.batch.runner import (ERR_KEYS, NOT_MONOTONE, ROOT_KEYS, connect, default_workers,
+                                   run_variants)
 from geomload.batch.variants import make_variants, value_text
 from geomload.errors import OutputError
 
@@ -72,13 +75,14 @@ def _cell(v) -> str:
 def batch_table(variants, outcomes, keys, with_source: bool) -> tuple:
     """(column names, rows of cell text) of batch.csv."""
     cols = ["variant"] + (["case_file"] if with_source else []) + list(keys) + ["status"]
-    cols += list(ROOT_KEYS) + ["root_bending_governing_case", "run_folder", "error"]
+    loads = [c for k in ROOT_KEYS for c in (k, ERR_KEYS[k][0])]  # each value, then its error bar
+    cols += loads + [NOT_MONOTONE, "root_bending_governing_case", "run_folder", "error"]
     rows = []
     for v, o in zip(variants, outcomes):
         vals = dict(v.overrides)
         r = [v.name] + ([v.source] if with_source else [])
         r += [value_text(vals[k]) if k in vals else None for k in keys]
-        r += ["ok" if o.ok else "failed"] + [o.root.get(k) for k in ROOT_KEYS]
+        r += ["ok" if o.ok else "failed"] + [o.root.get(k) for k in loads + [NOT_MONOTONE]]
         r += [o.root.get("root_bending_governing_case"), f"runs/{v.name}" if o.ok else "",
               o.error]
         rows.append([_cell(x) for x in r])
@@ -91,6 +95,11 @@ def batch_csv_text(variants, outcomes, keys, with_source: bool) -> str:
             "root_* : limit loads at the root (y = 0) from each run's envelope of all its cases; "
             "units N and N m; shear positive up, bending positive tip-up, torsion positive "
             "nose-up about the spar axis",
+            "root_*_err_* : discretization error estimate of the load beside it (absolute, same "
+            "units; Richardson extrapolation over the run's lattice and two coarser ones, as the "
+            "run's summary.json envelope.error_estimate, one bound for the maximum and minimum of "
+            "a quantity); error_not_monotone: the quantities whose convergence is not monotone "
+            "in some case (their bound is the larger lattice difference, not an extrapolation)",
             "root_bending_governing_case: the case of the larger of the root bending maximum and "
             "|minimum|; run_folder: relative to this file; varied keys: case-file dotted paths"]
     lines = [f"# {' '.join(h.split())}" for h in head] + [",".join(cols)]
@@ -129,8 +138,10 @@ def plot_against(variants, outcomes, key, path) -> Path:
             name = ", ".join(f"{kk.split('.')[-1]} {vv}" for kk, vv in rest) or "all"
             for side, style in (("max", "-^"), ("min", "--v")):
                 col = f"root_{q}_{side}_{col_unit}"
-                ax.plot([pos[m] for m in members], [ok[m][1].root[col] for m in members], style,
-                        color=color, label=f"{side}: {name}" if gi < 6 else None)
+                err = [ok[m][1].root.get(ERR_KEYS[col][0], math.nan) for m in members]
+                ax.errorbar([pos[m] for m in members], [ok[m][1].root[col] for m in members],
+                            yerr=None if all(map(math.isnan, err)) else err, fmt=style,
+                            color=color, capsize=2, label=f"{side}: {name}" if gi < 6 else None)
         ax.set_ylabel(f"root {q} ({unit})")
         ax.grid(True, alpha=0.3)
         if qi == 0:
@@ -140,7 +151,8 @@ def plot_against(variants, outcomes, key, path) -> Path:
             ax.set_xticklabels(labels if qi == 2 else [""] * len(labels), rotation=30, ha="right",
                                fontsize=7)
     fig.axes[-1].set_xlabel(key or "variant")
-    fig.suptitle(f"Root limit loads against {key or 'variant'} (max solid, min dashed)",
+    fig.suptitle(f"Root limit loads against {key or 'variant'} (max solid, min dashed; bars: "
+                 "discretization error estimate)",
                  fontsize=10)
     fig.text(0.01, 0.005, CAUTION, fontsize=5, wrap=True)
     fig.tight_layout(rect=(0, 0.03, 1, 0.97))
@@ -153,7 +165,7 @@ def index_html(variants, outcomes, keys, plots: dict, with_source: bool) -> str:
     esc = html.escape
     cols, rows = batch_table(variants, outcomes, keys, with_source)
     head = "".join(f"<th>{esc(c)}</th>" for c in cols)
-    body = []
+    body_rows = []
     for v, o, r in zip(variants, outcomes, rows):
         cells = []
         for c, x in zip(cols, r):
@@ -162,38 +174,54 @@ def index_html(variants, outcomes, keys, plots: dict, with_source: bool) -> str:
             else:
                 x = esc(x)
             cells.append(f"<td>{x}</td>")
-        body.append(f"<tr{'' if o.ok else ' class=failed'}>{''.join(cells)}</tr>")
-    imgs = "".join(f'<h2>Against {esc(k)}</h2><img alt="root loads against {esc(k)}" '
-                   f'src="data:image/png;base64,{base64.b64encode(data).decode()}">'
+        body_rows.append(f"<tr{'' if o.ok else ' class=failed'}>{''.join(cells)}</tr>")
+    imgs = "".join(f"<h2>Against {esc(k)}</h2>" + png_img(f"root loads against {k}", data)
                    for k, data in plots.items())
     n_ok = sum(o.ok for o in outcomes)
-    return f"""<!DOCTYPE html>
-<html lang="en"><head><meta charset="utf-8"><title>geomload batch</title>
-<style>body{{font-family:sans-serif;margin:1.5em}}table{{border-collapse:collapse;font-size:12px}}
-td,th{{border:1px solid #bbb;padding:2px 6px}}tr.failed{{background:#fdd}}
-.caution{{border:2px solid #b00;padding:.5em;font-weight:bold}}img{{max-width:100%}}</style>
-</head><body><h1>geomload batch: {n_ok} of {len(outcomes)} variants ran</h1>
-<p class="caution">{esc(CAUTION)}</p>
-<p>Root limit loads from each run's envelope (N, N m). The full table is <a href="batch.csv">
-batch.csv</a>; each run folder has its own report.</p>
-<table><tr>{head}</tr>{''.join(body)}</table>{imgs}
-<p>geomload {esc(__version__)}</p></body></html>
-"""
+    body = (f'<p>Root limit loads from each run\'s envelope (N, N m), each with its '
+            f'discretization error estimate (*_err_*). The full table is '
+            f'<a href="batch.csv">batch.csv</a>; each run folder has its own report.</p>\n'
+            f'<table><tr>{head}</tr>{"".join(body_rows)}</table>{imgs}')
+    return page("geomload batch", f"geomload batch: {n_ok} of {len(outcomes)} variants ran", body)
+
+
+def flush_to_disk(folder) -> None:
+    """Everything written under `folder` reaches the disk before the batch folder is moved into
+    place: one flush of its file system (Linux syncfs; os.sync elsewhere) instead of one fsync per
+    file (a sweep writes thousands; each forces a journal commit). The guarantee is the same: no
+    renamed-in folder with files still only in memory after a power loss."""
+    import ctypes
+
+    fd = os.open(folder, os.O_RDONLY)
+    try:
+        syncfs = getattr(ctypes.CDLL(None, use_errno=True), "syncfs", None)
+        if syncfs is not None and syncfs(fd) == 0:
+            return
+    except (OSError, TypeError):  # no C library to load (not a POSIX system)
+        pass
+    finally:
+        os.close(fd)
+    if hasattr(os, "sync"):
+        os.sync()
 
 
 def write_batch_folder(od, variants, outcomes, keys, with_source: bool) -> list:
     """Write the run folders, batch.csv, plots and index.html into the open OutputDir `od`."""
-    from geomload.export.atomic import safe_name, write_bytes_atomic, write_text_atomic
+    from geomload.export.atomic import safe_name, write_bytes_atomic
 
     files = []
+
+    def put(rel, data: bytes):  # no fsync per file: flush_to_disk before the commit
+        write_bytes_atomic(od.path(rel), data, fsync=False)
+
     for v, o in zip(variants, outcomes):
         rel = Path("runs") / v.name
-        write_text_atomic(od.path(rel / "case.toml"), v.toml_text)
+        put(rel / "case.toml", v.toml_text.encode("utf-8"))
         files.append(rel / "case.toml")
-        for name, data in o.files.items():
-            write_bytes_atomic(od.path(rel / name), data)
-            files.append(rel / name)
-    write_text_atomic(od.path("batch.csv"), batch_csv_text(variants, outcomes, keys, with_source))
+        for name, data in o.files.items():  # built on a remote worker: sent back as bytes
+            put(rel / name, data)
+        files += [rel / name for name in (o.paths or o.files)]
+    put("batch.csv", batch_csv_text(variants, outcomes, keys, with_source).encode("utf-8"))
     files.append(Path("batch.csv"))
     plots = {}
     if any(o.ok for o in outcomes):
@@ -203,7 +231,7 @@ def write_batch_folder(od, variants, outcomes, keys, with_source: bool) -> list:
             plot_against(variants, outcomes, k, p)
             plots[name] = p.read_bytes()
             files.append(p.relative_to(od.staging))
-    write_text_atomic(od.path("index.html"), index_html(variants, outcomes, keys, plots, with_source))
+    put("index.html", index_html(variants, outcomes, keys, plots, with_source).encode("utf-8"))
     files.append(Path("index.html"))
     return [str(f) for f in files]
 
@@ -243,11 +271,13 @@ def run_batch(case_paths, vary=(), out_dir=None, workers=None, cluster=None, ren
             finals = [od.final / "runs" / v.name / "case.toml" for v in variants]
             n_work = workers if workers else default_workers()
             outcomes = run_variants(variants, finals, workers=min(n_work, len(variants)),
-                                    client=client, render=render, progress=progress)
+                                    client=client, render=render, progress=progress,
+                                    dest=od.path("runs"))
             if not any(o.ok for o in outcomes):
                 first = outcomes[0]
                 raise BatchError(f"every variant failed; {first.name}: {first.error}")
             files = write_batch_folder(od, variants, outcomes, keys, with_source)
+            flush_to_disk(od.staging)
             od.commit()
         except BaseException:
             od.abort()
@@ -255,7 +285,7 @@ def run_batch(case_paths, vary=(), out_dir=None, workers=None, cluster=None, ren
     finally:
         if client is not None:
             client.close()
-    slim = [Outcome(o.name, o.ok, o.error, o.root, {}, o.warnings, o.seconds) for o in outcomes]
+    slim = [dataclasses.replace(o, files={}) for o in outcomes]
     return BatchResult(out_dir=str(od.final), variants=variants, outcomes=slim, files=files)
 
 

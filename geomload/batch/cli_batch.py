@@ -31,9 +31,10 @@ from geomload.textsafe import printable
 @click.option("--cluster-timeout", type=click.FloatRange(min=0.1), default=10.0, show_default=True,
               help="Seconds allowed to reach the --cluster scheduler.")
 @click.option("--force", is_flag=True, help="Replace an existing batch folder made by geomload.")
-@click.option("--no-render", is_flag=True, help="Skip each run's 3D pictures (faster).")
+@click.option("--render/--no-render", "render", default=False,
+              help="Also make each run's 3D pictures (off by default: several seconds a variant).")
 @_guarded
-def batch(case_files, vary, out_dir, workers, cluster, cluster_timeout, force, no_render):
+def batch(case_files, vary, out_dir, workers, cluster, cluster_timeout, force, render):
     """Run a grid of variants of CASE_FILE (--vary), or a list of case files, into --out."""
     from geomload import CAUTION
     from geomload.batch.assemble import run_batch
@@ -42,7 +43,7 @@ def batch(case_files, vary, out_dir, workers, cluster, cluster_timeout, force, n
     bar = make_progress()
     try:
         res = run_batch(case_files, vary, out_dir, workers=workers, cluster=cluster,
-                        render=not no_render, force=force, progress=bar,
+                        render=render, force=force, progress=bar,
                         cluster_timeout=cluster_timeout)
     finally:
         bar.close()
@@ -58,14 +59,14 @@ def batch(case_files, vary, out_dir, workers, cluster, cluster_timeout, force, n
         click.echo(f"geomload: error: variant {printable(o.name)} failed: {printable(o.error)}",
                    err=True)
     width = max(len(printable(o.name)) for o in res.outcomes)
-    click.echo(f"{'variant':<{width}}  {'shear max':>10} {'bending max':>12} {'bending min':>12}"
-               f" {'torsion min':>12}  (root, limit, N and N m)")
+    cols = (("root_shear_max_N", "shear max", 1), ("root_bending_max_Nm", "bending max", 1),
+            ("root_bending_min_Nm", "bending min", 1), ("root_torsion_min_Nm", "torsion min", 2))
+    click.echo(f"{'variant':<{width}}  " + " ".join(f"{h:>19}" for _k, h, _p in cols)
+               + "  (root, limit, N and N m; +- discretization error estimate)")
     for o in res.outcomes:
         if o.ok:
-            r = o.root
-            click.echo(f"{printable(o.name):<{width}}  {r['root_shear_max_N']:10.1f} "
-                       f"{r['root_bending_max_Nm']:12.1f} {r['root_bending_min_Nm']:12.1f} "
-                       f"{r['root_torsion_min_Nm']:12.2f}")
+            click.echo(f"{printable(o.name):<{width}}  "
+                       + " ".join(f"{_pm(o.root, k, p):>19}" for k, _h, p in cols))
         else:
             click.echo(f"{printable(o.name):<{width}}  failed")
     click.echo(CAUTION)
@@ -75,6 +76,14 @@ def batch(case_files, vary, out_dir, workers, cluster, cluster_timeout, force, n
                f"{d}/index.html")
     if res.failed:
         sys.exit(EXIT_INPUT)
+
+
+def _pm(root: dict, key: str, digits: int) -> str:
+    """'value +-error' of a root load (the error estimate omitted when the run has none)."""
+    from geomload.batch.runner import ERR_KEYS
+
+    v, e = root[key], root.get(ERR_KEYS[key][0], float("nan"))
+    return f"{v:.{digits}f}" + (f" +-{e:.{digits}f}" if e == e else "")
 
 
 @click.command("compare")

@@ -14,7 +14,6 @@ the span), compare.png (overlay), compare.html (self-contained).
 
 from __future__ import annotations
 
-import base64
 import html
 import json
 import os
@@ -24,6 +23,7 @@ from pathlib import Path
 import numpy as np
 
 from geomload import CAUTION, __version__
+from geomload.batch.html_page import page, png_img
 from geomload.errors import InputError
 
 QUANTITIES = (("shear", "N"), ("bending", "Nm"), ("torsion", "Nm"))
@@ -214,23 +214,16 @@ def _html(runs, grid, recs, png: bytes, out_final: Path) -> str:
         f"<td>{esc(x['root_case_reference'])}</td><td>{esc(x['root_case_run'])}</td>"
         f"<td>{esc('; '.join(x['gained']) or '-')}</td><td>{esc('; '.join(x['lost']) or '-')}</td></tr>"
         for x in recs if x["root_changed"] or x["gained"] or x["lost"])
-    return f"""<!DOCTYPE html>
-<html lang="en"><head><meta charset="utf-8"><title>geomload comparison</title>
-<style>body{{font-family:sans-serif;margin:1.5em}}table{{border-collapse:collapse;font-size:12px}}
-td,th{{border:1px solid #bbb;padding:2px 6px}}.caution{{border:2px solid #b00;padding:.5em;
-font-weight:bold}}img{{max-width:100%}}</style></head><body>
-<h1>Comparison of {len(runs)} runs (reference: {esc(runs[0].label)})</h1>
-<p class="caution">{esc(CAUTION)}</p>
-<h2>Root limit loads (difference from the reference)</h2>
+    body = f"""<h2>Root limit loads (difference from the reference)</h2>
 <table><tr><th>run</th>{head}</tr>{''.join(body)}</table>
 <h2>Governing cases that changed</h2>
 <table><tr><th>run</th><th>quantity</th><th>root case, reference</th><th>root case, run</th>
 <th>gained</th><th>lost</th></tr>{role_rows or '<tr><td colspan=6>none</td></tr>'}</table>
-<h2>Envelopes</h2><img alt="envelopes overlaid" src="data:image/png;base64,{base64.b64encode(png).decode()}">
+<h2>Envelopes</h2>{png_img("envelopes overlaid", png)}
 <p>Station differences: compare.csv, on the reference's envelope stations from the root to
-{grid[-1]:.4g} m (the shortest semi-span), other runs interpolated linearly.</p>
-<p>geomload {esc(__version__)}</p></body></html>
-"""
+{grid[-1]:.4g} m (the shortest semi-span), other runs interpolated linearly.</p>"""
+    return page("geomload comparison",
+                f"Comparison of {len(runs)} runs (reference: {runs[0].label})", body)
 
 
 def compare_runs(folders, out_dir, force: bool = False) -> CompareResult:
