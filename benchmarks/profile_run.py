@@ -40,7 +40,7 @@ import _bench_util as u  # noqa: E402
 
 # (label, path suffix, function name): the pipeline's stages, in run order
 STAGES = [
-    ("load_case (parse TOML)", "geomload/case.py", "load_case"),
+    ("read_case_file (parse TOML)", "geomload/config/parse.py", "read_case_file"),
     ("compute (geometry+aero+loads)", "geomload/pipeline.py", "compute"),
     ("  load_wing (read, frame, cut)", "geomload/geometry/__init__.py", "load_wing"),
     ("    read_mesh", "geomload/geometry/readers/__init__.py", "read_mesh"),
@@ -50,7 +50,7 @@ STAGES = [
     ("  AeroModel.__init__ (assembly+solve)", "geomload/aero/solve.py", "__init__"),
     ("  critical_points (envelope)", "geomload/loads/vn.py", "critical_points"),
     ("  vn_diagram", "geomload/loads/vn.py", "vn_diagram"),
-    ("  solve_case (all cases)", "geomload/pipeline.py", "solve_case"),
+    ("  solve_case (all cases)", "geomload/loads/cases.py", "solve_case"),
     ("    trim_case", "geomload/aero/trim.py", "trim_case"),
     ("      AeroModel.solve", "geomload/aero/solve.py", "solve"),
     ("      AeroModel.alpha_for_cl", "geomload/aero/solve.py", "alpha_for_cl"),
@@ -60,7 +60,7 @@ STAGES = [
     ("      inertia_loads", "geomload/loads/masses.py", "inertia_loads"),
     ("  error_bars (coarser lattices)", "geomload/aero/convergence.py", "error_bars"),
     ("  envelope_of", "geomload/loads/envelope.py", "envelope_of"),
-    ("  _versions (metadata)", "geomload/pipeline.py", "_versions"),
+    ("  software_versions (metadata)", "geomload/export/run_marker.py", "software_versions"),
     ("write_all (every output)", "geomload/export/__init__.py", "write_all"),
     ("  write_loads_csv (per case)", "geomload/export/tables.py", "write_loads_csv"),
     ("  write_summary_json", "geomload/export/tables.py", "write_summary_json"),

@@ -27,13 +27,15 @@ from geomload.aero.trim import stall_messages
 from geomload.config.checks import check_against_wing
 from geomload.config.controls_parse import check_controls_against_wing
 from geomload.config.parse import read_case_file
+from geomload.config.positions import resolve_positions
 from geomload.errors import CaseError, GeomloadError
 from geomload.export.run_folder import fill_run_folder, open_run_folder, run_inputs
 from geomload.export.run_marker import software_versions
 from geomload.loads.cases import CaseContext, case_grid, check_case_names, solve_case
 from geomload.loads.envelope import envelope_of
 from geomload.loads.vn import flight_envelope_cases
-from geomload.pipeline_controls import symmetric_with_tail, unsymmetric_cases
+from geomload.pipeline_controls import (case_with_geometry_controls, symmetric_with_tail,
+                                        unsymmetric_cases)
 from geomload.records import Message, RunResult, no_progress
 from geomload.run_geometry import case_wing, wing_messages
 
@@ -63,6 +65,10 @@ def compute(case, progress=None, cache=None, error_bars=False) -> RunResult:
     wing_key, wing = case_wing(case, progress, cache)
     stations, planform = wing.stations, wing.planform
     timings["geometry"] = time.perf_counter() - t0
+    case, position_notes = resolve_positions(case, wing)
+    messages += position_notes
+    case, more = case_with_geometry_controls(case, wing)
+    messages += _warnings(more)
     check_against_wing(case, stations)
     messages += _warnings(check_controls_against_wing(
         case.controls, stations.semispan, planform.mac, planform.x_mac_le, case.path))

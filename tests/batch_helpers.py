@@ -35,9 +35,9 @@ def small_case(folder: Path) -> Path:
 
 
 def cli(*args, cwd=None, timeout=300):
-    """Run `python -m geomload.batch.cli_batch ARGS`; returns the CompletedProcess."""
+    """Run `python -m geomload ARGS`; returns the CompletedProcess."""
     env = dict(os.environ, PYTHONPATH=str(ROOT))
-    return subprocess.run([sys.executable, "-m", "geomload.batch.cli_batch", *map(str, args)],
+    return subprocess.run([sys.executable, "-m", "geomload", *map(str, args)],
                           capture_output=True, text=True, cwd=cwd, env=env, timeout=timeout)
 
 

@@ -130,7 +130,8 @@ def analyse_at_alpha(stations, alpha_deg: float, mach: float = 0.0, n_span: int 
     the solver's default is used, with a warning.
     """
     from geomload.aero.lattice import build_lattice
-    from geomload.aero.solve import DEFAULT_CL_MAX, AeroModel, check_convergence
+    from geomload.aero.refinement import check_convergence
+    from geomload.aero.solve import DEFAULT_CL_MAX, AeroModel
     from geomload.errors import AeroError
     from geomload.records import Message
 

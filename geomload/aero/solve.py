@@ -388,12 +388,4 @@ class AeroModel:
                     alpha_at_onset=math.degrees(hi), warnings=warnings)
 
 
-def __getattr__(name):  # the lattice refinement study lives in refinement.py; old imports work
-    if name in ("check_convergence", "root_bending_coefficient"):
-        from geomload.aero import refinement
-
-        return getattr(refinement, name)
-    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
-
-
 __all__ = ["AeroModel", "MACH_WARN", "DEFAULT_CL_MAX"]

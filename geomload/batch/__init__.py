@@ -11,7 +11,7 @@ of finished runs.
 - `assemble`: the batch folder (batch.csv with the root loads and their error bars, plots,
   index.html); `html_page`: the one page layout of index.html and compare.html.
 - `compare`: overlays the envelopes of finished runs and tabulates their differences.
-- `cli_batch`: the click commands ``batch`` and ``compare``.
+- the click commands ``batch`` and ``compare`` live in geomload.cli.batch_cmd.
 
 Every library function returns data; nothing here prints.
 """

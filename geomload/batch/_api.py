@@ -75,8 +75,8 @@ def write_run(result, folder, inputs=(), render=False, run_time_s=None) -> list:
 
 
 def output_dir(path, force=False, inputs=()):
-    """The pipeline's atomic output folder (geomload.export.atomic.OutputDir), not yet opened."""
-    from geomload.export.atomic import OutputDir
+    """The pipeline's atomic output folder (geomload.export.run_folder.OutputDir), not yet opened."""
+    from geomload.export.run_folder import OutputDir
 
     return OutputDir(path, force=force, inputs=inputs)
 

@@ -1,8 +1,7 @@
 """Command layer: parse options, call the library, print, map errors to exit codes.
 
-One module per command (inspect_cmd, aero_cmd, new_case, run_cmd, view_cmd; batch and
-compare in geomload.batch.cli_batch); shared options,
-error handling and console text in :mod:`geomload.cli.common`. Exit codes: 0 ok, 1 bad input
+One module per command (inspect_cmd, aero_cmd, new_case, run_cmd, view_cmd, batch_cmd for
+batch and compare); shared options, error handling and console text in :mod:`geomload.cli.common`. Exit codes: 0 ok, 1 bad input
 (file, option or case key), 2 usage error, 3 internal error, 128 + signal when stopped by a
 signal (130 SIGINT / Ctrl-C, 143 SIGTERM, 129 SIGHUP). No heavy import happens at module level,
 so `geomload --help` is fast.
@@ -17,13 +16,12 @@ import click
 from geomload import __version__
 
 from .aero_cmd import aero
+from .batch_cmd import batch, compare
 from .common import EXIT_USAGE, install_signal_handlers
 from .inspect_cmd import inspect
 from .new_case import new_case
 from .run_cmd import run
 from .view_cmd import view
-
-from geomload.batch.cli_batch import batch, compare  # noqa: E402 - after .common (it imports it)
 
 
 @click.group(context_settings={"help_option_names": ["-h", "--help"]})

@@ -295,11 +295,3 @@ def safe_name(name: str, taken=None) -> str:
             out, k = f"{base}_{k}", k + 1
         taken.add(out.lower())
     return out
-
-
-def __getattr__(name):  # OutputDir and friends moved to run_folder; old imports keep working
-    if name in ("OutputDir", "MARKER", "read_marker"):
-        from geomload.export import run_folder
-
-        return getattr(run_folder, name)
-    raise AttributeError(name)

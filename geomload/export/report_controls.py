@@ -39,7 +39,7 @@ def controls_section(run) -> str:
         out.append("<h3>Rolling and flaps-down cases, each side on its own (limit, root)</h3>"
                    "<p>Rolling: 14 CFR 23.349 simplified (airload factors per side) and with "
                    "the aileron deflections of 23.455 at 2/3 of the positive maneuvering load "
-                   "factor in steady roll; flaps down: 23.345 (pre-2017 texts, from memory). "
+                   "factor, both at the initial state (zero roll rate) and in steady roll; flaps down: 23.345 (pre-2017 texts, from memory). "
                    "Inertia relief on both sides. Aileron + is port trailing edge down (rolls "
                    "right wing down).</p>")
         out.append(_table(("case", "side", "kind", "V EAS m/s", "n", "deflection deg",

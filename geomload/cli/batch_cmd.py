@@ -1,4 +1,4 @@
-"""The click commands `batch` and `compare` (registered on the main group by geomload.cli).
+"""The click commands `batch` and `compare` (the library they call is geomload.batch).
 
 Both print; the library functions they call return data. Exit codes as the rest of the CLI:
 0 ok, 1 bad input / unreachable cluster / some variant failed, 2 usage, 3 internal error.
@@ -103,15 +103,3 @@ def compare(runs, out_dir, force):
     click.echo(CAUTION)
     d = printable(res.out_dir)
     click.echo(f"wrote {d}/compare.csv and {d}/compare.html")
-
-
-@click.group()
-def _standalone():
-    """geomload batch commands (stand-alone entry, until registered on the main group)."""
-
-
-_standalone.add_command(batch)
-_standalone.add_command(compare)
-
-if __name__ == "__main__":  # python -m geomload.batch.cli_batch batch|compare ...
-    _standalone(prog_name="geomload")
