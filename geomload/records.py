@@ -146,7 +146,8 @@ class CaseResult:
     (relative) of the beam integration.
     kind: "symmetric", "rolling" (steady roll), "rolling_initial" (ailerons deflected at zero
     roll rate) or "flaps"; port_loads: the port SpanLoads of an unsymmetric case (`loads` is
-    then the starboard side); tail_load_N (positive up) and wing_normal_force_N (both sides) when the case is trimmed in pitch with a tail, at the c.g. x_cg_m; control: the
+    then the starboard side); tail_load_N (positive up) and wing_normal_force_N (both sides)
+    when the case is trimmed in pitch with a tail, at the c.g. x_cg_m; control: the
     ControlState of a rolling or flaps-down case.
     """
 
