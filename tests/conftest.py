@@ -1,15 +1,16 @@
-"""Shared fixtures: NACA wings generated from the equations (see wingfactory.py)."""
+"""Shared fixtures: NACA wings generated from the equations (see helpers/wingfactory.py).
+
+The tests sit in one folder per stage (geometry, aero, loads, config, export, batch, run); the
+helpers they share are the package tests/helpers (on the path by pytest's ``pythonpath``)."""
 
 import os
 import sys
 
 import pytest
+from helpers.paths import SAMPLES as _SAMPLES
+from helpers.wingfactory import naca_wing_mesh
 
-sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
-
-from wingfactory import naca_wing_mesh  # noqa: E402
-
-SAMPLES = os.path.join(os.path.dirname(os.path.dirname(os.path.abspath(__file__))), "sample_geometry")
+SAMPLES = str(_SAMPLES)
 
 
 @pytest.fixture(scope="session")
@@ -40,7 +41,7 @@ def pytest_sessionfinish(session, exitstatus):
     out = os.environ.get("GEOMLOAD_VALIDATION_MD")
     if not out:
         return
-    import validation
+    from helpers import validation
 
     with open(out, "w", encoding="utf-8") as fh:
         fh.write(validation.markdown())

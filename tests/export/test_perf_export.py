@@ -1,0 +1,129 @@
+"""The faster export path writes the same outputs, refuses the same targets and keeps the
+nothing-lost promise: inputs resolved once per run, one fsync pass per staged run folder, plots
+drawn in a child process. (Safe file output and input protection: the product's own contract,
+common practice, no source. No timing is asserted: benchmarks/ measure speed.)"""
+
+import hashlib
+import os
+from pathlib import Path
+
+import pytest
+
+from geomload.errors import OutputError
+from geomload.export import atomic, plots, write_all
+from geomload.export.atomic import ResolvedInputs, check_not_input, write_text_atomic
+from geomload.export.run_folder import OutputDir, leftovers
+
+from helpers import fakerun
+
+
+@pytest.fixture()
+def project(tmp_path):
+    proj = tmp_path / "proj"
+    (proj / "cad").mkdir(parents=True)
+    (proj / "case.toml").write_text('title = "QM-36 Pellin"\n')
+    (proj / "cad" / "wing.stl").write_bytes(b"solid pellin\nendsolid pellin\n")
+    os.symlink(proj / "cad", tmp_path / "cad_link")            # a symlinked parent
+    os.link(proj / "case.toml", tmp_path / "case_hardlink.toml")  # another name, same inode
+    os.symlink(proj / "case.toml", tmp_path / "case_symlink.toml")
+    return proj
+
+
+def _refused(path, inputs):
+    try:
+        check_not_input(path, inputs)
+    except OutputError as exc:
+        return str(exc)
+    return None
+
+
+def test_resolved_inputs_refuse_exactly_what_the_plain_list_refuses(tmp_path, project):
+    inputs = [project / "case.toml", project / "cad" / "wing.stl", None, ""]
+    resolved = ResolvedInputs(inputs)
+    assert tuple(resolved) == (project / "case.toml", project / "cad" / "wing.stl")
+    targets = {  # target -> refused?
+        project / "case.toml": True, project / "cad" / "wing.stl": True,
+        tmp_path / "case_hardlink.toml": True, tmp_path / "case_symlink.toml": True,
+        tmp_path / "cad_link" / "wing.stl": True, tmp_path / "cad_link": True,
+        project: True, project / "cad": True, tmp_path: True, Path("/"): True,
+        project / "out.csv": False, project / "cad" / "other.stl": False,
+        tmp_path / "proj2": False, tmp_path / "pro": False, project / "case.toml.csv": False,
+    }
+    for target, refused in targets.items():
+        plain, fast = _refused(target, inputs), _refused(target, resolved)
+        assert plain == fast, target
+        assert (plain is not None) == refused, (target, plain)
+    assert ResolvedInputs(resolved) is resolved      # resolving twice costs nothing
+
+
+def test_one_fsync_pass_only_inside_a_staged_run_folder(tmp_path, project):
+    with atomic.sync_at_end(tmp_path):               # not a staging folder: nothing deferred
+        write_text_atomic(tmp_path / "plain.csv", "a\n")
+        assert atomic._SYNC_AT_END == {}
+    od = OutputDir(tmp_path / "run", inputs=[project / "case.toml"]).open()
+    try:
+        with atomic.sync_at_end(od.staging):
+            write_text_atomic(od.path("a.csv"), "a\n")
+            write_text_atomic(od.path("loads/b.csv"), "b\n")
+            (pending,) = atomic._SYNC_AT_END.values()
+            assert sorted(Path(p).name for p in pending) == ["a.csv", "b.csv"]
+        assert atomic._SYNC_AT_END == {}
+        od.commit()
+    finally:
+        if not od.committed:
+            od.abort()
+    assert (tmp_path / "run" / "loads" / "b.csv").read_text() == "b\n"
+    assert leftovers(tmp_path) == []
+
+
+def test_failed_block_registers_nothing_and_commits_nothing(tmp_path, project):
+    out = tmp_path / "run"
+    with pytest.raises(RuntimeError, match="stop"):
+        with OutputDir(out, inputs=[project / "case.toml"]) as od:
+            with atomic.sync_at_end(od.staging):
+                write_text_atomic(od.path("a.csv"), "a\n")
+                raise RuntimeError("stop")
+    assert atomic._SYNC_AT_END == {} and not out.exists() and leftovers(tmp_path) == []
+
+
+def _tree(folder) -> dict:
+    out = {}
+    for root, _dirs, names in os.walk(folder):
+        for n in names:
+            p = os.path.join(root, n)
+            out[os.path.relpath(p, folder)] = hashlib.sha256(Path(p).read_bytes()).hexdigest()
+    return out
+
+
+def test_plots_in_a_child_process_write_the_same_files(tmp_path):
+    run = fakerun.make_run()
+    got = {}
+    for parallel in (False, True):
+        out = tmp_path / f"run_{parallel}"
+        with OutputDir(out, inputs=[run.case_path]) as od:
+            res = write_all(run, od.staging, render=False, parallel=parallel, run_time_s=1.0)
+        got[parallel] = (_tree(out), [str(p) for p in res["files"]], res["images"])
+    serial, forked = got[False], got[True]
+    assert forked[1] == serial[1]                     # same files, same order
+    assert forked[2] == serial[2]
+    assert set(serial[2]) == set(plots.plot_names(run))
+    # byte for byte, PNG included; matplotlib's SVG carries its creation time and random ids
+    # (so does the report that embeds it), and the run marker its creation time
+    stamped = ("geomload-run.json", "report.html", os.path.join("plots", "vn.svg"))
+    assert set(serial[0]) == set(forked[0])
+    differ = [k for k in serial[0] if k not in stamped and serial[0][k] != forked[0][k]]
+    assert differ == [] and any(k.endswith(".png") for k in serial[0])
+
+
+def test_a_dead_plot_process_costs_only_the_plots():
+    import signal
+
+    run = fakerun.make_run()
+    job = plots.start_plot_process(run)
+    os.kill(job.proc.pid, signal.SIGKILL)             # a real crash of the child
+    try:
+        got = job.result()
+    finally:
+        job.stop()
+    assert set(got) == set(plots.plot_names(run))
+    assert all(isinstance(v, Exception) and "plot process" in str(v) for v in got.values())
