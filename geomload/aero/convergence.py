@@ -80,6 +80,17 @@ def _roots(result) -> dict:
     return {cr.name: {k: float(getattr(cr.loads, f)[0]) for k, f in KEYS} for cr in result.cases}
 
 
+def _side_roots(result) -> dict:
+    """{(case name, side): root loads} of every side the loads envelope takes: the starboard
+    loads of each case and, for an unsymmetric case, its port loads."""
+    out = {}
+    for cr in result.cases:
+        for side, loads in (("starboard", cr.loads), ("port", cr.port_loads)):
+            if loads is not None:
+                out[(cr.name, side)] = {k: float(getattr(loads, f)[0]) for k, f in KEYS}
+    return out
+
+
 def richardson(q_h: float, q_2h: float, q_4h: float | None, refine: float = REFINE) -> tuple:
     """(error estimate of q_h, observed order or nan, monotone?) from three (or two) lattices."""
     d1 = q_h - q_2h
@@ -127,18 +138,18 @@ def estimate_errors(case, result, compute, cache=None) -> dict:
     whose convergence is not monotone (flagged: the estimate is then the larger difference)}.
     """
     lat = case.lattice
-    fine = _roots(result)
+    fine = _side_roots(result)
     levels = []
     for ns, nc in coarser_lattices(lat):
         coarse_case = dataclasses.replace(case, lattice=dataclasses.replace(lat, n_span=ns,
                                                                             n_chord=nc))
-        levels.append(_roots(compute(coarse_case, cache=cache)))
-    out = {}
-    for name, q in fine.items():
+        levels.append(_side_roots(compute(coarse_case, cache=cache)))
+    sides = {}
+    for who, q in fine.items():
         est, order, flags = {}, {}, []
         for key, _f in KEYS:
-            q2 = levels[0][name][key] if levels and name in levels[0] else None
-            q4 = levels[1][name][key] if len(levels) > 1 and name in levels[1] else None
+            q2 = levels[0][who][key] if levels and who in levels[0] else None
+            q4 = levels[1][who][key] if len(levels) > 1 and who in levels[1] else None
             if q2 is None:
                 est[key], order[key] = float("nan"), float("nan")
                 flags.append(key)
@@ -147,19 +158,38 @@ def estimate_errors(case, result, compute, cache=None) -> dict:
             est[key], order[key] = e, p
             if not mono:
                 flags.append(key)
-        out[name] = {**est, "order": order, "not_monotone": tuple(flags)}
+        sides[who] = (q, est, order, tuple(flags))
+    out = {}
+    for (name, side), (q, est, order, flags) in sides.items():
+        if side == "starboard":
+            out[name] = {**est, "order": order, "not_monotone": flags,
+                         "sides": tuple((v, e) for (n, _s), (v, e, _o, _f) in sides.items()
+                                        if n == name)}
     return out
 
 
 def envelope_errors(estimates: dict) -> dict:
     """Error bound of the envelope's root maxima and minima from the per-case estimates.
 
-    The envelope maximum over cases moves by at most the largest change of any one case
-    (max is 1-Lipschitz in the largest-component norm), so its bound is the largest per-case
-    estimate of that quantity (N, N m). Keys: root_shear_N, root_bending_Nm, root_torsion_Nm.
+    With each side's root value v_i known to within its estimate e_i, the true envelope maximum
+    lies in [max(v_i - e_i), max(v_i + e_i)] and the minimum in [min(v_i - e_i),
+    min(v_i + e_i)] (interval arithmetic: max and min are monotone in each argument). The bound
+    of a quantity is the larger distance from the reported maximum or minimum to the ends of
+    its interval: only the cases that could take over the governing role count, not the error
+    of a case far below the maximum. Without per-side values (``"sides"``), it is the largest
+    per-case estimate (max is 1-Lipschitz in the largest-component norm). Keys: root_shear_N,
+    root_bending_Nm, root_torsion_Nm (N, N m).
     """
     out = {}
     for key, _f in KEYS:
+        pairs = [(v[key], e[key]) for est in estimates.values() for v, e in est.get("sides", ())
+                 if math.isfinite(e[key])]
+        if pairs and len(pairs) == sum(len(est.get("sides", ())) for est in estimates.values()):
+            vals = [v for v, _e in pairs]
+            hi, lo = max(vals), min(vals)
+            out[key] = max(max(v + e for v, e in pairs) - hi, hi - max(v - e for v, e in pairs),
+                           lo - min(v - e for v, e in pairs), min(v + e for v, e in pairs) - lo)
+            continue
         vals = [e[key] for e in estimates.values() if math.isfinite(e[key])]
         out[key] = max(vals) if vals else float("nan")
     return out
