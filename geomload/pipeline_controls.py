@@ -306,7 +306,8 @@ def _one(kind, rc, label, x_cg, h, mass, ctx, cms, solve_case) -> CaseResult:
                                   Cl_damping=clp * st.pb_2V + 0.0,  # no -0.0 at p = 0
                                   **_aileron_torsion(sol, ctx.case.controls.surface(rc.aileron),
                                                      rc.aileron_deg, q))
-    aero = ctx.models.get(mach).solve(st.alpha_deg)  # the clean wing at the case's angle
+    # the state's own totals (deflections, roll rate) and the starboard side's strips and panels
+    aero = cm.half_solution(sol, ctx.models.get(mach).solve(st.alpha_deg))
     res = max(stb.equilibrium.residual, port.equilibrium.residual)
     return CaseResult(name=name, v_eas=v_eas, v_tas=v_tas, altitude_m=h, mach=mach, q_pa=q,
                       load_factor=rc.load_factor, mass_kg=mass, lift_share=share, aero=aero,

@@ -319,6 +319,52 @@ class ControlModel:
             raise AeroError(f"CL: {target:g} needs |alpha| > 60 deg; outside linear theory")
         return math.degrees(a)
 
+    def half_solution(self, state, clean):
+        """The `records.AeroSolution` of a controlled state on the starboard half lattice.
+
+        state : a ControlledSolution of this model (`solve`).
+        clean : the clean wing's AeroSolution on the half lattice (same stations, spacing and
+            Mach), for the wing's linear properties (CL_alpha, alpha_L0, x_ac).
+
+        Totals (CL, CDi, e, Cm) are those of the whole wing in the state (deflections and roll
+        rate); strips, circulation and pressure jump are the starboard side's, on the panels of
+        the half lattice (the full-span lattice's starboard panels are the half lattice's, in
+        the same order). The pressure jump is taken on the undeflected panel normals (linear
+        theory deflects the boundary condition, not the geometry).
+        """
+        from geomload.records import AeroSolution
+
+        lat, m = self.lattice, self.model
+        if lat.mirrored:
+            raise AeroError("half_solution: needs a full-span lattice")
+        defl = {k: math.radians(v) for k, v in state.deflections_deg}
+        g, F, _ca, _sa = self._forces(math.radians(state.alpha_deg), defl, state.roll_rate_pb2v)
+        n_half = clean.gamma.shape[0]
+        ns_half = clean.y.shape[0]
+        if n_half * 2 != g.shape[0] or ns_half * 2 != lat.n_span:
+            raise AeroError("half_solution: the full-span lattice does not mirror the half one")
+        panels = slice(g.shape[0] - n_half, None)
+        sb = state.starboard
+        c = sb.chord_m
+        with np.errstate(divide="ignore", invalid="ignore"):
+            cm = np.where(c > 0, sb.moment_per_q / c**2, 0.0)
+            cdi = np.where(c > 0, sb.drag_per_q / c, 0.0)
+            lq = sb.lift_per_q
+            small = np.abs(lq) <= 1e-12 * max(1e-300, np.abs(lq).max())
+            qc_x = m._qc[lat.n_span - ns_half:, 0]
+            x_cp = np.where(small, qc_x, qc_x - sb.moment_per_q / lq)
+        dcp = (F[panels] * lat.normal[panels]).sum(axis=1) / lat.area[panels]
+        A = lat.b_ref ** 2 / lat.s_ref
+        e = state.CL ** 2 / (math.pi * A * state.CDi) if state.CDi > 1e-14 else float("nan")
+        return AeroSolution(
+            alpha_deg=float(state.alpha_deg), mach=clean.mach, gamma=g[panels].copy(),
+            y=sb.y_m.copy(), chord=c.copy(), cl=sb.cl.copy(), cl_c=lq.copy(), cm_c4=cm,
+            cdi=cdi, lift_per_q=lq.copy(), drag_per_q=sb.drag_per_q.copy(),
+            moment_per_q=sb.moment_per_q.copy(), x_cp=x_cp, dcp=dcp, CL=float(state.CL),
+            CDi=float(state.CDi), e=float(e), Cm=float(state.Cm),
+            CL_alpha_per_rad=clean.CL_alpha_per_rad,
+            alpha_zero_lift_deg=clean.alpha_zero_lift_deg, x_ac_m=clean.x_ac_m)
+
     def coefficients(self, alpha_deg: float, deflections_deg=None) -> tuple:
         """(CL, Cm about lattice.x_ref) at alpha (deg) with deflections {name: deg}."""
         defl, _ = self._defl_rad(deflections_deg)

@@ -138,17 +138,26 @@ def test_simplified_rolling_side_factor(run):
 def test_flaps_down_cases_follow_the_rule(run):
     """23.345(a) (pre-2017, from memory): n = 2.0 at V_F with the flaps down; the flapped wing
     carries more lift inboard than the clean wing at the same load factor."""
+    from geomload.aero.lattice import build_lattice
+    from geomload.aero.solve import AeroModel
+
     result, _ = run
     man = [c for c in result.cases if c.kind == "flaps" and c.name.startswith("flaps_maneuver")]
     assert len(man) == 2
+    spec = read_case_file(SAMPLE).lattice
+    lat = build_lattice(result.stations, n_span=spec.n_span, n_chord=spec.n_chord,
+                        spacing=spec.spacing)
     for c in man:
         assert c.load_factor == 2.0 and c.v_eas == pytest.approx(25.0)
         st, po = c.sides[0][1], c.sides[1][1]
         assert st.bending_Nm[0] == pytest.approx(po.bending_Nm[0], rel=1e-9)  # symmetric flap
         inboard = st.y < 1.1
         share_in = _trapz(st.y[inboard], st.lift_N_per_m[inboard]) / _trapz(st.y, st.lift_N_per_m)
-        clean = c.aero.lift_per_q
-        y = np.asarray(c.aero.y)
+        # the clean wing at the same wing CL (the case's aero is the flapped state's)
+        model = AeroModel(lat, mach=c.mach)
+        sol = model.solve(model.alpha_for_cl(c.aero.CL))
+        assert c.aero.CL == pytest.approx(c.control.CL, rel=1e-12)
+        clean, y = sol.lift_per_q, np.asarray(sol.y)
         w = np.diff(np.concatenate([[0.0], 0.5 * (y[1:] + y[:-1]), [y[-1]]]))
         share_clean = float(np.sum((clean * w)[y < 1.1]) / np.sum(clean * w))
         assert share_in > share_clean + 0.01
@@ -260,3 +269,21 @@ def test_aileron_torsion_increment_against_the_rule(run):
         check("14 CFR 23.349, pre-2017, from memory: delta_cm = -0.01 delta over the aileron",
               f"{c.name}: aileron torsion increment, lattice vs rule (N m)",
               k.aileron_torsion_rule_Nm, k.aileron_torsion_lattice_Nm, rel=0.05)
+
+
+def test_unsymmetric_case_aero_is_the_deflected_state(run):
+    """The CL, CDi, e, Cm and strip loads a rolling or flaps-down case reports are those of its
+    own lattice state (deflections and roll rate), not of the clean wing: the starboard strips'
+    lift equals the starboard loads' airload (the same solution moved onto the load grid;
+    trapezoidal integration on both, common practice, no source)."""
+    result, _ = run
+    lattice_cases = [c for c in result.cases if c.kind in ("rolling", "rolling_initial", "flaps")
+                     and c.control is not None and c.control.side_factors == (1.0, 1.0)]
+    assert len(lattice_cases) >= 20
+    for c in lattice_cases:
+        assert c.aero.CL == pytest.approx(c.control.CL, rel=1e-12), c.name
+        y = np.asarray(c.aero.y)
+        w = np.diff(np.concatenate([[0.0], 0.5 * (y[1:] + y[:-1]), [result.stations.semispan]]))
+        strips = float(np.sum(c.aero.lift_per_q * w)) * c.q_pa
+        loads = _trapz(c.loads.y, c.loads.applied.lift_N_per_m)
+        assert strips == pytest.approx(loads, rel=2e-3, abs=0.5), c.name
