@@ -252,6 +252,22 @@ def case_cn(result, c) -> float:
 STALL_FLAG = "*"  # beside a case beyond the stall line
 
 
+PORT_ROW = "port side"
+
+
+def _root_cells(ld, bars, name, side) -> str:
+    """The root shear, bending and torsion cells of one side (with its error estimate)."""
+    b = None if bars is None else bars.of(name, side)
+    if bars is None:
+        return f"{ld.shear_N[0]:10.1f} {ld.bending_Nm[0]:12.1f} {ld.torsion_Nm[0]:12.2f}"
+    if b is None:
+        return (f"{ld.shear_N[0]:10.1f} {'':8} {ld.bending_Nm[0]:12.1f} {'':8} "
+                f"{ld.torsion_Nm[0]:12.2f}")
+    return (f"{ld.shear_N[0]:10.1f} +-{_pm(b.root_shear_N, 1)} "
+            f"{ld.bending_Nm[0]:12.1f} +-{_pm(b.root_bending_Nm, 1)} "
+            f"{ld.torsion_Nm[0]:12.2f} +-{_pm(b.root_torsion_Nm, 2)}")
+
+
 def run_table(result) -> str:
     """The `run` console summary: root loads per case (with the discretization error estimate
     when the run has one), the critical cases, the caution."""
@@ -265,7 +281,7 @@ def run_table(result) -> str:
     if bars is not None:
         title = "Limit loads at the wing root (one semi-span; +- discretization error estimate)"
     lines = [title, head, units, "-" * len(head)]
-    stalled = 0
+    stalled, unsym = 0, False
     for c in result.cases:
         ld = c.loads
         flag = STALL_FLAG if c.stall_warning else " "
@@ -274,17 +290,14 @@ def run_table(result) -> str:
         name = name if len(name) <= 30 else name[:29] + "~"
         row = (f"{name:<30}{flag:>2} {c.load_factor:5.2f} {c.v_eas:6.1f} {c.mass_kg:6.2f} "
                f"{c.aero.alpha_deg:6.2f} {c.aero.CL:7.4f} {case_cn(result, c):7.4f} ")
-        b = None if bars is None else bars.of(c.name)
-        if bars is None:
-            row += f"{ld.shear_N[0]:10.1f} {ld.bending_Nm[0]:12.1f} {ld.torsion_Nm[0]:12.2f}"
-        elif b is None:
-            row += (f"{ld.shear_N[0]:10.1f} {'':8} {ld.bending_Nm[0]:12.1f} {'':8} "
-                    f"{ld.torsion_Nm[0]:12.2f}")
-        else:
-            row += (f"{ld.shear_N[0]:10.1f} +-{_pm(b.root_shear_N, 1)} "
-                    f"{ld.bending_Nm[0]:12.1f} +-{_pm(b.root_bending_Nm, 1)} "
-                    f"{ld.torsion_Nm[0]:12.2f} +-{_pm(b.root_torsion_Nm, 2)}")
-        lines.append(row.rstrip())
+        lines.append((row + _root_cells(ld, bars, c.name, "starboard")).rstrip())
+        if c.port_loads is not None:  # an unsymmetric case: its port side on a row of its own
+            unsym = True
+            lines.append((f"{'  ' + PORT_ROW:<32} {'':5} {'':6} {'':6} {'':6} {'':7} {'':7} "
+                          + _root_cells(c.port_loads, bars, c.name, "port")).rstrip())
+    if unsym:
+        lines.append(f"An unsymmetric case's first row is its starboard side, the '{PORT_ROW}' "
+                     "row below it the port side.")
     if stalled:
         lines.append(f"{STALL_FLAG} {stalled} case(s) beyond the stall line: the wing's normal-force "
                      "coefficient CN exceeds its maximum; their loads are kept in the envelope "

@@ -64,16 +64,20 @@ class ErrorBar:
 
 @dataclass(frozen=True)
 class ErrorBars:
-    """Error bars of a run: per case (a tuple of (case name, ErrorBar), run order), the
-    envelope's root maxima and minima (ErrorBar or None), and the lattices compared."""
+    """Error bars of a run: per case (a tuple of (case name, ErrorBar), run order; the
+    starboard side of an unsymmetric case), the envelope's root maxima and minima (ErrorBar or
+    None), the lattices compared, and the port side of each unsymmetric case (a tuple of
+    (case name, ErrorBar))."""
 
     cases: tuple
     envelope: object = None
     lattices: tuple = ()
+    port: tuple = ()
 
-    def of(self, name: str):
-        """The ErrorBar of case `name`, or None."""
-        return next((b for n, b in self.cases if n == name), None)
+    def of(self, name: str, side: str = "starboard"):
+        """The ErrorBar of case `name` (its `side` "starboard" or "port"), or None."""
+        return next((b for n, b in (self.port if side == "port" else self.cases) if n == name),
+                    None)
 
 
 def _roots(result) -> dict:
@@ -203,6 +207,8 @@ def error_bars(case, result, compute, cache=None) -> tuple:
                                  order=tuple(e["order"][k] for k, _f in KEYS),
                                  not_monotone=tuple(e["not_monotone"])))
                  for name, e in est.items())
+    port = tuple((name, ErrorBar(*(e[k] for k, _f in KEYS)))
+                 for name, est_ in est.items() for _v, e in est_["sides"][1:])
     env = envelope_errors(est)
     flagged = {k: [n for n, e in est.items() if k in e["not_monotone"]] for k, _f in KEYS}
     env_bar = ErrorBar(*(env[k] for k, _f in KEYS),
@@ -218,7 +224,7 @@ def error_bars(case, result, compute, cache=None) -> tuple:
                             "difference between them, not an extrapolation (refine the lattice "
                             "to check)")
     lattices = ((case.lattice.n_span, case.lattice.n_chord), *coarser_lattices(case.lattice))
-    return ErrorBars(cases=bars, envelope=env_bar, lattices=lattices), warnings
+    return ErrorBars(cases=bars, envelope=env_bar, lattices=lattices, port=port), warnings
 
 
 __all__ = ["ErrorBar", "ErrorBars", "richardson", "estimate_errors", "envelope_errors",

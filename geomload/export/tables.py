@@ -215,12 +215,12 @@ def _num(x):
     return x if math.isfinite(x) else None
 
 
-def _error_estimate(run, name):
+def _error_estimate(run, name, side="starboard"):
     """{root_shear_N, root_bending_Nm, root_torsion_Nm} absolute discretization error estimates
-    (limit loads, N and N m) of case `name` (None: the envelope's root extremes), or None when
-    the run has none (geomload.aero.convergence)."""
+    (limit loads, N and N m) of case `name` (its `side`; None: the envelope's root extremes),
+    or None when the run has none (geomload.aero.convergence)."""
     bars = getattr(run, "error_bars", None)
-    bar = None if bars is None else (bars.envelope if name is None else bars.of(name))
+    bar = None if bars is None else (bars.envelope if name is None else bars.of(name, side))
     if bar is None:
         return None
     return {**{k: _num(v) for k, v in bar.values().items()},
@@ -259,7 +259,7 @@ def summary(run) -> dict:
             "root_bending_ult_Nm": _num(uf * L.bending_Nm[0]),
             "root_torsion_ult_Nm": _num(uf * L.torsion_Nm[0]),
             "equilibrium_residual": _num(cr.residual), "stall_warning": cr.stall_warning,
-            "error_estimate": _error_estimate(run, cr.name), **_case_kind(cr)})
+            "error_estimate": _error_estimate(run, cr.name), **_case_kind(cr, run)})
     out = {"caution": CAUTION, "geomload_version": __version__, "case_file": run.case_path,
            "title": str(getattr(run.case, "title", "") or ""),
            "geometry": {"source": run.mesh.source, "units": run.mesh.units,
@@ -291,9 +291,10 @@ def summary(run) -> dict:
     return out
 
 
-def _case_kind(cr) -> dict:
-    """kind; per-side root loads of an unsymmetric case; tail load and wing normal force with a
-    tail; the control state (deflections, steady roll, rolling derivatives)."""
+def _case_kind(cr, run=None) -> dict:
+    """kind; per-side root loads of an unsymmetric case (with their error estimates when the
+    run has them); tail load and wing normal force with a tail; the control state (deflections,
+    steady roll, rolling derivatives)."""
     out = {"kind": cr.kind}
     if cr.port_loads is not None:
         sides = {}
@@ -305,7 +306,8 @@ def _case_kind(cr) -> dict:
                 "root_shear_ult_N": _num(uf * L.shear_N[0]),
                 "root_bending_ult_Nm": _num(uf * L.bending_Nm[0]),
                 "root_torsion_ult_Nm": _num(uf * L.torsion_Nm[0]),
-                "equilibrium_residual": _num(L.equilibrium.residual)}
+                "equilibrium_residual": _num(L.equilibrium.residual),
+                "error_estimate": None if run is None else _error_estimate(run, cr.name, side)}
         out["sides"] = sides
     if cr.tail_load_N is not None:
         out["tail_load_N"] = _num(cr.tail_load_N)
