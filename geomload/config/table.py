@@ -155,6 +155,11 @@ class Table:
         if v is None:
             return None
         rows = v if width > 1 else [[e] for e in v]
+        if self.written.get(k, k) != k and any(isinstance(e, str) for r in rows
+                                                if isinstance(r, list) for e in r):
+            unit = qty.SUFFIXED.get((qty.table_kind(self.where), self.written[k]), ("", "?"))[1]
+            self.fail(k, f"its name fixes the unit ({unit}): give numbers, or write the values "
+                         f"with their unit as {k} = [...]")
         if len(rows) < min_rows or not all(isinstance(r, list) and len(r) == width for r in rows):
             self.fail(k, f"must be a list of at least {min_rows} {what}")
         vals, units = [], []
