@@ -116,10 +116,11 @@ def _template_keys() -> list:
     out = set()
     table = ""
     for s in lines:
-        if s.startswith("[["):
-            table = s.strip("[] ") + "[1]"
-        elif s.startswith("["):
-            table = s.strip("[] ")
+        head = re.match(r"^\[\[?([A-Za-z_][A-Za-z0-9_.]*)\]\]?", s)
+        if head and s.startswith("[["):
+            table = head.group(1) + "[1]"
+        elif head:
+            table = head.group(1)
         else:
             k = s.split("=")[0].strip()
             out.add(f"{table}.{k}" if table else k)
@@ -157,6 +158,9 @@ def _container(data: dict, key: str, parts: list, create: bool):
     node = data
     for name, idx in parts[:-1]:
         if name not in node:
+            if idx is not None and f"{name}[1]" in {k.split(".")[0] for k in _template_keys()}:
+                raise VaryError(f"--vary {key}: the case file has no [[{name}]] table (add it "
+                                "to the case file to vary its keys)")
             if not create or idx is not None:
                 raise _unknown(key, data)
             node[name] = {}
