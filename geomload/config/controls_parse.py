@@ -281,6 +281,8 @@ def parse_controls(top, raw: dict, path: str, table_cls, envelope, warnings=None
         t = sub("tail")
         tail = TailSpec(t.positive("area", required=True), t.get("x_ac", float, required=True),
                         t.get("cm0_fuselage", float, 0.0))
+        for key, rec in (("x_ac", "x_ac_m"), ("area", "area_m2")):
+            names.append((f"tail.{rec}", f"tail.{t.written.get(key, key)}"))
         if not cg:
             t.fail("", "a tail needs the c.g. range [cg] x = [forward, aft]")
         if tail.x_ac_m - cg[1] <= 0.0:
@@ -383,8 +385,9 @@ def _file_order(pair, spec):
 
 def check_controls_against_wing(spec: Optional[ControlsSpec], semispan: float, mac: float,
                                 x_le_mac: float, path: str = "") -> list:
-    """Span range of every surface and the c.g. within 50 % MAC of the MAC (CaseError naming
-    the key); returns the warnings (a deflection limit beyond linear theory)."""
+    """Span range of every surface, the c.g. within 50 % MAC of the MAC and the tail arm from
+    the aft c.g. at least the trim's minimum (CaseError naming the key as the file writes it);
+    returns the warnings (a deflection limit beyond linear theory)."""
     if spec is None:
         return []
     from geomload.aero.pitch_trim import check_cg
@@ -399,4 +402,12 @@ def check_controls_against_wing(spec: Optional[ControlsSpec], semispan: float, m
             check_cg(x, x_le_mac, mac, key=f"cg.x_m ({k})")
         except CaseError as exc:
             raise CaseError(f"{pre}{spec.as_written(str(exc))}") from None
+    if spec.tail is not None and spec.cg_x_m:
+        from geomload.aero.pitch_trim import MIN_TAIL_ARM_MAC
+
+        arm = spec.tail.x_ac_m - max(spec.cg_x_m)  # the shortest arm: from the aft c.g.
+        if not arm >= MIN_TAIL_ARM_MAC * mac:  # the trim's own limit, said before any case runs
+            raise CaseError(f"{pre}{spec.as_written('tail.x_ac_m')}: tail arm {arm:g} m from "
+                            f"the aft c.g. must be at least {MIN_TAIL_ARM_MAC:g} MAC "
+                            f"({MIN_TAIL_ARM_MAC * mac:.4g} m) aft (a tail behind the c.g.)")
     return [spec.as_written(w) for w in warns]

@@ -183,3 +183,17 @@ def test_a_surface_from_the_cad_names_geometry_body_and_refuses_a_span_key(tmp_p
                                         "geometry_body"):
         _read(tmp_path, text.replace("geometry_body = 2", 'geometry_body = 2\ny_to = "1.7 m"'),
               "both.toml")
+
+
+@pytest.mark.parametrize("style, key", [("old", "tail.x_ac_m"), ("new", "tail.x_ac")])
+def test_a_short_tail_arm_is_refused_before_any_case_runs(tmp_path, style, key):
+    """The trim needs the tail at least 0.1 MAC aft of the c.g. (the trim's own limit): a
+    shorter arm from the aft c.g. is refused once the MAC is known, naming the key as written."""
+    text = _sample_text() if style == "old" else _new_style()
+    text = text.replace("x_ac_m = 1.25" if style == "old" else 'x_ac = "1250 mm"',
+                        "x_ac_m = 0.16" if style == "old" else 'x_ac = "160 mm"')
+    c = _read(tmp_path, text)
+    with pytest.raises(CaseError, match="^" + re.escape(f"{key}: tail arm 0.02 m from the aft "
+                                                        "c.g. must be at least 0.1 MAC (0.028 m)")):
+        check_controls_against_wing(c.controls, 1.8, 0.28, 0.056)
+    check_controls_against_wing(c.controls, 1.8, 0.19, 0.056)  # 0.02 m >= 0.1 x 0.19 m: accepted
