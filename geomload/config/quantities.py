@@ -16,17 +16,28 @@ from __future__ import annotations
 import math
 import re
 
-from geomload.units import ALTITUDE_UNITS, GUST_UNITS, LENGTH_UNITS, MASS_UNITS, SPEED_UNITS_TEXT
+from geomload.units import (ALTITUDE_UNITS, FOOT, GUST_UNITS, INCH, LENGTH_UNITS, MASS_UNITS, POUND,
+                            POUND_FORCE, SPEED_UNITS_TEXT)
 
 # areas: the square of every length unit, written "m2", "m^2" or "m²" (same factor, squared)
 AREA_UNITS = {f"{u}{sq}": f * f for u, f in LENGTH_UNITS.items() for sq in ("2", "^2", "\u00b2")}
 # angles, in degrees (the unit of the records' angles): 1 rad = 180/pi deg (exact by definition)
 ANGLE_UNITS = {"deg": 1.0, "rad": math.degrees(1.0)}
+# stresses (structural allowables), Pa: psi = lbf/in^2, ksi = 1000 psi (derived, exact)
+STRESS_UNITS = {"Pa": 1.0, "kPa": 1e3, "MPa": 1e6, "GPa": 1e9, "psi": POUND_FORCE / INCH**2,
+                "ksi": 1e3 * POUND_FORCE / INCH**2}
+# mass per span (a wing-mass table), kg/m
+MASS_PER_LENGTH_UNITS = {"kg/m": 1.0, "lb/ft": POUND / FOOT, "lb/in": POUND / INCH}
 UNITS_BY_KIND = {"speed": SPEED_UNITS_TEXT, "altitude": ALTITUDE_UNITS,
                  "gust": {**GUST_UNITS, **SPEED_UNITS_TEXT}, "mass": MASS_UNITS,
-                 "length": LENGTH_UNITS, "area": AREA_UNITS, "angle": ANGLE_UNITS}
+                 "length": LENGTH_UNITS, "area": AREA_UNITS, "angle": ANGLE_UNITS,
+                 "stress": STRESS_UNITS, "mass per length": MASS_PER_LENGTH_UNITS}
 SI_UNIT = {"speed": "m/s", "altitude": "m", "gust": "m/s", "mass": "kg", "length": "m",
-           "area": "m2", "angle": "deg"}
+           "area": "m2", "angle": "deg", "stress": "Pa", "mass per length": "kg/m"}
+# kinds whose key takes no plain number: it would be in Pa, which no one writes an allowable
+# in (480 meant as MPa would read as 480 Pa): the value carries its unit, or the older key
+# ending in its unit takes the number
+UNIT_REQUIRED = ("stress",)
 UNIT_WORD = r"[A-Za-z/]+(?:\^?2|\u00b2)?"  # a unit as a case-file text writes it
 _TEXT = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(" + UNIT_WORD + r")\s*$")
 
@@ -47,6 +58,7 @@ QUANTITY_KEYS = {
                         "delta_max": "angle"},
     "tail": {"area": "area", "x_ac": "length"},
     "cg": {"x": "length"},
+    "structure": {"sigma_allow": "stress", "tau_allow": "stress"},
 }
 # (table, old key) -> new key: the old spelling still works, with a warning naming the new one
 RENAMED = {
@@ -83,6 +95,8 @@ SUFFIXED = {
     ("tail", "area_m2"): ("area", "m2"),
     ("tail", "x_ac_m"): ("x_ac", "m"),
     ("cg", "x_m"): ("x", "m"),
+    ("structure", "sigma_allow_MPa"): ("sigma_allow", "MPa"),
+    ("structure", "tau_allow_MPa"): ("tau_allow", "MPa"),
 }
 # separate unit keys: still read; writing the unit in the value is the one way now
 UNIT_KEYS = {"speed_unit": ("speed", "v_cruise", "v_dive", "v_maneuver"),
@@ -136,7 +150,8 @@ def shown_units(kind: str) -> str:
 
 def example(kind: str) -> str:
     return {"speed": "52 kt", "altitude": "1500 ft", "gust": "15 m/s", "mass": "1320 lb",
-            "length": "350 mm", "area": "1.7 ft2", "angle": "18 deg"}[kind]
+            "length": "350 mm", "area": "1.7 ft2", "angle": "18 deg", "stress": "480 MPa",
+            "mass per length": "0.6 kg/m"}[kind]
 
 
 def rename_keys(data: dict, where: str, warnings: list) -> str | None:
@@ -152,12 +167,17 @@ def rename_keys(data: dict, where: str, warnings: list) -> str | None:
             return old
         data[new] = data.pop(old)
         warnings.append(f"{where}.{old} is now written {where}.{new} (the old name still works)")
-    for (tab, old), (new, _unit) in SUFFIXED.items():
+    for (tab, old), (new, unit) in SUFFIXED.items():
         if tab != kind or old not in data or isinstance(data[old], str):
             continue
         if new in data:
             return old
-        data[new] = data.pop(old)
+        value = data.pop(old)
+        q = QUANTITY_KEYS.get(tab, {}).get(new)
+        if q is not None and unit != SI_UNIT[q] and isinstance(value, (int, float)) \
+                and not isinstance(value, bool):
+            value = f"{float(value)!r} {unit}"  # a number in a unit other than the key's own
+        data[new] = value
     return None
 
 
