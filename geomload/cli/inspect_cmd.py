@@ -41,7 +41,7 @@ def inspect(geometry, units, span_axis, up_axis, side, n_stations, spacing, body
     if as_json:
         out = inspect_json(mesh, frame, stations, planform)
         out["planform_gross_exposed"] = planform_summary(wing)
-        out["wing_frame_in_cad"] = frame_origin(wing)  # for case-file positions in either frame
+        out["frame"].update(frame_origin(wing))  # for case-file positions in either frame
         out["warnings"] = [m.text for m in messages if m.kind == "warning"]
         out["notes"] = [m.text for m in messages if m.kind == "note"]
         click.echo(json.dumps(out, indent=2))

@@ -17,23 +17,27 @@ AXIS_TOL = 1e-9  # a wing axis within this (direction cosine) of a CAD axis is t
 CAD_AXES = "XYZ"
 
 
-def frame_origin(wing) -> dict:
+def frame_in_cad(frame, mesh) -> dict:
     """The wing-frame origin and axes in CAD terms, as plain data (numbers rounded to 9
-    significant figures).
+    significant figures), for a JSON "frame" table beside its ``origin_cad_m``.
 
-    Returns a dict: ``origin_cad`` [x, y, z] in the CAD unit; ``cad_unit`` (the unit the file
-    was read in, e.g. "mm", or "m" per unit when it has no name); ``unit_scale_m`` (metres per
-    CAD unit); ``axes`` {"x": "+X", "y": "-Y", ...} the CAD direction of each wing axis (a
-    signed CAD axis, or the unit vector [cx, cy, cz] when the wing axis is oblique).
+    frame : the `WingFrame`; mesh : the `WingMesh` (its unit).
+    Returns a dict: ``cad_unit`` (the unit the file was read in, e.g. "mm", or "units of
+    0.002 m"); ``origin_cad_in_cad_unit`` [x, y, z], the origin in CAD coordinates and that
+    unit; ``wing_axes_in_cad`` {"x": "+X", "y": "-Y", ...}, the CAD direction of each wing axis
+    (a signed CAD axis, or the unit vector [cx, cy, cz] when the wing axis is oblique).
     """
-    frame, mesh = wing.frame, wing.mesh
     scale = float(getattr(mesh, "unit_scale_m", 1.0))
     origin = np.asarray(frame.origin, float) / scale
-    axes = {}
-    for name, row in zip("xyz", np.asarray(frame.rotation, float)):
-        axes[name] = _direction(row)
-    return {"origin_cad": [float(f"{v:.9g}") for v in origin], "cad_unit": _unit(mesh, scale),
-            "unit_scale_m": scale, "axes": axes}
+    axes = {name: _direction(row) for name, row in zip("xyz", np.asarray(frame.rotation, float))}
+    return {"cad_unit": _unit(mesh, scale),
+            "origin_cad_in_cad_unit": [float(f"{v + 0.0:.9g}") for v in origin],
+            "wing_axes_in_cad": axes}
+
+
+def frame_origin(wing) -> dict:
+    """:func:`frame_in_cad` of a `Wing`."""
+    return frame_in_cad(wing.frame, wing.mesh)
 
 
 def _unit(mesh, scale) -> str:
@@ -54,7 +58,7 @@ def _direction(row):
     k = int(np.argmax(np.abs(row)))
     if abs(abs(float(row[k])) - 1.0) <= AXIS_TOL:
         return ("+" if row[k] > 0 else "-") + CAD_AXES[k]
-    return [float(f"{v:.6f}") for v in row]
+    return [float(f"{v + 0.0:.6f}") for v in row]
 
 
 def _dir_text(d) -> str:
@@ -72,9 +76,9 @@ def _dir_text(d) -> str:
 def frame_origin_lines(wing) -> list:
     """Lines for a person: the origin in CAD coordinates and unit, and the axes."""
     f = frame_origin(wing)
-    x, y, z = (f"{v + 0.0:.6g}" for v in f["origin_cad"])
+    x, y, z = (f"{v + 0.0:.6g}" for v in f["origin_cad_in_cad_unit"])
     unit = f["cad_unit"]
-    ax = f["axes"]
+    ax = f["wing_axes_in_cad"]
     root = ("on the CAD plane of symmetry (the root face lies off it)"
             if float(getattr(wing.frame, "y_root", 0.0)) > 0.0 else "on the root / symmetry plane")
     return [f"Wing frame in the CAD model (CAD unit {unit}), for case-file positions in either "
@@ -85,4 +89,4 @@ def frame_origin_lines(wing) -> list:
             f"  wing z (up) along {_dir_text(ax['z'])}"]
 
 
-__all__ = ["frame_origin", "frame_origin_lines"]
+__all__ = ["frame_in_cad", "frame_origin", "frame_origin_lines"]

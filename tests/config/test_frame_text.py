@@ -38,10 +38,10 @@ def test_origin_and_axes_in_cad_coordinates(stl):
     f = frame_origin(read_wing(stl, units="mm"))
     src = "analytic: wing built with p_cad = 1000 R p_wing + T (mm)"
     for i, c in enumerate("xyz"):
-        check(src, f"wing-frame origin, CAD {c} (mm)", T_MM[i], f["origin_cad"][i],
-              abs=LE_TOL_MM)
-    assert f["cad_unit"] == "mm" and f["unit_scale_m"] == 0.001
-    assert f["axes"] == {"x": "+Y", "y": "-X", "z": "+Z"}
+        check(src, f"wing-frame origin, CAD {c} (mm)", T_MM[i],
+              f["origin_cad_in_cad_unit"][i], abs=LE_TOL_MM)
+    assert f["cad_unit"] == "mm"
+    assert f["wing_axes_in_cad"] == {"x": "+Y", "y": "-X", "z": "+Z"}
 
 
 def _cli(*args, cwd=None):
@@ -88,3 +88,18 @@ def test_a_control_character_in_the_file_name_stays_inside_the_comment():
     text = case_template("odd\nname.stl", frame_lines=["  origin: x = 1"])
     assert "# THIS WING (odd\\u000Aname.stl):\n#   origin: x = 1\n" in text
     assert tomllib.loads(text)["geometry"]["file"] == "odd\nname.stl"
+
+
+def test_inspect_json_frame_table_carries_the_origin_in_both_units(stl):
+    import json
+
+    r = _cli("inspect", stl, "--units", "mm", "--json", "--stations", "6")
+    assert r.returncode == 0, r.stderr
+    f = json.loads(r.stdout)["frame"]
+    assert f["cad_unit"] == "mm" and f["wing_axes_in_cad"] == {"x": "+Y", "y": "-X", "z": "+Z"}
+    # the same point in metres (origin_cad_m) and in the CAD unit: 1 mm = 1e-3 m (SI, exact)
+    assert f["origin_cad_in_cad_unit"] == pytest.approx([1000.0 * v for v in f["origin_cad_m"]],
+                                                        rel=1e-8)
+    check("analytic: wing built with p_cad = 1000 R p_wing + T (mm)",
+          "inspect --json: wing-frame origin, CAD x (mm)", T_MM[0],
+          f["origin_cad_in_cad_unit"][0], abs=LE_TOL_MM)
