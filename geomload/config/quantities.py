@@ -121,10 +121,21 @@ def parse_quantity(text: str, kind: str) -> float:
     if key is None:
         article = "an" if kind[0] in "aeiou" else "a"
         raise ValueError(f"unit {unit!r} is not one of {shown_units(kind)} ({article} {kind})")
-    v = num * units[key]
+    v = scaled(num, units[key])
     if not math.isfinite(v):
         raise ValueError(f"{text!r} is not a finite value")
     return v
+
+
+def scaled(num: float, factor: float) -> float:
+    """num x factor; a factor that is the reciprocal of a whole number (mm: 1/1000, cm: 1/100)
+    divides by that number instead, so that "1150 mm" gives the float nearest 1.15 m, the same
+    as writing 1.15 (1150 x 0.001 is one unit in the last place above it)."""
+    inv = 1.0 / factor
+    whole = round(inv)
+    if factor < 1.0 and whole > 1 and inv == whole:
+        return num / whole
+    return num * factor
 
 
 def number_or_quantity(v, kind: str) -> tuple:

@@ -314,3 +314,15 @@ def test_wing_mass_table_with_units(tmp_path):
 
 
 NIST_LB = "NIST SP 811 App. B (1959 yard and pound, exact)"
+
+
+@pytest.mark.parametrize("text, kind, decimal", [
+    ("1150 mm", "length", 1.15), ("350 mm", "length", 0.35), ("110 cm", "length", 1.1),
+    ("1600 cm2", "area", 0.16), ("7 mm", "length", 0.007), ("480 MPa", "stress", 4.8e8),
+])
+def test_a_metric_prefix_gives_the_float_of_the_decimal_value(text, kind, decimal):
+    # SI prefixes are exact powers of ten (SI Brochure 9th ed., Table 7): the value in the
+    # prefixed unit is the same number as the decimal value in the base unit
+    from geomload.config.quantities import parse_quantity
+
+    assert parse_quantity(text, kind) == decimal
