@@ -193,3 +193,30 @@ def test_a_short_tail_arm_is_refused_before_any_case_runs(tmp_path, style, key):
                                                         "c.g. must be at least 0.1 MAC (0.028 m)")):
         check_controls_against_wing(c.controls, 1.8, 0.28, 0.056)
     check_controls_against_wing(c.controls, 1.8, 0.19, 0.056)  # 0.02 m >= 0.1 x 0.19 m: accepted
+
+
+def test_the_whole_sample_in_the_one_way_of_writing_units_reads_the_same(tmp_path):
+    """Every key of the sample that ends in its unit, written instead as the key for its
+    quantity with the value's unit: the records are the same floats (1 m, 1 kg, 1 deg, 1 m2
+    are the unit factors), no warning, and no key ending in a unit is left."""
+    from test_case_units import NEW_STYLE as MASS_STYLE
+
+    from geomload.config.quantities import SUFFIXED
+
+    text = _sample_text()
+    for old, new in MASS_STYLE + NEW_STYLE:
+        assert old in text, old
+        text = text.replace(old, new, 1)
+    a, b = _read(tmp_path, _sample_text(), "old.toml"), _read(tmp_path, text, "new.toml")
+    for f in ("aircraft", "wing_mass", "fuel_tanks", "spar", "envelope", "load_cases",
+              "structure", "lattice", "ultimate_factor", "warnings"):
+        assert getattr(a, f) == getattr(b, f), f
+    assert [(p.name, p.mass, p.position.tolist()) for p in a.point_masses] == \
+        [(p.name, p.mass, p.position.tolist()) for p in b.point_masses]
+    assert a.controls.surfaces == b.controls.surfaces and a.controls.tail == b.controls.tail
+    assert a.controls.flaps == b.controls.flaps and a.controls.cg_x_m == b.controls.cg_x_m
+    data = tomllib.loads(text)
+    left = [f"{tab}.{old}" for (tab, old) in SUFFIXED for t in
+            (data.get(tab) if isinstance(data.get(tab), list) else [data.get(tab) or {}])
+            if old in t]
+    assert left == [] and b.warnings == ()
