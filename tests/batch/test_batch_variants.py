@@ -199,3 +199,34 @@ def test_vary_an_unknown_key_in_either_spelling_suggests_the_closest(tmp_path, s
     with pytest.raises(VaryError) as info:
         make_variants([case], [spec])
     assert words in str(info.value) and "\n" not in str(info.value), str(info.value)
+
+
+def test_vary_a_control_key_in_either_spelling(tmp_path):
+    """The sample writes delta_max_deg and area_m2: --vary by the unit-text names replaces
+    them; a value with its unit reads in degrees and m^2 (1 rad = 180/pi deg, SI Brochure 9th
+    ed. Table 8; 1 ft^2 = 0.09290304 m^2, NIST SP 811 App. B)."""
+    import math
+
+    from helpers.validation import check
+
+    from geomload.batch import _api
+
+    case = tmp_path / "sample.toml"
+    case.write_text(SAMPLE.read_text().replace(
+        'file = "pellin_half_wing_mm.stl"',
+        f'file = "{(SAMPLE.parent / "pellin_half_wing_mm.stl").as_posix()}"'))
+    vs = make_variants([case], ['control_surface[2].delta_max="0.4 rad"',
+                                'tail.area="1.5 ft2",0.2'])
+    data = tomllib.loads(vs[0].toml_text)
+    assert "delta_max_deg" not in data["control_surface"][1] and "area_m2" not in data["tail"]
+    p = tmp_path / "v.toml"
+    p.write_text(vs[0].toml_text)
+    c = _api.load_case(p).controls
+    check("SI Brochure 9th ed., Table 8 (exact)", "varied flap limit 0.4 rad (deg)",
+          0.4 * 180 / math.pi, c.surface("flap").delta_max_deg, rel=1e-15)
+    check("NIST SP 811 App. B (exact)", "varied tail area 1.5 ft^2 (m^2)", 1.5 * 0.09290304,
+          c.tail.area_m2, rel=1e-15)
+    assert tomllib.loads(vs[1].toml_text)["tail"]["area"] == 0.2
+    # the older spelling, as the file writes it: a number in its unit
+    vs = make_variants([case], ["tail.area_m2=0.2"])
+    assert tomllib.loads(vs[0].toml_text)["tail"]["area_m2"] == 0.2
