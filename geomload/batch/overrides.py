@@ -3,6 +3,12 @@ element of an array of tables by its 1-based number, ``load_case[2].load_factor`
 (TOML literals, an unquoted word taken as text, commas inside brackets or quotes kept), the closest
 known key for a misspelt one, and setting a value into a parsed case file with the type the case
 file has there. Every failure is a VaryError: one line naming the --vary option.
+
+A key may be given in either of its spellings, whichever the case file uses: the key named for
+its quantity (``aircraft.gross_mass``, taking a number in SI or a text with its unit, "48 lb")
+or the older one ending in its unit (``aircraft.gross_mass_kg``, a number in that unit), and the
+renamed coefficient keys (``cl_max`` / ``section_cl_max``). The varied key replaces the file's
+spelling in the variant (:mod:`geomload.config.quantities` lists the spellings).
 """
 
 from __future__ import annotations
@@ -13,6 +19,7 @@ import re
 import tomllib
 
 from geomload.batch.toml_text import dumps
+from geomload.config.quantities import QUANTITY_KEYS, RENAMED, SUFFIXED, UNIT_WORD
 from geomload.errors import InputError
 
 _KEY_PART = re.compile(r"^([A-Za-z0-9_-]+)(?:\[(\d+)\])?$")
@@ -59,7 +66,7 @@ def parse_vary(spec: str) -> tuple:
     key, sep, rest = str(spec).partition("=")
     key = key.strip()
     if not sep or not key:
-        raise VaryError(f"--vary {spec!r}: expected KEY=V1,V2,... (e.g. aircraft.gross_mass_kg=20,22)")
+        raise VaryError(f"--vary {spec!r}: expected KEY=V1,V2,... (e.g. aircraft.gross_mass=20,22)")
     raws = split_values(rest)
     if any(not r for r in raws):
         raise VaryError(f"--vary {key}: empty value in {rest!r}")
@@ -109,10 +116,11 @@ def _template_keys() -> list:
     out = set()
     table = ""
     for s in lines:
-        if s.startswith("[["):
-            table = s.strip("[] ") + "[1]"
-        elif s.startswith("["):
-            table = s.strip("[] ")
+        head = re.match(r"^\[\[?([A-Za-z_][A-Za-z0-9_.]*)\]\]?", s)
+        if head and s.startswith("[["):
+            table = head.group(1) + "[1]"
+        elif head:
+            table = head.group(1)
         else:
             k = s.split("=")[0].strip()
             out.add(f"{table}.{k}" if table else k)
@@ -150,6 +158,9 @@ def _container(data: dict, key: str, parts: list, create: bool):
     node = data
     for name, idx in parts[:-1]:
         if name not in node:
+            if idx is not None and f"{name}[1]" in {k.split(".")[0] for k in _template_keys()}:
+                raise VaryError(f"--vary {key}: the case file has no [[{name}]] table (add it "
+                                "to the case file to vary its keys)")
             if not create or idx is not None:
                 raise _unknown(key, data)
             node[name] = {}
@@ -181,7 +192,7 @@ def _typed(key: str, raw: str, old, new):
             raise VaryError(f"--vary {key}={raw}: must be a number (as in the case file)")
         return float(new)
     if isinstance(old, str):
-        unit = re.fullmatch(r"\s*[-+]?[\d.]+(?:[eE][-+]?\d+)?\s*([A-Za-z/]+)\s*", old)
+        unit = re.fullmatch(r"\s*[-+]?[\d.]+(?:[eE][-+]?\d+)?\s*(" + UNIT_WORD + r")\s*", old)
         if unit and isinstance(new, (int, float)) and not isinstance(new, bool):
             return f"{raw.strip()} {unit.group(1)}"  # a value written with its unit keeps it
         return new if isinstance(new, str) else raw
@@ -193,14 +204,59 @@ def _typed(key: str, raw: str, old, new):
     return new
 
 
+def spellings(table: str, name: str) -> list:
+    """The other spellings of key `name` of case-file table `table` (a table of an array by its
+    name, "point_mass"): its older name ending in its unit, or the name for its quantity, or the
+    earlier name of a renamed key, or its new name."""
+    out = []
+    for (tab, old), (new, _unit) in SUFFIXED.items():
+        if tab == table and name in (old, new):
+            out.append(new if name == old else old)
+    for (tab, old), new in RENAMED.items():
+        if tab == table and name in (old, new):
+            out.append(new if name == old else old)
+    return out
+
+
+def _respelled(node: dict, name: str, other: str, key: str, raw: str, value):
+    """Put `value` under `name` in place of the file's other spelling `other` (same place in
+    the table). A number moves as it is: a key ending in its unit takes a number in that unit,
+    and the key named for its quantity a number in the same unit (SI; degrees for an angle)."""
+    old = node[other]
+    if isinstance(value, (int, float)) and not isinstance(value, bool) and \
+            isinstance(old, (int, float, str)) and not isinstance(old, bool):
+        if not math.isfinite(value):
+            raise VaryError(f"--vary {key}={raw}: must be a finite number")
+        new = float(value)
+    elif isinstance(old, (list, bool)) or isinstance(value, str):
+        new = value  # a list (a c.g. range) as given; a text: the case-file reader checks it
+    else:
+        new = _typed(key, raw, old, value)
+    items = [(name if k == other else k, new if k == other else v) for k, v in node.items()]
+    node.clear()
+    node.update(items)
+    return new
+
+
 def apply_override(data: dict, key: str, raw: str, value) -> None:
-    """Set `key` (dotted path) in `data` (a parsed case file) to `value`, type-checked."""
+    """Set `key` (dotted path) in `data` (a parsed case file) to `value`, type-checked; a key
+    the file writes in its other spelling (``gross_mass`` / ``gross_mass_kg``) replaces it."""
     parts = parse_key(key)
     node = _container(data, key, parts, create=True)
     name, idx = parts[-1]
     if idx is not None:
-        raise VaryError(f"--vary {key}: vary a key inside the table, e.g. {key}.mass_kg")
-    node[name] = _typed(key, raw, node[name], value) if name in node else value
+        raise VaryError(f"--vary {key}: vary a key inside the table, e.g. {key}.mass")
+    table = parts[-2][0] if len(parts) > 1 else ""
+    if name not in node:
+        other = next((o for o in spellings(table, name) if o in node), None)
+        if other is not None:
+            return _respelled(node, name, other, key, raw, value)
+        node[name] = value
+    elif (isinstance(value, str) and isinstance(node[name], (int, float))
+          and not isinstance(node[name], bool) and name in QUANTITY_KEYS.get(table, {})):
+        node[name] = value  # a quantity written with its unit ("48 lb"): the reader checks it
+    else:
+        node[name] = _typed(key, raw, node[name], value)
     return node[name]
 
 
@@ -216,4 +272,4 @@ def value_text(v) -> str:
 
 
 __all__ = ["VaryError", "split_values", "parse_value", "parse_vary", "parse_key", "known_keys",
-           "closest_key", "apply_override", "value_text"]
+           "closest_key", "apply_override", "value_text", "spellings"]

@@ -1,10 +1,13 @@
 """Variants of a case file: a grid of ``--vary KEY=V1,V2,...`` overrides, or a list of case files.
 
-A KEY is a case-file key by its dotted path: ``aircraft.gross_mass_kg``, ``spar.chord_fraction``,
+A KEY is a case-file key by its dotted path: ``aircraft.gross_mass``, ``spar.chord_fraction``,
 ``geometry.file``; an element of an array of tables is picked by its 1-based number in brackets,
-``load_case[2].load_factor``, ``point_mass[1].mass_kg``. Values are TOML literals (``22.5``,
-``true``, ``"mm"``, ``[0.0, 1500.0]``); an unquoted word is taken as text (``uniform``). Commas
-inside brackets or quotes do not split values.
+``load_case[2].load_factor``, ``point_mass[1].mass``. A key with an older spelling ending in its
+unit may be given in either spelling, whichever the case file uses (``aircraft.gross_mass_kg``
+or ``aircraft.gross_mass``; the varied spelling replaces the file's). Values are TOML literals
+(``22.5``, ``true``, ``"mm"``, ``[0.0, 1500.0]``), or a value with its unit (``"48 lb"``) for a
+key named for its quantity; an unquoted word is taken as text (``uniform``). Commas inside
+brackets or quotes do not split values.
 
 Each variant becomes a complete case file of its own (written into its run folder), in which
 ``geometry.file`` is an absolute path: a relative path resolves against the ORIGINAL case file's

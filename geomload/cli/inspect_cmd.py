@@ -1,4 +1,6 @@
-"""`geomload inspect`: read a CAD wing, detect its frame, print its stations and planform."""
+"""`geomload inspect`: read a CAD wing, detect its frame, print its stations and planform, and
+where the wing frame sits in the CAD model (origin in CAD coordinates and unit, axes), so that a
+case file can give positions in either frame."""
 
 from __future__ import annotations
 
@@ -34,14 +36,18 @@ def inspect(geometry, units, span_axis, up_axis, side, n_stations, spacing, body
     wing = read_geometry(geometry, units, span_axis, up_axis, n_stations, spacing, body, side)
     mesh, frame, stations, planform = wing.mesh, wing.frame, wing.stations, wing.planform
     messages = wing_messages(wing)
+    from geomload.config.frame_text import frame_origin, frame_origin_lines
+
     if as_json:
         out = inspect_json(mesh, frame, stations, planform)
         out["planform_gross_exposed"] = planform_summary(wing)
+        out["frame"].update(frame_origin(wing))  # for case-file positions in either frame
         out["warnings"] = [m.text for m in messages if m.kind == "warning"]
         out["notes"] = [m.text for m in messages if m.kind == "note"]
         click.echo(json.dumps(out, indent=2))
     else:
         click.echo(inspect_text(mesh, frame, stations, planform))
+        click.echo("\n".join(frame_origin_lines(wing)))
     print_messages(messages)
     if csv_path is not None:
         from geomload.export.tables import write_stations_csv

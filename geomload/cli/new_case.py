@@ -1,4 +1,5 @@
-"""`geomload new-case`: a commented case-file template for a CAD wing, printed or written."""
+"""`geomload new-case`: a commented case-file template for a CAD wing, printed or written; it
+states where the wing frame sits in the CAD model when the geometry reads as a wing."""
 
 from __future__ import annotations
 
@@ -36,7 +37,7 @@ def new_case(geometry, units, output):
     if units is None:
         units, guessed = likely_units(geometry)
     rel, where = case_relative_path(geometry, output)
-    text = case_template(rel, units=units)
+    text = case_template(rel, units=units, frame_lines=_frame_lines(geometry, units))
     if guessed:
         echo_err(f"geomload: warning: units = \"{units}\" guessed ({guessed}); check it, or give "
                  "--units")
@@ -47,3 +48,18 @@ def new_case(geometry, units, output):
         click.echo(text, nl=False)
         echo_err(f"geomload: note: geometry path {rel!r} is {where}")
 
+
+
+def _frame_lines(geometry, units):
+    """Where the wing frame sits in the CAD model (origin in CAD coordinates and unit, axes),
+    for the template; None when the geometry cannot be read as a wing (the template then points
+    to `geomload inspect`, and `run` reports the real problem)."""
+    from geomload import geometry as geometry_stage
+    from geomload.config.frame_text import frame_origin_lines
+    from geomload.errors import GeomloadError
+
+    try:
+        wing = geometry_stage.read_wing(geometry, units=units, require_units=False)
+    except GeomloadError:
+        return None
+    return frame_origin_lines(wing)

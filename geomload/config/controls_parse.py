@@ -1,12 +1,16 @@
 """Case-file sections for control surfaces, unsymmetric and flaps-down cases and the tail.
 
-Sections (our own key names; all SI, angles in degrees):
+Sections (our own key names). A length, area or speed is a number in SI (m, m2, m/s) or a
+text with its unit ("1150 mm", "1.7 ft2", "26 kt"); an angle is a number in degrees or a text
+("18 deg", "0.3 rad"), as everywhere in the case file (:mod:`geomload.config.quantities`). The
+older keys ending in their unit (y_from_m, delta_max_deg, area_m2, x_ac_m, x_m) still take a
+number in that unit; an error names the key as the file writes it.
 
-- ``[[control_surface]]``: name, kind ("aileron" or "flap"), y_from_m, y_to_m, hinge_fraction
-  (hinge line as a fraction of the local chord from the leading edge), side ("both",
-  "starboard", "port"), mode ("symmetric" or "antisymmetric"; default antisymmetric for an
-  aileron, symmetric for a flap), delta_min_deg, delta_max_deg (trailing edge down positive).
-  Or, instead of y_from_m, y_to_m and hinge_fraction, ``geometry_body = N``: the span range
+- ``[[control_surface]]``: name, kind ("aileron" or "flap"), y_from, y_to (wing-frame y),
+  hinge_fraction (hinge line as a fraction of the local chord from the leading edge), side
+  ("both", "starboard", "port"), mode ("symmetric" or "antisymmetric"; default antisymmetric
+  for an aileron, symmetric for a flap), delta_min, delta_max (trailing edge down positive).
+  Or, instead of y_from, y_to and hinge_fraction, ``geometry_body = N``: the span range
   and hinge of the control-surface body N of the CAD file (the body number the run's warnings
   and `geomload inspect` give), taken from the geometry when the run has read it
   (:func:`resolve_geometry_controls`).
@@ -14,11 +18,11 @@ Sections (our own key names; all SI, angles in degrees):
   [envelope]), aileron (a control_surface name), methods (["simplified", "lattice"]),
   roll_states (the lattice method's roll states, ["steady", "initial"] by default: steady roll,
   and the instant of the sudden deflection with no roll rate yet).
-- ``[flaps]``: flap (a control_surface name), deflection_deg, v_sf (stall speed flaps down,
-  m/s EAS, required), v_f (flap design speed, m/s EAS; default the rule minimum).
-- ``[tail]``: area_m2, x_ac_m (x of the tailplane aerodynamic centre, wing frame, aft +),
-  cm0_fuselage (optional, nose-up +, on the wing S and MAC).
-- ``[cg]``: x_m = [forward, aft] (wing frame, m).
+- ``[flaps]``: flap (a control_surface name), deflection, v_sf (stall speed flaps down, EAS,
+  required), v_f (flap design speed, EAS; default the rule minimum).
+- ``[tail]``: area (tailplane), x_ac (x of the tailplane aerodynamic centre, wing frame, aft
+  +), cm0_fuselage (optional, nose-up +, on the wing S and MAC).
+- ``[cg]``: x = [forward, aft] (wing-frame x).
 
 Checks that need only the file are made here (surfaces overlapping, hinge at 0 or 1 of the
 chord, limits, tail arm zero or negative); those that need the wing (span range, c.g. within
@@ -29,6 +33,7 @@ from __future__ import annotations
 
 import dataclasses
 import math
+import re
 from dataclasses import dataclass
 from typing import Optional
 
@@ -39,7 +44,10 @@ SECTION_KEYS = ("control_surface", "rolling", "flaps", "tail", "cg")
 ROLL_METHODS = ("simplified", "lattice")
 ROLL_STATES = ("steady", "initial")
 ROLL_CATEGORIES = ("normal", "utility", "commuter", "acrobatic")
-GEOMETRY_KEYS = ("y_from_m", "y_to_m", "hinge_fraction")  # what geometry_body supplies
+GEOMETRY_KEYS = ("y_from", "y_to", "hinge_fraction")  # what geometry_body supplies
+# the fields of a ControlSurface whose case-file key has another name (record field -> key)
+SURFACE_KEYS = {"y_from_m": "y_from", "y_to_m": "y_to", "delta_min_deg": "delta_min",
+                "delta_max_deg": "delta_max", "hinge_fraction": "hinge_fraction"}
 HINGE_UNIFORM_TOL = 0.005  # hinge fractions of a CAD surface spread less than 0.5 % of the
 # chord are one constant hinge (their mean): below what the geometry measures the hinge to
 # (about 1 % c) and a small part of one chordwise panel of the lattice
@@ -112,6 +120,15 @@ class ControlsSpec:
     tail: Optional[TailSpec] = None
     cg_x_m: tuple = ()
     from_geometry: tuple = ()
+    # (key as the checks name it, key as the file writes it), e.g.
+    # ("control_surface.aileron.y_to_m", "control_surface.aileron.y_to"): see `as_written`
+    key_names: tuple = ()
+
+    def as_written(self, text: str) -> str:
+        """`text` (an error or warning) with each key named as the case file writes it."""
+        for old, new in self.key_names:
+            text = re.sub(re.escape(old) + r"(?![A-Za-z0-9_])", lambda _m, n=new: n, text)
+        return text
 
     def surface(self, name: str) -> ControlSurface:
         for c in self.surfaces:
@@ -141,39 +158,66 @@ def _surface(t, i: int):
         return GeometrySurface(
             index=i, name=name, kind=kind, body=body,
             side=t.choice("side", ("both", "starboard", "port"), "both"), mode=mode,
-            delta_min_deg=t.get("delta_min_deg", float, -20.0),
-            delta_max_deg=t.get("delta_max_deg", float, 20.0))
+            delta_min_deg=t.get("delta_min", float, -20.0),
+            delta_max_deg=t.get("delta_max", float, 20.0))
     return ControlSurface(
-        name=name, kind=kind, y_from_m=t.positive("y_from_m", required=True, allow_zero=True),
-        y_to_m=t.positive("y_to_m", required=True),
+        name=name, kind=kind, y_from_m=t.positive("y_from", required=True, allow_zero=True),
+        y_to_m=t.positive("y_to", required=True),
         hinge_fraction=t.get("hinge_fraction", float, required=True),
         side=t.choice("side", ("both", "starboard", "port"), "both"), mode=mode,
-        delta_min_deg=t.get("delta_min_deg", float, -20.0),
-        delta_max_deg=t.get("delta_max_deg", float, 20.0))
+        delta_min_deg=t.get("delta_min", float, -20.0),
+        delta_max_deg=t.get("delta_max", float, 20.0))
 
 
-def parse_controls(top, raw: dict, path: str, table_cls, envelope) -> Optional[ControlsSpec]:
+def _surface_names(t, c) -> list:
+    """(key as check_controls names it, key as written) pairs of surface `c` read from table
+    `t`: the key the file used (an older spelling or the new one); a key it left out by its
+    current name, or geometry_body for what a CAD body supplies. The surface stays named by
+    its name (``control_surface.aileron.y_to``), as check_controls names it."""
+    out = []
+    for field, key in SURFACE_KEYS.items():
+        if key in t.written:
+            new = t.written[key]
+        elif isinstance(c, GeometrySurface) and key in GEOMETRY_KEYS:
+            new = "geometry_body"
+        else:
+            new = key
+        if new != field:
+            out.append((f"control_surface.{c.name}.{field}", f"control_surface.{c.name}.{new}"))
+    return out
+
+
+def parse_controls(top, raw: dict, path: str, table_cls, envelope, warnings=None,
+                   spelled=None) -> Optional[ControlsSpec]:
     """The ControlsSpec of a case file (None when it has none of SECTION_KEYS).
 
     top: the top-level table reader; raw: the parsed TOML; table_cls: the reader class;
-    envelope: the FlightEnvelopeSpec or None (rolling and flaps cases need one)."""
+    envelope: the FlightEnvelopeSpec or None (rolling and flaps cases need one); warnings,
+    spelled: the reader's warning list and its (current key -> key as written) dictionary,
+    both added to."""
     if not any(k in raw for k in SECTION_KEYS):
         return None
-    surfaces, refs = [], []
+    surfaces, refs, names = [], [], []
+
+    def table(item, where):
+        return table_cls(item, where, path, warnings, spelled)
+
     for i, item in enumerate(top.get("control_surface", list, [])):
-        t = table_cls(item, f"control_surface[{i + 1}]", path)
+        t = table(item, f"control_surface[{i + 1}]")
         c = _surface(t, i)
         (refs if isinstance(c, GeometrySurface) else surfaces).append(c)
+        names += _surface_names(t, c)
         t.done()
+    spec = ControlsSpec(key_names=tuple(names))
     try:
         check_controls(surfaces, math.inf, key="control_surface")
         _check_refs(refs, surfaces)
     except AeroError as exc:
-        raise CaseError(f"{path}: {exc}") from None
+        raise CaseError(f"{path}: {spec.as_written(str(exc))}") from None
     by_name = {c.name: c for c in surfaces + refs}
 
     def sub(k):
-        return table_cls(top.get(k, dict, None) or {}, k, path)
+        return table(top.get(k, dict, None) or {}, k)
 
     def named(t, k, kind):
         n = t.get(k, str, required=True)
@@ -209,10 +253,10 @@ def parse_controls(top, raw: dict, path: str, table_cls, envelope) -> Optional[C
         c = by_name[flap]
         if c.side != "both" or c.mode != "symmetric":
             t.fail("flap", f"{flap!r} must be on both sides with mode 'symmetric'")
-        d = t.get("deflection_deg", float, required=True)
+        d = t.get("deflection", float, required=True)
         if not c.delta_min_deg <= d <= c.delta_max_deg:
-            t.fail("deflection_deg", f"{d:g} deg is outside the surface limits "
-                                     f"{c.delta_min_deg:g}..{c.delta_max_deg:g} deg")
+            t.fail("deflection", f"{d:g} deg is outside the surface limits "
+                                 f"{c.delta_min_deg:g}..{c.delta_max_deg:g} deg")
         v_sf, v_f = t.positive("v_sf", required=True), t.positive("v_f")
         if envelope is None:
             t.fail("", "flaps-down cases need an [envelope] (stall speed and lift slope)")
@@ -221,26 +265,33 @@ def parse_controls(top, raw: dict, path: str, table_cls, envelope) -> Optional[C
     cg = ()
     if "cg" in raw:
         t = sub("cg")
-        xs = t.get("x_m", list, required=True)
-        if len(xs) != 2 or any(isinstance(v, bool) or not isinstance(v, (int, float))
-                               or not math.isfinite(v) for v in xs) or xs[0] > xs[1]:
-            t.fail("x_m", "must be [forward, aft] (two finite numbers, forward <= aft, m)")
+        got = t.rows("x", 1, "length", "wing-frame x positions") if "x" in t.data else None
+        if got is None:
+            t.get("x", list, required=True)  # the missing-key error (or a near spelling)
+        xs = got[0][:, 0]
+        if len(xs) != 2 or xs[0] > xs[1]:
+            t.fail("x", "must be [forward, aft] (two wing-frame x positions, forward <= aft)")
         cg = (float(xs[0]), float(xs[1]))
+        if "x" in t.written:
+            names.append(("cg.x_m", f"cg.{t.written['x']}"))
+        else:
+            names.append(("cg.x_m", "cg.x"))
         t.done()
     if "tail" in raw:
         t = sub("tail")
-        tail = TailSpec(t.positive("area_m2", required=True), t.get("x_ac_m", float,
-                                                                       required=True),
+        tail = TailSpec(t.positive("area", required=True), t.get("x_ac", float, required=True),
                         t.get("cm0_fuselage", float, 0.0))
+        for key, rec in (("x_ac", "x_ac_m"), ("area", "area_m2")):
+            names.append((f"tail.{rec}", f"tail.{t.written.get(key, key)}"))
         if not cg:
-            t.fail("", "a tail needs the c.g. range [cg] x_m = [forward, aft]")
+            t.fail("", "a tail needs the c.g. range [cg] x = [forward, aft]")
         if tail.x_ac_m - cg[1] <= 0.0:
-            t.fail("x_ac_m", f"tail arm {tail.x_ac_m - cg[1]:g} m from the aft c.g. "
-                             f"({cg[1]:g} m): the tail must lie aft of the c.g.")
+            t.fail("x_ac", f"tail arm {tail.x_ac_m - cg[1]:g} m from the aft c.g. "
+                           f"({cg[1]:g} m): the tail must lie aft of the c.g.")
         t.done()
     elif cg:
         raise CaseError(f"{path}: cg: a c.g. range without a [tail] is not used; give [tail]")
-    return ControlsSpec(tuple(surfaces), rolling, flaps, tail, cg, tuple(refs))
+    return ControlsSpec(tuple(surfaces), rolling, flaps, tail, cg, tuple(refs), tuple(names))
 
 
 def _check_refs(refs, surfaces) -> None:
@@ -334,8 +385,9 @@ def _file_order(pair, spec):
 
 def check_controls_against_wing(spec: Optional[ControlsSpec], semispan: float, mac: float,
                                 x_le_mac: float, path: str = "") -> list:
-    """Span range of every surface and the c.g. within 50 % MAC of the MAC (CaseError naming
-    the key); returns the warnings (a deflection limit beyond linear theory)."""
+    """Span range of every surface, the c.g. within 50 % MAC of the MAC and the tail arm from
+    the aft c.g. at least the trim's minimum (CaseError naming the key as the file writes it);
+    returns the warnings (a deflection limit beyond linear theory)."""
     if spec is None:
         return []
     from geomload.aero.pitch_trim import check_cg
@@ -344,10 +396,18 @@ def check_controls_against_wing(spec: Optional[ControlsSpec], semispan: float, m
     try:
         warns = check_controls(spec.surfaces, semispan, key="control_surface")
     except AeroError as exc:
-        raise CaseError(f"{pre}{exc}") from None
+        raise CaseError(f"{pre}{spec.as_written(str(exc))}") from None
     for k, x in zip(("forward", "aft"), spec.cg_x_m):
         try:
             check_cg(x, x_le_mac, mac, key=f"cg.x_m ({k})")
         except CaseError as exc:
-            raise CaseError(f"{pre}{exc}") from None
-    return warns
+            raise CaseError(f"{pre}{spec.as_written(str(exc))}") from None
+    if spec.tail is not None and spec.cg_x_m:
+        from geomload.aero.pitch_trim import MIN_TAIL_ARM_MAC
+
+        arm = spec.tail.x_ac_m - max(spec.cg_x_m)  # the shortest arm: from the aft c.g.
+        if not arm >= MIN_TAIL_ARM_MAC * mac:  # the trim's own limit, said before any case runs
+            raise CaseError(f"{pre}{spec.as_written('tail.x_ac_m')}: tail arm {arm:g} m from "
+                            f"the aft c.g. must be at least {MIN_TAIL_ARM_MAC:g} MAC "
+                            f"({MIN_TAIL_ARM_MAC * mac:.4g} m) aft (a tail behind the c.g.)")
+    return [spec.as_written(w) for w in warns]

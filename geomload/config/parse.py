@@ -121,7 +121,7 @@ def _read_case_file(path) -> Case:
         t = sub("envelope"); envelope = _envelope(t, aircraft.gross_mass_kg, gross_key); t.done()  # noqa: E702
     if not cases and envelope is None:
         raise CaseError(f"{path}: load_case: missing (give at least one [[load_case]] or an [envelope])")
-    controls = parse_controls(top, raw, path, Table, envelope)
+    controls = parse_controls(top, raw, path, Table, envelope, warns, spelled)
     t = sub("lattice")
     n_span, n_chord = t.get("n_span", int, 40), t.get("n_chord", int, 10)
     if n_span < 2 or n_chord < 1:

@@ -68,19 +68,30 @@ def _wing_mass(t: Table) -> WingMassSpec:
     if "mass" in t.data:
         t.fail("mass", 'omit it with distribution = "table" (the table sets the mass)')
     t.used.add("mass")
-    rows = t.get("table", list, required=True)
-    try:
-        arr = np.array(rows, dtype=float)
-    except (TypeError, ValueError):
-        t.fail("table", "must be a list of [y_m, kg_per_m] pairs")
-    if arr.ndim != 2 or arr.shape[1] != 2 or arr.shape[0] < 2:
-        t.fail("table", "must be a list of at least two [y_m, kg_per_m] pairs")
+    arr = _mass_table(t)
     if np.any(np.diff(arr[:, 0]) <= 0) or arr[0, 0] < 0:
-        t.fail("table", "y_m must start at >= 0 and increase strictly")
+        t.fail("table", "y must start at >= 0 and increase strictly")
     if np.any(arr[:, 1] < 0) or not np.any(arr[:, 1] > 0):
-        t.fail("table", "kg_per_m must be >= 0 and not all zero")
+        t.fail("table", "the mass per span must be >= 0 and not all zero")
     half = float(np.sum(0.5 * (arr[1:, 1] + arr[:-1, 1]) * np.diff(arr[:, 0])))
     return WingMassSpec(2.0 * half, "table", tuple(arr[:, 0]), tuple(arr[:, 1]), cg)
+
+
+def _mass_table(t: Table) -> np.ndarray:
+    """(n, 2) array of the [wing_mass] table rows [y, mass per span] in m and kg/m: each a
+    number (m, kg/m) or a text with its unit ("300 mm", "0.4 lb/ft")."""
+    rows = t.get("table", list, required=True)
+    if len(rows) < 2 or not all(isinstance(r, list) and len(r) == 2 for r in rows):
+        t.fail("table", "must be a list of at least two [y, kg_per_m] pairs (wing-frame y in m "
+                        "or with its unit, mass per span in kg/m or with its unit)")
+    out = []
+    for i, (y, m) in enumerate(rows):
+        try:
+            out.append((qty.number_or_quantity(y, "length")[0],
+                        qty.number_or_quantity(m, "mass per length")[0]))
+        except ValueError as exc:
+            t.fail("table", f"row {i + 1}: {exc}")
+    return np.array(out, float)
 
 
 def _load_case(t: Table, i: int, gross: float, gross_key="aircraft.gross_mass") -> LoadCase:

@@ -6,7 +6,9 @@ Keys (all optional; the table itself is optional and, when absent, no hand-off i
 - ``mesh``: the analyst's structural mesh (any format meshio reads), relative to the case
   file, in the CAD frame and unit; it becomes an input of the run (never overwritten);
 - ``material``: one of the sizing table's materials (e.g. "al-7075-t6"), or
-- ``sigma_allow_MPa`` and ``tau_allow_MPa``: the user's own ultimate allowables (both);
+- ``sigma_allow`` and ``tau_allow``: the user's own ultimate allowables (both), each written
+  with its unit ("480 MPa", "70 ksi"; Pa, kPa, MPa, GPa, psi, ksi), or as the older keys
+  ``sigma_allow_MPa`` and ``tau_allow_MPa`` (a number in MPa);
 - ``front_spar_fraction``, ``rear_spar_fraction``: the box between the spars (chord fractions);
 - ``cap_depth_factor``: effective cap depth / wing depth at the spar (0 < f <= 1).
 """
@@ -66,16 +68,21 @@ def read_structure(t, base: Path) -> StructureSpec:
             t.fail("mesh", f"{p}: no such file" + (" (it is a folder)" if p.is_dir() else ""))
         mesh = str(p.resolve())
     material = t.get("material", str)
-    sigma = t.positive("sigma_allow_MPa")
-    tau = t.positive("tau_allow_MPa")
+    sigma = t.positive("sigma_allow")  # Pa
+    tau = t.positive("tau_allow")
+    # each named as written; a missing one in the style of the other (older keys end in MPa)
+    old = any(k in t.written for k in ("sigma_allow", "tau_allow"))
+    s_key, t_key = (t.written.get(k, f"{k}_MPa" if old else k) for k in ("sigma_allow",
+                                                                            "tau_allow"))
     if material is not None and material.lower() not in MATERIALS:
         t.fail("material", f"{material!r} is not one of {', '.join(MATERIALS)} (or give "
-                           "sigma_allow_MPa and tau_allow_MPa)")
+                           "sigma_allow and tau_allow)")
     if (sigma is None) != (tau is None):
-        t.fail("sigma_allow_MPa" if sigma is None else "tau_allow_MPa",
-               "give both sigma_allow_MPa and tau_allow_MPa (or a material)")
+        missing = s_key if sigma is None else t_key
+        raise CaseError(f"{t.path}: structure.{missing}: missing: give both {s_key} and "
+                        f"{t_key} (or a material)")
     if material is not None and sigma is not None:
-        t.fail("material", "give a material or sigma_allow_MPa/tau_allow_MPa, not both")
+        t.fail("material", f"give a material or {s_key}/{t_key}, not both")
     front = t.fraction("front_spar_fraction", FRONT_SPAR_DEFAULT)
     rear = t.fraction("rear_spar_fraction", REAR_SPAR_DEFAULT)
     if not front < rear:
@@ -84,8 +91,7 @@ def read_structure(t, base: Path) -> StructureSpec:
     if depth is not None and depth <= 0.0:
         t.fail("cap_depth_factor", "must be > 0")
     return StructureSpec(mesh=mesh, material=None if material is None else material.lower(),
-                         sigma_allow_Pa=None if sigma is None else sigma * MPA,
-                         tau_allow_Pa=None if tau is None else tau * MPA,
+                         sigma_allow_Pa=sigma, tau_allow_Pa=tau,
                          front_spar_fraction=front, rear_spar_fraction=rear,
                          cap_depth_factor=depth)
 

@@ -72,6 +72,10 @@ class Table:
                                  f"{ex} = \"{qty.example(kinds.get(ex, 'speed'))}\" "
                                  f"({k} still works)")
         kinds = qty.QUANTITY_KEYS.get(qty.table_kind(self.where), {})
+        if kind is float and k in kinds and kinds[k] in qty.UNIT_REQUIRED and \
+                not isinstance(v, str):
+            self.fail(k, f"write the value with its unit, e.g. {k} = \"{qty.example(kinds[k])}\" "
+                         f"(units: {qty.shown_units(kinds[k])})")
         if kind is float and isinstance(v, str) and k in kinds:
             try:
                 v = qty.parse_quantity(v, kinds[k])
@@ -102,7 +106,8 @@ class Table:
     def positive(self, k, default=None, required=False, allow_zero=False):
         v = self.get(k, float, default, required)
         if v is not None and (v < 0 or (v == 0 and not allow_zero)):
-            self.fail(k, f"must be {'>= 0' if allow_zero else '> 0'}, got {v:g}")
+            shown = self.data[k] if self.text_units.get(k) else f"{v:g}"  # as written
+            self.fail(k, f"must be {'>= 0' if allow_zero else '> 0'}, got {shown}")
         return v
 
     def choice(self, k, options, default=None, required=False, fold=str.lower):
@@ -155,6 +160,11 @@ class Table:
         if v is None:
             return None
         rows = v if width > 1 else [[e] for e in v]
+        if self.written.get(k, k) != k and any(isinstance(e, str) for r in rows
+                                                if isinstance(r, list) for e in r):
+            unit = qty.SUFFIXED.get((qty.table_kind(self.where), self.written[k]), ("", "?"))[1]
+            self.fail(k, f"its name fixes the unit ({unit}): give numbers, or write the values "
+                         f"with their unit as {k} = [...]")
         if len(rows) < min_rows or not all(isinstance(r, list) and len(r) == width for r in rows):
             self.fail(k, f"must be a list of at least {min_rows} {what}")
         vals, units = [], []

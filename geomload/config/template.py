@@ -77,11 +77,35 @@ def fill_template(text: str, values: dict) -> str:
     return filled
 
 
-def case_template(geometry_path, units=None) -> str:
+FRAME_LINE = "# THIS WING: "  # the template line that says where this wing's frame sits
+
+
+def case_template(geometry_path, units=None, frame_lines=None) -> str:
     """The commented case-file template for ``geometry_path`` (written as given), with
     ``[geometry] units`` set when ``units`` is given; valid TOML that read_case_file accepts once
-    the geometry path is right relative to the case file."""
+    the geometry path is right relative to the case file.
+
+    frame_lines : lines saying where this wing's frame sits in the CAD model (origin in CAD
+        coordinates and unit, axes: :func:`geomload.config.frame_text.frame_origin_lines`),
+        written as comments in place of the template's pointer to `geomload inspect`."""
     values = {("geometry", "file"): str(geometry_path)}
     if units is not None:
         values[("geometry", "units")] = str(units)
-    return fill_template(template_text(), values)
+    text = fill_template(template_text(), values)
+    if frame_lines:
+        head = [f"# THIS WING ({printable_comment(str(geometry_path))}):"]
+        body = "".join(f"{c}\n" for c in head + [f"#   {printable_comment(ln.strip())}"
+                                                  for ln in frame_lines])
+        out = []
+        for line in text.splitlines(keepends=True):
+            out.append(body if line.startswith(FRAME_LINE) else line)
+        text = "".join(out)
+        tomllib.loads(text)  # comments only: still the same TOML
+    return text
+
+
+def printable_comment(text: str) -> str:
+    """`text` safe inside a TOML comment: control characters (a line break would end the
+    comment) written as \\uXXXX."""
+    return "".join(f"\\u{ord(ch):04X}" if ord(ch) < 0x20 or ord(ch) == 0x7F else ch
+                   for ch in text)

@@ -144,3 +144,89 @@ def test_run_folder_written_in_place_without_a_ram_disk(tmp_path, monkeypatch):
     a, b = csv_files(tmp_path / "scratch"), csv_files(tmp_path / "in_place")
     assert len(a) > 10 and a == b
     assert outs["scratch"].paths == outs["in place"].paths
+
+
+# -------------------------------------------------------------------- either spelling of a key
+def test_vary_a_key_in_its_other_spelling(tmp_path):
+    """The small case writes gross_mass_kg and point_mass y_m: --vary may name them so, or by
+    their quantity (a number in SI or a text with its unit); the varied spelling replaces the
+    file's. 1 lb = 0.45359237 kg exactly (NIST SP 811 App. B; 1959 yard and pound agreement)."""
+    from helpers.validation import check
+
+    from geomload.batch import _api
+
+    case = small_case(tmp_path)
+    vs = make_variants([case], ['aircraft.gross_mass="48 lb",21', 'point_mass[1].y="1200 mm"'])
+    first = tomllib.loads(vs[0].toml_text)
+    assert first["aircraft"]["gross_mass"] == "48 lb" and "gross_mass_kg" not in first["aircraft"]
+    assert first["point_mass"][0]["y"] == "1200 mm" and "y_m" not in first["point_mass"][0]
+    assert tomllib.loads(vs[1].toml_text)["aircraft"]["gross_mass"] == 21.0
+    p = tmp_path / "v.toml"
+    p.write_text(vs[0].toml_text)
+    c = _api.load_case(p)
+    check("NIST SP 811 App. B (1959 yard and pound, exact)", "varied gross mass 48 lb (kg)",
+          48 * 0.45359237, c.aircraft.gross_mass_kg, rel=1e-15)
+    check("SI: 1 mm = 1e-3 m (exact)", "varied point-mass y 1200 mm (m)", 1.2,
+          c.point_masses[0].position[1], rel=1e-15)
+    assert [k for k, _ in vs[0].overrides] == ["aircraft.gross_mass", "point_mass[1].y"]
+
+
+def test_vary_the_older_spelling_of_a_key_the_file_writes_with_its_unit(tmp_path):
+    case = small_case(tmp_path)
+    case.write_text(case.read_text().replace("gross_mass_kg = 22.0", 'gross_mass = "22 kg"'))
+    vs = make_variants([case], ["aircraft.gross_mass_kg=20,21"])
+    data = [tomllib.loads(v.toml_text)["aircraft"] for v in vs]
+    assert [d.get("gross_mass_kg") for d in data] == [20.0, 21.0]
+    assert all("gross_mass" not in d for d in data)
+    # the same spelling as the file keeps the file's unit for a plain number, takes a text
+    vs = make_variants([case], ['aircraft.gross_mass=20,"46 lb"'])
+    assert [tomllib.loads(v.toml_text)["aircraft"]["gross_mass"] for v in vs] == ["20 kg",
+                                                                                 "46 lb"]
+    # a key ending in its unit takes no other unit: the reader's one line, naming the --vary
+    with pytest.raises(VaryError, match=r"aircraft.gross_mass_kg=\"46 lb\": aircraft"
+                                        r"\.gross_mass_kg: its name fixes the unit \(kg\)"):
+        make_variants([case], ['aircraft.gross_mass_kg="46 lb"'])
+
+
+@pytest.mark.parametrize("spec, words", [
+    ("aircraft.gross_mas=20", "did you mean 'aircraft.gross_mass"),
+    ("point_mass[1].yy=0.5", "did you mean 'point_mass[1].y"),
+    ("tail.are=0.2", "did you mean 'tail.area'"),
+    ("control_surface[1].delta_max=15", "the case file has no [[control_surface]] table"),
+])
+def test_vary_an_unknown_key_in_either_spelling_suggests_the_closest(tmp_path, spec, words):
+    case = small_case(tmp_path)
+    with pytest.raises(VaryError) as info:
+        make_variants([case], [spec])
+    assert words in str(info.value) and "\n" not in str(info.value), str(info.value)
+
+
+def test_vary_a_control_key_in_either_spelling(tmp_path):
+    """The sample writes delta_max_deg and area_m2: --vary by the unit-text names replaces
+    them; a value with its unit reads in degrees and m^2 (1 rad = 180/pi deg, SI Brochure 9th
+    ed. Table 8; 1 ft^2 = 0.09290304 m^2, NIST SP 811 App. B)."""
+    import math
+
+    from helpers.validation import check
+
+    from geomload.batch import _api
+
+    case = tmp_path / "sample.toml"
+    case.write_text(SAMPLE.read_text().replace(
+        'file = "pellin_half_wing_mm.stl"',
+        f'file = "{(SAMPLE.parent / "pellin_half_wing_mm.stl").as_posix()}"'))
+    vs = make_variants([case], ['control_surface[2].delta_max="0.4 rad"',
+                                'tail.area="1.5 ft2",0.2'])
+    data = tomllib.loads(vs[0].toml_text)
+    assert "delta_max_deg" not in data["control_surface"][1] and "area_m2" not in data["tail"]
+    p = tmp_path / "v.toml"
+    p.write_text(vs[0].toml_text)
+    c = _api.load_case(p).controls
+    check("SI Brochure 9th ed., Table 8 (exact)", "varied flap limit 0.4 rad (deg)",
+          0.4 * 180 / math.pi, c.surface("flap").delta_max_deg, rel=1e-15)
+    check("NIST SP 811 App. B (exact)", "varied tail area 1.5 ft^2 (m^2)", 1.5 * 0.09290304,
+          c.tail.area_m2, rel=1e-15)
+    assert tomllib.loads(vs[1].toml_text)["tail"]["area"] == 0.2
+    # the older spelling, as the file writes it: a number in its unit
+    vs = make_variants([case], ["tail.area_m2=0.2"])
+    assert tomllib.loads(vs[0].toml_text)["tail"]["area_m2"] == 0.2

@@ -100,6 +100,14 @@ def test_template_parses_and_loads(tmp_path):
     assert full.moment_reference.tolist() == [0.08, 0.0, 0.0]
     assert full.point_masses[0].position.tolist() == pytest.approx([0.12, 0.8, 0.0], rel=1e-15)
     assert full.spar.rib_y_m == (0.0, 0.3, 0.6)
+    # the control, flaps, tail and c.g. blocks in the same way of writing units
+    ctl = full.controls
+    assert [c.name for c in ctl.surfaces] == ["aileron", "flap"]
+    # 1 mm = 1e-3 m exactly (SI): "1150 mm" reads as the float of 1.15
+    assert (ctl.surfaces[0].y_from_m, ctl.surfaces[0].delta_min_deg) == (1.15, -18.0)
+    assert ctl.flaps.deflection_deg == 20.0 and ctl.rolling.category == "normal"
+    assert ctl.tail.area_m2 == 0.16 and ctl.cg_x_m == (0.1, 0.14)
+    assert full.warnings == ()
 
 
 def test_template_alternatives_in_the_cad_frame_load(tmp_path):

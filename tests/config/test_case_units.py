@@ -255,3 +255,74 @@ def test_flying_masses_with_their_unit(tmp_path):
     with pytest.raises(CaseError, match=r"load_case\[1\]\.mass: 45\.3592 kg is above "
                                         r"aircraft\.gross_mass_kg \(36 kg\)"):
         read(tmp_path, speed='speed = "52 kt"\nmass = "100 lb"')
+
+
+STRESS_SRC = "NIST SP 811 App. B.8: 1 psi = 6.894757 E+03 Pa (1 lbf/in^2)"
+
+
+@pytest.mark.parametrize("sigma, tau, sigma_pa, tau_pa", [
+    ('"480 MPa"', '"290 MPa"', 480e6, 290e6),
+    ('"70 ksi"', '"42 ksi"', 70e3 * 6.894757e3, 42e3 * 6.894757e3),
+    ('"0.48 GPa"', '"290000 kPa"', 480e6, 290e6),
+])
+def test_structure_allowables_with_their_unit(tmp_path, sigma, tau, sigma_pa, tau_pa):
+    c = read(tmp_path, extra=f"[structure]\nsigma_allow = {sigma}\ntau_allow = {tau}\n")
+    # NIST SP 811 gives the psi factor to 7 digits: 6.894757 E+03 Pa
+    check(STRESS_SRC, f"sigma_allow {sigma} (Pa)", sigma_pa, c.structure.sigma_allow_Pa,
+          rel=1e-7)
+    check(STRESS_SRC, f"tau_allow {tau} (Pa)", tau_pa, c.structure.tau_allow_Pa, rel=1e-7)
+    old = read(tmp_path, extra="[structure]\nsigma_allow_MPa = 480.0\ntau_allow_MPa = 290.0\n")
+    assert (old.structure.sigma_allow_Pa, old.structure.tau_allow_Pa) == (480e6, 290e6)
+    assert old.warnings == ()
+
+
+@pytest.mark.parametrize("table, msg", [
+    ("sigma_allow = 480.0\ntau_allow = 290.0",
+     'structure.sigma_allow: write the value with its unit, e.g. sigma_allow = "480 MPa"'),
+    ('sigma_allow_MPa = "480 MPa"\ntau_allow_MPa = 290.0',
+     "structure.sigma_allow_MPa: its name fixes the unit (MPa)"),
+    ('sigma_allow_MPa = 480.0', "structure.tau_allow_MPa: missing: give both sigma_allow_MPa "
+                                "and tau_allow_MPa"),
+    ('sigma_allow = "480 MPa"', "structure.tau_allow: missing: give both sigma_allow and "
+                                "tau_allow"),
+    ('sigma_allow = "-480 MPa"\ntau_allow = "290 MPa"',
+     "structure.sigma_allow: must be > 0, got -480 MPa"),
+    ('sigma_allow = "480 N"\ntau_allow = "290 MPa"',
+     "structure.sigma_allow: unit 'N' is not one of Pa, kPa, MPa, GPa, psi, ksi (a stress)"),
+])
+def test_structure_allowable_errors_name_the_key_as_written(tmp_path, table, msg):
+    with pytest.raises(CaseError) as exc:
+        read(tmp_path, extra=f"[structure]\n{table}\n")
+    assert msg in str(exc.value) and "\n" not in str(exc.value), str(exc.value)
+
+
+def test_wing_mass_table_with_units(tmp_path):
+    # 1 lb/ft = 0.45359237 kg / 0.3048 m, 1 in = 0.0254 m (NIST SP 811 App. B, exact)
+    c = read(tmp_path, extra='[wing_mass]\ndistribution = "table"\n'
+                             'table = [[0.0, "0.6 lb/ft"], ["36 in", 0.4]]\n')
+    w = c.wing_mass
+    check(NIST_LB, "table y 36 in (m)", 0.9144, w.table_y_m[1], rel=1e-15)
+    check(NIST_LB, "table 0.6 lb/ft (kg/m)", 0.6 * 0.45359237 / 0.3048, w.table_kg_per_m[0],
+          rel=1e-15)
+    # both sides of a linear distribution: 2 x trapezoid (analytic)
+    check("analytic: trapezoid, both sides", "wing mass from the table (kg)",
+          2 * 0.5 * (0.6 * 0.45359237 / 0.3048 + 0.4) * 0.9144, w.total_kg, rel=1e-14)
+    with pytest.raises(CaseError, match=r"wing_mass\.table: row 2: unit 'kg' is not one of "
+                                        r"kg/m, lb/ft, lb/in \(a mass per length\)"):
+        read(tmp_path, extra='[wing_mass]\ndistribution = "table"\n'
+                             'table = [[0.0, 0.6], [0.9, "0.4 kg"]]\n')
+
+
+NIST_LB = "NIST SP 811 App. B (1959 yard and pound, exact)"
+
+
+@pytest.mark.parametrize("text, kind, decimal", [
+    ("1150 mm", "length", 1.15), ("350 mm", "length", 0.35), ("110 cm", "length", 1.1),
+    ("1600 cm2", "area", 0.16), ("7 mm", "length", 0.007), ("480 MPa", "stress", 4.8e8),
+])
+def test_a_metric_prefix_gives_the_float_of_the_decimal_value(text, kind, decimal):
+    # SI prefixes are exact powers of ten (SI Brochure 9th ed., Table 7): the value in the
+    # prefixed unit is the same number as the decimal value in the base unit
+    from geomload.config.quantities import parse_quantity
+
+    assert parse_quantity(text, kind) == decimal
