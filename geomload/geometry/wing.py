@@ -30,7 +30,11 @@ def read_wing(path, units=None, body=None, span_axis=None, up_axis=None, n_stati
     if body is None:
         wing_mesh, index, found = _pick_wing(mesh)
         if found is None and index is None:  # one shell that is not one plain wing
-            fused = _fused(mesh, span_axis, up_axis)
+            fused = _fused(mesh, span_axis, up_axis, side)
+        elif found is not None and found.get("mirror") is None:  # a fused shell among bodies?
+            from .fusedbodies import fused_among
+
+            fused = fused_among(mesh, found, span_axis, up_axis, side)
     else:
         wing_mesh, index, found = _given_body(mesh, body), None, None
     if fused is not None:
@@ -48,7 +52,16 @@ def read_wing(path, units=None, body=None, span_axis=None, up_axis=None, n_stati
         frame = carried_through_frame(frame, stations)
         stations = _cut(wing_mesh, frame, n_stations, spacing, progress, index)
     controls, bodies, tail, extra, side_y = (), (), None, [], None
-    if found is not None:
+    if found is not None and fused is not None:  # a fused shell among separate bodies
+        from .fusedbodies import merge_reports
+
+        stations, controls, tail_s, bodies_s, extra_s = _other_bodies(found, frame, stations,
+                                                                       n_stations)
+        tail, bodies, extra = merge_reports(
+            found, fused_info, _fused_others(fused_info["shell"], frame, fused_info),
+            (tail_s, bodies_s, extra_s))
+        side_y = fused_info["y_side"]
+    elif found is not None:
         stations, controls, tail, bodies, extra = _other_bodies(found, frame, stations, n_stations)
         side_y = _fuselage_side(found, frame, stations, extra)
     elif fused is not None:
@@ -110,11 +123,11 @@ def _mirror_halves(cls, wing_mesh, frame, index, span_axis, up_axis):
     return wing_mesh, frame, index
 
 
-def _fused(mesh, span_axis, up_axis):
+def _fused(mesh, span_axis, up_axis, side=None):
     """(wing mesh, frame, info) of a whole aircraft fused into one shell, or None."""
     from .fusedwing import find_fused
 
-    return find_fused(mesh, span_axis=span_axis, up_axis=up_axis)
+    return find_fused(mesh, span_axis=span_axis, up_axis=up_axis, side=side)
 
 
 def _fused_others(mesh, frame, info):
