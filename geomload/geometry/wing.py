@@ -40,11 +40,12 @@ def read_wing(path, units=None, body=None, span_axis=None, up_axis=None, n_stati
     if fused is not None:
         wing_mesh, frame, fused_info = fused
     else:
+        halves = found is not None and found.get("mirror") is not None
         frame, index = detect_frame_indexed(wing_mesh, span_axis=span_axis, up_axis=up_axis,
-                                            side=side, index=index)
+                                            side=None if halves else side, index=index)
     if found is not None and found.get("mirror") is not None:
         wing_mesh, frame, index = _mirror_halves(found, wing_mesh, frame, index, span_axis,
-                                                 up_axis)
+                                                 up_axis, side)
     stations = _cut(wing_mesh, frame, n_stations, spacing, progress, index)
     if frame.y_root > 0.0:  # exposed wing: the origin of the wing carried through to y = 0
         from .exposed import carried_through_frame
@@ -95,14 +96,17 @@ def _cut(mesh, frame, n, spacing, progress, index):
     return st
 
 
-def _mirror_halves(cls, wing_mesh, frame, index, span_axis, up_axis):
+def _mirror_halves(cls, wing_mesh, frame, index, span_axis, up_axis, side=None):
     """Two mirror-image wing halves either side of a fuselage: one wing. The half the frame
-    does not mirror is analysed (the other when the first lies on the port side); y = 0 is the
-    plane midway between the halves, so the root is carried through to it."""
+    does not mirror is analysed (the other when the first lies on the port side), or with
+    side = "port" the port half, mirrored onto the starboard frame (the file holds both halves,
+    so the side names the half to analyse, as for a fused aircraft; up versus down is decided
+    by the airfoil or `up_axis`); y = 0 is the plane midway between the halves, so the root is
+    carried through to it."""
     import dataclasses
 
     a, b = cls["wing"][0], cls["mirror"]
-    if frame.mirrored:
+    if frame.mirrored != (side == "port"):
         a, b = b, a
         a.kind, b.kind = "wing", "wing (other half)"
         cls["wing"], cls["mirror"] = [a], b

@@ -134,3 +134,22 @@ def test_side_of_a_fused_aircraft_from_the_command_line(unsymmetric):
           out["planform_gross_exposed"]["gross"]["area_m2"], rel=0.01)
     assert out["found"]["kind"] == "whole aircraft, one fused shell"
     assert out["found"]["half"] == "port"
+
+
+@pytest.mark.parametrize("side", [None, "port"])
+def test_side_chooses_the_half_of_separate_mirror_image_halves(tmp_path, side):
+    """Starboard and port wing bodies from the fuselage side (y = +-0.2 m) outward, beside a
+    fuselage: the side names the half analysed; a symmetric pair gives the same wing."""
+    d = design()
+    stb = panel(d, 0.2, d["semispan"], n_span=13)
+    p = write_stl(tmp_path / "halves.stl", [port_of(stb), stb, fuselage()])
+    w = read_wing(p, units="m", n_stations=11, side=side)
+    assert w.frame.mirrored == (side == "port")
+    check(TAPER, f"mirror halves, side {side}: gross area S = s (c_r + c_t) (m^2)", d["area"],
+          w.planform.area, rel=0.01)
+    check(TAPER, f"mirror halves, side {side}: gross span (m)", d["span"], w.planform.span,
+          rel=0.005)
+    ex = expected_stations(d, w.stations.y)
+    _worst(f"mirror halves, side {side}: twist relative to the root (deg)",
+           ex["twist"] - ex["twist"][0], w.stations.twist_deg - w.stations.twist_deg[0],
+           abs=0.25)
