@@ -32,7 +32,11 @@ def fused_among(mesh, cls, span_axis=None, up_axis=None, side=None):
     shell = WingMesh(triangles=main.tris, source=mesh.source, units=mesh.units,
                      notes=tuple(mesh.notes), units_assumed=mesh.units_assumed,
                      body_sizes=(int(main.tris.shape[0]),), unit_scale_m=mesh.unit_scale_m)
-    found = find_fused(shell, span_axis=span_axis, up_axis=up_axis, side=side)
+    # the bodies beside the shell that may be control surfaces (decided again below, beside
+    # the wing panels): a wing with a cut-out for one must not end at the cut-out
+    controls = [b.tris for b in cls["controls"]]
+    found = find_fused(shell, span_axis=span_axis, up_axis=up_axis, side=side,
+                       controls=controls)
     if found is None:
         return None
     if len(cls["wing"]) > 1:

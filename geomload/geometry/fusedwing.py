@@ -22,7 +22,7 @@ SIDES_AGREE = 0.02
 MIN_STATIONS = 4  # a fin needs 4 good sections in the march to be called one
 
 
-def find_fused(mesh, span_axis=None, up_axis=None, side=None):
+def find_fused(mesh, span_axis=None, up_axis=None, side=None, controls=()):
     """(wing WingMesh, WingFrame, info dict) of a fused aircraft shell, or None when the shell
     is not one (no wing-like axis, or no wing that grows into a body inboard).
 
@@ -30,6 +30,8 @@ def find_fused(mesh, span_axis=None, up_axis=None, side=None):
     mirror); "port" the port panel, mirrored onto the starboard wing frame. Up versus down is
     decided for each panel as for any half wing (the airfoil, or `up_axis`), so the side names
     which half of the aircraft is analysed (an unsymmetric aircraft: say which half).
+    controls: triangle soups of separate bodies that may be control surfaces behind the wing
+    (the march runs the wing's sections to their trailing edges, `fused.march`).
 
     info: y_side (wing-frame y of the fuselage side, m), y_side_other (the other side's), shift
     (CAD point on the plane of symmetry), tails (list of CAD triangle soups of the other
@@ -49,7 +51,7 @@ def find_fused(mesh, span_axis=None, up_axis=None, side=None):
     sides = {}
     for sgn in (1.0, -1.0):
         Rs = np.vstack([R[0], sgn * R[1], np.cross(R[0], sgn * R[1])])
-        good, y_side, y_good, body = march(tris, Rs, shift, 0.95 * h, 0.0)
+        good, y_side, y_good, body = march(tris, Rs, shift, 0.95 * h, 0.0, controls=controls)
         if y_side is None or not body or len(good) < 3:
             return None
         sides[sgn] = (y_side, y_good)

@@ -153,3 +153,53 @@ def test_side_chooses_the_half_of_separate_mirror_image_halves(tmp_path, side):
     _worst(f"mirror halves, side {side}: twist relative to the root (deg)",
            ex["twist"] - ex["twist"][0], w.stations.twist_deg - w.stations.twist_deg[0],
            abs=0.25)
+
+
+def _slot(d, y0, y1, hinge, sgn=1.0):
+    """A prism cutting the wing aft of x/c = hinge between |y| = y0 and y1 (the cut-out a
+    separate aileron sits in), as a convex hull (trimesh)."""
+    import trimesh
+
+    pts = [[float(d["x_le"](y) + hinge * d["chord"](y)) + dx, sgn * y, z]
+           for y in (y0, y1) for dx in (0.0, 0.5) for z in (-0.3, 0.3)]
+    return np.asarray(trimesh.convex.convex_hull(np.array(pts)).triangles)
+
+
+def test_fused_aircraft_with_aileron_cut_outs_and_separate_ailerons(tmp_path):
+    """A fused aircraft (wing with cut-outs aft of 75 % chord from 1.0 to 1.6 m, fuselage,
+    tailplane, fin; boolean difference and union by manifold3d) and two separate ailerons
+    behind a 0.6 % c gap: the cut-out is not the end of the wing, the sections there run to
+    the aileron's trailing edge."""
+    import trimesh
+
+    d = design(washout_deg=0.0)
+    (_, fus, tail, fin), _, _ = aircraft(washout_deg=0.0)
+
+    def tm(t):
+        m = trimesh.Trimesh(**trimesh.triangles.to_kwargs(np.asarray(t, float)))
+        m.merge_vertices()
+        return m
+
+    wing = trimesh.boolean.difference(
+        [tm(wing_triangles(d, 60, 30, full_span=True)), tm(_slot(d, 1.0, 1.6, 0.75)),
+         tm(_slot(d, 1.0, 1.6, 0.75, -1.0))], engine="manifold")
+    shell = fused([np.asarray(wing.triangles), fus, tail, fin])
+    ail = panel(d, 1.004, 1.596, 0.756, 1.0, n_span=10, n=20)
+    p = write_stl(tmp_path / "cutouts.stl", [shell, ail, port_of(ail)])
+    w = read_wing(p, units="m", n_stations=15)
+    ex = expected_stations(d, w.stations.y)
+    _worst("fused aircraft with aileron cut-outs: chord to the aileron's TE (m)", ex["chord"],
+           w.stations.chord, rel=0.01)
+    check(TAPER, "fused aircraft with aileron cut-outs: gross area (m^2)", d["area"],
+          w.planform.area, rel=0.01)
+    check(CAPSULE, "fused aircraft with aileron cut-outs: fuselage side y (m)", 0.2,
+          w.fuselage_side_y_m, rel=0.02)
+    (cs,) = w.control_surfaces
+    check("aileron of the generator", "fused + aileron: aileron from y (m)", 1.004, cs.y_from_m,
+          rel=0.005)
+    check("aileron of the generator", "fused + aileron: aileron to y (m)", 1.596, cs.y_to_m,
+          rel=0.005)
+    check("aileron of the generator", "fused + aileron: hinge x/c", 0.756,
+          float(np.mean(cs.hinge_x_over_c)), abs=0.01)
+    kinds = sorted(b.kind for b in w.bodies)
+    assert kinds == ["aircraft (one fused shell)", "control surface", "control surface"], kinds
