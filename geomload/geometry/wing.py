@@ -23,11 +23,32 @@ def _no_progress(stage, done, total):
 def read_wing(path, units=None, body=None, span_axis=None, up_axis=None, n_stations=20,
               spacing="cosine", progress=None, side=None, require_units=False, units_hint=None):
     """See `geometry.read_wing`."""
+    from ..errors import GeometryError
+
     progress = progress or _no_progress
     mesh = read_mesh(path, units=units, progress=progress, require_units=require_units,
                      units_hint=units_hint, all_bodies=True)
-    fused = None
-    if body is None:
+    args = (body, span_axis, up_axis, n_stations, spacing, progress, side)
+    try:
+        return _from_mesh(mesh, *args)
+    except GeometryError:
+        # one shell whose cuts across its long axis each gave one loop, read as a plain wing
+        # and found no wing: a wing-fuselage shell whose span is well over the fuselage's
+        # length looks like that (the fuselage's cuts hold the wing's root); look for a fused
+        # aircraft in it before giving up
+        if body is not None or len(mesh.body_sizes) > 1 or len(_shells(mesh)) > 1:
+            raise
+        fused = _fused(mesh, span_axis, up_axis, side)
+        if fused is None:
+            raise
+    return _from_mesh(mesh, *args, fused=fused)
+
+
+def _from_mesh(mesh, body, span_axis, up_axis, n_stations, spacing, progress, side, fused=None):
+    """The `Wing` of a read mesh (see `read_wing`); fused: a fused aircraft already found."""
+    if fused is not None:
+        wing_mesh, index, found = mesh, None, None
+    elif body is None:
         wing_mesh, index, found = _pick_wing(mesh)
         if found is None and index is None:  # one shell that is not one plain wing
             fused = _fused(mesh, span_axis, up_axis, side)

@@ -203,3 +203,20 @@ def test_fused_aircraft_with_aileron_cut_outs_and_separate_ailerons(tmp_path):
           float(np.mean(cs.hinge_x_over_c)), abs=0.01)
     kinds = sorted(b.kind for b in w.bodies)
     assert kinds == ["aircraft (one fused shell)", "control surface", "control surface"], kinds
+
+
+def test_wing_body_shell_spanning_over_twice_its_fuselage_length(tmp_path):
+    """A wing of 8 m span fused to a 3.4 m fuselage (a glider's proportions): the cuts across
+    the span each give one loop, as for a plain wing, yet it is a whole aircraft."""
+    d = design(semispan=4.0, root_chord=0.5)
+    shell = fused([wing_triangles(d, 60, 20, full_span=True), fuselage(length=3.4)])
+    w = read_wing(write_stl(tmp_path / "glider.stl", shell), units="m", n_stations=12)
+    ex = expected_stations(d, w.stations.y)
+    _worst("wing-body shell of 8 m span: chord (m)", ex["chord"], w.stations.chord, rel=0.01)
+    check(TAPER, "wing-body shell of 8 m span: gross span (m)", d["span"], w.planform.span,
+          rel=0.005)
+    check(TAPER, "wing-body shell of 8 m span: gross area (m^2)", d["area"], w.planform.area,
+          rel=0.01)
+    check(CAPSULE, "wing-body shell of 8 m span: fuselage side y (m)", 0.2,
+          w.fuselage_side_y_m, rel=0.02)
+    assert [b.kind for b in w.bodies] == ["aircraft (one fused shell)"]
