@@ -37,16 +37,19 @@ def inspect(geometry, units, span_axis, up_axis, side, n_stations, spacing, body
     mesh, frame, stations, planform = wing.mesh, wing.frame, wing.stations, wing.planform
     messages = wing_messages(wing)
     from geomload.config.frame_text import frame_origin, frame_origin_lines
+    from geomload.geometry.wing_summary import found_in_file, found_lines, frame_side_text
 
     if as_json:
         out = inspect_json(mesh, frame, stations, planform)
         out["planform_gross_exposed"] = planform_summary(wing)
         out["frame"].update(frame_origin(wing))  # for case-file positions in either frame
+        out["found"] = found_in_file(wing)
         out["warnings"] = [m.text for m in messages if m.kind == "warning"]
         out["notes"] = [m.text for m in messages if m.kind == "note"]
         click.echo(json.dumps(out, indent=2))
     else:
-        click.echo(inspect_text(mesh, frame, stations, planform))
+        click.echo(_with_found(inspect_text(mesh, frame, stations, planform),
+                               frame_side_text(wing), found_lines(wing)))
         click.echo("\n".join(frame_origin_lines(wing)))
     print_messages(messages)
     if csv_path is not None:
@@ -59,3 +62,17 @@ def inspect(geometry, units, span_axis, up_axis, side, n_stations, spacing, body
 
         render_stations_png(mesh, frame, stations, png_path)
         echo_err(f"geomload: wrote {printable(png_path)}")
+
+
+def _with_found(text, side_text, lines):
+    """The station report with the frame line's half/full phrase replaced by what the file
+    really held (a whole aircraft, mirror-image halves) and the found-bodies block after it."""
+    out = []
+    for line in text.split("\n"):
+        if line.startswith("Frame: ") and side_text is not None:
+            for phrase in ("half wing (one side)", "full wing (both sides)"):
+                line = line.replace(phrase, side_text)
+        out.append(line)
+        if line.startswith("Frame: ") and lines:
+            out += lines
+    return "\n".join(out)

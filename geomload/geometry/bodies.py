@@ -41,7 +41,10 @@ def principal(tris, stride_target=40_000):
     _, v = np.linalg.eigh((dev.T * w) @ dev / max(w.sum(), 1e-300))
     axes = v[:, ::-1].T
     pts = sub.reshape(-1, 3) - mean
-    ext = np.ptp(pts @ axes.T, axis=0)
+    # einsum, not `pts @ axes.T`: a threaded BLAS product of a tall (n, 3) by a (3, 3) costs
+    # several times more CPU than the plain loop on a shared machine (measured: 0.045 against
+    # 0.009 s for 120 000 points)
+    ext = np.ptp(np.einsum("ij,kj->ik", pts, axes), axis=0)
     return mean, axes, ext
 
 
@@ -205,6 +208,22 @@ def classify(bodies, path):
                 and any(gap(p, q) <= TOUCH * min(p.ext[1], q.ext[1]) for p in parts for q in wing)):
             raise GeometryError(f"{path}: two crossing lifting surfaces: {found()}")
     rest = [p for _, parts in surfaces[1:] for p in parts]
+    controls, tail, fins, others, mirror = kinds_beside(wing, main, rest, ref_span, found, path)
+    for p in wing:
+        p.kind = "wing" if p is main else "wing part"
+    others += [b for b in bodies if b.kind == "other"]
+    return dict(wing=wing, controls=controls, tail=tail, fins=fins,
+                fuselage=[b for b in bodies if b.kind == "fuselage"], others=others,
+                mirror=mirror)
+
+
+def kinds_beside(wing, main, rest, ref_span, found, path, mirrors=True):
+    """(controls, tailplane or None, fins, others, mirror half or None): the kinds of the
+    lifting bodies `rest` beside the wing (its parts `wing`, the largest `main`, its span
+    `ref_span`); sets each body's `kind`. found(): the "what was found" text of the error.
+    mirrors: look for the wing's other half among them."""
+    from ..errors import GeometryError
+
     up = main.axes[2]
     span_dir = main.axes[0]
     controls, tail, fins, others, mirror = [], None, [], [], None
@@ -219,7 +238,7 @@ def classify(bodies, path):
         elif not horizontal:
             b.kind = "fin"
             fins.append(b)
-        elif _mirror_pair(main, b) and len(wing) == 1 and mirror is None:
+        elif mirrors and _mirror_pair(main, b) and len(wing) == 1 and mirror is None:
             b.kind = "wing (other half)"
             others.append(b)
             mirror = b
@@ -234,12 +253,7 @@ def classify(bodies, path):
                 tail = b
             else:
                 others.append(b)
-    for p in wing:
-        p.kind = "wing" if p is main else "wing part"
-    others += [b for b in bodies if b.kind == "other"]
-    return dict(wing=wing, controls=controls, tail=tail, fins=fins,
-                fuselage=[b for b in bodies if b.kind == "fuselage"], others=others,
-                mirror=mirror)
+    return controls, tail, fins, others, mirror
 
 
 def _mirror_pair(a, b):

@@ -30,6 +30,11 @@ _BISECT = 10
 # a second wing-like axis reaching 60 % as far as the first: two crossing surfaces (as
 # bodies.SIMILAR_SPAN for separate ones)
 SIMILAR_SPAN = 0.6
+# a separate control surface behind the wing: its loop within 3 % of the chord of the wing's
+# trailing edge (as bodies.GAP) belongs to the section; at its spanwise ends a clearance of 2 %
+# of its span is still its cut-out (as control.END_MARGIN)
+CONTROL_GAP = 0.03
+CONTROL_END = 0.02
 
 
 def _props(loop):
@@ -101,8 +106,70 @@ def _inside(p, loop):
     return bool(np.count_nonzero(cross & (x > p[0])) % 2)
 
 
-def march(tris, R, origin, start, stop, steps=_LEVELS):
+def _behind(sp, loops, wing_loop):
+    """The section's props extended to the trailing edge of a separate control surface whose
+    loop lies behind the wing's trailing edge (its nearest point within CONTROL_GAP of the
+    chord from the TE): chord from the wing's LE to the control surface's farthest point along
+    the chord line, t/c scaled to that chord. sp unchanged when there is none."""
+    if sp is None:
+        return sp
+    le, te = np.asarray(sp["le"], float), np.asarray(sp["te"], float)
+    c = float(sp["chord"])
+    u = (te - le) / c
+    best = None
+    for lp in loops:
+        if lp is wing_loop:
+            continue
+        if _distance_to_loop(te, lp) > CONTROL_GAP * c:
+            continue
+        reach = float(((lp - le) @ u).max())
+        if reach > c and (best is None or reach > best[0]):
+            best = (reach, lp[int(np.argmax((lp - le) @ u))])
+    if best is None:
+        return sp
+    out = dict(sp)
+    out["chord"] = best[0]
+    out["thickness_ratio"] = sp["thickness_ratio"] * c / best[0]
+    out["te"] = best[1]
+    return out
+
+
+def _distance_to_loop(p, loop):
+    """Distance (m) from point p (2,) to the closed polygon loop (k, 2), edges included."""
+    a, b = loop, np.roll(loop, -1, 0)
+    ab = b - a
+    t = np.clip(((p - a) * ab).sum(1) / np.maximum((ab * ab).sum(1), 1e-300), 0.0, 1.0)
+    d = a + ab * t[:, None] - p
+    return float(np.sqrt((d * d).sum(1)).min())
+
+
+def _control_cuts(controls, R, origin, levels):
+    """Per level, the loops of the control-surface soups cut there; a level in the small
+    spanwise clearance at either end of a control surface (CONTROL_END of its span) cuts it just
+    inside its end, as the station cuts do (`control.attach`)."""
+    from .slicing import slice_all
+
+    out = [[] for _ in levels]
+    R = np.asarray(R, float)
+    for t in controls:
+        yb = (t.reshape(-1, 3) - origin) @ R[1]
+        y0, y1 = float(yb.min()), float(yb.max())
+        pad, inner = CONTROL_END * (y1 - y0), 1e-3 * (y1 - y0)
+        on = [i for i, lv in enumerate(levels) if y0 - pad < lv < y1 + pad]
+        if not on:
+            continue
+        cl = np.clip([levels[i] for i in on], y0 + inner, y1 - inner)
+        for i, loops in zip(on, slice_all(t, R, origin, cl)):
+            out[i] += list(loops)
+    return out
+
+
+def march(tris, R, origin, start, stop, steps=_LEVELS, controls=()):
     """March cuts normal to R[1] from level `start` towards `stop` (frame levels from origin).
+
+    controls: triangle soups of separate control surfaces behind the wing (a fused shell's
+    wing with a cut-out for them): where one lies behind the wing's section, the section runs
+    to its trailing edge, so a cut-out does not pass for the end of the wing.
 
     Returns (good, y_side, y_good, reached_body): good = list of (level, loop, props) of the
     wing's sections, y_side the level where the section stops being the wing's airfoil (None
@@ -112,6 +179,7 @@ def march(tris, R, origin, start, stop, steps=_LEVELS):
 
     levels = np.linspace(start, stop, steps)
     cuts = slice_all(tris, R, origin, levels)
+    extra = _control_cuts(controls, R, origin, levels) if controls else [[]] * len(levels)
     good = []
 
     def pick(loops, level):
@@ -123,8 +191,9 @@ def march(tris, R, origin, start, stop, steps=_LEVELS):
         hold = [lp for lp in loops if _inside(qc, lp)]
         return hold[0] if hold else None
 
-    def departs(loop, level):
+    def departs(loop, level, more=()):
         sp = _props(loop) if loop is not None else None
+        sp = _behind(sp, more, loop) if more else sp
         if sp is None:
             return True, None
         if len(good) < 2:
@@ -141,9 +210,9 @@ def march(tris, R, origin, start, stop, steps=_LEVELS):
         return False, sp
 
     bad_level = None
-    for level, loops in zip(levels, cuts):
+    for level, loops, more in zip(levels, cuts, extra):
         loop = pick(loops, level)
-        bad, sp = departs(loop, level)
+        bad, sp = departs(loop, level, more)
         if bad:
             if not good:
                 return [], None, None, False
@@ -156,7 +225,8 @@ def march(tris, R, origin, start, stop, steps=_LEVELS):
     for _ in range(_BISECT):
         mid = 0.5 * (lo + hi)
         loops = slice_all(tris, R, origin, [mid])[0]
-        bad, _ = departs(pick(loops, mid), mid)
+        more = _control_cuts(controls, R, origin, [mid])[0] if controls else ()
+        bad, _ = departs(pick(loops, mid), mid, more)
         lo, hi = (lo, mid) if bad else (mid, hi)
     # does the section inboard grow into a body all the way in (a fuselage), or just end (a
     # hole), or become the wing again (a nacelle or pod on the wing)?

@@ -22,9 +22,16 @@ SIDES_AGREE = 0.02
 MIN_STATIONS = 4  # a fin needs 4 good sections in the march to be called one
 
 
-def find_fused(mesh, span_axis=None, up_axis=None):
+def find_fused(mesh, span_axis=None, up_axis=None, side=None, controls=()):
     """(wing WingMesh, WingFrame, info dict) of a fused aircraft shell, or None when the shell
     is not one (no wing-like axis, or no wing that grows into a body inboard).
+
+    side: None or "starboard" analyse the starboard exposed panel (the one the frame does not
+    mirror); "port" the port panel, mirrored onto the starboard wing frame. Up versus down is
+    decided for each panel as for any half wing (the airfoil, or `up_axis`), so the side names
+    which half of the aircraft is analysed (an unsymmetric aircraft: say which half).
+    controls: triangle soups of separate bodies that may be control surfaces behind the wing
+    (the march runs the wing's sections to their trailing edges, `fused.march`).
 
     info: y_side (wing-frame y of the fuselage side, m), y_side_other (the other side's), shift
     (CAD point on the plane of symmetry), tails (list of CAD triangle soups of the other
@@ -44,11 +51,12 @@ def find_fused(mesh, span_axis=None, up_axis=None):
     sides = {}
     for sgn in (1.0, -1.0):
         Rs = np.vstack([R[0], sgn * R[1], np.cross(R[0], sgn * R[1])])
-        good, y_side, y_good, body = march(tris, Rs, shift, 0.95 * h, 0.0)
+        good, y_side, y_good, body = march(tris, Rs, shift, 0.95 * h, 0.0, controls=controls)
         if y_side is None or not body or len(good) < 3:
             return None
         sides[sgn] = (y_side, y_good)
-    frame, panel, tails = None, None, []
+    want_mirrored = side == "port"
+    tried = {}
     for sgn in (1.0, -1.0):
         y_side, y_good = sides[sgn]
         kept, seg, owner = clip_above(tris, sgn * e, sgn * c + y_good)
@@ -62,20 +70,36 @@ def find_fused(mesh, span_axis=None, up_axis=None):
         frame, _ = detect_frame_indexed(shifted, span_axis=span_axis, up_axis=up_axis)
         tails = [np.concatenate([kept[p], cap(seg[np.isin(owner, p)])])
                  for i, p in enumerate(parts) if i != k]
-        if not frame.mirrored:
+        tried[sgn] = (frame, panel, tails)
+        if frame.mirrored == want_mirrored:
             break
+    else:
+        if side is not None:  # both panels framed alike: the side cannot be told apart
+            from ..errors import GeometryError
+
+            raise GeometryError(
+                f"{mesh.source}: side {side!r} given for a whole aircraft in one shell, but "
+                f"both wing halves frame as {'port' if frame.mirrored else 'starboard'}; give "
+                "up_axis (e.g. \"+z\") so that the halves can be told apart")
+        sgn = -1.0  # no panel framed as asked (up guessed alike for both): the last one
+        frame, panel, tails = tried[sgn]
     frame = on_symmetry_plane(frame, shift)
     y_side, y_side_o = sides[sgn][0], sides[-sgn][0]
     info = dict(y_side=y_side, y_side_other=y_side_o, shift=shift, tails=tails, text=[],
-                span=2 * h)
+                span=2 * h, half="port" if frame.mirrored else "starboard")
     name = os.path.basename(mesh.source)
     text = (f"warning: bodies: {name} is one shell holding a whole aircraft: the wing (span "
             f"{2 * h:.4g} m along CAD {_label(e)}) is analysed outboard of the fuselage side at "
             f"y = {y_side:.4g} m (where its section stops being an airfoil) and carried through "
             "to the plane of symmetry by extending its leading and trailing edges")
+    half = "port" if frame.mirrored else "starboard"
+    if side is not None:
+        text += f"; the {half} half is analysed (side = {side})"
     if abs(y_side - y_side_o) > SIDES_AGREE * h:
         text += (f"; the other side's fuselage side is at {y_side_o:.4g} m: the aircraft is not "
-                 "symmetric, the starboard side is analysed")
+                 f"symmetric, the {half} side is analysed"
+                 + ("" if side is not None else
+                    f" (give side = \"{'starboard' if frame.mirrored else 'port'}\" for the other)"))
     info["text"].append(text)
     wing = WingMesh(triangles=panel, source=mesh.source, units=mesh.units,
                     notes=tuple(mesh.notes), units_assumed=mesh.units_assumed,

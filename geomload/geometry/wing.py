@@ -23,24 +23,50 @@ def _no_progress(stage, done, total):
 def read_wing(path, units=None, body=None, span_axis=None, up_axis=None, n_stations=20,
               spacing="cosine", progress=None, side=None, require_units=False, units_hint=None):
     """See `geometry.read_wing`."""
+    from ..errors import GeometryError
+
     progress = progress or _no_progress
     mesh = read_mesh(path, units=units, progress=progress, require_units=require_units,
                      units_hint=units_hint, all_bodies=True)
-    fused = None
-    if body is None:
+    args = (body, span_axis, up_axis, n_stations, spacing, progress, side)
+    try:
+        return _from_mesh(mesh, *args)
+    except GeometryError:
+        # one shell whose cuts across its long axis each gave one loop, read as a plain wing
+        # and found no wing: a wing-fuselage shell whose span is well over the fuselage's
+        # length looks like that (the fuselage's cuts hold the wing's root); look for a fused
+        # aircraft in it before giving up
+        if body is not None or len(mesh.body_sizes) > 1 or len(_shells(mesh)) > 1:
+            raise
+        fused = _fused(mesh, span_axis, up_axis, side)
+        if fused is None:
+            raise
+    return _from_mesh(mesh, *args, fused=fused)
+
+
+def _from_mesh(mesh, body, span_axis, up_axis, n_stations, spacing, progress, side, fused=None):
+    """The `Wing` of a read mesh (see `read_wing`); fused: a fused aircraft already found."""
+    if fused is not None:
+        wing_mesh, index, found = mesh, None, None
+    elif body is None:
         wing_mesh, index, found = _pick_wing(mesh)
         if found is None and index is None:  # one shell that is not one plain wing
-            fused = _fused(mesh, span_axis, up_axis)
+            fused = _fused(mesh, span_axis, up_axis, side)
+        elif found is not None and found.get("mirror") is None:  # a fused shell among bodies?
+            from .fusedbodies import fused_among
+
+            fused = fused_among(mesh, found, span_axis, up_axis, side)
     else:
         wing_mesh, index, found = _given_body(mesh, body), None, None
     if fused is not None:
         wing_mesh, frame, fused_info = fused
     else:
+        halves = found is not None and found.get("mirror") is not None
         frame, index = detect_frame_indexed(wing_mesh, span_axis=span_axis, up_axis=up_axis,
-                                            side=side, index=index)
+                                            side=None if halves else side, index=index)
     if found is not None and found.get("mirror") is not None:
         wing_mesh, frame, index = _mirror_halves(found, wing_mesh, frame, index, span_axis,
-                                                 up_axis)
+                                                 up_axis, side)
     stations = _cut(wing_mesh, frame, n_stations, spacing, progress, index)
     if frame.y_root > 0.0:  # exposed wing: the origin of the wing carried through to y = 0
         from .exposed import carried_through_frame
@@ -48,7 +74,16 @@ def read_wing(path, units=None, body=None, span_axis=None, up_axis=None, n_stati
         frame = carried_through_frame(frame, stations)
         stations = _cut(wing_mesh, frame, n_stations, spacing, progress, index)
     controls, bodies, tail, extra, side_y = (), (), None, [], None
-    if found is not None:
+    if found is not None and fused is not None:  # a fused shell among separate bodies
+        from .fusedbodies import merge_reports
+
+        stations, controls, tail_s, bodies_s, extra_s = _other_bodies(found, frame, stations,
+                                                                       n_stations)
+        tail, bodies, extra = merge_reports(
+            found, fused_info, _fused_others(fused_info["shell"], frame, fused_info),
+            (tail_s, bodies_s, extra_s))
+        side_y = fused_info["y_side"]
+    elif found is not None:
         stations, controls, tail, bodies, extra = _other_bodies(found, frame, stations, n_stations)
         side_y = _fuselage_side(found, frame, stations, extra)
     elif fused is not None:
@@ -82,14 +117,17 @@ def _cut(mesh, frame, n, spacing, progress, index):
     return st
 
 
-def _mirror_halves(cls, wing_mesh, frame, index, span_axis, up_axis):
+def _mirror_halves(cls, wing_mesh, frame, index, span_axis, up_axis, side=None):
     """Two mirror-image wing halves either side of a fuselage: one wing. The half the frame
-    does not mirror is analysed (the other when the first lies on the port side); y = 0 is the
-    plane midway between the halves, so the root is carried through to it."""
+    does not mirror is analysed (the other when the first lies on the port side), or with
+    side = "port" the port half, mirrored onto the starboard frame (the file holds both halves,
+    so the side names the half to analyse, as for a fused aircraft; up versus down is decided
+    by the airfoil or `up_axis`); y = 0 is the plane midway between the halves, so the root is
+    carried through to it."""
     import dataclasses
 
     a, b = cls["wing"][0], cls["mirror"]
-    if frame.mirrored:
+    if frame.mirrored != (side == "port"):
         a, b = b, a
         a.kind, b.kind = "wing", "wing (other half)"
         cls["wing"], cls["mirror"] = [a], b
@@ -110,11 +148,11 @@ def _mirror_halves(cls, wing_mesh, frame, index, span_axis, up_axis):
     return wing_mesh, frame, index
 
 
-def _fused(mesh, span_axis, up_axis):
+def _fused(mesh, span_axis, up_axis, side=None):
     """(wing mesh, frame, info) of a whole aircraft fused into one shell, or None."""
     from .fusedwing import find_fused
 
-    return find_fused(mesh, span_axis=span_axis, up_axis=up_axis)
+    return find_fused(mesh, span_axis=span_axis, up_axis=up_axis, side=side)
 
 
 def _fused_others(mesh, frame, info):

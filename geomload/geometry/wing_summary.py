@@ -33,3 +33,73 @@ def gross_and_exposed(wing) -> dict:
             "span_along_surface_m": None if pf.span_surface is None else float(pf.span_surface),
             "fuselage_side_y_m": (None if wing.fuselage_side_y_m is None
                                   else float(wing.fuselage_side_y_m))}
+
+
+FUSED_KIND = "aircraft (one fused shell)"
+
+
+def found_in_file(wing) -> dict:
+    """What the reader found in the file and took each body to be, for `inspect`: kind (one
+    phrase: "whole aircraft, one fused shell", "two mirror-image wing halves", "N bodies",
+    "full wing", "half wing", "exposed half wing"), half (the side analysed: "starboard",
+    "port" mirrored onto the starboard frame, or "both" for a full wing), the gross and exposed
+    planform (m, m^2), the fuselage side (m or None), every body (index, kind, text) and the
+    tailplane's planform (or None)."""
+    frame, bodies = wing.frame, tuple(wing.bodies)
+    kinds = [b.kind for b in bodies]
+    y_root = float(getattr(frame, "y_root", 0.0) or 0.0)
+    if FUSED_KIND in kinds:
+        kind = "whole aircraft, one fused shell"
+        if len(bodies) > 1:
+            kind += f", beside {len(bodies) - 1} separate bod{'ies' if len(bodies) > 2 else 'y'}"
+    elif "wing (other half)" in kinds:
+        kind = "two mirror-image wing halves"
+    elif len(bodies) > 1:
+        kind = f"{len(bodies)} bodies"
+    elif frame.full_span:
+        kind = "full wing"
+    else:
+        kind = "exposed half wing" if y_root > 0.0 else "half wing"
+    half = "both" if frame.full_span else ("port" if frame.mirrored else "starboard")
+    tp = wing.tailplane
+    out = gross_and_exposed(wing)
+    out.update(kind=kind, half=half,
+               bodies=[{"index": int(b.index), "kind": b.kind, "text": b.text} for b in bodies],
+               tailplane=None if tp is None else {"area_m2": float(tp.area),
+                                                  "span_m": float(tp.span),
+                                                  "x_qc_mac_m": float(tp.x_qc_mac)})
+    return out
+
+
+def frame_side_text(wing):
+    """The phrase for the frame line of `inspect` when the file held more than one wing half
+    (a fused aircraft, mirror-image halves), else None (the frame's own half/full phrase)."""
+    f = found_in_file(wing)
+    if f["kind"].startswith("whole aircraft") or f["kind"].startswith("two mirror"):
+        return f"{f['kind']}: the {f['half']} half analysed"
+    return None
+
+
+def found_lines(wing) -> list:
+    """Console lines for `inspect`: what was found and what each body was taken to be (empty
+    for a plain one-body wing on the plane of symmetry)."""
+    f = found_in_file(wing)
+    if f["kind"] in ("half wing", "full wing") and not f["bodies"]:
+        return []
+    g, e = f["gross"], f["exposed"]
+    lines = [f"Found: {f['kind']}; the {f['half']} wing half analysed"
+             + (" (mirrored onto the starboard wing frame)" if f["half"] == "port" else "")]
+    if f["y_root_m"] > 0.0:
+        lines.append(f"  exposed wing root at y = {f['y_root_m']:.4f} m, carried through to the "
+                     "plane of symmetry y = 0 by extending the leading and trailing edges")
+    if f["fuselage_side_y_m"] is not None:
+        lines.append(f"  fuselage side at y = {f['fuselage_side_y_m']:.4f} m")
+    lines.append(f"  gross planform: S = {g['area_m2']:.4f} m^2, b = {g['span_m']:.4f} m; "
+                 f"exposed: S = {e['area_m2']:.4f} m^2, b = {e['span_m']:.4f} m")
+    for b in f["bodies"]:
+        lines.append(f"  body {b['index']}: {b['kind']}: {b['text']}")
+    if f["tailplane"] is not None:
+        t = f["tailplane"]
+        lines.append(f"  tailplane planform (gross): S = {t['area_m2']:.4f} m^2, "
+                     f"b = {t['span_m']:.4f} m, MAC quarter chord at x = {t['x_qc_mac_m']:.4f} m")
+    return lines
