@@ -96,7 +96,9 @@ def geometry_options(fn):
                           "Default: detected from the airfoil."),
         click.option("--side", type=click.Choice(["port", "starboard"]), default=None,
                      help="Side a half wing lies on in the file (a port half is mirrored onto "
-                          "the starboard wing frame). Default: detected."),
+                          "the starboard wing frame); for a file holding both halves (a fused "
+                          "aircraft or mirror-image halves), the half to analyse. Default: "
+                          "detected."),
         click.option("--stations", "n_stations", type=int, default=20, show_default=True,
                      help="Number of cutting stations along the semi-span."),
         click.option("--spacing", type=click.Choice(["cosine", "uniform"]), default="cosine",

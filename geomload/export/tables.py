@@ -267,6 +267,7 @@ def summary(run) -> dict:
                         "span_axis": run.frame.span_axis, "up_axis": run.frame.up_axis,
                         "full_span": bool(run.frame.full_span),
                         "asymmetry": _num(run.frame.asymmetry)},
+           "frame": _frame_keys(run),
            "planform": planform_keys(p), "cases": cases, "envelope": None,
            "warnings": list(run.warnings), "timings_s": dict(run.timings),
            "versions": dict(run.versions),
@@ -289,6 +290,14 @@ def summary(run) -> dict:
         env["error_estimate"] = _error_estimate(run, None)
         out["envelope"] = env
     return out
+
+
+def _frame_keys(run) -> dict:
+    """The wing frame in CAD terms under the key names of `inspect --json`'s "frame" table."""
+    from geomload.config.frame_text import frame_in_cad
+    from geomload.report_text import frame_dict
+
+    return {**frame_dict(run.frame), **frame_in_cad(run.frame, run.mesh)}
 
 
 def _case_kind(cr, run=None) -> dict:

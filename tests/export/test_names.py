@@ -63,6 +63,20 @@ def test_planform_and_station_names_agree_with_inspect(written):
     assert not (out / "load_axis.vtp").exists() and (out / "spar_axis.vtp").is_file()
 
 
+def test_frame_names_agree_with_inspect(written):
+    """summary.json's "frame" table has the keys of `inspect --json`'s (its frame dict plus the
+    wing frame's origin and axes in CAD terms)."""
+    from geomload.config.frame_text import frame_in_cad
+    from geomload.report_text import inspect_json
+
+    run, out = written
+    ins = inspect_json(run.mesh, run.frame, run.stations, run.planform)["frame"]
+    ins.update(frame_in_cad(run.frame, run.mesh))
+    summ = json.loads((out / "summary.json").read_text())["frame"]
+    assert set(summ) == set(ins)
+    assert {"origin_cad_m", "cad_unit", "origin_cad_in_cad_unit", "wing_axes_in_cad"} <= set(summ)
+
+
 def test_loads_csv_carries_strip_cl_and_cl_c(written):
     import numpy as np
 
