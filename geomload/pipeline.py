@@ -35,7 +35,7 @@ from geomload.loads.cases import CaseContext, case_grid, check_case_names, solve
 from geomload.loads.envelope import envelope_of
 from geomload.loads.vn import flight_envelope_cases
 from geomload.pipeline_controls import (case_with_geometry_controls, symmetric_with_tail,
-                                        unsymmetric_cases)
+                                        unsymmetric_cases, unused_lift_shares)
 from geomload.records import Message, RunResult, no_progress
 from geomload.run_geometry import case_wing, wing_messages
 
@@ -90,6 +90,7 @@ def compute(case, progress=None, cache=None, error_bars=False) -> RunResult:
                       float(planform.x_mac_le), cache, lattice_key)
     results = []
     tail = case.controls is not None and case.controls.tail is not None
+    messages += _warnings(unused_lift_shares(case, load_cases))
     for i, lc in enumerate(load_cases):
         if tail:
             results += symmetric_with_tail(lc, ctx, solve_case)

@@ -126,8 +126,35 @@ def symmetric_with_tail(lc, ctx, solve_case) -> list:
         named = dataclasses.replace(lc, name=f"{lc.name} {label}")
         r = solve_case(named, ctx, wing_force_N=pt.wing_lift_N)
         out.append(dataclasses.replace(r, tail_load_N=pt.tail_load_N, x_cg_m=x_cg,
+                                       lift_share=carried_share(pt.wing_lift_N,
+                                                                lc.load_factor, mass),
                                        wing_normal_force_N=normal_force(r.loads, r.loads,
                                                                         case.body_axis)))
+    return out
+
+
+def carried_share(wing_force_N: float, load_factor: float, mass_kg: float) -> float:
+    """The wing's share of n W in a case trimmed with a tail (wing force / (n W)); nan at
+    n = 0, where a share has no meaning."""
+    nw = load_factor * mass_kg * G0
+    return wing_force_N / nw if abs(nw) > 1e-9 * mass_kg * G0 else math.nan
+
+
+def unused_lift_shares(case, load_cases) -> list:
+    """Warnings for the lift_share values a pitch trim with a tail replaces (the wing force is
+    then wing + tail = n W with the moments balanced; the share carried is reported per case)."""
+    if case.controls is None or case.controls.tail is None:
+        return []
+    out = []
+    given = [lc for lc in case.load_cases if lc.lift_share != 1.0]
+    if given:
+        who = ", ".join(f"'{lc.name}' ({lc.lift_share:g})" for lc in given)
+        out.append(f"{case.path}: load_case.lift_share of {who} is not used: with [tail] and "
+                   "[cg] the wing force comes from the pitch trim (wing + tail = n W); each "
+                   "case reports the share it carries")
+    if case.envelope is not None and case.envelope.lift_share != 1.0:
+        out.append(f"{case.path}: envelope.lift_share {case.envelope.lift_share:g} is not used: "
+                   "with [tail] and [cg] the wing force comes from the pitch trim")
     return out
 
 
@@ -266,6 +293,7 @@ def _one(kind, rc, label, x_cg, h, mass, ctx, cms, solve_case) -> CaseResult:
     if x_cg is not None:
         tail = _pitch(ctx, lambda a: cm.coefficients(a, defl), rc.load_factor, weight, q, x_cg)
         force = tail.wing_lift_N
+        share = carried_share(force, rc.load_factor, mass)
     else:
         force = share * rc.load_factor * weight
     cd0 = case.aircraft.cd0 or 0.0
@@ -400,5 +428,5 @@ def airload_rolling_moment(stb, port, lattice) -> float:
     return (mx(port) - mx(stb)) / (q * lattice.s_ref * lattice.b_ref)
 
 
-__all__ = ["symmetric_with_tail", "unsymmetric_cases", "normal_force", "ControlModels",
+__all__ = ["carried_share", "unused_lift_shares", "symmetric_with_tail", "unsymmetric_cases", "normal_force", "ControlModels",
            "airload_rolling_moment", "case_with_geometry_controls", "case_kind", "CaseError"]

@@ -219,6 +219,12 @@ def _versions(run, run_time_s) -> str:
             + f"<p>Report written {esc(stamp)} by geomload {esc(__version__)}.</p>")
 
 
+def _has(case, what) -> bool:
+    """Whether the case describes a tail ("tail") or control surfaces ("surfaces")."""
+    controls = getattr(case, "controls", None)
+    return controls is not None and bool(getattr(controls, what, None))
+
+
 def _basis(run) -> str:
     """The modelling decisions a reviewer must know to read the numbers (docs/methods_loads.md)."""
     case = run.case
@@ -238,9 +244,15 @@ def _basis(run) -> str:
         ("stall", "cases beyond the stall bound are flagged and kept in the envelope "
          "(conservative)"),
         ("ultimate", f"{getattr(case, 'ultimate_factor', 1.5):g} x limit (14 CFR 23.303)"),
-        ("not modelled", "balancing tail load (a constant lift share instead), rolling and "
-         "unsymmetrical cases, control-surface and flap loads, ground loads, aeroelastic "
-         "deformation, viscous stall beyond the flag"),
+        ("tail and c.g.", "each case trimmed in pitch at the forward and aft c.g.: wing + "
+         "tail = n W, moments balanced about the c.g.; lift_share is not used"
+         if _has(case, "tail") else "no tail given: the wing carries a constant lift share of "
+         "n W (add [tail] and [cg] for the balancing tail load)"),
+        ("unsymmetric cases", "rolling (23.349) and flaps-down (23.345) cases on the full-span "
+         "lattice, each side integrated on its own" if _has(case, "surfaces") else
+         "none: no control surfaces given (add [[control_surface]], [rolling], [flaps])"),
+        ("not modelled", "the air loads and hinge moments of the control surfaces as separate "
+         "parts, ground loads, aeroelastic deformation, viscous stall beyond the flag"),
     ]
     rows = "".join(f"<tr><td class='t'>{esc(k)}</td><td class='t'>{esc(v)}</td></tr>" for k, v in items)
     return (f"<table><tr><th>item</th><th>basis</th></tr>{rows}</table>"

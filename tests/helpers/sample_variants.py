@@ -1,5 +1,6 @@
 """The bundled sample without its control surfaces, tail and c.g. range: the symmetric cases
-with the constant lift share, for tests of the symmetric physics."""
+with a constant lift share (1.05 on the launch pull-up: a tail down-load carried by the wing),
+for tests of the symmetric physics."""
 
 from __future__ import annotations
 from helpers.paths import ROOT
@@ -16,7 +17,11 @@ def symmetric_text(text: str | None = None) -> str:
     text = SAMPLE.read_text() if text is None else text
     i, j = text.index("[[control_surface]]"), text.index("[[load_case]]")
     stl = (SAMPLE.parent / "pellin_half_wing_mm.stl").as_posix()
-    return (text[:i] + text[j:]).replace('file = "pellin_half_wing_mm.stl"', f'file = "{stl}"')
+    text = (text[:i] + text[j:]).replace('file = "pellin_half_wing_mm.stl"', f'file = "{stl}"')
+    pull = 'name = "launch pull-up"'
+    k = text.index("load_factor = 2.5\n", text.index(pull))
+    k += len("load_factor = 2.5\n")
+    return text[:k] + "lift_share = 1.05          # tail down-load carried by the wing\n" + text[k:]
 
 
 def symmetric_sample(folder) -> Path:

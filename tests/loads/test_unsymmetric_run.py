@@ -287,3 +287,28 @@ def test_unsymmetric_case_aero_is_the_deflected_state(run):
         strips = float(np.sum(c.aero.lift_per_q * w)) * c.q_pa
         loads = _trapz(c.loads.y, c.loads.applied.lift_N_per_m)
         assert strips == pytest.approx(loads, rel=2e-3, abs=0.5), c.name
+
+
+def test_lift_share_is_the_share_carried_with_a_tail(run, tmp_path):
+    """With [tail] and [cg] the wing force comes from the pitch trim, so each case reports the
+    share of n W it carries (wing force / n W; rigid-body statics, common practice, no
+    source), and a lift_share written in the file is named as not used."""
+    from geomload.pipeline_controls import unused_lift_shares
+
+    result, _ = run
+    trimmed = [c for c in result.cases if c.tail_load_N is not None and c.kind == "symmetric"]
+    assert len(trimmed) > 20
+    for c in trimmed:
+        nw = c.load_factor * c.mass_kg * G0
+        if c.load_factor == 0.0:  # no share of zero: the wing carries the tail's balance
+            assert math.isnan(c.lift_share), c.name
+            continue
+        assert c.lift_share * nw == pytest.approx(c.wing_normal_force_N, rel=2e-3), c.name
+    assert any(abs(c.lift_share - 1.0) > 0.01 for c in trimmed)  # the tail load is not zero
+    text = SAMPLE.read_text().replace('name = "launch pull-up"',
+                                      'name = "launch pull-up"\nlift_share = 1.05', 1)
+    p = tmp_path / "share.toml"
+    p.write_text(text.replace('file = "pellin_half_wing_mm.stl"', f'file = "{STL.as_posix()}"'))
+    case = read_case_file(p)
+    (w,) = unused_lift_shares(case, case.load_cases)
+    assert "'launch pull-up' (1.05) is not used" in w and "[tail]" in w
