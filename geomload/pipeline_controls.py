@@ -238,10 +238,13 @@ def unsymmetric_cases(ctx, vn, solve_case, progress) -> tuple:
         f = spec.flaps
         rho0 = ctx.atmosphere(0.0)[0]
         s_ref = ctx.models.lattice.s_ref
-        fcs, w = ru.flap_cases(f.flap, f.deflection_deg, d.v_stall_pos, f.v_sf,
-                               mass * G0 / s_ref, rho0, s_ref / ctx.models.lattice.b_ref,
-                               ctx.models.lift_slope(0.0), f.v_f)
-        warnings += w
+        try:
+            fcs, w = ru.flap_cases(f.flap, f.deflection_deg, d.v_stall_pos, f.v_sf,
+                                   mass * G0 / s_ref, rho0, s_ref / ctx.models.lattice.b_ref,
+                                   ctx.models.lift_slope(0.0), f.v_f)
+        except CaseError as exc:  # the rule's check of a case-file speed: name the file
+            raise CaseError(f"{ctx.case.path}: {exc}") from None
+        warnings += [f"{ctx.case.path}: {t}" for t in w]
         jobs += [("flaps", fc) for fc in fcs]
     cgs = list(zip(CG_LABELS, spec.cg_x_m)) if spec.tail is not None else [("", None)]
     results = []
@@ -250,7 +253,10 @@ def unsymmetric_cases(ctx, vn, solve_case, progress) -> tuple:
         for label, x_cg in cgs:
             results.append(_one(kind, rc, label, x_cg, h, mass, ctx, cms, solve_case))
             progress("unsymmetric cases", len(results), total)
-    warnings += cms.warnings
+    # the lattice's own check of the surfaces (key "controls.<name>") repeats the case file's
+    # (config.controls_parse.check_controls_against_wing, under the keys as written): keep the
+    # rest (e.g. a deflection met in a case)
+    warnings += [w for w in cms.warnings if not w.startswith("controls.")]
     return results, warnings
 
 

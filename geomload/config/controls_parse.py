@@ -397,11 +397,17 @@ def check_controls_against_wing(spec: Optional[ControlsSpec], semispan: float, m
         warns = check_controls(spec.surfaces, semispan, key="control_surface")
     except AeroError as exc:
         raise CaseError(f"{pre}{spec.as_written(str(exc))}") from None
+    cg_warns = []
     for k, x in zip(("forward", "aft"), spec.cg_x_m):
         try:
             check_cg(x, x_le_mac, mac, key=f"cg.x_m ({k})")
         except CaseError as exc:
             raise CaseError(f"{pre}{spec.as_written(str(exc))}") from None
+        f = (float(x) - x_le_mac) / mac
+        if not 0.0 <= f <= 1.0:  # accepted, but far from any usual c.g. range: say so
+            cg_warns.append(spec.as_written(
+                f"cg.x_m ({k}): c.g. at {float(x):g} m is {100 * f:.0f} % MAC, outside the MAC "
+                f"(LE {x_le_mac:.4g} m, MAC {mac:.4g} m); check the position and its frame"))
     if spec.tail is not None and spec.cg_x_m:
         from geomload.aero.pitch_trim import MIN_TAIL_ARM_MAC
 
@@ -410,4 +416,4 @@ def check_controls_against_wing(spec: Optional[ControlsSpec], semispan: float, m
             raise CaseError(f"{pre}{spec.as_written('tail.x_ac_m')}: tail arm {arm:g} m from "
                             f"the aft c.g. must be at least {MIN_TAIL_ARM_MAC:g} MAC "
                             f"({MIN_TAIL_ARM_MAC * mac:.4g} m) aft (a tail behind the c.g.)")
-    return [spec.as_written(w) for w in warns]
+    return [spec.as_written(w) for w in warns] + cg_warns

@@ -128,7 +128,7 @@ def simplified_rolling_cases(category: str, v_a: float, n1: float, v_f_neg=None,
     from memory); v_f_neg, n_neg: its speed (m/s EAS) and load factor (< 0), required for the
     acrobatic category (CaseError naming them otherwise)."""
     hi, lo = side_factors(category)
-    v_a, n1 = _positive(v_a, "speeds.v_a"), _positive(n1, "load_factor.n_pos")
+    v_a, n1 = _positive(v_a, "envelope.v_maneuver"), _positive(n1, "load_factor.n_pos")
     pts = [("A", "V_A", v_a, n1)]
     if str(category).lower() == "acrobatic":
         if v_f_neg is None or n_neg is None:
@@ -138,7 +138,7 @@ def simplified_rolling_cases(category: str, v_a: float, n1: float, v_f_neg=None,
         if not (math.isfinite(nf) and nf < 0.0):
             raise CaseError(f"load_factor.n_neg: condition F needs a negative load factor, got "
                             f"{n_neg!r}")
-        pts.append(("F", "V_C", _positive(v_f_neg, "speeds.v_c"), nf))
+        pts.append(("F", "V_C", _positive(v_f_neg, "envelope.v_cruise"), nf))
     out = []
     for label, speed, v, n in pts:
         for heavy in ("starboard", "port"):
@@ -154,8 +154,8 @@ def aileron_deflections(delta_max_deg: float, v_a: float, v_c: float, v_d: float
     """{speed label: (V, delta deg)} per 23.455(a)(2): full deflection at V_A; at V_C the same
     roll rate (delta V_A / V_C) when V_C > V_A; at V_D a third of it (delta V_A / (3 V_D))."""
     d = float(delta_max_deg)
-    v_a, v_c, v_d = (_positive(v, k) for v, k in ((v_a, "speeds.v_a"), (v_c, "speeds.v_c"),
-                                                  (v_d, "speeds.v_d")))
+    v_a, v_c, v_d = (_positive(v, k) for v, k in ((v_a, "envelope.v_maneuver"), (v_c, "envelope.v_cruise"),
+                                                  (v_d, "envelope.v_dive")))
     out = {"V_A": (v_a, d)}
     if v_c > v_a:
         out["V_C"] = (v_c, d * v_a / v_c)
@@ -228,8 +228,8 @@ def aileron_torsion_increment(y, chord, q_pa: float, y_from: float, y_to: float,
 
 def flap_speed_minimum(v_s: float, v_sf: float) -> float:
     """Minimum V_F of 23.345(b): max(1.4 V_S, 1.8 V_SF) (m/s, same speed basis as the inputs)."""
-    return max(VF_OVER_VS * _positive(v_s, "speeds.v_s"),
-               VF_OVER_VSF * _positive(v_sf, "speeds.v_sf"))
+    return max(VF_OVER_VS * _positive(v_s, "envelope (V_S1)"),
+               VF_OVER_VSF * _positive(v_sf, "flaps.v_sf"))
 
 
 def flap_cases(flap: str, flap_deg: float, v_s: float, v_sf: float, wing_loading_n_m2: float,
@@ -244,12 +244,12 @@ def flap_cases(flap: str, flap_deg: float, v_s: float, v_sf: float, wing_loading
     warnings = []
     if v_f is None:
         vf = vmin
-        warnings.append(f"speeds.v_f: not given; using the 23.345(b) minimum "
+        warnings.append(f"flaps.v_f: not given; using the 23.345(b) minimum "
                         f"max(1.4 V_S, 1.8 V_SF) = {vf:.4g} m/s EAS")
     else:
-        vf = _positive(v_f, "speeds.v_f")
+        vf = _positive(v_f, "flaps.v_f")
         if vf < vmin * (1 - 1e-9):
-            raise CaseError(f"speeds.v_f: {vf:g} m/s is below the 23.345(b) minimum "
+            raise CaseError(f"flaps.v_f: {vf:g} m/s is below the 23.345(b) minimum "
                             f"{vmin:.4g} m/s (max(1.4 V_S, 1.8 V_SF))")
     ws = _positive(wing_loading_n_m2, "mass.wing_loading")
     a = _positive(lift_slope_per_rad, "lift_slope")

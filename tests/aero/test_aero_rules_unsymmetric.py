@@ -113,7 +113,7 @@ def test_flap_cases_gust_formula_in_rule_units():
     check("14 CFR 23.345(a)(1) (from memory)", "flaps maneuver n", 2.0,
           by["flaps_maneuver"].load_factor, rel=1e-12)
     assert by["flaps_gust_down"].load_factor < 1.0
-    with pytest.raises(CaseError, match="^speeds.v_f: .* below the 23.345"):
+    with pytest.raises(CaseError, match="^flaps.v_f: .* below the 23.345"):
         flap_cases("flap", 30.0, vs, vsf, ws, 1.225, c, a, v_f=0.9 * vf)
 
 

@@ -11,6 +11,7 @@ from helpers.paths import ROOT
 import dataclasses
 import json
 import math
+import re
 import subprocess
 import sys
 from pathlib import Path
@@ -312,3 +313,23 @@ def test_lift_share_is_the_share_carried_with_a_tail(run, tmp_path):
     case = read_case_file(p)
     (w,) = unused_lift_shares(case, case.load_cases)
     assert "'launch pull-up' (1.05) is not used" in w and "[tail]" in w
+
+
+def test_flap_speed_and_cg_messages_name_the_keys_of_the_file(tmp_path):
+    """A V_F below the 23.345(b) minimum (pre-2017, from memory: max(1.4 V_S, 1.8 V_SF)) is
+    refused naming flaps.v_f and the file; a c.g. aft of the MAC is accepted with a warning
+    (common practice, no source: usual c.g. ranges lie within the MAC)."""
+    from geomload.config.controls_parse import check_controls_against_wing
+    from geomload.errors import CaseError
+
+    text = SAMPLE.read_text().replace('file = "pellin_half_wing_mm.stl"',
+                                      f'file = "{STL.as_posix()}"')
+    assert "v_f = " in text
+    bad = tmp_path / "vf.toml"
+    bad.write_text(re.sub(r"(?m)^v_f = .*$", 'v_f = "5 m/s"', text, count=1))
+    with pytest.raises(CaseError, match=r"vf\.toml: flaps\.v_f: 5 m/s is below the 23\.345"):
+        compute(read_case_file(bad))
+    case = read_case_file(SAMPLE)
+    spec = dataclasses.replace(case.controls, cg_x_m=(case.controls.cg_x_m[0], 0.40))
+    warns = check_controls_against_wing(spec, 1.8, 0.28, 0.0559, "c.toml")
+    assert any("(aft): c.g. at 0.4 m is 123 % MAC, outside the MAC" in w for w in warns)
