@@ -120,7 +120,11 @@ def _check(variant_data: dict, base_data: dict, key: str, raw: str, check_dir: P
 
 
 def _override(data: dict, key: str, raw: str, value, src: Path):
-    if key == "geometry.file" and isinstance(value, str):
+    if key == "geometry.file":
+        if not isinstance(value, str):  # 42 or true would be read as a name in a scratch folder
+            raise VaryError(f"--vary {key}={raw}: a file name is needed, got "
+                            f"{type(value).__name__} {value!r} (write it as \"{raw}\" if it "
+                            "really is the name)")
         value = str((src.parent / Path(value).expanduser()).resolve())
     return apply_override(data, key, raw, value)
 
