@@ -61,6 +61,11 @@ def controls_section(run) -> str:
                           [(c.name, c.kind, c.x_cg_m, c.load_factor,
                             c.load_factor * c.mass_kg * 9.80665, c.wing_normal_force_N,
                             c.tail_load_N) for c in tail], text_cols=(0, 1)))
+        if any(c.control is not None and c.control.side_factors != (1.0, 1.0) for c in tail):
+            out.append("<p>The simplified rolling cases (23.349(a)(1)) carry the airload of the "
+                       "trimmed condition A times each side's factor (100 % / 75 % or 60 %): "
+                       "their wing normal force is below n W by that reduction, by the rule; "
+                       "the tail load is that of the trimmed condition A.</p>")
     env = run.envelope
     if env is not None:
         kinds = _kind_of(run)
