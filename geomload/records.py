@@ -4,16 +4,23 @@ All are frozen dataclasses of numpy arrays, SI units, in the *wing frame* unless
 x aft along the root chord, y along the span (starboard positive, y = 0 on the symmetry plane /
 root plane), z up. Stages are pure functions of these records; nothing here prints.
 
-This single module holds every contract so that each stage can be developed and tested
-against it independently (see docs/architecture.md).
+Here: the aero stage's records (Lattice, AeroSolution), the messages the library returns,
+one case's result (CaseResult, ControlState) and the progress callback; the geometry stage's
+records (:mod:`geomload.geometry.records`) and the loads stage's
+(:mod:`geomload.loads.records`, :mod:`geomload.loads.envelope_records`) are re-exported, so
+this one module names every contract. The whole run's record, RunResult, holds the case file's
+records too and so sits above the stages, in :mod:`geomload.run_result` (see
+docs/architecture.md). Each record checks its fields when built and is never changed after.
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from typing import Callable, Optional
 
 import numpy as np
+
+from geomload.record_checks import check_type, set_field, vector
 
 # progress(stage_name, done, total) - the CLI fills it with a progress bar; library code calls it.
 Progress = Optional[Callable[[str, int, int], None]]
@@ -62,6 +69,21 @@ class Lattice:
     b_ref: float
     x_ref: np.ndarray
 
+    def __post_init__(self):
+        ns, nc = int(self.n_span), int(self.n_chord)
+        corners = np.asarray(self.corners, dtype=float)
+        if ns < 1 or nc < 1 or corners.shape != (ns + 1, nc + 1, 3):
+            raise ValueError(f"lattice corners: expected shape {(ns + 1, nc + 1, 3)}, "
+                             f"got {corners.shape}")
+        set_field(self, "corners", corners)
+        n = ns * nc
+        for k in ("bound_a", "bound_b", "colloc", "normal"):
+            set_field(self, k, vector(f"lattice {k}", getattr(self, k), n, width=3))
+        set_field(self, "area", vector("lattice area", self.area, n))
+        for k in ("strip_y", "strip_chord", "strip_width"):
+            set_field(self, k, vector(f"lattice {k}", getattr(self, k), ns))
+        set_field(self, "x_ref", vector("lattice x_ref", self.x_ref, 3))
+
 
 @dataclass(frozen=True)
 class AeroSolution:
@@ -99,12 +121,23 @@ class AeroSolution:
     alpha_zero_lift_deg: float
     x_ac_m: float
 
+    def __post_init__(self):
+        n, ns = np.asarray(self.gamma).size, np.asarray(self.y).size
+        for k in ("gamma", "dcp"):
+            set_field(self, k, vector(f"aero solution {k}", getattr(self, k), n))
+        for k in ("y", "chord", "cl_c", "lift_per_q", "drag_per_q", "moment_per_q"):
+            set_field(self, k, vector(f"aero solution {k}", getattr(self, k), ns))
+        for k in ("cl", "cm_c4", "cdi", "x_cp"):  # ratios: NaN where a strip carries nothing
+            set_field(self, k, vector(f"aero solution {k}", getattr(self, k), ns, finite=False))
+
 
 # ------------------------------------------------------------------------------------------ loads
 # The loads stage's records live in geomload.loads.records; they are part of this contract too.
+from geomload.loads.envelope_records import (DesignSpeeds, FlightPoint,  # noqa: E402,F401
+                                             GustPoint, LoadsEnvelope, VnDiagram)
 from geomload.loads.records import (AppliedLoads, Equilibrium, LoadGrid,  # noqa: E402,F401
-                                    LoadsEnvelope, MassDistribution, PointLoad, PointMass,
-                                    SpanLoads, TrimState, VnDiagram)
+                                    MassDistribution, PointLoad, PointMass, SpanLoads,
+                                    TrimState)
 
 
 @dataclass(frozen=True)
@@ -133,9 +166,11 @@ class Message:
         return cls("note", text)
 
 
-
-
 # ------------------------------------------------------------------------------------------- run
+CASE_KINDS = ("symmetric", "rolling", "rolling_initial", "flaps")
+"""The kinds of flight case (CaseResult.kind)."""
+
+
 @dataclass(frozen=True)
 class CaseResult:
     """One flight case through the pipeline.
@@ -170,6 +205,15 @@ class CaseResult:
     wing_normal_force_N: Optional[float] = None
     x_cg_m: Optional[float] = None
     control: Optional["ControlState"] = None
+
+    def __post_init__(self):
+        if self.kind not in CASE_KINDS:
+            raise ValueError(f"case {self.name!r}: kind must be one of {CASE_KINDS}, "
+                             f"got {self.kind!r}")
+        check_type(f"case {self.name!r} aero", self.aero, AeroSolution)
+        check_type(f"case {self.name!r} loads", self.loads, SpanLoads)
+        check_type(f"case {self.name!r} port_loads", self.port_loads, SpanLoads, optional=True)
+        check_type(f"case {self.name!r} control", self.control, ControlState, optional=True)
 
     @property
     def sides(self) -> tuple:
@@ -210,62 +254,21 @@ class ControlState:
     aileron_torsion_rule_Nm: float = float("nan")
     aileron_torsion_lattice_Nm: float = float("nan")
 
-
-@dataclass(frozen=True)
-class RunResult:
-    """Everything `geomload run` computed, handed to the exporters.
-
-    case_path: the case file; case_text: its text (echoed in the report); case: the Case records
-    (geomload.config.schema.Case); mesh, frame, stations, planform, lattice; cases: tuple of
-    CaseResult; envelope: the envelope of loads (LoadsEnvelope); vn: tuple of VnDiagram (empty
-    without an [envelope]); alpha_sweep: tuple of (alpha_deg, CL) from the lattice at the first
-    case's Mach; messages: tuple of Message (kind, text); timings: step -> seconds; versions:
-    package -> version; error_bars: geomload.aero.convergence.ErrorBars (discretization error
-    of the root loads) or None when not estimated; wing: the geometry stage's whole `Wing`
-    record (bodies, control surfaces, tailplane, warnings, exposed/gross planform), or None
-    when built without one.
-    """
-
-    case_path: str
-    case_text: str
-    case: "Case"
-    mesh: WingMesh
-    frame: WingFrame
-    stations: Stations
-    planform: Planform
-    lattice: Lattice
-    cases: tuple
-    envelope: Optional[LoadsEnvelope] = None
-    vn: Optional[tuple] = None
-    alpha_sweep: tuple = ()
-    messages: tuple = ()
-    timings: dict = field(default_factory=dict)
-    versions: dict = field(default_factory=dict)
-    error_bars: Optional["ErrorBars"] = None
-    wing: Optional[Wing] = None
-
     def __post_init__(self):
-        if self.wing is not None and not isinstance(self.wing, Wing):
-            raise TypeError("RunResult.wing: a geometry Wing record or None")
-        object.__setattr__(self, "cases", tuple(self.cases))
-        if not all(isinstance(c, CaseResult) for c in self.cases):
-            raise TypeError("RunResult.cases: CaseResult records only")
-        if self.envelope is not None and not isinstance(self.envelope, LoadsEnvelope):
-            raise TypeError("RunResult.envelope: a LoadsEnvelope or None")
-        if self.vn is not None:
-            object.__setattr__(self, "vn", tuple(self.vn))
-            if not all(isinstance(d, VnDiagram) for d in self.vn):
-                raise TypeError("RunResult.vn: VnDiagram records only")
-        object.__setattr__(self, "messages", tuple(self.messages))
-        if not all(isinstance(m, Message) for m in self.messages):
-            raise TypeError("RunResult.messages: Message records only")
-
-    @property
-    def warnings(self) -> list:
-        """The messages in the earlier string form: "note: ..." for notes, bare text for
-        warnings."""
-        return [f"note: {m.text}" if m.kind == "note" else m.text for m in self.messages]
+        pairs = tuple((str(name), float(deg)) for name, deg in self.deflections_deg)
+        set_field(self, "deflections_deg", pairs)
+        factors = tuple(float(f) for f in self.side_factors)
+        if len(factors) != 2:
+            raise ValueError(f"control state: side_factors must be (starboard, port), "
+                             f"got {factors}")
+        set_field(self, "side_factors", factors)
 
 
-from geomload.config.schema import Case  # noqa: E402  (typing of RunResult.case)
-from geomload.aero.convergence import ErrorBars  # noqa: E402  (typing of RunResult.error_bars)
+def __getattr__(name):
+    """RunResult moved to geomload.run_result (it holds the case file's records); the old
+    import path keeps working."""
+    if name == "RunResult":
+        from geomload.run_result import RunResult
+
+        return RunResult
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
