@@ -32,7 +32,7 @@ from geomload.errors import AeroError, CaseError
 from geomload.loads.flight_case import applied_loads, case_loads
 from geomload.loads.side_loads import (SideSolution, TrimView, aileron_torsion,
                                        airload_rolling_moment, normal_force)
-from geomload.records import CaseResult, ControlState
+from geomload.loads.case_records import CaseResult, ControlState
 from geomload.units import G0
 
 SIDES = ("starboard", "port")

@@ -2,7 +2,7 @@
 
 It holds the case file's records (geomload.config.schema.Case), the geometry stage's, the
 aero stage's, every CaseResult, the two envelopes and the error bars, so it sits above every
-stage that makes them (the stages' own records are in :mod:`geomload.records`). Frozen, checked
+stage that makes them (the stages' own records are named together in :mod:`geomload.records`). Frozen, checked
 when built, never changed after: a later step that adds to a run (the error bars, the export
 time) builds a new one with ``dataclasses.replace``.
 """
@@ -15,9 +15,12 @@ from typing import Mapping, Optional
 
 from geomload.aero.convergence import ErrorBars
 from geomload.config.schema import Case
+from geomload.aero.records import Lattice
+from geomload.geometry.records import Planform, Stations, Wing, WingFrame, WingMesh
+from geomload.loads.case_records import CaseResult
+from geomload.loads.envelope_records import LoadsEnvelope, VnDiagram
+from geomload.messages import Message
 from geomload.record_checks import check_items, check_type, set_field
-from geomload.records import (CaseResult, Lattice, LoadsEnvelope, Message, Planform, Stations,
-                              VnDiagram, Wing, WingFrame, WingMesh)
 
 
 @dataclass(frozen=True)
