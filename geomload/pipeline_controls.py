@@ -51,15 +51,21 @@ def _pitch(ctx, coefficients, n, weight, q, x_cg):
                       spec.tail.cm0_fuselage, x_le_mac_m=ctx.x_le_mac)
 
 
+def flight_condition(lc, ctx) -> tuple:
+    """(v_eas, v_tas, mach, q_pa) of a LoadCase in the run's one atmosphere (ctx.atmosphere);
+    AeroError naming the case when its Mach is 1 or more (linear subsonic theory)."""
+    v_eas, v_tas = airspeeds(lc.speed_m_s, lc.speed_type, lc.altitude_m, ctx.atmosphere)
+    mach = mach_number(v_tas, lc.altitude_m, ctx.atmosphere)
+    if not math.isfinite(mach) or mach >= 1.0:
+        raise AeroError(f"{ctx.case.path}: load_case '{lc.name}': Mach {mach:.3f} >= 1")
+    return v_eas, v_tas, mach, dynamic_pressure(v_tas, lc.altitude_m, ctx.atmosphere)
+
+
 def symmetric_with_tail(lc, ctx, solve_case) -> list:
     """A LoadCase trimmed in pitch at the forward and aft c.g.: two CaseResults (tail load and
     wing normal force recorded). The wing force replaces lift_share x n W."""
     case, models = ctx.case, ctx.models
-    v_eas, v_tas = airspeeds(lc.speed_m_s, lc.speed_type, lc.altitude_m, ctx.atmosphere)
-    mach = mach_number(v_tas, lc.altitude_m, ctx.atmosphere)
-    if not math.isfinite(mach) or mach >= 1.0:
-        raise AeroError(f"{case.path}: load_case '{lc.name}': Mach {mach:.3f} >= 1")
-    q = dynamic_pressure(v_tas, lc.altitude_m, ctx.atmosphere)
+    v_eas, v_tas, mach, q = flight_condition(lc, ctx)
     mass = case.aircraft.gross_mass_kg if lc.mass_kg is None else lc.mass_kg
     cd0 = (lc.cd0 if lc.cd0 is not None else case.aircraft.cd0) or 0.0
     coefficients = axis_coefficients(
@@ -188,9 +194,7 @@ def _one(kind, rc, label, x_cg, h, mass, ctx, cms, solve_case) -> CaseResult:
         else:
             base = solve_case(lc, ctx)
         return _simplified(base, rc, name, ctx)
-    v_eas, v_tas = airspeeds(lc.speed_m_s, "EAS", h, ctx.atmosphere)
-    mach = mach_number(v_tas, h, ctx.atmosphere)
-    q = dynamic_pressure(v_tas, h, ctx.atmosphere)
+    v_eas, v_tas, mach, q = flight_condition(lc, ctx)
     cm = cms.get(mach)
     defl = ({rc.flap: rc.flap_deg} if kind == "flaps" else {rc.aileron: rc.aileron_deg})
     weight = mass * G0
