@@ -6,86 +6,39 @@ surfaces a case file takes from the CAD's bodies (``geometry_body``) are resolve
 the run has not resolved them (:func:`case_with_geometry_controls`).
 
 Each stage keeps its physics: the lattice with control surfaces and roll rate
-(:mod:`geomload.aero.roll`), the pitch trim (:mod:`geomload.aero.pitch_trim`), the rule cases
+(:mod:`geomload.aero.roll`, its models per Mach :mod:`geomload.aero.control_models`), the
+pitch trim (:mod:`geomload.aero.pitch_trim`), the rule cases
 (:mod:`geomload.loads.rules_unsymmetric`), the loads of each side (:mod:`geomload.loads.
 flight_case`, the same applied-load and beam integration as a symmetric case, inertia relief
-on both sides). An unsymmetric case integrates the starboard and the port side on its own.
+on both sides) and what both sides give together (:mod:`geomload.loads.side_loads`: the
+normal force, the airload's rolling moment, the aileron torsion). An unsymmetric case
+integrates the starboard and the port side on its own.
 """
 
 from __future__ import annotations
 
 import dataclasses
 import math
-from dataclasses import dataclass
 
 import numpy as np
 
 from geomload.aero.atmosphere import airspeeds, dynamic_pressure
 from geomload.aero.atmosphere import mach as mach_number
+from geomload.aero.control_models import ControlModels, axis_coefficients
 from geomload.aero.models import lattice_mach
-from geomload.aero.trim import TrimmedCase, trim_case
+from geomload.aero.trim import TrimmedCase
 from geomload.config.schema import LoadCase
 from geomload.errors import AeroError, CaseError
 from geomload.loads.flight_case import applied_loads, case_loads
-from geomload.records import CaseResult, ControlState
+from geomload.loads.side_loads import (SideSolution, TrimView, aileron_torsion,
+                                       airload_rolling_moment, normal_force)
+from geomload.loads.case_records import CaseResult, ControlState
 from geomload.units import G0
 
 SIDES = ("starboard", "port")
 BODY_AXIS_ITER = 6  # fixed-point steps on the lift so that L cos a + D sin a is the normal force
 BODY_AXIS_TOL = 1e-9  # relative change of the lift at which those steps stop
 CG_LABELS = ("cg fwd", "cg aft")
-
-
-@dataclass(frozen=True)
-class SideSolution:
-    """One side's strip loads in the form `loads.flight_case.applied_loads` reads (y, chord,
-    lift/drag/moment per unit q per span), root to tip."""
-
-    y: np.ndarray
-    chord: np.ndarray
-    lift_per_q: np.ndarray
-    drag_per_q: np.ndarray
-    moment_per_q: np.ndarray
-
-
-class ControlModels:
-    """The full-span lattice with the case's control surfaces and one ControlModel per lattice
-    Mach, built on first use; kept in ``cache`` (the dict compute() shares between calls) under
-    the symmetric lattice's key and the surfaces, so a batch of variants builds them once."""
-
-    def __init__(self, case, stations, progress, cache=None, lattice_key=()):
-        from geomload.aero.lattice import build_lattice
-
-        spec = case.lattice
-        self.cache, self.key = cache, ("control lattice", lattice_key, case.controls.surfaces)
-        lat = None if cache is None else cache.get(self.key)
-        if lat is None:
-            lat = build_lattice(stations, n_span=spec.n_span, n_chord=spec.n_chord,
-                                spacing=spec.spacing, full_span=True,
-                                x_ref=case.moment_reference, controls=case.controls.surfaces)
-            if cache is not None:
-                cache[self.key] = lat
-        self.lattice = lat
-        self.controls, self.progress, self.models = case.controls.surfaces, progress, {}
-        self.warnings = []
-
-    def get(self, mach: float):
-        from geomload.aero.roll import ControlModel
-        from geomload.aero.solve import AeroModel
-
-        key = round(lattice_mach(mach), 6)
-        if key not in self.models:
-            ck = ("control aero", self.key, key)
-            m = None if self.cache is None else self.cache.get(ck)
-            if m is None:
-                self.progress(f"control lattice M={key:.2f}", 0, 1)
-                m = ControlModel(AeroModel(self.lattice, mach=key), self.controls)
-                self.progress(f"control lattice M={key:.2f}", 1, 1)
-                if self.cache is not None:
-                    self.cache[ck] = m
-            self.warnings += [w for w in m.warnings if w not in self.warnings]
-            self.models[key] = m
-        return self.models[key]
 
 
 # ------------------------------------------------------------------------------- pitch trim
@@ -98,27 +51,26 @@ def _pitch(ctx, coefficients, n, weight, q, x_cg):
                       spec.tail.cm0_fuselage, x_le_mac_m=ctx.x_le_mac)
 
 
+def flight_condition(lc, ctx) -> tuple:
+    """(v_eas, v_tas, mach, q_pa) of a LoadCase in the run's one atmosphere (ctx.atmosphere);
+    AeroError naming the case when its Mach is 1 or more (linear subsonic theory)."""
+    v_eas, v_tas = airspeeds(lc.speed_m_s, lc.speed_type, lc.altitude_m, ctx.atmosphere)
+    mach = mach_number(v_tas, lc.altitude_m, ctx.atmosphere)
+    if not math.isfinite(mach) or mach >= 1.0:
+        raise AeroError(f"{ctx.case.path}: load_case '{lc.name}': Mach {mach:.3f} >= 1")
+    return v_eas, v_tas, mach, dynamic_pressure(v_tas, lc.altitude_m, ctx.atmosphere)
+
+
 def symmetric_with_tail(lc, ctx, solve_case) -> list:
     """A LoadCase trimmed in pitch at the forward and aft c.g.: two CaseResults (tail load and
     wing normal force recorded). The wing force replaces lift_share x n W."""
     case, models = ctx.case, ctx.models
-    v_eas, v_tas = airspeeds(lc.speed_m_s, lc.speed_type, lc.altitude_m, ctx.atmosphere)
-    mach = mach_number(v_tas, lc.altitude_m, ctx.atmosphere)
-    if not math.isfinite(mach) or mach >= 1.0:
-        raise AeroError(f"{case.path}: load_case '{lc.name}': Mach {mach:.3f} >= 1")
-    q = dynamic_pressure(v_tas, lc.altitude_m, ctx.atmosphere)
+    v_eas, v_tas, mach, q = flight_condition(lc, ctx)
     mass = case.aircraft.gross_mass_kg if lc.mass_kg is None else lc.mass_kg
-    model = models.get(mach)
     cd0 = (lc.cd0 if lc.cd0 is not None else case.aircraft.cd0) or 0.0
-    form = models.induced_drag_form(mach) if case.body_axis else None
-
-    def coefficients(a):  # the wing's force on the load-factor axis and its Cm
-        CL, Cm = model.coefficients(a)
-        if form is None:
-            return CL, Cm
-        ca, sa = math.cos(math.radians(a)), math.sin(math.radians(a))
-        cdi = form[0] * ca * ca + 2.0 * form[1] * ca * sa + form[2] * sa * sa
-        return CL * ca + (cdi + cd0) * sa, Cm
+    coefficients = axis_coefficients(
+        models.get(mach).coefficients,
+        models.induced_drag_form(mach) if case.body_axis else None, cd0)
 
     out = []
     for label, x_cg in zip(CG_LABELS, case.controls.cg_x_m):
@@ -156,20 +108,6 @@ def unused_lift_shares(case, load_cases) -> list:
         out.append(f"{case.path}: envelope.lift_share {case.envelope.lift_share:g} is not used: "
                    "with [tail] and [cg] the wing force comes from the pitch trim")
     return out
-
-
-def normal_force(stb, port, body_axis: bool) -> float:
-    """Wing force of both sides (N) on the load-factor axis from the applied loads of each
-    side: lift cos a + drag sin a (body axis) or the lift (flight path)."""
-    tot = 0.0
-    for s in (stb, port):
-        a, y = s.applied, s.y
-        f = a.lift_N_per_m
-        if body_axis:
-            al = math.radians(a.alpha_deg)
-            f = f * math.cos(al) + a.drag_N_per_m * math.sin(al)
-        tot += float(np.sum(0.5 * (f[1:] + f[:-1]) * np.diff(y)))
-    return tot
 
 
 # -------------------------------------------------------------------------- unsymmetric cases
@@ -289,9 +227,7 @@ def _one(kind, rc, label, x_cg, h, mass, ctx, cms, solve_case) -> CaseResult:
         else:
             base = solve_case(lc, ctx)
         return _simplified(base, rc, name, ctx)
-    v_eas, v_tas = airspeeds(lc.speed_m_s, "EAS", h, ctx.atmosphere)
-    mach = mach_number(v_tas, h, ctx.atmosphere)
-    q = dynamic_pressure(v_tas, h, ctx.atmosphere)
+    v_eas, v_tas, mach, q = flight_condition(lc, ctx)
     cm = cms.get(mach)
     defl = ({rc.flap: rc.flap_deg} if kind == "flaps" else {rc.aileron: rc.aileron_deg})
     weight = mass * G0
@@ -352,18 +288,10 @@ def _one(kind, rc, label, x_cg, h, mass, ctx, cms, solve_case) -> CaseResult:
 
 
 def _aileron_torsion(sol, ail, delta_deg, q) -> dict:
-    """The aileron's section pitching-moment increment on the down-aileron side over its span
-    (N m, nose-up +): by the 23.349 rule (delta_cm = -0.01 deg^-1 x delta, on q c^2) and from
-    the lattice (half the difference of the two sides' strip moments)."""
-    from geomload.loads.rules_unsymmetric import aileron_torsion_increment
-
+    """ControlState's aileron torsion fields: the down-aileron side is port for a positive
+    deflection (:func:`geomload.loads.side_loads.aileron_torsion`)."""
     down, up = (sol.port, sol.starboard) if delta_deg > 0 else (sol.starboard, sol.port)
-    inside = (down.y_m >= ail.y_from_m) & (down.y_m <= ail.y_to_m)
-    rule = aileron_torsion_increment(down.y_m, down.chord_m, q, ail.y_from_m, ail.y_to_m,
-                                     abs(delta_deg))
-    dm = 0.5 * (down.moment_per_q - np.interp(down.y_m, up.y_m, up.moment_per_q)) * q
-    return {"aileron_torsion_rule_Nm": float(np.sum((rule * down.width_m)[inside])),
-            "aileron_torsion_lattice_Nm": float(np.sum((dm * down.width_m)[inside]))}
+    return aileron_torsion(down, up, ail.y_from_m, ail.y_to_m, delta_deg, q)
 
 
 def _simplified(base: CaseResult, rc, name, ctx) -> CaseResult:
@@ -376,7 +304,7 @@ def _simplified(base: CaseResult, rc, name, ctx) -> CaseResult:
                                       drag_N_per_m=fac * a.drag_N_per_m,
                                       side_N_per_m=fac * a.side_N_per_m,
                                       pitch_Nm_per_m=fac * a.pitch_Nm_per_m)
-        tr = _TrimView(f"{name}__{side}", base.loads.trim)
+        tr = TrimView(f"{name}__{side}", base.loads.trim)
         sides[side] = case_loads(ctx.grid, tr, applied, ctx.stations.semispan,
                                  ctx.case.ultimate_factor)
     stb, port = sides["starboard"], sides["port"]
@@ -389,50 +317,7 @@ def _simplified(base: CaseResult, rc, name, ctx) -> CaseResult:
         wing_normal_force_N=normal_force(stb, port, ctx.case.body_axis), control=ctl)
 
 
-@dataclass(frozen=True)
-class _TrimView:
-    """The fields `case_loads` reads of a trimmed case, for a side built from another case."""
+_TrimView = TrimView  # the earlier name
 
-    name: str
-    trim: object
-
-    @property
-    def CL_required(self):
-        return self.trim.CL_required
-
-    @property
-    def q_pa(self):
-        return self.trim.q_pa
-
-    @property
-    def body_axis(self):
-        return self.trim.load_factor_axis == "body"
-
-    @property
-    def force_required_N(self):
-        return self.trim.force_required_N
-
-    @property
-    def mach_lattice(self):
-        return self.trim.mach_lattice
-
-
-def airload_rolling_moment(stb, port, lattice) -> float:
-    """Rolling moment coefficient (right wing down positive, about the wing-frame x axis) of
-    the two sides' applied airloads on the load grid: the force normal to the x axis
-    (lift cos a + drag sin a) times y, less the side force times its height z, port minus
-    starboard, over q S b."""
-    q = stb.trim.q_pa
-
-    def mx(s):
-        a = s.applied
-        al = math.radians(a.alpha_deg)
-        fz = a.lift_N_per_m * math.cos(al) + a.drag_N_per_m * math.sin(al)
-        f = s.y * fz - a.load_z_m * a.side_N_per_m
-        return float(np.sum(0.5 * (f[1:] + f[:-1]) * np.diff(s.y)))
-
-    return (mx(port) - mx(stb)) / (q * lattice.s_ref * lattice.b_ref)
-
-
-__all__ = ["carried_share", "unused_lift_shares", "symmetric_with_tail", "unsymmetric_cases", "normal_force", "ControlModels",
-           "airload_rolling_moment", "case_with_geometry_controls", "case_kind", "CaseError"]
+__all__ = ["carried_share", "unused_lift_shares", "symmetric_with_tail", "unsymmetric_cases",
+           "normal_force", "ControlModels", "airload_rolling_moment", "case_with_geometry_controls", "case_kind", "CaseError"]

@@ -332,7 +332,7 @@ class ControlModel:
         the same order). The pressure jump is taken on the undeflected panel normals (linear
         theory deflects the boundary condition, not the geometry).
         """
-        from geomload.records import AeroSolution
+        from geomload.aero.records import AeroSolution
 
         lat, m = self.lattice, self.model
         if lat.mirrored:

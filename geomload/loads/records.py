@@ -1,5 +1,6 @@
-"""The loads stage's records: masses, the load grid, the applied loads, the span loads, the
-flight envelope's points and diagrams, the envelope of loads.
+"""The loads stage's records: masses, the load grid, the applied loads, the trim state, the
+root equilibrium and the span loads of one case. The two envelopes' records (V-n diagram,
+envelope of loads) are in :mod:`geomload.loads.envelope_records` and re-exported here.
 
 Frozen dataclasses of numpy arrays in SI, wing frame (x aft, y starboard, z up), one semi-span
 root to tip. Each checks its arrays' shapes when built and is never changed after (a later
@@ -16,23 +17,13 @@ from typing import Mapping, Optional
 import numpy as np
 
 from geomload.errors import InputError
+from geomload.record_checks import check_type, set_field, vector
 
-QUANTITIES = ("shear_N", "bending_Nm", "torsion_Nm", "inplane_shear_N", "inplane_bending_Nm")
-"""The section results an envelope is taken over (SpanLoads field names)."""
+from .envelope_records import (QUANTITIES, DesignSpeeds, Envelope,  # noqa: F401  (re-exported)
+                               FlightPoint, GustPoint, LoadsEnvelope, VnDiagram)
 
-
-def _vector(name: str, a, n: int, *, finite: bool = True, width: Optional[int] = None):
-    a = np.asarray(a, dtype=float)
-    shape = (n,) if width is None else (n, width)
-    if a.shape != shape:
-        raise InputError(f"{name}: expected shape {shape}, got {a.shape}")
-    if finite and not np.isfinite(a).all():  # the method: no dispatch overhead per call
-        raise InputError(f"{name}: must be finite")
-    return a
-
-
-def _set(obj, name, value):
-    object.__setattr__(obj, name, value)
+LOAD_FACTOR_AXES = ("body", "flight-path")
+"""The axes a load factor is defined on (TrimState.load_factor_axis)."""
 
 
 # ---------------------------------------------------------------------------------- masses
@@ -45,7 +36,7 @@ class PointMass:
     position: np.ndarray
 
     def __post_init__(self):
-        _set(self, "position", _vector(f"point mass {self.name!r} position", self.position, 3))
+        set_field(self, "position", vector(f"point mass {self.name!r} position", self.position, 3))
         if not (math.isfinite(self.mass) and self.mass >= 0):
             raise InputError(f"point mass {self.name!r}: mass must be finite and >= 0")
 
@@ -59,8 +50,8 @@ class PointLoad:
     force: np.ndarray
 
     def __post_init__(self):
-        _set(self, "position", _vector(f"point load {self.name!r} position", self.position, 3))
-        _set(self, "force", _vector(f"point load {self.name!r} force", self.force, 3))
+        set_field(self, "position", vector(f"point load {self.name!r} position", self.position, 3))
+        set_field(self, "force", vector(f"point load {self.name!r} force", self.force, 3))
 
 
 @dataclass(frozen=True)
@@ -80,9 +71,10 @@ class MassDistribution:
     def __post_init__(self):
         n = np.asarray(self.y).size
         for k in ("y", "kg_per_m", "x_m", "z_m"):
-            _set(self, k, _vector(f"mass distribution {k}", getattr(self, k), n))
-        _set(self, "parts", MappingProxyType({k: _vector(f"mass part {k!r}", v, n)
+            set_field(self, k, vector(f"mass distribution {k}", getattr(self, k), n))
+        set_field(self, "parts", MappingProxyType({k: vector(f"mass part {k!r}", v, n)
                                               for k, v in dict(self.parts).items()}))
+        set_field(self, "lumped", tuple(self.lumped))
         if not all(isinstance(p, PointMass) for p in self.lumped):
             raise InputError("mass distribution: lumped items must be PointMass records")
 
@@ -115,19 +107,19 @@ class LoadGrid:
     output_rows: Optional[np.ndarray] = None
 
     def __post_init__(self):
-        y = _vector("load grid y", self.y, np.asarray(self.y).size)
+        y = vector("load grid y", self.y, np.asarray(self.y).size)
         if y.size < 2 or np.any(np.diff(y) <= 0):
             raise InputError("load grid: y must hold >= 2 stations increasing root to tip")
         n = y.size
-        _set(self, "y", y)
+        set_field(self, "y", y)
         for k in ("le", "te"):
-            _set(self, k, _vector(f"load grid {k}", getattr(self, k), n, width=3))
+            set_field(self, k, vector(f"load grid {k}", getattr(self, k), n, width=3))
         for k in ("chord", "spar_x", "spar_z", "load_x", "load_z"):
-            _set(self, k, _vector(f"load grid {k}", getattr(self, k), n))
+            set_field(self, k, vector(f"load grid {k}", getattr(self, k), n))
         rows = np.ones(n, bool) if self.output_rows is None else np.asarray(self.output_rows, bool)
         if rows.shape != (n,) or not rows.any():
             raise InputError("load grid: output_rows must be (n,) booleans, at least one True")
-        _set(self, "output_rows", rows)
+        set_field(self, "output_rows", rows)
 
     @property
     def n(self) -> int:
@@ -162,8 +154,8 @@ class AppliedLoads:
         n = np.asarray(self.lift_N_per_m).size
         for k in ("lift_N_per_m", "drag_N_per_m", "side_N_per_m", "pitch_Nm_per_m",
                   "load_x_m", "load_z_m", "inertia_N_per_m", "inertia_x_m", "inertia_z_m"):
-            _set(self, k, _vector(f"applied loads {k}", getattr(self, k), n))
-        _set(self, "point_loads", tuple(self.point_loads))
+            set_field(self, k, vector(f"applied loads {k}", getattr(self, k), n))
+        set_field(self, "point_loads", tuple(self.point_loads))
         if not all(isinstance(p, PointLoad) for p in self.point_loads):
             raise InputError("applied loads: point_loads must be PointLoad records")
 
@@ -180,6 +172,11 @@ class TrimState:
     force_required_N: float
     lift_total_N: float
     mach_lattice: float
+
+    def __post_init__(self):
+        if self.load_factor_axis not in LOAD_FACTOR_AXES:
+            raise InputError(f"trim state: load_factor_axis must be one of {LOAD_FACTOR_AXES}, "
+                             f"got {self.load_factor_axis!r}")
 
 
 @dataclass(frozen=True)
@@ -244,161 +241,29 @@ class SpanLoads:
 
     def __post_init__(self):
         n = np.asarray(self.y).size
-        _set(self, "y", _vector(f"span loads {self.case!r} y", self.y, n))
+        set_field(self, "y", vector(f"span loads {self.case!r} y", self.y, n))
         for k in ("lift_N_per_m", "drag_N_per_m", "pitch_Nm_per_m", "inertia_N_per_m") + QUANTITIES:
-            _set(self, k, _vector(f"span loads {self.case!r} {k}", getattr(self, k), n))
-        _set(self, "schrenk_lift_N_per_m", _vector(f"span loads {self.case!r} schrenk",
+            set_field(self, k, vector(f"span loads {self.case!r} {k}", getattr(self, k), n))
+        set_field(self, "schrenk_lift_N_per_m", vector(f"span loads {self.case!r} schrenk",
                                                    self.schrenk_lift_N_per_m, n, finite=False))
         for k in ("force_N", "moment_Nm", "axis_s", "axis_b", "axis_n", "spar_points_m"):
             if getattr(self, k) is not None:
-                _set(self, k, _vector(f"span loads {self.case!r} {k}", getattr(self, k), n, width=3))
+                set_field(self, k, vector(f"span loads {self.case!r} {k}", getattr(self, k), n, width=3))
         if self.chord_m is not None:
-            _set(self, "chord_m", _vector(f"span loads {self.case!r} chord_m", self.chord_m, n))
+            set_field(self, "chord_m", vector(f"span loads {self.case!r} chord_m", self.chord_m, n))
         if self.output_rows is not None:
             rows = np.asarray(self.output_rows, bool)
             if rows.shape != (n,):
                 raise InputError(f"span loads {self.case!r}: output_rows must be ({n},) booleans")
-            _set(self, "output_rows", rows)
+            set_field(self, "output_rows", rows)
         if not (math.isfinite(self.ultimate_factor) and self.ultimate_factor >= 1.0):
             raise InputError(f"span loads {self.case!r}: ultimate_factor must be >= 1")
+        check_type(f"span loads {self.case!r} applied", self.applied, AppliedLoads, optional=True)
+        check_type(f"span loads {self.case!r} trim", self.trim, TrimState, optional=True)
+        check_type(f"span loads {self.case!r} equilibrium", self.equilibrium, Equilibrium,
+                   optional=True)
 
     @property
     def rows(self) -> np.ndarray:
         """Boolean mask of the rows a table reports (every row unless ribs were given)."""
         return np.ones(self.y.size, bool) if self.output_rows is None else self.output_rows
-
-
-
-# ---------------------------------------------------------------------- flight envelope
-@dataclass(frozen=True)
-class FlightPoint:
-    """A point of the V-n diagram run as a load case: v_eas (m/s), altitude (m), n, mass (kg).
-    label: the point's kind ("pos-limit-dive", ...); name adds mass and altitude."""
-
-    name: str
-    v_eas: float
-    altitude: float
-    n: float
-    mass: float
-    label: str = ""
-    fuel_fraction: float = 1.0
-
-
-@dataclass(frozen=True)
-class DesignSpeeds:
-    """Design speeds, EAS m/s: cruise, dive, maneuver; the rule minimums (None for custom)."""
-
-    v_cruise: float
-    v_dive: float
-    v_maneuver: float
-    v_cruise_min: Optional[float]
-    v_dive_min: Optional[float]
-    notes: tuple = ()
-
-
-@dataclass(frozen=True)
-class GustPoint:
-    """Gust values at one speed (23.341): alleviation factor Kg, mass ratio mu, the wing lift
-    slope used (per rad), and the load factors of an up and a down gust."""
-
-    kg: float
-    mu: float
-    lift_slope_per_rad: float
-    n_up: float
-    n_down: float
-
-    def __iter__(self):  # the earlier tuple form (Kg, mu, a, n up, n down)
-        return iter((self.kg, self.mu, self.lift_slope_per_rad, self.n_up, self.n_down))
-
-    def __getitem__(self, i):
-        return tuple(self)[i]
-
-
-@dataclass(frozen=True)
-class VnDiagram:
-    """V-n diagram at one mass and altitude. Speeds EAS m/s. curves: name -> (v, n) arrays for
-    plotting ("stall-pos", "stall-neg", "maneuver" closed outline, "gust-up", "gust-down").
-    corners: FlightPoint per critical point; gust_cruise, gust_dive: GustPoint."""
-
-    category: str
-    mass_kg: float
-    altitude_m: float
-    n_pos: float
-    n_neg: float
-    n_neg_dive: float
-    v_stall_pos: float
-    v_stall_neg: float
-    speeds: DesignSpeeds
-    gust_cruise: GustPoint
-    gust_dive: GustPoint
-    curves: Mapping[str, tuple]
-    corners: tuple
-    notes: tuple = ()
-
-    def __post_init__(self):
-        _set(self, "curves", MappingProxyType(dict(self.curves)))
-
-    @property
-    def title(self) -> str:
-        """'22 kg at 0 m': the flying mass and altitude of the diagram."""
-        return f"{self.mass_kg:g} kg at {self.altitude_m:g} m"
-
-
-# ----------------------------------------------------------------------- loads envelope
-@dataclass(frozen=True)
-class LoadsEnvelope:
-    """Station-wise extremes over the cases (the envelope of loads, not the flight envelope).
-
-    For each quantity of QUANTITIES: maximum/minimum (limit), max_case/min_case (governing case
-    names), ultimate_max/ultimate_min (each case's ultimate_factor x limit) with
-    ultimate_max_case/ultimate_min_case. output_rows: (n,) bool, the rows tables report.
-    """
-
-    y: np.ndarray
-    cases: tuple
-    maximum: Mapping[str, np.ndarray]
-    minimum: Mapping[str, np.ndarray]
-    max_case: Mapping[str, tuple]
-    min_case: Mapping[str, tuple]
-    ultimate_max: Mapping[str, np.ndarray]
-    ultimate_min: Mapping[str, np.ndarray]
-    ultimate_max_case: Mapping[str, tuple]
-    ultimate_min_case: Mapping[str, tuple]
-    output_rows: Optional[np.ndarray] = None
-
-    def __post_init__(self):
-        n = np.asarray(self.y).size
-        for k in ("maximum", "minimum", "ultimate_max", "ultimate_min"):
-            d = dict(getattr(self, k))
-            if set(d) != set(QUANTITIES):
-                raise InputError(f"loads envelope {k}: needs every quantity {QUANTITIES}")
-            _set(self, k, MappingProxyType({q: _vector(f"loads envelope {k} {q}", v, n)
-                                            for q, v in d.items()}))
-        for k in ("max_case", "min_case", "ultimate_max_case", "ultimate_min_case"):
-            d = {q: tuple(v) for q, v in dict(getattr(self, k)).items()}
-            if set(d) != set(QUANTITIES) or any(len(v) != n for v in d.values()):
-                raise InputError(f"loads envelope {k}: needs {n} case names per quantity")
-            _set(self, k, MappingProxyType(d))
-        if self.output_rows is not None:
-            _set(self, "output_rows", np.asarray(self.output_rows, bool))
-
-    @property
-    def rows(self) -> np.ndarray:
-        return np.ones(self.y.size, bool) if self.output_rows is None else self.output_rows
-
-    def columns(self) -> dict:
-        """Ordered columns for a table: y_m, then <q>_max_<unit>, <q>_max_case, <q>_min_...,
-        and the ultimate pairs (e.g. bending_max_Nm, bending_max_ult_Nm), as in envelope.csv."""
-        out = {"y_m": self.y}
-        for q in QUANTITIES:
-            base, unit = q.rsplit("_", 1)
-            out[f"{base}_max_{unit}"] = self.maximum[q]
-            out[f"{base}_max_case"] = list(self.max_case[q])
-            out[f"{base}_min_{unit}"] = self.minimum[q]
-            out[f"{base}_min_case"] = list(self.min_case[q])
-            out[f"{base}_max_ult_{unit}"] = self.ultimate_max[q]
-            out[f"{base}_min_ult_{unit}"] = self.ultimate_min[q]
-        return out
-
-
-Envelope = LoadsEnvelope  # the earlier name

@@ -11,7 +11,7 @@ import numpy as np
 import pytest
 
 from geomload.errors import OutputError
-from geomload.export import vtk
+from geomload.export import display_surface, vtk
 from geomload.export.run_folder import leftovers
 
 from helpers import fakerun
@@ -126,7 +126,7 @@ def test_decimated_display_surface_of_a_large_mesh(monkeypatch):
     fine = np.concatenate([np.stack(x, axis=1) for x in ((a, ab, ca), (ab, b, bc), (ca, bc, c),
                                                           (ab, bc, ca))])
     run2 = dataclasses.replace(run, mesh=dataclasses.replace(run.mesh, triangles=fine))
-    monkeypatch.setattr(vtk, "MAX_DISPLAY_TRIANGLES", fine.shape[0] // 6)
+    monkeypatch.setattr(display_surface, "MAX_DISPLAY_TRIANGLES", fine.shape[0] // 6)
     full = vtk.surface_data(run2, full=True)
     dec = vtk.surface_data(run2)
     assert dec.decimated and not full.decimated and dec.source_triangles == fine.shape[0]

@@ -1,0 +1,191 @@
+"""The display surface: the CAD wing's triangles in the wing frame, welded (or decimated by
+vertex clustering above MAX_DISPLAY_TRIANGLES), each triangle tied to its nearest lattice panel
+in the plan view. Built once per run for surface.vtp (:mod:`geomload.export.vtk`), the renders
+and the report's 3-D view; the loads are always computed on the full mesh.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+MAX_DISPLAY_TRIANGLES = 100_000  # above this the display surface is decimated: a 2-D picture
+# and a ParaView overview gain nothing from more, and per-case arrays stay small (common
+# practice, no source)
+
+
+@dataclass(frozen=True)
+class Surface:
+    """The display surface, built once for surface.vtp and the 3-D pictures (wing frame, m).
+
+    points (n, 3); tri (m, 3) vertex indices; panel (m,) nearest lattice panel; side (m,) +1
+    starboard / -1 port (y < 0 of a full wing on a mirrored half lattice); plan_area_m2 (m,);
+    source_triangles: the triangle count of the CAD mesh; decimated: True when the surface was
+    simplified (vertex clustering) to at most about MAX_DISPLAY_TRIANGLES.
+    """
+
+    points: np.ndarray
+    tri: np.ndarray
+    panel: np.ndarray
+    side: np.ndarray
+    plan_area_m2: np.ndarray
+    source_triangles: int
+    decimated: bool
+
+    def __post_init__(self):
+        m = np.shape(self.tri)[0]
+        if np.shape(self.points)[1:] != (3,) or np.shape(self.tri) != (m, 3):
+            raise ValueError("display surface: points (n, 3) and tri (m, 3) expected")
+        for k in ("panel", "side", "plan_area_m2"):
+            if np.shape(getattr(self, k)) != (m,):
+                raise ValueError(f"display surface {k}: expected shape ({m},), "
+                                 f"got {np.shape(getattr(self, k))}")
+
+
+def panel_centres(lattice) -> np.ndarray:
+    """(N, 3) panel centres (mean of the four corners), strip-major."""
+    c = np.asarray(lattice.corners, float)
+    return (0.25 * (c[:-1, :-1] + c[1:, :-1] + c[:-1, 1:] + c[1:, 1:])).reshape(-1, 3)
+
+
+def surface_points_faces(mesh, frame):
+    """Weld the triangle soup (exactly equal vertices) and move it to the wing frame."""
+    tri = np.ascontiguousarray(np.asarray(mesh.triangles, dtype=np.float64).reshape(-1, 3))
+    rows = tri.view(np.dtype((np.void, 24))).ravel()  # one 24-byte key per vertex: fast unique
+    _, first, inv = np.unique(rows, return_index=True, return_inverse=True)
+    return frame.to_wing(tri[first]), inv.reshape(-1, 3)
+
+
+def decimate_soup(triangles, target: int):
+    """Vertex clustering of a triangle soup to about `target` triangles.
+
+    The vertices are snapped to a cubic grid whose cell h is chosen from the surface area A so
+    that about target / 2 cells are occupied (h = sqrt(2 A / target)); each occupied cell becomes
+    one vertex at the mean of its members; collapsed and repeated triangles are dropped.
+    Returns (points (n, 3), tri (m, 3)). Rossignac-Borrel vertex clustering (1993), the simplest
+    decimation; the shape is kept to within about h.
+    """
+    t = np.asarray(triangles, np.float64).reshape(-1, 3, 3)
+    step = max(1, t.shape[0] // 200_000)  # the area from a regular sample: it only sets h
+    ts = t[::step]
+    area = 0.5 * np.linalg.norm(np.cross(ts[:, 1] - ts[:, 0], ts[:, 2] - ts[:, 0]), axis=1).sum()
+    area *= t.shape[0] / ts.shape[0]
+    v = t.reshape(-1, 3)
+    lo, hi = np.array([v[:, k].min() for k in range(3)]), np.array([v[:, k].max() for k in range(3)])
+    h = max(float(np.sqrt(2.0 * area / max(target, 1))), 1e-12)
+    dims = np.floor((hi - lo) / h).astype(np.int64) + 2
+    # the cell key, in blocks of vertices (no full-size temporaries besides the key itself):
+    # key = (q0 d1 + q1) d2 + q2 with q = floor((v - lo) / h) (non-negative: truncation)
+    inv_h = 1.0 / h
+    key = np.empty(v.shape[0], np.int64)
+    for a in range(0, v.shape[0], _KEY_BLOCK):
+        q = ((v[a:a + _KEY_BLOCK] - lo) * inv_h).astype(np.int64)
+        key[a:a + _KEY_BLOCK] = (q[:, 0] * dims[1] + q[:, 1]) * dims[2] + q[:, 2]
+    n_cells = int(np.prod(dims))
+    if n_cells <= DENSE_GRID_MAX:  # a counting pass over a dense grid: no sort of the vertices
+        occupied = np.bincount(key, minlength=n_cells) > 0
+        n = int(occupied.sum())
+        lut = np.cumsum(occupied, dtype=np.int64 if n >= 2 ** 31 else np.int32)
+        del occupied
+        lut -= 1
+        inv = lut[key]  # the cell number of each vertex (int32 below 2**31 cells: half the size)
+        del lut
+    else:
+        _, inv = np.unique(key, return_inverse=True)
+        n = int(inv.max()) + 1
+    del key
+    cnt = np.zeros(n)  # members per cell; integer counts, so block sums are exact
+    for a in range(0, inv.size, _KEY_BLOCK):
+        cnt += np.bincount(inv[a:a + _KEY_BLOCK], minlength=n)
+    # the per-cell sums in blocks, each an unbuffered ufunc.at accumulation in vertex order:
+    # the same additions, in the same order, as np.bincount(inv, weights=v[:, k]) (bit for
+    # bit), without its contiguous copy of a whole coordinate column (96 MB at 4 M triangles)
+    pts = np.zeros((n, 3))
+    for a in range(0, v.shape[0], _KEY_BLOCK):
+        blk = inv[a:a + _KEY_BLOCK]
+        for k in range(3):
+            np.add.at(pts[:, k], blk, v[a:a + _KEY_BLOCK, k])
+    pts /= cnt[:, None]
+    f = inv.reshape(-1, 3)
+    ok = (f[:, 0] != f[:, 1]) & (f[:, 1] != f[:, 2]) & (f[:, 0] != f[:, 2])
+    f = f[ok]
+    del inv, ok
+    s = np.sort(f, axis=1).astype(np.int64, copy=False)
+    if n ** 3 < 2 ** 62:
+        _, first = np.unique((s[:, 0] * n + s[:, 1]) * n + s[:, 2], return_index=True)
+    else:
+        _, first = np.unique(np.ascontiguousarray(s).view(np.dtype((np.void, 24))).ravel(),
+                             return_index=True)
+    return pts, f[np.sort(first)].astype(np.int64, copy=False)
+
+
+_KEY_BLOCK = 1 << 16  # vertices per block of the cell-key pass
+DENSE_GRID_MAX = 40_000_000  # grid cells counted densely (320 MB of int64 at most)
+
+
+BRUTE_NEAREST_MAX = 100_000_000  # query-centre pairs up to which the nearest centre is found by
+# direct distances in numpy (the sample: 24,000 triangles x 400 panels in about 0.05 s, x 3000
+# panels about 0.4 s); above it a k-d tree pays for its import (scipy.spatial, about 0.5 s)
+_BRUTE_CHUNK = 1 << 15  # pairs per block of the direct search (cache-sized temporaries)
+
+
+def nearest_centre(centres, query) -> np.ndarray:
+    """Index of the nearest of `centres` (k, 2) to each of `query` (m, 2) (Euclidean; the lowest
+    index among equally near ones)."""
+    cen = np.asarray(centres, float)
+    q = np.asarray(query, float)
+    if cen.shape[0] * q.shape[0] > BRUTE_NEAREST_MAX:
+        from scipy.spatial import cKDTree
+
+        return cKDTree(cen).query(q)[1]
+    out = np.empty(q.shape[0], dtype=np.intp)
+    step = max(1, _BRUTE_CHUNK // max(cen.shape[0], 1))
+    cx, cy = cen[:, 0], cen[:, 1]
+    for i in range(0, q.shape[0], step):
+        dx = q[i:i + step, 0:1] - cx
+        dy = q[i:i + step, 1:2] - cy
+        dx *= dx
+        dy *= dy
+        dx += dy
+        out[i:i + step] = np.argmin(dx, axis=1)
+    return out
+
+
+def map_to_panels(points_xy, lattice) -> np.ndarray:
+    """Index of the nearest lattice panel centre in the (x, y) projection; |y| for a half lattice."""
+    cen = panel_centres(lattice)[:, :2]
+    q = np.array(points_xy, float)
+    if lattice.mirrored:
+        q[:, 1] = np.abs(q[:, 1])
+    return nearest_centre(cen, q)
+
+
+def surface_data(run, full: bool = False) -> Surface:
+    """The display surface of `run` (see Surface). full=True keeps every CAD triangle."""
+    m = run.mesh
+    if full or m.n_triangles <= MAX_DISPLAY_TRIANGLES:
+        pts, tri = surface_points_faces(m, run.frame)
+        dec = False
+    else:
+        cad_pts, tri = decimate_soup(m.triangles, MAX_DISPLAY_TRIANGLES)
+        pts, dec = run.frame.to_wing(cad_pts), True
+    c = pts[tri].mean(axis=1)
+    near = map_to_panels(c[:, :2], run.lattice)
+    side = np.where((c[:, 1] < 0) & bool(run.lattice.mirrored), -1, 1).astype(np.int8)
+    p0, p1, p2 = pts[tri[:, 0]], pts[tri[:, 1]], pts[tri[:, 2]]
+    nz = (p1[:, 0] - p0[:, 0]) * (p2[:, 1] - p0[:, 1]) - (p1[:, 1] - p0[:, 1]) * (p2[:, 0] - p0[:, 0])
+    return Surface(points=pts, tri=tri, panel=near, side=side, plan_area_m2=0.5 * np.abs(nz),
+                   source_triangles=m.n_triangles, decimated=dec)
+
+
+def surface_polydata(run, surface: Surface | None = None, scalars: dict | None = None):
+    """A pyvista PolyData of the display surface (renders and `view` only; imports pyvista)."""
+    import pyvista as pv
+
+    s = surface if surface is not None else surface_data(run)
+    mesh = pv.PolyData(s.points, np.hstack([np.full((s.tri.shape[0], 1), 3), s.tri]).ravel())
+    mesh.cell_data["panel"] = s.panel
+    for k, v in (scalars or {}).items():
+        mesh.cell_data[k] = v
+    return mesh

@@ -1,0 +1,52 @@
+"""Construction checks shared by the records between stages (frozen dataclasses).
+
+A record checks its fields once, in ``__post_init__``, and is never changed after: these
+helpers coerce an array field to float, check its shape and finiteness, and set a field of a
+frozen instance during that check. A failed check raises :class:`geomload.errors.InputError`
+naming the record and the field.
+"""
+
+from __future__ import annotations
+
+from typing import Optional
+
+import numpy as np
+
+from geomload.errors import InputError
+
+
+def vector(name: str, a, n: int, *, finite: bool = True, width: Optional[int] = None):
+    """``a`` as a float array of shape (n,) (or (n, width)); InputError naming ``name`` when the
+    shape differs or, with ``finite``, when a value is NaN or infinite."""
+    a = np.asarray(a, dtype=float)
+    shape = (n,) if width is None else (n, width)
+    if a.shape != shape:
+        raise InputError(f"{name}: expected shape {shape}, got {a.shape}")
+    if finite and not np.isfinite(a).all():  # the method: no dispatch overhead per call
+        raise InputError(f"{name}: must be finite")
+    return a
+
+
+def set_field(obj, name: str, value) -> None:
+    """Set a field of a frozen dataclass instance (only inside its ``__post_init__``)."""
+    object.__setattr__(obj, name, value)
+
+
+def check_type(name: str, value, kind, *, optional: bool = False) -> None:
+    """TypeError naming ``name`` unless ``value`` is an instance of ``kind`` (or None when
+    ``optional``): a record between stages holds records of the types it names."""
+    if value is None and optional:
+        return
+    if not isinstance(value, kind):
+        want = kind.__name__ if isinstance(kind, type) else " or ".join(k.__name__ for k in kind)
+        raise TypeError(f"{name}: expected {want}{' or None' if optional else ''}, "
+                        f"got {type(value).__name__}")
+
+
+def check_items(name: str, items, kind) -> tuple:
+    """``items`` as a tuple; TypeError naming ``name`` when one item is not a ``kind``."""
+    items = tuple(items)
+    bad = [type(i).__name__ for i in items if not isinstance(i, kind)]
+    if bad:
+        raise TypeError(f"{name}: {kind.__name__} records only, got {bad[0]}")
+    return items
