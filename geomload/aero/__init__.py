@@ -13,7 +13,10 @@ Public functions (the ones other stages, the pipeline and the CLI call):
   ``check_cg``; ``roll``: ``ControlModel``, ``side_strip_loads``;
 - ``sweep``: ``lift_curve`` (the run's CL-alpha curve);
 - ``refinement``: ``check_convergence`` (three lattice densities, Richardson);
-  ``convergence``: ``error_bars`` (the run's discretization error bars).
+  ``convergence``: ``error_bars`` (the run's discretization error bars);
+- ``control_models``: ``ControlModels`` (the full-span lattice with the control surfaces, one
+  ``ControlModel`` per Mach), ``axis_coefficients``;
+- ``records``: the stage's records (``Lattice``, ``AeroSolution``).
 
 Submodules import numpy only at import time; scipy is imported inside the functions that use it.
 """

@@ -15,6 +15,9 @@ Public functions:
   ``rules_unsymmetric``: the rolling and flaps-down cases;
 - ``vn``: ``vn_diagram``, ``critical_points``, ``flight_envelope_cases``;
 - ``envelope``: ``envelope_of``, ``critical_rows``;
-- ``records``: the stage's records (``LoadGrid``, ``AppliedLoads``, ``SpanLoads``,
-  ``LoadsEnvelope``, ``VnDiagram``...).
+- ``side_loads``: per-side loads of an unsymmetric case (``normal_force``,
+  ``airload_rolling_moment``, ``aileron_torsion``);
+- ``records``: one case's records (``LoadGrid``, ``AppliedLoads``, ``SpanLoads``...);
+  ``envelope_records``: ``VnDiagram``, ``LoadsEnvelope``...; ``case_records``: ``CaseResult``,
+  ``ControlState``.
 """
