@@ -29,6 +29,7 @@ import numpy as np
 
 from geomload.errors import AeroError
 from geomload.aero.controls import check_controls, check_deflection, deflection_rhs
+from geomload.aero.vortex import cross
 
 DIFF_STEP = math.radians(1.0)  # central differences of quadratic forces are exact; any step
 
@@ -185,7 +186,7 @@ class ControlModel:
             k = p_hat * 2.0 / self.lattice.b_ref
             vt[:, 1] -= k * self._mid[:, 2]
             vt[:, 2] += k * self._mid[:, 1]
-        return g, 2.0 * g[:, None] * np.cross(vt, self.model._l), ca, sa
+        return g, 2.0 * g[:, None] * cross(vt, self.model._l), ca, sa
 
     def _rolling(self, F):
         m = self._mid

@@ -282,7 +282,7 @@ class AeroModel:
         vt = self._vind @ np.array([ca, sa])
         vt[:, 0] += ca
         vt[:, 2] += sa
-        F = 2.0 * g[:, None] * np.cross(vt, self._l)  # force / q per panel (m^2)
+        F = 2.0 * g[:, None] * vortex.cross(vt, self._l)  # force / q per panel (m^2)
         lift = F @ np.array([-sa, 0.0, ca])
         lift_s = lift.reshape(ns, nc).sum(axis=1)
         my_s = self._moment(F, self._arm_strip).reshape(ns, nc).sum(axis=1)

@@ -26,6 +26,19 @@ import numpy as np
 FOUR_PI = 4.0 * np.pi
 
 
+def cross(a, b) -> np.ndarray:
+    """a x b over the last axis (length 3) of two arrays of one shape: numpy.cross's arithmetic
+    (a1 b2 - a2 b1, ...), the same result to the bit, without its per-call axis handling (the
+    trim and the steady roll call it for every state they try)."""
+    out = np.empty(a.shape)
+    a0, a1, a2 = a[..., 0], a[..., 1], a[..., 2]
+    b0, b1, b2 = b[..., 0], b[..., 1], b[..., 2]
+    out[..., 0] = a1 * b2 - a2 * b1
+    out[..., 1] = a2 * b0 - a0 * b2
+    out[..., 2] = a0 * b1 - a1 * b0
+    return out
+
+
 def _split(points):
     p = np.asarray(points, dtype=float)
     return p[:, 0:1], p[:, 1:2], p[:, 2:3]
