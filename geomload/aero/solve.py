@@ -134,10 +134,11 @@ class AeroModel:
         (numpy.linalg.solve: LAPACK gesv, the LU with partial pivoting and its back-substitution)."""
         A = self._assemble()
         try:
-            # one BLAS thread (see vortex.BLAS_LIMIT_PAIRS): on 2 shared cores the threaded LU of
-            # 3000 panels took more wall time (1.26 against 0.86 s) and 1.5 x the CPU, and one
+            # one BLAS thread at every size: on 2 shared cores the threaded LU of 3000 panels
+            # took more wall time (1.26 against 0.86 s) and 1.5 x the CPU, and of 400 panels 5 x
+            # the wall time (56 against 10 ms at load 6: the threads wait for each other); one
             # thread does the same operations on any machine and in batch workers
-            with vortex._single_blas_thread(A.size):
+            with vortex._single_blas_thread():
                 g = np.linalg.solve(A, rhs)
         except np.linalg.LinAlgError:
             raise AeroError("lattice: influence matrix is singular (degenerate panels)") from None
