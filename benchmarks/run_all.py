@@ -38,7 +38,8 @@ peak_memory_4000_panels_MB                      1500        294  absolute (earli
 
 Paired with the merged code (same minutes, medians of the pairs, CPU): the sample with pictures
 14.06 -> 11.81 s (-15 %), --no-render 11.28 -> 8.58 s (-23 %; wall 19.8 -> 11.9 s at load 4),
-1000 cases 49.3 -> 44.2 s (-10 %).
+1000 cases 43.6 -> 39.1 s (-10 %), the 120 x 25 lattice 72.8 -> 51.0 s (-30 %, with the
+ControlModel.build line of the pipeline).
 """
 
 from __future__ import annotations
