@@ -10,36 +10,36 @@ Run: python benchmarks/run_all.py [NAME ...]     NAME: a script's short name (cl
 large_stl, lattice, import) to run only those. GEOMLOAD_BENCH_REPEAT=N sets every repeat count
 (1 = a quick look). See DEVELOPERS.md and docs/performance.md.
 
-Every target, as last measured (2026-12-02 evening, 2 shared cores at load 7-11: wall figures
-2-6 x the CPU time; the sample now has a tail, control-surface cases, [structure] and error
-bars, so the ratios are not comparable with the earlier round; details and paired before/after
-CPU figures in docs/performance.md):
+Every target, as last measured (round 4, 2026-12-03 03:20-03:35 UTC, 2 shared cores at load
+2.9-5: wall figures 1.6-2 x the CPU time; `run_all.py cli cases large_stl`,
+GEOMLOAD_BENCH_REPEAT=2; the sample has the tail, control-surface cases, [structure] and error
+bars; paired before/after CPU figures and the causes of each miss in docs/performance.md):
 
 figure                                        target   measured  floor (same run)               met
-sample_run_vs_numpy_import_ratio                   8       94.6  import numpy 0.560 s           no
-sample_no_render_vs_numpy_import_ratio             5       56.9  import numpy 0.560 s           no
-sample_run_vs_numpy_import_cpu_ratio               -       60.5  import numpy cpu 0.212 s       -
-sample_no_render_vs_numpy_import_cpu_ratio         -       42.7  import numpy cpu 0.212 s       -
-cases_1000_vs_42_ratio                           1.3       4.37  42-case run 23.7 s             no
-cases_work_per_added_case_ms                     1.5       83.3  42-case run 23.7 s             no
-cases_cpu_per_added_case_ms                        -       32.4  42-case run cpu 10.9 s         -
-stl_4M_run_no_render_s                             5       31.9  absolute (10.8 s CPU)          no
-stl_4M_run_peak_rss_MB                           700        503  absolute; file 200 MB          yes
-stl_4M_read_cut_vs_fromfile_ratio                 10       17.7  fromfile 0.203 s               no
-lattice_120x25_run_vs_floor_ratio                1.6       4.47  40x10 run 63.1 s + LU 4.79 s   no
-lattice_120x25_run_vs_floor_cpu_ratio              -       5.06  cpu 12.4 s + 1.11 s            -
-help_wall_s                                     0.15      0.266  python -c pass 0.078 s         no (load 9; 0.139 s quiet)
+sample_run_vs_numpy_import_ratio                   8       52.3  import numpy 0.405 s           no
+sample_no_render_vs_numpy_import_ratio             5       36.5  import numpy 0.405 s           no
+sample_run_vs_numpy_import_cpu_ratio               -       48.2  import numpy cpu 0.260 s       -
+sample_no_render_vs_numpy_import_cpu_ratio         -       34.9  import numpy cpu 0.260 s       -
+cases_1000_vs_42_ratio                           1.3       3.29  42-case run 14.3 s             no
+cases_work_per_added_case_ms                     1.5       34.1  42-case run 14.3 s             no
+cases_1000_vs_42_cpu_ratio                         -       4.28  42-case run cpu 8.80 s         -
+cases_cpu_per_added_case_ms                        -       30.1  42-case run cpu 8.80 s         -
+stl_4M_run_no_render_s                             5       15.9  absolute (10.9 s CPU)          no
+stl_4M_run_peak_rss_MB                           700        526  absolute; file 200 MB          yes
+stl_4M_read_cut_vs_fromfile_ratio                 10       14.6  fromfile 0.095 s (cpu 15.8 x)  no
+lattice_120x25_run_vs_floor_ratio                1.6       4.47  round 3 (paired CPU -30 %, docs)  no
+help_wall_s                                     0.15      0.339  python -c pass 0.112 s         no (load 3.6; cpu 0.164 s)
 batch_12_variants_2_workers_vs_one_run_ratio       8       6.22  one run (earlier round)        yes
 fe_decks_and_sizing_fraction_of_sample_run      0.15     0.0662  sample run (earlier round)     yes
 import_2M_total_s                                  2       1.80  absolute (earlier round)       yes
-import_vs_fromfile_ratio                          10       31.4  fromfile 0.057 s (earlier)     no
-vlm_2000_panels_assembly_lu_20rhs_s              0.6       2.52  absolute                       no
+vlm_2000_panels_assembly_lu_20rhs_s              0.6       2.52  absolute (earlier round)       no
 ratio_to_bare_lu                                   4       2.37  LU 2000 1.065 s                yes
-peak_memory_4000_panels_MB                      1500        294  absolute                       yes
+peak_memory_4000_panels_MB                      1500        294  absolute (earlier round)       yes
 
-The same scripts at the quietest moment of that evening (load 2 -> 1.4, final code): sample
-75.0 x / --no-render 48.9 x (CPU 49.1 x / 33.2 x), 1000/42 cases 4.59 x, 24.3 ms per added case
-(CPU 26.5 ms), 4 M run 7.22 s, 529 MB, read + cut 13.7 x, --help 0.123 s.
+Paired with the merged code (same minutes, medians of the pairs, CPU): the sample with pictures
+14.06 -> 11.81 s (-15 %), --no-render 11.28 -> 8.58 s (-23 %; wall 19.8 -> 11.9 s at load 4),
+1000 cases 43.6 -> 39.1 s (-10 %), the 120 x 25 lattice 72.8 -> 51.0 s (-30 %, with the
+ControlModel.build line of the pipeline).
 """
 
 from __future__ import annotations

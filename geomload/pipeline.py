@@ -36,7 +36,8 @@ from geomload.loads.envelope import envelope_of
 from geomload.loads.vn import flight_envelope_cases
 from geomload.pipeline_controls import (case_with_geometry_controls, symmetric_with_tail,
                                         unsymmetric_cases, unused_lift_shares)
-from geomload.records import Message, RunResult, no_progress
+from geomload.messages import Message, no_progress
+from geomload.run_result import RunResult
 from geomload.run_geometry import case_wing, wing_messages
 
 

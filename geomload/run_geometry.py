@@ -103,7 +103,7 @@ def likely_unit(case, span_m, area_m2):
 def wing_messages(wing) -> list:
     """The geometry stage's decisions as run messages: each `GeometryWarning` a warning, each
     note a note, and which planform the loads use when the wing's root lies off y = 0."""
-    from geomload.records import Message
+    from geomload.messages import Message
 
     out = [Message("warning", w.text) for w in wing.warnings]
     for n in wing.notes:

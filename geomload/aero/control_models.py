@@ -36,7 +36,6 @@ class ControlModels:
     def get(self, mach: float):
         """The ControlModel at the lattice Mach of ``mach`` (built once)."""
         from .roll import ControlModel
-        from .solve import AeroModel
 
         key = round(lattice_mach(mach), 6)
         if key not in self.models:
@@ -44,7 +43,7 @@ class ControlModels:
             m = None if self.cache is None else self.cache.get(ck)
             if m is None:
                 self.progress(f"control lattice M={key:.2f}", 0, 1)
-                m = ControlModel(AeroModel(self.lattice, mach=key), self.controls)
+                m = ControlModel.build(self.lattice, key, self.controls)  # one LU for every RHS
                 self.progress(f"control lattice M={key:.2f}", 1, 1)
                 if self.cache is not None:
                     self.cache[ck] = m

@@ -21,7 +21,8 @@ from __future__ import annotations
 import numpy as np
 
 from geomload.errors import AeroError
-from geomload.records import Lattice, Stations
+from geomload.aero.records import Lattice
+from geomload.geometry.records import Stations
 
 
 def _check_int(value, name: str) -> int:

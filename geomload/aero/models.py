@@ -10,7 +10,8 @@ from __future__ import annotations
 
 import math
 
-from geomload.records import Lattice, no_progress
+from geomload.aero.records import Lattice
+from geomload.messages import no_progress
 
 MACH_BIN_LOG = 0.004  # bin width in ln(1/beta): the lattice's Prandtl-Glauert factor is at
 # most exp(0.004) - 1 = 0.40 % above the case's own (below the 0.5 % aimed at), so the lift slope
@@ -133,7 +134,7 @@ def analyse_at_alpha(stations, alpha_deg: float, mach: float = 0.0, n_span: int 
     from geomload.aero.refinement import check_convergence
     from geomload.aero.solve import DEFAULT_CL_MAX, AeroModel
     from geomload.errors import AeroError
-    from geomload.records import Message
+    from geomload.messages import Message
 
     if not math.isfinite(alpha_deg):
         raise AeroError(f"--alpha: must be a finite number of degrees, got {alpha_deg}")

@@ -14,7 +14,8 @@ import numpy as np
 from geomload.aero.lattice import build_lattice
 from geomload.aero.solve import AeroModel, _alpha_rad
 from geomload.errors import AeroError
-from geomload.records import AeroSolution, Lattice, Stations
+from geomload.aero.records import AeroSolution, Lattice
+from geomload.geometry.records import Stations
 
 
 def root_bending_coefficient(sol: AeroSolution, lattice: Lattice) -> float:

@@ -29,6 +29,7 @@ import numpy as np
 
 from geomload.errors import AeroError
 from geomload.aero.controls import check_controls, check_deflection, deflection_rhs
+from geomload.aero.vortex import cross
 
 DIFF_STEP = math.radians(1.0)  # central differences of quadratic forces are exact; any step
 
@@ -102,6 +103,16 @@ def roll_rhs(lattice) -> np.ndarray:
     return -(2.0 / lattice.b_ref) * (-p[:, 2] * n[:, 1] + p[:, 1] * n[:, 2])
 
 
+def control_rhs(lattice, controls) -> np.ndarray:
+    """Right-hand sides (N, K) of a ControlModel beyond the free stream: two columns per control
+    surface (`controls.deflection_rhs`), then the roll rate's (`roll_rhs`) on a full-span
+    lattice."""
+    cols = [deflection_rhs(lattice, c) for c in controls]
+    if not lattice.mirrored:
+        cols.append(roll_rhs(lattice)[:, None])
+    return np.hstack(cols) if cols else np.zeros((lattice.colloc.shape[0], 0))
+
+
 class ControlModel:
     """Angle of attack, control deflections and roll rate on one factorised `AeroModel`.
 
@@ -118,17 +129,32 @@ class ControlModel:
         self.warnings = list(check_controls(self.controls, 0.5 * lat.b_ref,
                                             full_span=not lat.mirrored))
         self.names = [c.name for c in self.controls]
-        cols = [deflection_rhs(lat, c) for c in self.controls]
-        if not lat.mirrored:
-            cols.append(roll_rhs(lat)[:, None])
-        R = np.hstack(cols) if cols else np.zeros((lat.colloc.shape[0], 0))
-        G = model.solve_rhs(R) if R.shape[1] else R
+        R = control_rhs(lat, self.controls)
+        X = getattr(model, "extra_rhs", None)
+        if not R.shape[1]:
+            G = R
+        elif X is not None and X.shape == R.shape and np.array_equal(X, R):
+            G = model.extra_solutions  # solved with the model's basis (`build`)
+        else:
+            G = model.solve_rhs(R)  # the influence matrix assembled and solved again
         V = model.induced_at_bound(G) if R.shape[1] else np.zeros((R.shape[0], 3, 0))
         self._B = np.hstack([model._basis, G])  # (N, K)
         self._V = np.concatenate([model._vind, V], axis=2)  # (N, 3, K)
         self._mid = 0.5 * (lat.bound_a + lat.bound_b)
         self._fac = 2.0 if lat.mirrored else 1.0
         self._quadratic_forms()
+
+    @classmethod
+    def build(cls, lattice, mach: float = 0.0, controls=()):
+        """The ControlModel of `lattice` at `mach` with its AeroModel, every right-hand side
+        (free stream, deflections, roll rate) solved in one LAPACK call: one assembly and one
+        LU, where ``ControlModel(AeroModel(lattice, mach), controls)`` needs two of each."""
+        from geomload.aero.solve import AeroModel
+
+        controls = tuple(controls)
+        check_controls(controls, 0.5 * lattice.b_ref, full_span=not lattice.mirrored)
+        R = control_rhs(lattice, controls)
+        return cls(AeroModel(lattice, mach=mach, extra_rhs=R if R.shape[1] else None), controls)
 
     def _quadratic_forms(self):
         """The total forces, rolling and pitching moments as quadratic forms of the weights w.
@@ -185,7 +211,7 @@ class ControlModel:
             k = p_hat * 2.0 / self.lattice.b_ref
             vt[:, 1] -= k * self._mid[:, 2]
             vt[:, 2] += k * self._mid[:, 1]
-        return g, 2.0 * g[:, None] * np.cross(vt, self.model._l), ca, sa
+        return g, 2.0 * g[:, None] * cross(vt, self.model._l), ca, sa
 
     def _rolling(self, F):
         m = self._mid
@@ -332,7 +358,7 @@ class ControlModel:
         the same order). The pressure jump is taken on the undeflected panel normals (linear
         theory deflects the boundary condition, not the geometry).
         """
-        from geomload.aero.records import AeroSolution
+        from .records import AeroSolution
 
         lat, m = self.lattice, self.model
         if lat.mirrored:

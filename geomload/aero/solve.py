@@ -30,7 +30,7 @@ import math
 import numpy as np
 
 from geomload.errors import AeroError
-from geomload.records import AeroSolution, Lattice
+from geomload.aero.records import AeroSolution, Lattice
 from geomload.aero import vortex
 
 MACH_WARN = 0.7
@@ -57,10 +57,16 @@ class AeroModel:
     mach : free-stream Mach number, 0 <= M < 1. From M = 0.7 a warning is added to
         `self.warnings` (linear theory leaves its range); M >= 1 raises AeroError.
 
-    Attributes: lattice, mach, beta, warnings (list of str).
+    extra_rhs : optional (N, k) right-hand sides solved with the two basis ones in the same
+        LAPACK call (one LU instead of a second assembly and LU in `solve_rhs`), e.g. the
+        control deflections and roll rate of `roll.ControlModel.build`; their solutions are kept
+        as `extra_solutions` (N, k) beside `extra_rhs`.
+
+    Attributes: lattice, mach, beta, warnings (list of str), extra_rhs, extra_solutions (None
+    without extra_rhs).
     """
 
-    def __init__(self, lattice: Lattice, mach: float = 0.0):
+    def __init__(self, lattice: Lattice, mach: float = 0.0, extra_rhs=None):
         try:
             m = float(mach)
         except (TypeError, ValueError):
@@ -96,8 +102,15 @@ class AeroModel:
         # (LU + back-substitution) of the assembled matrix, which is then released (a kept LU
         # is 8 N^2 bytes: 69 MB at 3000 panels). Other right-hand sides (control surfaces,
         # roll) reassemble it in `solve_rhs`.
-        self._basis = self._solve_assembled(
-            np.column_stack([-lat.normal[:, 0], -lat.normal[:, 2]]))
+        basis_rhs = np.column_stack([-lat.normal[:, 0], -lat.normal[:, 2]])
+        self.extra_rhs = self.extra_solutions = None
+        if extra_rhs is None:
+            self._basis = self._solve_assembled(basis_rhs)
+        else:
+            X = self._checked_rhs(extra_rhs)
+            sol = self._solve_assembled(np.hstack([basis_rhs, X]))
+            self._basis = np.ascontiguousarray(sol[:, :2])
+            self.extra_rhs, self.extra_solutions = X, np.ascontiguousarray(sol[:, 2:])
         mid_s = 0.5 * (lat.bound_a + lat.bound_b) * stretch
         self._mid_s = mid_s
         self._vind = hs.velocity(mid_s, self._basis, self_panels=True)
@@ -134,10 +147,11 @@ class AeroModel:
         (numpy.linalg.solve: LAPACK gesv, the LU with partial pivoting and its back-substitution)."""
         A = self._assemble()
         try:
-            # one BLAS thread (see vortex.BLAS_LIMIT_PAIRS): on 2 shared cores the threaded LU of
-            # 3000 panels took more wall time (1.26 against 0.86 s) and 1.5 x the CPU, and one
+            # one BLAS thread at every size: on 2 shared cores the threaded LU of 3000 panels
+            # took more wall time (1.26 against 0.86 s) and 1.5 x the CPU, and of 400 panels 5 x
+            # the wall time (56 against 10 ms at load 6: the threads wait for each other); one
             # thread does the same operations on any machine and in batch workers
-            with vortex._single_blas_thread(A.size):
+            with vortex._single_blas_thread():
                 g = np.linalg.solve(A, rhs)
         except np.linalg.LinAlgError:
             raise AeroError("lattice: influence matrix is singular (degenerate panels)") from None
@@ -246,11 +260,14 @@ class AeroModel:
         """Circulations (N, k) per unit free-stream speed for right-hand sides rhs (N, k) (the
         negative free-stream normal velocity at each collocation point): the influence matrix is
         reassembled and solved for them (one LAPACK solve; pass every column at once)."""
+        return self._solve_rhs(self._checked_rhs(rhs))
+
+    def _checked_rhs(self, rhs) -> np.ndarray:
         r = np.asarray(rhs, float)
         n = self.lattice.colloc.shape[0]
         if r.shape[0] != n or not np.all(np.isfinite(r)):
             raise AeroError(f"rhs: expected {n} finite rows, got shape {r.shape}")
-        return self._solve_rhs(r)
+        return r
 
     def induced_at_bound(self, gammas) -> np.ndarray:
         """Velocity (N, 3, k) induced at the bound-vortex midpoints by circulations (N, k)
@@ -282,7 +299,7 @@ class AeroModel:
         vt = self._vind @ np.array([ca, sa])
         vt[:, 0] += ca
         vt[:, 2] += sa
-        F = 2.0 * g[:, None] * np.cross(vt, self._l)  # force / q per panel (m^2)
+        F = 2.0 * g[:, None] * vortex.cross(vt, self._l)  # force / q per panel (m^2)
         lift = F @ np.array([-sa, 0.0, ca])
         lift_s = lift.reshape(ns, nc).sum(axis=1)
         my_s = self._moment(F, self._arm_strip).reshape(ns, nc).sum(axis=1)

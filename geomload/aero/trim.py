@@ -14,7 +14,7 @@ from dataclasses import dataclass
 from typing import Optional
 
 from geomload.errors import AeroError, CaseError
-from geomload.records import AeroSolution
+from geomload.aero.records import AeroSolution
 from geomload.units import G0
 
 from .atmosphere import airspeeds, density_and_sound, dynamic_pressure
@@ -157,7 +157,7 @@ def trim_case(lc, case, models: MachModels, atmosphere=density_and_sound,
 def stall_messages(case, models: MachModels, mach: float) -> list:
     """Messages on the wing's stall onset at ``mach`` for the run: a note where the section
     cl_max is first reached, a warning when the flight envelope's CLmax lies above it."""
-    from geomload.records import Message
+    from geomload.messages import Message
 
     cl_sec = case.aircraft.cl_max
     if cl_sec is None:

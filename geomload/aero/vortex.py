@@ -26,6 +26,19 @@ import numpy as np
 FOUR_PI = 4.0 * np.pi
 
 
+def cross(a, b) -> np.ndarray:
+    """a x b over the last axis (length 3) of two arrays of one shape: numpy.cross's arithmetic
+    (a1 b2 - a2 b1, ...), the same result to the bit, without its per-call axis handling (the
+    trim and the steady roll call it for every state they try)."""
+    out = np.empty(a.shape)
+    a0, a1, a2 = a[..., 0], a[..., 1], a[..., 2]
+    b0, b1, b2 = b[..., 0], b[..., 1], b[..., 2]
+    out[..., 0] = a1 * b2 - a2 * b1
+    out[..., 1] = a2 * b0 - a0 * b2
+    out[..., 2] = a0 * b1 - a1 * b0
+    return out
+
+
 def _split(points):
     p = np.asarray(points, dtype=float)
     return p[:, 0:1], p[:, 1:2], p[:, 2:3]
@@ -87,20 +100,32 @@ def _workers() -> int:
     return max(1, min(4, os.cpu_count() or 1))
 
 
-BLAS_LIMIT_PAIRS = 1 << 18  # point-horseshoe pairs above which the BLAS threads are limited to
-# one while the chunks run: the chunks' matrix products are thin (inner dimension 3-5) and run on
-# this module's own threads, so BLAS threads only compete with them (measured at 3000 panels on
-# 2 cores: 2.5 x less CPU for the assembly with one BLAS thread); below it the pool lookup
-# (about 1 ms) costs more than it saves
+BLAS_LIMIT_PAIRS = 0  # point-horseshoe pairs from which the BLAS threads are limited to one
+# while the chunks run (0: always): the chunks' matrix products are thin (inner dimension 3-5)
+# and run on this module's own threads, so BLAS threads only compete with them (measured at
+# 3000 panels on 2 cores: 2.5 x less CPU for the assembly with one BLAS thread). The limit
+# costs about 0.07 ms with the library lookup kept (`_blas_controller`), so it pays at any size.
+_CONTROLLER: list = []  # the threadpoolctl controller, made once per process (about 2 ms)
 
 
-def _single_blas_thread(pairs: int):
-    """One BLAS thread for a large chunked evaluation (threadpoolctl), else nothing."""
-    if pairs < BLAS_LIMIT_PAIRS:
-        return contextlib.nullcontext()
-    from threadpoolctl import threadpool_limits
+def _blas_controller():
+    """The process's threadpoolctl controller (the BLAS libraries loaded when first asked; the
+    solver's numpy BLAS is loaded by then), or None without threadpoolctl."""
+    if not _CONTROLLER:
+        try:
+            from threadpoolctl import ThreadpoolController
 
-    return threadpool_limits(limits=1, user_api="blas")
+            _CONTROLLER.append(ThreadpoolController())
+        except Exception:  # noqa: BLE001 - no control: the library's own threading is kept
+            _CONTROLLER.append(None)
+    return _CONTROLLER[0]
+
+
+def _single_blas_thread(pairs: int = BLAS_LIMIT_PAIRS):
+    """One BLAS thread for the block (threadpoolctl), from BLAS_LIMIT_PAIRS pairs on; a
+    context manager (nothing when threadpoolctl is missing)."""
+    c = _blas_controller() if pairs >= BLAS_LIMIT_PAIRS else None
+    return contextlib.nullcontext() if c is None else c.limit(limits=1, user_api="blas")
 
 
 class HorseshoeSet:

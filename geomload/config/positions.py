@@ -19,7 +19,7 @@ import dataclasses
 import numpy as np
 
 from geomload.errors import CaseError
-from geomload.records import Message
+from geomload.messages import Message
 
 from .checks import SPAN_TOLERANCE_REL
 from .schema import Case

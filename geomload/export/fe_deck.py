@@ -64,6 +64,17 @@ class BeamDeck:
     unit_scale_m: float
 
 
+def _cross3(u, v) -> np.ndarray:
+    """u x v of two 3-vectors (numpy.cross's arithmetic, without its per-call axis handling)."""
+    return np.array([u[1] * v[2] - u[2] * v[1], u[2] * v[0] - u[0] * v[2],
+                     u[0] * v[1] - u[1] * v[0]])
+
+
+def _xyz(v) -> str:
+    """Three numbers of a deck line at DECK_DIGITS significant digits ("x, y, z")."""
+    return "%.14g, %.14g, %.14g" % (v[0], v[1], v[2])  # DECK_DIGITS
+
+
 def beam_deck(nl: NodalLoads, frame=None, unit_scale_m: float = 1.0, unit: str = "m",
               title: str = "") -> BeamDeck:
     """The CalculiX input deck (text) of the spar beam of one case, in the CAD frame and unit."""
@@ -80,13 +91,13 @@ def beam_deck(nl: NodalLoads, frame=None, unit_scale_m: float = 1.0, unit: str =
     a, b = [int(k) for k in np.argsort(np.abs(tangent))[:2]]  # CAD axes most normal to the spar
     c = 3 - a - b
     arm = SUPPORT_ARM_FRACTION * length
-    ea, eb = np.eye(3)[a], np.eye(3)[b]
+    eye = np.eye(3)
+    ea, eb, ec = eye[a], eye[b], eye[c]
     na, nb, nc = n + 1, n + 2, n + 3
     pa, pb, pc = pts[0] + arm * ea, pts[0] + arm * eb, pts[0] - arm * ea
     w, h = (d / s for d in NOMINAL_SECTION_M)
     e_mod = NOMINAL_E_PA * s * s  # N / unit^2
-    g = lambda v: f"{v[0]:.14g}, {v[1]:.14g}, {v[2]:.14g}"  # noqa: E731 (DECK_DIGITS)
-    sections = []
+    g = lambda v: _xyz(v.tolist())  # noqa: E731 (DECK_DIGITS)
     L = _caution_lines("**")
     L += [f"** geomload beam load deck: case '{nl.case}'" + (f" - {title}" if title else "")]
     L += ["** Spar beam on the load stations (node 1 = root). The root is clamped through three",
@@ -102,7 +113,8 @@ def beam_deck(nl: NodalLoads, frame=None, unit_scale_m: float = 1.0, unit: str =
           "** Section and material are NOMINAL: the model is statically determinate, so the",
           "** reactions and internal forces do not depend on them (displacements do).",
           "*NODE, NSET=NALL"]
-    L += [f"{i + 1}, {g(p)}" for i, p in enumerate(pts)]
+    pts_l = pts.tolist()
+    L += ["%d, %s" % (i + 1, _xyz(p)) for i, p in enumerate(pts_l)]
     L += [f"{na}, {g(pa)}", f"{nb}, {g(pb)}", f"{nc}, {g(pc)}"]
     # one section per element, its 1-direction the wing's chordwise axis made exactly normal
     # to the element (the section's axes must be normal to the beam)
@@ -112,20 +124,21 @@ def beam_deck(nl: NodalLoads, frame=None, unit_scale_m: float = 1.0, unit: str =
     d1 /= np.linalg.norm(d1, axis=1)[:, None]
     for i in range(n - 1):
         L += [f"*ELEMENT, TYPE=B31, ELSET=E{i + 1}", f"{i + 1}, {i + 1}, {i + 2}"]
-        sections.append((f"E{i + 1}", d1[i]))
+    sections = [(f"E{i + 1}", d) for i, d in enumerate(d1.tolist())]
     L += ["*ELEMENT, TYPE=B31, ELSET=ARMA", f"{n}, 1, {na}", f"{n + 2}, {nc}, 1",
           "*ELEMENT, TYPE=B31, ELSET=ARMB", f"{n + 1}, 1, {nb}"]
     # moment levers: nodal moments enter as force couples on two short arms per node
-    lev = np.linalg.solve(arm * np.column_stack([np.cross(ea, eb), np.cross(ea, np.eye(3)[c]),
-                                                 np.cross(eb, np.eye(3)[c])]), Mo.T).T
-    ec = np.eye(3)[c]
+    lev = np.linalg.solve(arm * np.column_stack([_cross3(ea, eb), _cross3(ea, ec),
+                                                 _cross3(eb, ec)]), Mo.T).T
     gA = lev[:, :1] * eb + lev[:, 1:2] * ec   # force at lever node A_i (and minus it at node i)
     gB = lev[:, 2:3] * ec                     # force at lever node B_i (and minus it at node i)
-    lever_a = {i: n + 4 + 2 * i for i in range(n) if np.any(Mo[i] != 0)}
+    lever_a = {int(i): n + 4 + 2 * int(i) for i in np.flatnonzero(np.any(Mo != 0, axis=1))}
     if lever_a:
         L += ["*NODE, NSET=LEVERS"]
+        la = (pts + arm * ea).tolist()
+        lb = (pts + arm * eb).tolist()
         for i, k in lever_a.items():
-            L += [f"{k}, {g(pts[i] + arm * ea)}", f"{k + 1}, {g(pts[i] + arm * eb)}"]
+            L += ["%d, %s" % (k, _xyz(la[i])), "%d, %s" % (k + 1, _xyz(lb[i]))]
         L += ["*ELEMENT, TYPE=B31, ELSET=LEVA"] + [f"{n + 2 + 2 * i + 1}, {i + 1}, {k}"
                                                    for i, k in lever_a.items()]
         L += ["*ELEMENT, TYPE=B31, ELSET=LEVB"] + [f"{n + 2 + 2 * i + 2}, {i + 1}, {k + 1}"
@@ -133,20 +146,22 @@ def beam_deck(nl: NodalLoads, frame=None, unit_scale_m: float = 1.0, unit: str =
     L += ["*NSET, NSET=ROOT", "1", "*NSET, NSET=SUPPORT", f"{na}, {nb}, {nc}",
           "*MATERIAL, NAME=NOMINAL", "*ELASTIC", f"{e_mod:.10g}, {NOMINAL_NU:g}"]
     L += ["*ELSET, ELSET=SPAR"] + [f"E{i + 1}," for i in range(n - 1)]
-    for elset, d in (*sections, ("ARMA", eb), ("ARMB", ea), ("LEVA", eb), ("LEVB", ea)):
+    for elset, d in (*sections, ("ARMA", eb.tolist()), ("ARMB", ea.tolist()),
+                     ("LEVA", eb.tolist()), ("LEVB", ea.tolist())):
         if elset.startswith("LEV") and not lever_a:
             continue
         L += [f"*BEAM SECTION, ELSET={elset}, MATERIAL=NOMINAL, SECTION=RECT",
-              f"{w:.10g}, {h:.10g}", g(d)]
+              f"{w:.10g}, {h:.10g}", _xyz(d)]
     L += ["*BOUNDARY", f"{nc}, 1, 3", f"{na}, {b + 1}, {b + 1}", f"{na}, {c + 1}, {c + 1}",
           f"{nb}, {c + 1}, {c + 1}", "*STEP", "*STATIC", "*CLOAD"]
-    node_f = F - gA - gB  # every node with a moment has levers (gA = gB = 0 elsewhere)
+    node_f = (F - gA - gB).tolist()  # every node with a moment has levers (gA = gB = 0 elsewhere)
+    gA_l, gB_l = gA.tolist(), gB.tolist()
     for i in range(n):
         rows = [(i + 1, node_f[i])]
         if i in lever_a:
-            rows += [(lever_a[i], gA[i]), (lever_a[i] + 1, gB[i])]
+            rows += [(lever_a[i], gA_l[i]), (lever_a[i] + 1, gB_l[i])]
         for node, vec in rows:
-            L += [f"{node}, {dof + 1}, {v:.14g}" for dof, v in enumerate(vec.tolist()) if v != 0.0]
+            L += ["%d, %d, %.14g" % (node, dof + 1, v) for dof, v in enumerate(vec) if v != 0.0]
     L += ["*NODE PRINT, NSET=SUPPORT", "RF", "*NODE FILE, NSET=NALL", "U", "*END STEP"]
     return BeamDeck(text="\n".join(L) + "\n", spar_nodes=tuple(range(1, n + 1)),
                     support_nodes={na: pa, nb: pb, nc: pc}, root_cad=pts[0], unit=unit,

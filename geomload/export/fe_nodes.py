@@ -19,7 +19,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from geomload.errors import InputError
-from geomload.loads.beam import spar_frame
+from geomload.loads.beam import _cross, spar_frame
 
 SAME_NODE_M = 1e-9                 # floor of the span used for merging (m)
 MERGE_FRACTION = 1e-3              # stations closer than this x span share one node: the
@@ -83,23 +83,28 @@ def nodal_loads(loads, rows=None) -> NodalLoads:
     Mn = np.vstack([M[1:], np.zeros((1, 3))])
     Pn = np.vstack([P[1:], P[-1:]])
     f = F - Fn
-    m = M - Mn - np.cross(Pn - P, Fn)
+    m = M - Mn - _cross(Pn - P, Fn)
     # stations closer than MERGE_FRACTION x span share the inboard one's node; a moved load
     # takes its transfer moment along, so the statics stay exact
     y = np.asarray(loads.y, float)[idx]
     gap = MERGE_FRACTION * max(float(y[-1] - y[0]), SAME_NODE_M)
     keep = np.ones(n, bool)
-    last = y[0]
-    for i in range(1, n):
-        keep[i] = y[i] - last > gap
-        if keep[i]:
-            last = y[i]
+    if not np.all(np.diff(y) > gap):  # some stations merge (else every station is a node)
+        last = y[0]
+        for i in range(1, n):
+            keep[i] = y[i] - last > gap
+            if keep[i]:
+                last = y[i]
     group = np.cumsum(keep) - 1
     k = int(group[-1]) + 1
     anchor = P[keep][group]
     fs, ms = np.zeros((k, 3)), np.zeros((k, 3))
-    np.add.at(fs, group, f)
-    np.add.at(ms, group, m + np.cross(P - anchor, f))
+    if k == n:  # one station per node: the same sums as numpy.add.at, without its slow path
+        fs += f
+        ms += m + _cross(P - anchor, f)
+    else:
+        np.add.at(fs, group, f)
+        np.add.at(ms, group, m + _cross(P - anchor, f))
     ax = {a: np.asarray(getattr(loads, a), float)[idx][keep] if getattr(loads, a) is not None
           else None
           for a in ("axis_s", "axis_b", "axis_n")}

@@ -32,9 +32,15 @@ def _figure(nrows=1, ncols=1, size=(7.5, 4.5), margins=(0.11, 0.97, 0.11, 0.91),
     return fig, axes.ravel()
 
 
+PNG_COMPRESS_LEVEL = 1  # zlib level of the PNG files: plots of flat colours compress almost
+# as well at 1 as at the default 6 (measured on the sample's plots: 0-8 % larger files) and the
+# encoder takes a fraction of the time (it was about a fifth of a plot's drawing time)
+
+
 def figure_bytes(fig, fmt="png", dpi=100) -> bytes:
     buf = io.BytesIO()
-    fig.savefig(buf, format=fmt, dpi=dpi)
+    kw = {"pil_kwargs": {"compress_level": PNG_COMPRESS_LEVEL}} if fmt == "png" else {}
+    fig.savefig(buf, format=fmt, dpi=dpi, **kw)
     return buf.getvalue()
 
 

@@ -37,7 +37,7 @@ from geomload.export.atomic import _STAGING, _UMASK, _cause, _real, _resolved, s
 from geomload.export.run_lock import LOCK_TAG, RunLock, held_signals
 from geomload.export.run_marker import (MARKER, MARKER_KIND, read_marker,  # noqa: F401
                                         replaceable_reason, write_marker)
-from geomload.records import Message, no_progress
+from geomload.messages import Message, no_progress
 
 STAGING_TAG, OLD_TAG = ".partial-", ".old-"
 

@@ -89,19 +89,25 @@ def write_marker(staging: Path, case_file) -> None:
 
 
 
+_VERSIONS: dict = {}  # looked up once per process: each lookup scans the installed packages
+
+
 def software_versions() -> dict:
     """Python's and each library's version in VERSIONED (``"not installed"`` when absent): the
-    record of what computed a run (RunResult.versions, the report)."""
-    import importlib.metadata as md
-    import platform
+    record of what computed a run (RunResult.versions, the report). Looked up once per process
+    (a run computes its coarser error-bar lattices too); each call returns a new dict."""
+    if not _VERSIONS:
+        import importlib.metadata as md
+        import platform
 
-    out = {"python": platform.python_version()}
-    for pkg in VERSIONED:
-        try:
-            out[pkg] = md.version(pkg)
-        except md.PackageNotFoundError:
-            out[pkg] = "not installed"
-    return out
+        out = {"python": platform.python_version()}
+        for pkg in VERSIONED:
+            try:
+                out[pkg] = md.version(pkg)
+            except md.PackageNotFoundError:
+                out[pkg] = "not installed"
+        _VERSIONS.update(out)
+    return dict(_VERSIONS)
 
 
 __all__ = ["MARKER", "MARKER_KIND", "read_marker", "replaceable_reason", "write_marker",

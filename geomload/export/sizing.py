@@ -190,6 +190,8 @@ def write_sizing(folder, s: Sizing, inputs=(), plot: bool = True) -> list:
     if plot:
         from matplotlib.figure import Figure
 
+        from geomload.export.plots import PNG_COMPRESS_LEVEL
+
         fig = Figure(figsize=(7.5, 7.5))
         axes = fig.subplots(3, 1, sharex=True)
         for ax, (v, lab) in zip(axes, ((s.cap_area_m2 * 1e6, "cap area (mm²), each cap"),
@@ -202,7 +204,8 @@ def write_sizing(folder, s: Sizing, inputs=(), plot: bool = True) -> list:
         fig.suptitle(f"Spar-sizing starting point, {s.material.name} (ultimate loads)\n"
                      "CAUTION: preliminary estimate, not a design; see sizing.csv", fontsize=9)
         with atomic_path(f / "sizing.png", inputs) as tmp:
-            fig.savefig(tmp, dpi=110)
+            fig.savefig(tmp, dpi=110, format="png",
+                        pil_kwargs={"compress_level": PNG_COMPRESS_LEVEL})
         paths.append(f / "sizing.png")
     return paths
 

@@ -105,12 +105,26 @@ def _cross(a, b):
 def _segment_moments(y, p, r, f):
     """Per segment j: force integral (3,) and moment integral about p[j] of the linear load
     f(eta) applied on the linear line r(eta); Simpson's rule, exact for these quadratics."""
-    h = np.diff(y)[:, None]
-    fa, fb = f[:-1], f[1:]
-    ra, rb = r[:-1] - p[:-1], r[1:] - p[:-1]
-    force = 0.5 * h * (fa + fb)
-    mom = h / 6.0 * (_cross(ra, fa) + _cross(ra + rb, fa + fb) + _cross(rb, fb))
-    return force, mom
+    return _segment_moments_many(np.diff(y)[:, None], p, ((r, f),))[0]
+
+
+def _segment_moments_many(h, p, lines):
+    """Per segment j and per (r, f) of `lines`: force integral (3,) and moment integral about
+    p[j] of the linear load f(eta) applied on the linear line r(eta); Simpson's rule, exact for
+    these quadratics. h: (n-1, 1) segment lengths. Returns [(force, moment), ...] in the order
+    of `lines` (every cross product in one call: the arrays are short, the calls dominate)."""
+    arms, loads = [], []
+    for r, f in lines:
+        fa, fb = f[:-1], f[1:]
+        ra, rb = r[:-1] - p[:-1], r[1:] - p[:-1]
+        arms += [ra, ra + rb, rb]
+        loads += [fa, fa + fb, fb]
+    c = _cross(np.stack(arms), np.stack(loads))
+    out = []
+    for k, (_r, f) in enumerate(lines):
+        force = 0.5 * h * (f[:-1] + f[1:])
+        out.append((force, h / 6.0 * (c[3 * k] + c[3 * k + 1] + c[3 * k + 2])))
+    return out
 
 
 def integrate_loads(y, spar_x, spar_z, lift_N_per_m, *, drag_N_per_m=None, side_N_per_m=None,
@@ -209,13 +223,15 @@ def integrate(y, spar_x, spar_z, applied: AppliedLoads, *, case: str = "",
 
     ca, sa = np.cos(np.radians(a.alpha_deg)), np.sin(np.radians(a.alpha_deg))
     fx_aero, fz_aero = drag * ca - lift * sa, lift * ca + drag * sa
-    fa, ma = _segment_moments(y, p, np.column_stack([ax, y, az]),
-                              np.column_stack([fx_aero, side, fz_aero]))
+    dy = np.diff(y)
+    h = dy[:, None]
     bi = np.radians(a.inertia_alpha_deg)
-    fi, mi = _segment_moments(y, p, np.column_stack([ix, y, iz]),
-                              np.column_stack([q * np.sin(bi), zero, -q * np.cos(bi)]))
+    ra, fa_line = np.column_stack([ax, y, az]), np.column_stack([fx_aero, side, fz_aero])
+    ri, fi_line = (np.column_stack([ix, y, iz]),
+                   np.column_stack([q * np.sin(bi), zero, -q * np.cos(bi)]))
+    (fa, ma), (fi, mi) = _segment_moments_many(h, p, ((ra, fa_line), (ri, fi_line)))
     couple = np.zeros((n - 1, 3))
-    couple[:, 1] = 0.5 * np.diff(y) * (pitch[:-1] + pitch[1:])  # about axes parallel to y
+    couple[:, 1] = 0.5 * dy * (pitch[:-1] + pitch[1:])  # about axes parallel to y
     seg_f = fa + fi
     seg_m = ma + mi + couple
     rel = p - p[-1]
@@ -232,7 +248,8 @@ def integrate(y, spar_x, spar_z, applied: AppliedLoads, *, case: str = "",
     s, b, nrm = _shared_spar_frame(y, sx, sz)
     dot = lambda u, e: np.einsum("ij,ij->i", u, e)  # noqa: E731
     pitch_spar = pitch + (az - sz) * fx_aero - (ax - sx) * fz_aero
-    eq = _equilibrium(case, y, applied, p, force, moment) if check_equilibrium else None
+    eq = (_equilibrium(case, y, applied, p, force, moment,
+                       ((ra, fa_line), (ri, fi_line), dy)) if check_equilibrium else None)
     return SpanLoads(
         case=case, y=y, lift_N_per_m=lift, drag_N_per_m=drag, pitch_Nm_per_m=pitch_spar,
         inertia_N_per_m=q, shear_N=dot(force, nrm), bending_Nm=dot(moment, b),
@@ -276,30 +293,40 @@ def equilibrium_residual(loads: SpanLoads) -> Equilibrium:
                         loads.moment_Nm)
 
 
-def _equilibrium(case, y, a, spar_points, force_N, moment_Nm) -> Equilibrium:
-    """equilibrium_residual on the pieces of a SpanLoads (see there)."""
+def _equilibrium(case, y, a, spar_points, force_N, moment_Nm, lines=None) -> Equilibrium:
+    """equilibrium_residual on the pieces of a SpanLoads (see there). lines: the
+    ((aero line, aero force), (inertia line, inertia force), diff(y)) arrays `integrate` has
+    built already (the same values this function would build)."""
     p0 = spar_points[0]
-    al, bi = np.radians(a.alpha_deg), np.radians(a.inertia_alpha_deg)
-    lift, drag, q, side = a.lift_N_per_m, a.drag_N_per_m, a.inertia_N_per_m, a.side_N_per_m
-    zero = np.zeros_like(y)
-    fa = np.column_stack([drag * np.cos(al) - lift * np.sin(al), side,
-                          lift * np.cos(al) + drag * np.sin(al)])
-    fi = np.column_stack([q * np.sin(bi), zero, -q * np.cos(bi)])
-    ra = np.column_stack([a.load_x_m, y, a.load_z_m]) - p0
-    ri = np.column_stack([a.inertia_x_m, y, a.inertia_z_m]) - p0
-    h = np.diff(y)[:, None]
+    lift, drag, q = a.lift_N_per_m, a.drag_N_per_m, a.inertia_N_per_m
+    if lines is None:
+        al, bi = np.radians(a.alpha_deg), np.radians(a.inertia_alpha_deg)
+        zero = np.zeros_like(y)
+        fa = np.column_stack([drag * np.cos(al) - lift * np.sin(al), a.side_N_per_m,
+                              lift * np.cos(al) + drag * np.sin(al)])
+        fi = np.column_stack([q * np.sin(bi), zero, -q * np.cos(bi)])
+        ra = np.column_stack([a.load_x_m, y, a.load_z_m])
+        ri = np.column_stack([a.inertia_x_m, y, a.inertia_z_m])
+        dy = np.diff(y)
+    else:
+        (ra, fa), (ri, fi), dy = lines
+    ra, ri = ra - p0, ri - p0
+    h = dy[:, None]
     force = np.zeros(3)
     moment = np.zeros(3)
-    for r, f in ((ra, fa), (ri, fi)):
+    # integral of r x f with r and f linear between stations: h/6 (2 r0 x f0 + r0 x f1 +
+    # r1 x f0 + 2 r1 x f1) = h/6 (r0 x (2 f0 + f1) + r1 x (f0 + 2 f1)) per segment (exact);
+    # the four cross products in one call
+    c = _cross(np.stack([ra[:-1], ra[1:], ri[:-1], ri[1:]]),
+               np.stack([2.0 * fa[:-1] + fa[1:], fa[:-1] + 2.0 * fa[1:],
+                         2.0 * fi[:-1] + fi[1:], fi[:-1] + 2.0 * fi[1:]]))
+    for k, f in enumerate((fa, fi)):
         force += np.sum(0.5 * h * (f[1:] + f[:-1]), axis=0)  # trapezoid, exact for linear f
-        # integral of r x f with r and f linear between stations: h/6 (2 r0 x f0 + r0 x f1 +
-        # r1 x f0 + 2 r1 x f1) = h/6 (r0 x (2 f0 + f1) + r1 x (f0 + 2 f1)) per segment (exact)
-        moment += np.sum(h / 6.0 * (_cross(r[:-1], 2.0 * f[:-1] + f[1:])
-                                    + _cross(r[1:], f[:-1] + 2.0 * f[1:])), axis=0)
-    moment[1] += _trapz(y, a.pitch_Nm_per_m)
+        moment += np.sum(h / 6.0 * (c[2 * k] + c[2 * k + 1]), axis=0)
+    moment[1] += float(np.sum(0.5 * dy * (a.pitch_Nm_per_m[1:] + a.pitch_Nm_per_m[:-1])))
     tol = 1e-12 * max(1.0, float(y[-1] - y[0]))
-    gross = float(np.sum(0.5 * np.diff(y) * (np.abs(lift[1:]) + np.abs(lift[:-1]) + np.abs(q[1:])
-                                             + np.abs(q[:-1]) + np.abs(drag[1:]) + np.abs(drag[:-1]))))
+    gross = float(np.sum(0.5 * dy * (np.abs(lift[1:]) + np.abs(lift[:-1]) + np.abs(q[1:])
+                                     + np.abs(q[:-1]) + np.abs(drag[1:]) + np.abs(drag[:-1]))))
     for pl in a.point_loads:
         r, fv = pl.position - p0, pl.force
         if r[1] >= -tol:

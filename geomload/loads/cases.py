@@ -15,7 +15,9 @@ from geomload.aero.models import MachModels
 from geomload.aero.trim import trim_case
 from geomload.config.schema import Case
 from geomload.errors import CaseError
-from geomload.records import CaseResult, Lattice, Stations
+from geomload.aero.records import Lattice
+from geomload.geometry.records import Stations
+from geomload.loads.case_records import CaseResult
 
 from .flight_case import applied_loads, case_loads
 from .grid import load_grid

@@ -13,7 +13,7 @@ from __future__ import annotations
 import numpy as np
 
 from geomload.errors import CaseError
-from geomload.records import Lattice
+from geomload.aero.records import Lattice
 
 from .beam import spar_line
 from .records import LoadGrid

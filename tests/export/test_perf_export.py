@@ -127,3 +127,41 @@ def test_a_dead_plot_process_costs_only_the_plots():
         job.stop()
     assert set(got) == set(plots.plot_names(run))
     assert all(isinstance(v, Exception) and "plot process" in str(v) for v in got.values())
+
+
+# ------------------------------------------------------------------ one LU per control model
+def test_control_model_build_solves_every_right_hand_side_with_the_basis():
+    """ControlModel.build (one assembly and one LU) gives the circulations of a direct LAPACK
+    solve of the assembled influence matrix (numpy.linalg.solve, the reference library), and
+    the states of the two-solve construction."""
+    import numpy as np
+
+    from helpers.aero_wings import trapezoid
+    from helpers.validation import check
+    from geomload.aero.controls import ControlSurface
+    from geomload.aero.lattice import build_lattice
+    from geomload.aero.roll import ControlModel, control_rhs
+    from geomload.aero.solve import AeroModel
+
+    st = trapezoid(8.0, 0.5)
+    ail = ControlSurface("ail", "aileron", 3.0, 4.6, 0.72, mode="antisymmetric")
+    lat = build_lattice(st, n_span=16, n_chord=6, full_span=True, controls=[ail])
+    one = ControlModel.build(lat, 0.3, [ail])
+    two = ControlModel(AeroModel(lat, mach=0.3), [ail])
+    R = control_rhs(lat, [ail])
+    assert R.shape == (lat.colloc.shape[0], 3)  # two deflection columns and the roll rate
+    assert one.model.extra_solutions.shape == R.shape
+    A = one.model._assemble()
+    ref = np.linalg.solve(A, np.hstack([one.model._rhs([0.0, 0.5 * np.pi]), R]))
+    scale = float(np.abs(ref).max())
+    check("numpy.linalg.solve of the assembled influence matrix", "control circulations",
+          0.0, float(np.abs(one._B - ref).max()) / scale, abs=1e-12)
+    s1 = one.solve(6.0, {"ail": 10.0}, 0.02)
+    s2 = two.solve(6.0, {"ail": 10.0}, 0.02)
+    check("numpy.linalg.solve of the assembled influence matrix", "CL, one LU against two",
+          s2.CL, s1.CL, rel=1e-12)
+    check("numpy.linalg.solve of the assembled influence matrix", "rolling moment",
+          s2.Cl_roll, s1.Cl_roll, rel=1e-10)
+    # a model built without the extra columns, or with other ones, still solves them itself
+    other = ControlModel(AeroModel(lat, mach=0.3, extra_rhs=R[:, :1]), [ail])
+    assert np.allclose(other._B, one._B, rtol=0, atol=1e-12 * scale)
