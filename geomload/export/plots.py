@@ -3,7 +3,8 @@
 Each `plot_*` returns a matplotlib Figure with units on every axis; `save_figure` writes it
 atomically as PNG (and SVG if asked); `make_plots` writes them all into a folder.
 Elliptic shape: l(y) = l0 sqrt(1 - (2y/b)^2) with l0 = 4 L / (pi b) (Prandtl lifting-line).
-Schrenk shape: the mean of the planform-shaped and elliptic loads of the same lift (NACA TM 948).
+Schrenk shape: the mean of the planform-shaped and elliptic loads of the same lift, plus the
+basic (twist) loading where the loads carry it (NACA TM 948).
 """
 
 from __future__ import annotations
@@ -97,8 +98,15 @@ def spanload_shapes(run, case_result):
     yy = np.linspace(0.0, semi, 101)
     ell = 4 * a.CL * S / (np.pi * b) * np.sqrt(np.clip(1 - (yy / semi) ** 2, 0, None))
     plan = a.CL * S / _planform_area(run.stations, semi) * _chord_at(run.stations, yy)
-    return {"y": y, "case": np.asarray(a.cl_c, float) * q, "y_ref": yy, "elliptic": ell * q,
-            "schrenk": 0.5 * (plan + ell) * q}
+    out = {"y": y, "case": np.asarray(a.cl_c, float) * q, "y_ref": yy, "elliptic": ell * q,
+           "schrenk": 0.5 * (plan + ell) * q, "y_schrenk": yy, "schrenk_label": "Schrenk"}
+    ld = case_result.loads
+    sw = np.asarray(getattr(ld, "schrenk_lift_N_per_m", np.nan), float)
+    if sw.shape == np.shape(ld.y) and np.all(np.isfinite(sw)):
+        # the loads' own cross-check: Schrenk with the basic (twist) loading of this case
+        out.update(schrenk=sw, y_schrenk=np.asarray(ld.y, float),
+                   schrenk_label="Schrenk with twist")
+    return out
 
 
 def _planform_area(stations, semi):
@@ -131,7 +139,8 @@ def plot_spanwise(run, case_result=None):
     sh = spanload_shapes(run, cr)
     a2.plot(sh["y"], sh["case"], "k-", marker=".", lw=1.5, label=mpl_text(f"lattice: {cr.name}"))
     a2.plot(sh["y_ref"], sh["elliptic"], "b--", lw=1.0, label="elliptic, same lift")
-    a2.plot(sh["y_ref"], sh["schrenk"], "g-.", lw=1.0, label="Schrenk, same lift")
+    a2.plot(sh["y_schrenk"], sh["schrenk"], "g-.", lw=1.0,
+            label=f"{sh['schrenk_label']}, same lift")
     a2.set_xlabel("y, spanwise (m)")
     a2.set_ylabel("running lift (N/m)")
     a2.set_title(mpl_text(f"Running lift, case {cr.name}") + "\n"

@@ -30,11 +30,20 @@ def test_reference_shapes_carry_the_same_lift(run):
     cr = run.cases[1]
     sh = plots.spanload_shapes(run, cr)
     S, q = run.lattice.s_ref, cr.q_pa
-    yy = sh["y_ref"]
-    integ = lambda f: 2 * np.sum(0.5 * (f[1:] + f[:-1]) * np.diff(yy))  # noqa: E731
+    integ = lambda f, yy=sh["y_ref"]: 2 * np.sum(0.5 * (f[1:] + f[:-1]) * np.diff(yy))  # noqa: E731
     # running loads in N/m: both sides integrate to the lift CL q S (N)
     assert integ(sh["elliptic"]) == pytest.approx(cr.aero.CL * q * S, rel=5e-3)  # sqrt edge: trapezoid
-    assert integ(sh["schrenk"]) == pytest.approx(cr.aero.CL * q * S, rel=5e-3)
+    # the loads' own Schrenk cross-check (with the twist's basic loading) is drawn as it is
+    assert np.array_equal(sh["schrenk"], cr.loads.schrenk_lift_N_per_m)
+    assert sh["schrenk_label"] == "Schrenk with twist"
+    # without it, the planform/elliptic mean of the same lift
+    import dataclasses
+
+    bare = dataclasses.replace(cr, loads=dataclasses.replace(
+        cr.loads, schrenk_lift_N_per_m=np.full_like(cr.loads.y, np.nan)))
+    sh = plots.spanload_shapes(run, bare)
+    assert sh["schrenk_label"] == "Schrenk"
+    assert integ(sh["schrenk"], sh["y_schrenk"]) == pytest.approx(cr.aero.CL * q * S, rel=5e-3)
     assert sh["elliptic"][0] == pytest.approx(4 * cr.aero.CL * q * S / (np.pi * run.lattice.b_ref))
     assert np.allclose(sh["case"], np.asarray(cr.aero.cl_c) * q)
 
