@@ -97,6 +97,10 @@ def write_all(run, folder, inputs=(), render=True, progress=None, options=None,
                 for p in handoff["files"]:
                     rec(p)
                 warnings += handoff["warnings"]
+            from geomload.export import tables
+
+            rec(tables.write_summary_json(f / "summary.json", run, inputs,
+                                          more_warnings=warnings))
             for p in vtk.write_all_vtk(f, run, inputs, surface):
                 rec(p)
             shots = plot_job.result() if plot_job is not None else plots.plot_images(run)
@@ -125,7 +129,8 @@ def write_all(run, folder, inputs=(), render=True, progress=None, options=None,
 
 def _write_tables(run, f, inputs, rec, loads) -> None:
     """stations.csv, loads/<case>.csv (an unsymmetric case: one file per side), envelope.csv,
-    vn.csv and summary.json into the run folder f; rec(path, tick_too) records each file written."""
+    vn.csv into the run folder f; rec(path, tick_too) records each file written (summary.json
+    is written after the structural hand-off, whose warnings it lists too)."""
     from geomload.export import tables
     from geomload.export.atomic import safe_name
 
@@ -149,4 +154,3 @@ def _write_tables(run, f, inputs, rec, loads) -> None:
         rec(tables.write_envelope_csv(f / "envelope.csv", run.envelope, inputs))
     if run.vn is not None:
         rec(tables.write_vn_csv(f / "vn.csv", run.vn, inputs))
-    rec(tables.write_summary_json(f / "summary.json", run, inputs))

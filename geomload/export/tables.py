@@ -337,10 +337,12 @@ def _case_kind(cr, run=None) -> dict:
     return out
 
 
-def write_summary_json(path, run_result, inputs=()):
-    """Write summary.json (see `summary`)."""
-    text = json.dumps(textsafe.json_safe(summary(run_result)), indent=1, allow_nan=False,
-                      ensure_ascii=False)
+def write_summary_json(path, run_result, inputs=(), more_warnings=()):
+    """Write summary.json (see `summary`); more_warnings: the export stage's own warnings (the
+    structural hand-off's), listed after the run's."""
+    data = summary(run_result)
+    data["warnings"] += [w for w in more_warnings if w not in data["warnings"]]
+    text = json.dumps(textsafe.json_safe(data), indent=1, allow_nan=False, ensure_ascii=False)
     return write_text_atomic(path, text + "\n", inputs)
 
 

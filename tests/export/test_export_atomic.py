@@ -324,7 +324,7 @@ def _interrupt_real_run(tmp_path, sig):
             break
         time.sleep(0.02)
     assert p.poll() is None, "the run ended before it could be interrupted"
-    time.sleep(0.3)  # into the heavy work
+    time.sleep(0.05)  # into the work (the export may take well under a second)
     p.send_signal(getattr(signal, sig))
     _, err = p.communicate(timeout=120)
     return p.returncode, err, out
