@@ -63,7 +63,7 @@ def check_spar_inside(case: Case, stations) -> None:
     line = case.spar.line
     if not line:
         return  # a chord fraction in 0..1 lies on the chord by construction
-    from geomload.loads.beam import spar_line
+    from geomload.geometry.sparline import spar_line
 
     sx, _ = spar_line(stations.y, stations.x_le, stations.x_te, stations.z_le, stations.z_te,
                       None, line)

@@ -15,7 +15,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from geomload.loads.records import PointMass
+from geomload.config.schema import PointMass
 
 from .schema import FRAMES, CadPosition, FuelTank, SparSpec
 

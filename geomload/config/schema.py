@@ -20,8 +20,8 @@ from typing import TYPE_CHECKING, Optional
 
 import numpy as np
 
-from geomload.errors import CaseError
-from geomload.loads.records import PointMass
+from geomload.errors import CaseError, InputError
+from geomload.record_checks import set_field, vector
 
 if TYPE_CHECKING:
     from .controls_parse import ControlsSpec
@@ -36,6 +36,21 @@ def _finite(where: str, **values) -> None:
     for k, v in values.items():
         if v is not None and (isinstance(v, bool) or not math.isfinite(float(v))):
             raise CaseError(f"{where}.{k}: must be a finite number, got {v!r}")
+
+
+@dataclass(frozen=True)
+class PointMass:
+    """A concentrated mass (kg) at a wing-frame position (m), on the starboard side (y >= 0)."""
+
+    name: str
+    mass: float
+    position: np.ndarray
+
+    def __post_init__(self):
+        set_field(self, "position", vector(f"point mass {self.name!r} position", self.position, 3))
+        if not (math.isfinite(self.mass) and self.mass >= 0):
+            raise InputError(f"point mass {self.name!r}: mass must be finite and >= 0")
+
 
 
 @dataclass(frozen=True)

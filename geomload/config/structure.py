@@ -57,7 +57,7 @@ class StructureSpec:
 def read_structure(t, base: Path) -> StructureSpec:
     """A StructureSpec from the case file's `[structure]` table reader `t` (config.parse._Table);
     paths relative to `base` (the case file's folder). Every error names the key."""
-    from geomload.export.sizing import MATERIALS
+    from geomload.materials import MATERIALS
 
     mesh = t.get("mesh", str)
     if mesh is not None:

@@ -19,6 +19,8 @@ import numpy as np
 from geomload.errors import InputError
 from geomload.record_checks import check_type, set_field, vector
 
+from geomload.config.schema import PointMass  # noqa: F401  (re-exported; the case file's record)
+
 from .envelope_records import (QUANTITIES, DesignSpeeds, Envelope,  # noqa: F401  (re-exported)
                                FlightPoint, GustPoint, LoadsEnvelope, VnDiagram)
 
@@ -27,20 +29,6 @@ LOAD_FACTOR_AXES = ("body", "flight-path")
 
 
 # ---------------------------------------------------------------------------------- masses
-@dataclass(frozen=True)
-class PointMass:
-    """A concentrated mass (kg) at a wing-frame position (m), on the starboard side (y >= 0)."""
-
-    name: str
-    mass: float
-    position: np.ndarray
-
-    def __post_init__(self):
-        set_field(self, "position", vector(f"point mass {self.name!r} position", self.position, 3))
-        if not (math.isfinite(self.mass) and self.mass >= 0):
-            raise InputError(f"point mass {self.name!r}: mass must be finite and >= 0")
-
-
 @dataclass(frozen=True)
 class PointLoad:
     """A concentrated force on the semi-span. position (3,) m, force (3,) N, wing frame."""
