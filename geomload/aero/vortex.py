@@ -27,10 +27,11 @@ FOUR_PI = 4.0 * np.pi
 
 
 def cross(a, b) -> np.ndarray:
-    """a x b over the last axis (length 3) of two arrays of one shape: numpy.cross's arithmetic
+    """a x b over the last axis (length 3; shapes broadcast): numpy.cross's arithmetic
     (a1 b2 - a2 b1, ...), the same result to the bit, without its per-call axis handling (the
-    trim and the steady roll call it for every state they try)."""
-    out = np.empty(a.shape)
+    trim, the steady roll and the beam integration call it for every state they try)."""
+    a, b = np.asarray(a, float), np.asarray(b, float)
+    out = np.empty(a.shape if a.shape == b.shape else np.broadcast_shapes(a.shape, b.shape))
     a0, a1, a2 = a[..., 0], a[..., 1], a[..., 2]
     b0, b1, b2 = b[..., 0], b[..., 1], b[..., 2]
     out[..., 0] = a1 * b2 - a2 * b1

@@ -19,6 +19,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from geomload.aero.vortex import cross as _cross  # component form, numpy.cross's arithmetic
 from geomload.errors import InputError
 from geomload.geometry.sparline import spar_line  # noqa: F401  (re-exported)
 
@@ -69,19 +70,6 @@ def _shared_spar_frame(y, spar_x, spar_z):
             _FRAMES.clear()
         _FRAMES[key] = hit
     return hit
-
-
-def _cross(a, b):
-    """a x b over the last axis (length 3), with numpy.cross's arithmetic (a1 b2 - a2 b1, ...)
-    but without its per-call axis handling (it is called a dozen times per load case)."""
-    a, b = np.asarray(a, float), np.asarray(b, float)
-    out = np.empty(a.shape if a.shape == b.shape else np.broadcast_shapes(a.shape, b.shape))
-    a0, a1, a2 = a[..., 0], a[..., 1], a[..., 2]
-    b0, b1, b2 = b[..., 0], b[..., 1], b[..., 2]
-    out[..., 0] = a1 * b2 - a2 * b1
-    out[..., 1] = a2 * b0 - a0 * b2
-    out[..., 2] = a0 * b1 - a1 * b0
-    return out
 
 
 def _segment_moments(y, p, r, f):
