@@ -14,20 +14,16 @@ from helpers.aircraftfactory import aircraft, fuselage, wing_with_aileron
 from geomload.errors import GeometryError
 from geomload.geometry import read_wing
 from helpers.wingfactory import write_stl  # noqa: E402
-from helpers.validation import check
+from helpers.validation import NACA_STATIONS, STRAIGHT_TAPER, check, check_worst_station
 from helpers.wingfactory import design, expected_stations, wing_triangles
 
-NACA = "NACA Report 460 / 824 equations, farthest-point chord line"
-TAPER = "straight-taper formulas (Raymer ch. 4)"
+NACA, TAPER = NACA_STATIONS, STRAIGHT_TAPER
 
 
 _stl = write_stl  # binary STL writer shared by the geometry tests
 
 
-def _worst(label, expected, measured, rel=0.0, abs=0.0):
-    e, m = np.asarray(expected, float), np.asarray(measured, float)
-    k = int(np.argmax(np.abs(m - e) / (rel * np.abs(e) + abs)))
-    check(NACA, f"{label}, worst station", e[k], m[k], rel=rel, abs=abs)
+_worst = check_worst_station  # helpers.validation: one row per distribution
 
 
 def _truth_ok(w, d, label):

@@ -15,17 +15,13 @@ import pytest
 from helpers.aircraftfactory import aircraft, fused
 from geomload.geometry import read_wing
 from geomload.geometry.fused import clip_above
-from helpers.validation import check
+from helpers.validation import NACA_STATIONS, STRAIGHT_TAPER, check, check_worst_station
 from helpers.wingfactory import expected_stations, write_stl
 
-NACA = "NACA Report 460 / 824 equations, farthest-point chord line"
-TAPER = "straight-taper formulas (Raymer ch. 4)"
+NACA, TAPER = NACA_STATIONS, STRAIGHT_TAPER
 
 
-def _worst(label, expected, measured, rel=0.0, abs=0.0):
-    e, m = np.asarray(expected, float), np.asarray(measured, float)
-    k = int(np.argmax(np.abs(m - e) / (rel * np.abs(e) + abs)))
-    check(NACA, f"{label}, worst station", e[k], m[k], rel=rel, abs=abs)
+_worst = check_worst_station  # helpers.validation: one row per distribution
 
 
 @pytest.fixture(scope="module")

@@ -16,19 +16,15 @@ from click.testing import CliRunner
 
 from geomload.geometry import read_wing
 from helpers.aircraftfactory import aircraft, fused, fuselage, panel
-from helpers.validation import check
+from helpers.validation import NACA_STATIONS, STRAIGHT_TAPER, check, check_worst_station
 from helpers.wingcopies import port_of
 from helpers.wingfactory import design, expected_stations, wing_triangles, write_stl
 
-NACA = "NACA Report 460 / 824 equations, farthest-point chord line"
-TAPER = "straight-taper formulas (Raymer ch. 4)"
+NACA, TAPER = NACA_STATIONS, STRAIGHT_TAPER
 CAPSULE = "fuselage radius of the generated capsule"
 
 
-def _worst(label, expected, measured, rel=0.0, abs=0.0):
-    e, m = np.asarray(expected, float), np.asarray(measured, float)
-    k = int(np.argmax(np.abs(m - e) / (rel * np.abs(e) + abs)))
-    check(NACA, f"{label}, worst station", e[k], m[k], rel=rel, abs=abs)
+_worst = check_worst_station  # helpers.validation: one row per distribution
 
 
 @pytest.fixture(scope="module")

@@ -62,3 +62,20 @@ def markdown() -> str:
     out.append("")
     out.append(f"{len(ROWS)} checks, {sum(not r['ok'] for r in ROWS)} failing.")
     return "\n".join(out) + "\n"
+
+
+NACA_STATIONS = "NACA Report 460 / 824 equations, farthest-point chord line"
+"""Source of the generated wings' section truth (helpers.wingfactory)."""
+STRAIGHT_TAPER = "straight-taper formulas (Raymer ch. 4)"
+"""Source of the generated wings' planform truth."""
+
+
+def check_worst_station(label, expected, measured, rel=0.0, abs=0.0,
+                        source=NACA_STATIONS):
+    """`check` at the station where measured is farthest from expected, in units of the
+    tolerance (rel x |expected| + abs): one row for a whole spanwise distribution."""
+    import numpy as np
+
+    e, m = np.asarray(expected, float), np.asarray(measured, float)
+    k = int(np.argmax(np.abs(m - e) / (rel * np.abs(e) + abs)))
+    check(source, f"{label}, worst station", e[k], m[k], rel=rel, abs=abs)
