@@ -71,7 +71,14 @@ def parse_vary(spec: str) -> tuple:
     if any(not r for r in raws):
         raise VaryError(f"--vary {key}: empty value in {rest!r}")
     parse_key(key)
-    return key, [(r, parse_value(r)) for r in raws]
+    pairs = [(r, parse_value(r)) for r in raws]
+    for i, (r, v) in enumerate(pairs):  # the same value twice would run the same variant twice
+        for r2, v2 in pairs[:i]:
+            numbers = all(isinstance(x, (int, float)) and not isinstance(x, bool) for x in (v, v2))
+            if (numbers or type(v) is type(v2)) and v == v2:
+                raise VaryError(f"--vary {key}: the value {r2} is given twice ({r2!r} and "
+                                f"{r!r}); each value runs once")
+    return key, pairs
 
 
 def parse_key(key: str) -> list:

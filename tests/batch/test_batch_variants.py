@@ -75,6 +75,7 @@ def test_array_of_tables_by_number(tmp_path):
     ("aircraft.gross_mass_kg=20,,22", "empty value"),
     ("aircraft.first_flight=1979-05-27", "cannot write a value of type date"),
     ("geometry.file=42", "a file name is needed, got int 42"),
+    ("aircraft.gross_mass_kg=20,22,20.0", "the value 20 is given twice"),
 ])
 def test_bad_vary(tmp_path, spec, words):
     case = small_case(tmp_path)
