@@ -28,3 +28,20 @@ def snapshot(folder) -> dict:
 
 
 __all__ = ["snapshot", "leftovers"]
+
+
+def refused_run(case, out):
+    """`geomload run CASE --out OUT --no-render` in a child process that must refuse the case:
+    exit 1, one stderr line, no traceback. Returns that line."""
+    import subprocess
+    import sys
+
+    from helpers.paths import ROOT
+
+    p = subprocess.run([sys.executable, "-m", "geomload.cli", "run", str(case), "--out",
+                        str(out), "--no-render"], capture_output=True, text=True,
+                       env={"PYTHONPATH": str(ROOT), "PATH": "/usr/bin:/bin"}, timeout=300)
+    assert p.returncode == 1, p.stderr
+    lines = [ln for ln in p.stderr.splitlines() if ln.strip()]
+    assert len(lines) == 1 and "Traceback" not in p.stderr, p.stderr
+    return lines[0]

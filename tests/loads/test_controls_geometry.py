@@ -7,6 +7,7 @@ lies at x/c = hinge + gap of the design chord, from y = 1.0 + end gap to 1.6 - e
 """
 
 from __future__ import annotations
+from helpers.nothinglost import refused_run
 from helpers.paths import ROOT
 
 import dataclasses
@@ -168,12 +169,7 @@ def test_body_that_is_not_a_control_surface_one_line_exit_1_nothing_written(tmp_
     # known only once the CAD is read: the run refuses it before writing anything
     case = _case(tmp_path, stl, "geometry_body = 2")
     out = tmp_path / "out"
-    p = subprocess.run([sys.executable, "-m", "geomload.cli", "run", str(case), "--out",
-                        str(out), "--no-render"], capture_output=True, text=True,
-                       env={"PYTHONPATH": str(ROOT), "PATH": "/usr/bin:/bin"}, timeout=300)
-    assert p.returncode == 1, p.stderr
-    lines = [ln for ln in p.stderr.splitlines() if ln.strip()]
-    assert len(lines) == 1 and "Traceback" not in p.stderr, p.stderr
+    lines = [refused_run(case, out)]  # exit 1, one line, no traceback
     assert "control_surface[1].geometry_body: body 2 is not a control surface" in lines[0]
     assert str(case) in lines[0] and "bodies found: 5" in lines[0], lines[0]
     assert not out.exists()
