@@ -45,7 +45,7 @@ def _warnings(texts) -> list:
     return [Message("warning", t) for t in texts]
 
 
-def compute(case, progress=None, cache=None, error_bars=False) -> RunResult:
+def compute(case, progress=None, cache=None, error_bars=False, detail=True) -> RunResult:
     """Run every case of a Case in memory. Returns a RunResult (nothing is written).
 
     error_bars: also estimate the discretization error of every case's root loads and of the
@@ -57,6 +57,10 @@ def compute(case, progress=None, cache=None, error_bars=False) -> RunResult:
     kept under its geometry specification and file state, the lattice under that and its
     lattice specification, each factorised aero model under the lattice and its Mach. A second
     compute of the same geometry and lattice with the same cache reads and factorises nothing.
+
+    detail=False: every case's loads without their cross-checks (equilibrium, Schrenk) and no
+    envelope, lift curve or stall summary: the run the error estimate makes on each coarser
+    lattice, of which it reads only the cases' loads.
     """
     progress = progress or no_progress
     if error_bars and cache is None:
@@ -88,7 +92,7 @@ def compute(case, progress=None, cache=None, error_bars=False) -> RunResult:
         raise CaseError(f"{case.path}: no load_case and no [envelope]: nothing to run")
     check_case_names(case.path, load_cases)
     ctx = CaseContext(case, stations, models, case_grid(case, lattice), atmosphere, {},
-                      float(planform.x_mac_le), cache, lattice_key)
+                      float(planform.x_mac_le), cache, lattice_key, detail)
     results = []
     tail = case.controls is not None and case.controls.tail is not None
     messages += _warnings(unused_lift_shares(case, load_cases))
@@ -104,6 +108,11 @@ def compute(case, progress=None, cache=None, error_bars=False) -> RunResult:
         messages += _warnings(notes)
     check_case_names(case.path, results)
     timings["aero and loads"] = time.perf_counter() - t1
+    if not detail:
+        return RunResult(case_path=case.path, case_text="", case=case, wing=wing,
+                         mesh=wing.mesh, frame=wing.frame, stations=stations,
+                         planform=planform, lattice=lattice, cases=tuple(results), vn=vn,
+                         messages=tuple(messages), timings=timings)
     envelope = envelope_of([s for r in results for _, s in r.sides])
     sweep = lift_curve(models.get(results[0].mach), [r.aero.alpha_deg for r in results])
     messages += _warnings(models.warnings)

@@ -75,9 +75,16 @@ class ErrorBars:
     port: tuple = ()
 
     def of(self, name: str, side: str = "starboard"):
-        """The ErrorBar of case `name` (its `side` "starboard" or "port"), or None."""
-        return next((b for n, b in (self.port if side == "port" else self.cases) if n == name),
-                    None)
+        """The ErrorBar of case `name` (its `side` "starboard" or "port"), or None (an index
+        built on first use: tables and reports ask once per case)."""
+        index = self.__dict__.get("_index")
+        if index is None:
+            index = {}
+            for s, pairs in (("starboard", self.cases), ("port", self.port)):
+                for n, b in pairs:
+                    index.setdefault((n, s), b)  # the first, as a search in run order finds
+            object.__setattr__(self, "_index", index)
+        return index.get((name, "port" if side == "port" else "starboard"))
 
 
 def _roots(result) -> dict:
@@ -132,7 +139,8 @@ def estimate_errors(case, result, compute, cache=None) -> dict:
     ----------
     case : the parsed Case of the run.
     result : its RunResult (on the case's own lattice).
-    compute : callable compute(case, cache=...) -> RunResult (the run pipeline's).
+    compute : callable compute(case, cache=..., detail=False) -> RunResult (the run
+        pipeline's; detail=False: only the cases' loads are read).
     cache : the pipeline cache (shares the geometry read and cut and the factorised models).
 
     Returns
@@ -147,7 +155,7 @@ def estimate_errors(case, result, compute, cache=None) -> dict:
     for ns, nc in coarser_lattices(lat):
         coarse_case = dataclasses.replace(case, lattice=dataclasses.replace(lat, n_span=ns,
                                                                             n_chord=nc))
-        levels.append(_side_roots(compute(coarse_case, cache=cache)))
+        levels.append(_side_roots(compute(coarse_case, cache=cache, detail=False)))
     sides = {}
     for who, q in fine.items():
         est, order, flags = {}, {}, []
@@ -163,12 +171,14 @@ def estimate_errors(case, result, compute, cache=None) -> dict:
             if not mono:
                 flags.append(key)
         sides[who] = (q, est, order, tuple(flags))
+    by_name = {}  # case name -> its sides' (value, estimate), in run order (one pass: linear)
+    for (name, _side), (v, e, _o, _f) in sides.items():
+        by_name.setdefault(name, []).append((v, e))
     out = {}
     for (name, side), (q, est, order, flags) in sides.items():
         if side == "starboard":
             out[name] = {**est, "order": order, "not_monotone": flags,
-                         "sides": tuple((v, e) for (n, _s), (v, e, _o, _f) in sides.items()
-                                        if n == name)}
+                         "sides": tuple(by_name[name])}
     return out
 
 

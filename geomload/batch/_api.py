@@ -44,7 +44,7 @@ def compute_takes_cache() -> bool:
     return compute_takes("cache")
 
 
-def compute(case, progress=None, cache=None, error_bars=False):
+def compute(case, progress=None, cache=None, error_bars=False, detail=True):
     """Run every load case of `case` in memory; returns a RunResult.
 
     cache: a dict shared between calls in one process (same geometry, same lattice and Mach);
@@ -62,6 +62,8 @@ def compute(case, progress=None, cache=None, error_bars=False):
         if not compute_takes("error_bars"):
             raise GeomloadError("this geomload's pipeline cannot estimate error bars")
         kw["error_bars"] = True
+    if not detail:  # loads only, without their cross-checks (the error estimate's coarse runs)
+        kw["detail"] = False
     return _compute(case, progress, **kw) if kw else _compute(case, progress)
 
 

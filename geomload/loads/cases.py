@@ -44,6 +44,7 @@ class CaseContext:
     x_le_mac: float = 0.0  # x of the MAC leading edge (m): the c.g. check of the pitch trim
     cache: Optional[dict] = None  # compute()'s cache shared between calls (None: no cache)
     lattice_key: tuple = ()  # the lattice's key in that cache
+    detail: bool = True  # False: loads without their cross-checks (flight_case.case_loads)
 
     def masses_for(self, fuel_fraction: float) -> MassDistribution:
         """The MassDistribution on the grid at a fuel fraction (built once per fraction)."""
@@ -76,12 +77,15 @@ def solve_case(lc, ctx: CaseContext, wing_force_N=None) -> CaseResult:
     trimmed = trim_case(lc, case, ctx.models, ctx.atmosphere, wing_force_N)
     applied = applied_loads(grid, trimmed, ctx.models.lattice.strip_width,
                             ctx.masses_for(lc.fuel_fraction), case.point_masses)
-    loads = case_loads(grid, trimmed, applied, ctx.stations.semispan, case.ultimate_factor)
+    loads = case_loads(grid, trimmed, applied, ctx.stations.semispan, case.ultimate_factor,
+                       detail=ctx.detail)
     return CaseResult(name=lc.name, v_eas=trimmed.v_eas, v_tas=trimmed.v_tas,
                       altitude_m=lc.altitude_m, mach=trimmed.mach, q_pa=trimmed.q_pa,
                       load_factor=lc.load_factor, mass_kg=trimmed.mass_kg,
                       lift_share=lc.lift_share, aero=trimmed.solution, loads=loads,
-                      stall_warning=trimmed.stall_warning, residual=loads.equilibrium.residual)
+                      stall_warning=trimmed.stall_warning,
+                      residual=(float("nan") if loads.equilibrium is None
+                                else loads.equilibrium.residual))
 
 
 def check_case_names(case_path, cases) -> None:

@@ -85,10 +85,14 @@ def grid_twist_deg(grid: LoadGrid) -> np.ndarray:
 
 
 def case_loads(grid: LoadGrid, trimmed, applied: AppliedLoads, semispan: float,
-               ultimate_factor: float) -> SpanLoads:
+               ultimate_factor: float, detail: bool = True) -> SpanLoads:
     """Integrate the applied loads of a TrimmedCase: SpanLoads with its trim state, the
     equilibrium check, Schrenk's cross-check with the basic (twist) loading (NACA TM 948) and
-    the grid's reported rows."""
+    the grid's reported rows.
+
+    detail=False: the same integrated loads without the two cross-checks (no equilibrium
+    record, Schrenk NaN): for runs whose loads only feed a comparison (the error estimate's
+    coarser lattices), whose own lattice run carries both checks."""
     y, lift = grid.y, applied.lift_N_per_m
     half_lift = float(np.sum(0.5 * (lift[1:] + lift[:-1]) * np.diff(y)))
     trim = TrimState(CL_required=trimmed.CL_required, q_pa=trimmed.q_pa,
@@ -97,8 +101,8 @@ def case_loads(grid: LoadGrid, trimmed, applied: AppliedLoads, semispan: float,
                      mach_lattice=trimmed.mach_lattice)
     return integrate(y, grid.spar_x, grid.spar_z, applied, case=trimmed.name,
                      ultimate_factor=ultimate_factor,
-                     schrenk_lift_N_per_m=schrenk_with_twist(
+                     schrenk_lift_N_per_m=None if not detail else schrenk_with_twist(
                          y, grid.chord, semispan, half_lift, trimmed.q_pa, grid_twist_deg(grid)),
                      trim=trim, chord_m=grid.chord,
                      output_rows=None if grid.output_rows.all() else grid.output_rows,
-                     check_equilibrium=True)
+                     check_equilibrium=detail)
