@@ -10,7 +10,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from geomload.record_checks import set_field, vector
+from geomload.record_checks import fields, set_field, vector
 
 
 @dataclass(frozen=True)
@@ -99,12 +99,11 @@ class AeroSolution:
 
     def __post_init__(self):
         n, ns = np.asarray(self.gamma).size, np.asarray(self.y).size
-        for k in ("gamma", "dcp"):
-            set_field(self, k, vector(f"aero solution {k}", getattr(self, k), n))
-        for k in ("y", "chord", "cl_c", "lift_per_q", "drag_per_q", "moment_per_q"):
-            set_field(self, k, vector(f"aero solution {k}", getattr(self, k), ns))
-        for k in ("cl", "cm_c4", "cdi", "x_cp"):  # ratios: NaN where a strip carries nothing
-            set_field(self, k, vector(f"aero solution {k}", getattr(self, k), ns, finite=False))
+        fields(self, "aero solution", ("gamma", "dcp"), n)
+        fields(self, "aero solution", ("y", "chord", "cl_c", "lift_per_q", "drag_per_q",
+                                       "moment_per_q"), ns)
+        # ratios: NaN where a strip carries nothing
+        fields(self, "aero solution", ("cl", "cm_c4", "cdi", "x_cp"), ns, finite=False)
 
 
 __all__ = ["Lattice", "AeroSolution"]

@@ -59,11 +59,13 @@ _FRAMES_KEEP = 8  # shares one grid, and np.gradient costs about 0.2 ms per call
 
 
 def _shared_spar_frame(y, spar_x, spar_z):
-    """spar_frame, computed once per grid (the arrays are returned read-only and shared)."""
+    """(s, b, n, p, p - p[-1], diff(y)): spar_frame, the spar points and the segment lengths,
+    computed once per grid (the arrays are returned read-only and shared)."""
     key = (y.tobytes(), spar_x.tobytes(), spar_z.tobytes())
     hit = _FRAMES.get(key)
     if hit is None:
-        hit = spar_frame(y, spar_x, spar_z)
+        p = np.column_stack([spar_x, y, spar_z])
+        hit = (*spar_frame(y, spar_x, spar_z), p, p - p[-1], np.diff(y))
         for a in hit:
             a.setflags(write=False)
         if len(_FRAMES) >= _FRAMES_KEEP:
@@ -189,11 +191,10 @@ def integrate(y, spar_x, spar_z, applied: AppliedLoads, *, case: str = "",
                                   a.pitch_Nm_per_m, a.inertia_N_per_m)
     ax, az, ix, iz = a.load_x_m, a.load_z_m, a.inertia_x_m, a.inertia_z_m
     zero = np.zeros(n)
-    p = np.column_stack([sx, y, sz])
+    s, b, nrm, p, rel, dy = _shared_spar_frame(y, sx, sz)
 
     ca, sa = np.cos(np.radians(a.alpha_deg)), np.sin(np.radians(a.alpha_deg))
     fx_aero, fz_aero = drag * ca - lift * sa, lift * ca + drag * sa
-    dy = np.diff(y)
     h = dy[:, None]
     bi = np.radians(a.inertia_alpha_deg)
     ra, fa_line = np.column_stack([ax, y, az]), np.column_stack([fx_aero, side, fz_aero])
@@ -204,18 +205,16 @@ def integrate(y, spar_x, spar_z, applied: AppliedLoads, *, case: str = "",
     couple[:, 1] = 0.5 * dy * (pitch[:-1] + pitch[1:])  # about axes parallel to y
     seg_f = fa + fi
     seg_m = ma + mi + couple
-    rel = p - p[-1]
     force = _reverse_cumsum(seg_f)
     moment = (_reverse_cumsum(seg_m) + _reverse_cumsum(_cross(rel[:-1], seg_f))
               - _cross(rel, force))
     tol = 1e-12 * max(1.0, float(y[-1] - y[0]))
     for pl in a.point_loads:
         r, fv = pl.position, pl.force
-        on = y <= r[1] + tol
-        force[on] += fv
-        moment[on] += _cross(r[None, :] - p[on], fv[None, :])
+        k = int(np.searchsorted(y, r[1] + tol, side="right"))  # y increases: y <= r_y + tol
+        force[:k] += fv  # is the first k stations
+        moment[:k] += _cross(r[None, :] - p[:k], fv[None, :])
 
-    s, b, nrm = _shared_spar_frame(y, sx, sz)
     dot = lambda u, e: np.einsum("ij,ij->i", u, e)  # noqa: E731
     pitch_spar = pitch + (az - sz) * fx_aero - (ax - sx) * fz_aero
     eq = (_equilibrium(case, y, applied, p, force, moment,

@@ -17,7 +17,7 @@ from typing import Mapping, Optional
 import numpy as np
 
 from geomload.errors import InputError
-from geomload.record_checks import check_type, set_field, vector
+from geomload.record_checks import check_type, fields, set_field, vector
 
 from geomload.config.schema import PointMass  # noqa: F401  (re-exported; the case file's record)
 
@@ -140,9 +140,9 @@ class AppliedLoads:
 
     def __post_init__(self):
         n = np.asarray(self.lift_N_per_m).size
-        for k in ("lift_N_per_m", "drag_N_per_m", "side_N_per_m", "pitch_Nm_per_m",
-                  "load_x_m", "load_z_m", "inertia_N_per_m", "inertia_x_m", "inertia_z_m"):
-            set_field(self, k, vector(f"applied loads {k}", getattr(self, k), n))
+        fields(self, "applied loads", ("lift_N_per_m", "drag_N_per_m", "side_N_per_m",
+                                       "pitch_Nm_per_m", "load_x_m", "load_z_m",
+                                       "inertia_N_per_m", "inertia_x_m", "inertia_z_m"), n)
         set_field(self, "point_loads", tuple(self.point_loads))
         if not all(isinstance(p, PointLoad) for p in self.point_loads):
             raise InputError("applied loads: point_loads must be PointLoad records")
@@ -229,16 +229,14 @@ class SpanLoads:
 
     def __post_init__(self):
         n = np.asarray(self.y).size
-        set_field(self, "y", vector(f"span loads {self.case!r} y", self.y, n))
-        for k in ("lift_N_per_m", "drag_N_per_m", "pitch_Nm_per_m", "inertia_N_per_m") + QUANTITIES:
-            set_field(self, k, vector(f"span loads {self.case!r} {k}", getattr(self, k), n))
-        set_field(self, "schrenk_lift_N_per_m", vector(f"span loads {self.case!r} schrenk",
-                                                   self.schrenk_lift_N_per_m, n, finite=False))
-        for k in ("force_N", "moment_Nm", "axis_s", "axis_b", "axis_n", "spar_points_m"):
-            if getattr(self, k) is not None:
-                set_field(self, k, vector(f"span loads {self.case!r} {k}", getattr(self, k), n, width=3))
-        if self.chord_m is not None:
-            set_field(self, "chord_m", vector(f"span loads {self.case!r} chord_m", self.chord_m, n))
+        who = f"span loads {self.case!r}"
+        fields(self, who, ("y", "lift_N_per_m", "drag_N_per_m", "pitch_Nm_per_m",
+                           "inertia_N_per_m") + QUANTITIES
+               + (() if self.chord_m is None else ("chord_m",)), n)
+        fields(self, who, ("schrenk_lift_N_per_m",), n, finite=False)
+        fields(self, who, tuple(k for k in ("force_N", "moment_Nm", "axis_s", "axis_b",
+                                            "axis_n", "spar_points_m")
+                                if getattr(self, k) is not None), n, width=3)
         if self.output_rows is not None:
             rows = np.asarray(self.output_rows, bool)
             if rows.shape != (n,):
