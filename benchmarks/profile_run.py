@@ -9,7 +9,7 @@ Not a benchmark (run_all.py does not run it): a tool that tells the speed work w
     python benchmarks/profile_run.py stl4m             # the cached 4-million-triangle wing
     python benchmarks/profile_run.py imports           # -X importtime by top-level package
 
-The plots and 3-D renders run in child processes when a CPU is free (`export.forked`), where
+The plots and 3-D renders run in child processes when a CPU is free (`geomload.forked`), where
 the profile does not see them: the profiled run draws them in its own process (`--children`
 leaves the choice to the run).
 
@@ -117,7 +117,7 @@ def profile(argv: list, out: str | None, top: int, cpu: bool = False,
     from geomload import cli
 
     if not children:  # plots and renders in this process, where the profile sees them
-        from geomload.export import forked
+        from geomload import forked
 
         forked.parallel_pays = lambda jobs=1: False
 

@@ -20,6 +20,7 @@ import time
 from pathlib import Path
 
 from geomload.aero.atmosphere import density_and_sound
+from geomload.aero.convergence import coarse_roots, coarser_lattices
 from geomload.aero.convergence import error_bars as estimate_error_bars
 from geomload.aero.models import MachModels, cached_lattice
 from geomload.aero.sweep import lift_curve
@@ -45,7 +46,8 @@ def _warnings(texts) -> list:
     return [Message("warning", t) for t in texts]
 
 
-def compute(case, progress=None, cache=None, error_bars=False, detail=True) -> RunResult:
+def compute(case, progress=None, cache=None, error_bars=False, detail=True,
+            parallel=False) -> RunResult:
     """Run every case of a Case in memory. Returns a RunResult (nothing is written).
 
     error_bars: also estimate the discretization error of every case's root loads and of the
@@ -61,6 +63,12 @@ def compute(case, progress=None, cache=None, error_bars=False, detail=True) -> R
     detail=False: every case's loads without their cross-checks (equilibrium, Schrenk) and no
     envelope, lift curve or stall summary: the run the error estimate makes on each coarser
     lattice, of which it reads only the cases' loads.
+
+    parallel: with error_bars, compute the coarser lattices in a forked child process while this
+    one computes the run's own lattice, when a CPU is free (:func:`geomload.forked.
+    parallel_pays`); the same numbers (the same code on a copy of this process), done here
+    instead when the child fails. Only for a process that may fork (the CLI's run, not a batch
+    worker).
     """
     progress = progress or no_progress
     if error_bars and cache is None:
@@ -68,12 +76,25 @@ def compute(case, progress=None, cache=None, error_bars=False, detail=True) -> R
     timings, messages = {}, _warnings(case.warnings)
     t0 = time.perf_counter()
     wing_key, wing = case_wing(case, progress, cache)
-    stations, planform = wing.stations, wing.planform
     timings["geometry"] = time.perf_counter() - t0
     case, position_notes = resolve_positions(case, wing)
     messages += position_notes
     case, more = case_with_geometry_controls(case, wing)
     messages += _warnings(more)
+    job = _coarse_job(case, cache) if error_bars and parallel else None
+    try:
+        result = _compute_cases(case, progress, cache, detail, wing_key, wing, messages,
+                                timings)
+        return _with_error_bars(result, cache, job) if error_bars else result
+    finally:
+        if job is not None:
+            job.stop()
+
+
+def _compute_cases(case, progress, cache, detail, wing_key, wing, messages,
+                   timings) -> RunResult:
+    """compute() from the resolved case and its wing on: lattice, models, cases, envelope."""
+    stations, planform = wing.stations, wing.planform
     check_against_wing(case, stations)
     messages += _warnings(check_controls_against_wing(
         case.controls, stations.semispan, planform.mac, planform.x_mac_le, case.path))
@@ -124,13 +145,38 @@ def compute(case, progress=None, cache=None, error_bars=False, detail=True) -> R
                        planform=planform, lattice=lattice, cases=tuple(results),
                        envelope=envelope, vn=vn, alpha_sweep=sweep, messages=tuple(messages),
                        timings=timings, versions=software_versions())
-    return _with_error_bars(result, cache) if error_bars else result
+    return result
 
 
-def _with_error_bars(result, cache):
-    """The RunResult with its error bars (geomload.aero.convergence) and their warnings."""
+def _coarse_levels(case, cache) -> dict:
+    """In the forked child: the coarse lattices' root loads (plain floats), warnings silenced
+    (the parent reports the run's own)."""
+    import warnings
+
+    warnings.simplefilter("ignore")
+    return {"levels": coarse_roots(case, compute, cache)}
+
+
+def _coarse_job(case, cache):
+    """A ForkedJob computing the error estimate's coarse lattices, or None when no CPU is free
+    (or fork is unavailable): they are then computed after the run's own lattice, here."""
+    from geomload.forked import ForkedJob, parallel_pays
+
+    if not coarser_lattices(case.lattice) or not parallel_pays(1):
+        return None
+    return ForkedJob.start(_coarse_levels, (case, cache), names=("levels",),
+                           what="error estimate")
+
+
+def _with_error_bars(result, cache, job=None):
+    """The RunResult with its error bars (geomload.aero.convergence) and their warnings; the
+    coarse lattices from `job` (a ForkedJob) when it delivers them, else computed here."""
     t = time.perf_counter()
-    bars, warnings = estimate_error_bars(result.case, result, compute, cache)
+    levels = None
+    if job is not None:
+        got = job.result().get("levels")
+        levels = got if isinstance(got, list) else None  # an Exception: the child failed
+    bars, warnings = estimate_error_bars(result.case, result, compute, cache, levels)
     return dataclasses.replace(
         result, error_bars=bars, messages=result.messages + tuple(_warnings(warnings)),
         timings={**result.timings, "error estimate": time.perf_counter() - t})
@@ -152,7 +198,8 @@ def run_case_file(case_path, out_dir, force=False, render=True, progress=None):
     case = read_case_file(case_path)
     inputs = run_inputs(case.path, case)
     od = open_run_folder(out_dir, inputs, force)
-    return fill_run_folder(od, inputs, compute=lambda: compute(case, progress, error_bars=True),
+    return fill_run_folder(od, inputs, compute=lambda: compute(case, progress, error_bars=True,
+                                                          parallel=True),
                            force=force, render=render, progress=progress, t0=t0)
 
 

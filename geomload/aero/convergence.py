@@ -132,7 +132,21 @@ def coarser_lattices(lattice_spec) -> list:
     return out
 
 
-def estimate_errors(case, result, compute, cache=None) -> dict:
+def coarse_roots(case, compute, cache=None) -> list:
+    """The root loads of every side of every case on each coarser lattice
+    (:func:`coarser_lattices`): a list, one {(case name, side): {key: value}} per lattice, from
+    ``compute(case, cache=..., detail=False)`` (the run pipeline's). Plain floats: the list can
+    come back from another process."""
+    lat = case.lattice
+    levels = []
+    for ns, nc in coarser_lattices(lat):
+        coarse_case = dataclasses.replace(case, lattice=dataclasses.replace(lat, n_span=ns,
+                                                                            n_chord=nc))
+        levels.append(_side_roots(compute(coarse_case, cache=cache, detail=False)))
+    return levels
+
+
+def estimate_errors(case, result, compute, cache=None, levels=None) -> dict:
     """Discretization error estimates of every case's root loads.
 
     Parameters
@@ -142,6 +156,7 @@ def estimate_errors(case, result, compute, cache=None) -> dict:
     compute : callable compute(case, cache=..., detail=False) -> RunResult (the run
         pipeline's; detail=False: only the cases' loads are read).
     cache : the pipeline cache (shares the geometry read and cut and the factorised models).
+    levels : :func:`coarse_roots` of the case when already computed (None: computed here).
 
     Returns
     -------
@@ -149,13 +164,9 @@ def estimate_errors(case, result, compute, cache=None) -> dict:
     estimates (N, N m), "order": {key: observed order or nan}, "not_monotone": tuple of the keys
     whose convergence is not monotone (flagged: the estimate is then the larger difference)}.
     """
-    lat = case.lattice
     fine = _side_roots(result)
-    levels = []
-    for ns, nc in coarser_lattices(lat):
-        coarse_case = dataclasses.replace(case, lattice=dataclasses.replace(lat, n_span=ns,
-                                                                            n_chord=nc))
-        levels.append(_side_roots(compute(coarse_case, cache=cache, detail=False)))
+    if levels is None:
+        levels = coarse_roots(case, compute, cache)
     sides = {}
     for who, q in fine.items():
         est, order, flags = {}, {}, []
@@ -209,10 +220,11 @@ def envelope_errors(estimates: dict) -> dict:
     return out
 
 
-def error_bars(case, result, compute, cache=None) -> tuple:
+def error_bars(case, result, compute, cache=None, levels=None) -> tuple:
     """(ErrorBars, warnings): the run's error bars and one summarising warning line per
-    quantity that does not converge monotonically in some cases (not one per case)."""
-    est = estimate_errors(case, result, compute, cache)
+    quantity that does not converge monotonically in some cases (not one per case). levels:
+    :func:`coarse_roots` when already computed (None: computed here)."""
+    est = estimate_errors(case, result, compute, cache, levels)
     bars = tuple((name, ErrorBar(*(e[k] for k, _f in KEYS),
                                  order=tuple(e["order"][k] for k, _f in KEYS),
                                  not_monotone=tuple(e["not_monotone"])))
@@ -238,4 +250,4 @@ def error_bars(case, result, compute, cache=None) -> tuple:
 
 
 __all__ = ["ErrorBar", "ErrorBars", "richardson", "estimate_errors", "envelope_errors",
-           "error_bars", "coarser_lattices", "REFINE", "KEYS"]
+           "error_bars", "coarse_roots", "coarser_lattices", "REFINE", "KEYS"]

@@ -50,7 +50,7 @@ def write_all(run, folder, inputs=(), render=True, progress=None, options=None,
     """
     from geomload.export import plots, report, vtk
     from geomload.export.atomic import ResolvedInputs, sync_at_end
-    from geomload.export.forked import parallel_pays
+    from geomload.forked import parallel_pays
 
     f = Path(folder)
     f.mkdir(parents=True, exist_ok=True)

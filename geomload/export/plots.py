@@ -378,6 +378,6 @@ def _plot_images_sendable(run) -> dict:
 def start_plot_process(run):
     """`plot_images(run)` in a forked child (`forked.ForkedJob`; None where fork is unavailable):
     ``job.result()`` gives its dict, ``job.stop()`` in a finally block ends it."""
-    from geomload.export.forked import ForkedJob
+    from geomload.forked import ForkedJob
 
     return ForkedJob.start(_plot_images_sendable, (run,), plot_names(run), "plot")

@@ -350,7 +350,7 @@ def view(run_dir, case=None, screenshot=None):
 
 
 # ------------------------------------------------------------------ pictures in another process
-from geomload.export.forked import BUSY_MARGIN, ForkedJob, parallel_pays  # noqa: E402,F401
+from geomload.forked import BUSY_MARGIN, ForkedJob, parallel_pays  # noqa: E402,F401
 
 
 class RenderProcess(ForkedJob):

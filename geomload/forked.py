@@ -1,10 +1,13 @@
-"""Pictures made in a forked child process while the parent writes the other outputs.
+"""Work done in a forked child process while the parent goes on: pictures while the parent
+writes the other outputs, the error estimate's coarser lattices while it computes the run's own.
 
-The child writes no file: it sends back {name: bytes-like value or Exception} and the parent
-writes the files (so a full disk, an interrupt or an input check is handled in one place). A
-crash of the child (a segfault in VTK or OpenGL, a kill) costs only its pictures: `result()` then
-returns the reason for each expected name. Used for the 3-D renders (`render.RenderProcess`) and
-the 2-D plots (`plots.PlotProcess`).
+The child writes no file: it sends back a picklable value ({name: bytes-like value or
+Exception} for pictures) and the parent writes the files (so a full disk, an interrupt or an
+input check is handled in one place). A crash of the child (a segfault in VTK or OpenGL, a kill)
+costs only its part: `result()` then returns the reason for each expected name, and the caller
+does the work itself or reports it missing. Used for the 3-D renders
+(`export.render.RenderProcess`), the 2-D plots (`export.plots`) and the coarse lattices of the
+error estimate (`pipeline`). Lives below every stage, so each may use it.
 """
 
 from __future__ import annotations
