@@ -72,19 +72,18 @@ def decimate_soup(triangles, target: int):
     area = 0.5 * np.linalg.norm(np.cross(ts[:, 1] - ts[:, 0], ts[:, 2] - ts[:, 0]), axis=1).sum()
     area *= t.shape[0] / ts.shape[0]
     v = t.reshape(-1, 3)
-    lo, hi = np.array([v[:, k].min() for k in range(3)]), np.array([v[:, k].max() for k in range(3)])
+    from ..geometry.readers import bounds
+
+    lo, hi = bounds(t)
     h = max(float(np.sqrt(2.0 * area / max(target, 1))), 1e-12)
     dims = np.floor((hi - lo) / h).astype(np.int64) + 2
-    # the cell key, in blocks of vertices (no full-size temporaries besides the key itself):
-    # key = (q0 d1 + q1) d2 + q2 with q = floor((v - lo) / h) (non-negative: truncation)
-    inv_h = 1.0 / h
-    key = np.empty(v.shape[0], np.int64)
-    for a in range(0, v.shape[0], _KEY_BLOCK):
-        q = ((v[a:a + _KEY_BLOCK] - lo) * inv_h).astype(np.int64)
-        key[a:a + _KEY_BLOCK] = (q[:, 0] * dims[1] + q[:, 1]) * dims[2] + q[:, 2]
+    key = _cell_keys(v, lo, 1.0 / h, dims)
     n_cells = int(np.prod(dims))
     if n_cells <= DENSE_GRID_MAX:  # a counting pass over a dense grid: no sort of the vertices
-        occupied = np.bincount(key, minlength=n_cells) > 0
+        counts = np.bincount(key, minlength=n_cells)
+        occupied = counts > 0
+        cnt = counts[occupied].astype(float)  # members per cell
+        del counts
         n = int(occupied.sum())
         lut = np.cumsum(occupied, dtype=np.int64 if n >= 2 ** 31 else np.int32)
         del occupied
@@ -94,10 +93,10 @@ def decimate_soup(triangles, target: int):
     else:
         _, inv = np.unique(key, return_inverse=True)
         n = int(inv.max()) + 1
+        cnt = np.zeros(n)  # members per cell; integer counts, so block sums are exact
+        for a in range(0, inv.size, _KEY_BLOCK):
+            cnt += np.bincount(inv[a:a + _KEY_BLOCK], minlength=n)
     del key
-    cnt = np.zeros(n)  # members per cell; integer counts, so block sums are exact
-    for a in range(0, inv.size, _KEY_BLOCK):
-        cnt += np.bincount(inv[a:a + _KEY_BLOCK], minlength=n)
     # the per-cell sums in blocks, each an unbuffered ufunc.at accumulation in vertex order:
     # the same additions, in the same order, as np.bincount(inv, weights=v[:, k]) (bit for
     # bit), without its contiguous copy of a whole coordinate column (96 MB at 4 M triangles)
@@ -111,16 +110,46 @@ def decimate_soup(triangles, target: int):
     ok = (f[:, 0] != f[:, 1]) & (f[:, 1] != f[:, 2]) & (f[:, 0] != f[:, 2])
     f = f[ok]
     del inv, ok
-    s = np.sort(f, axis=1).astype(np.int64, copy=False)
+    s = np.sort(f, axis=1)  # int32 below 2**31 cells; the face key in int64
     if n ** 3 < 2 ** 62:
-        _, first = np.unique((s[:, 0] * n + s[:, 1]) * n + s[:, 2], return_index=True)
+        _, first = np.unique((s[:, 0].astype(np.int64) * n + s[:, 1]) * n + s[:, 2],
+                             return_index=True)
     else:
         _, first = np.unique(np.ascontiguousarray(s).view(np.dtype((np.void, 24))).ravel(),
                              return_index=True)
     return pts, f[np.sort(first)].astype(np.int64, copy=False)
 
 
-_KEY_BLOCK = 1 << 16  # vertices per block of the cell-key pass
+def _cell_keys(v, lo, inv_h, dims):
+    """Cell key of each vertex v (n, 3): (q0 d1 + q1) d2 + q2 with q = trunc((v - lo) / h)
+    (non-negative), in blocks of `_CELL_BLOCK` vertices through two reused buffers. The
+    products are formed in float64, exact while the grid has under 2**53 cells (integers),
+    so the keys are those of the integer formula; int64 arithmetic above that."""
+    key = np.empty(v.shape[0], np.int64)
+    exact = float(np.prod(dims.astype(float))) < 2.0 ** 53
+    d1, d2 = (float(dims[1]), float(dims[2])) if exact else (int(dims[1]), int(dims[2]))
+    f = np.empty((min(_CELL_BLOCK, v.shape[0]), 3))
+    k = np.empty(f.shape[0]) if exact else np.empty(f.shape[0], np.int64)
+    q = f if exact else np.empty(f.shape, np.int64)
+    for a in range(0, v.shape[0], _CELL_BLOCK):
+        b = min(a + _CELL_BLOCK, v.shape[0])
+        ff, kk, qq = f[:b - a], k[:b - a], q[:b - a]
+        np.subtract(v[a:b], lo, out=ff)
+        np.multiply(ff, inv_h, out=ff)
+        if exact:
+            np.trunc(ff, out=ff)
+        else:
+            qq[...] = ff  # truncation, as astype(int64)
+        np.multiply(qq[:, 0], d1, out=kk)
+        kk += qq[:, 1]
+        kk *= d2
+        kk += qq[:, 2]
+        key[a:b] = kk
+    return key
+
+
+_KEY_BLOCK = 1 << 16  # vertices per block of the count and sum passes
+_CELL_BLOCK = 1 << 13  # vertices per block of the cell-key pass (cache-sized buffers)
 DENSE_GRID_MAX = 40_000_000  # grid cells counted densely (320 MB of int64 at most)
 
 

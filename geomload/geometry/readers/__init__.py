@@ -185,6 +185,17 @@ def _to_metres(src, scale, chunk=1 << 15):
     return out, bmin, bmax
 
 
+def bounds(tris, chunk=1 << 15):
+    """Per-axis (min (3,), max (3,)) of all vertices of an (m, 3, 3) array, block by block
+    (exact; NaN propagates; (inf, -inf) when empty)."""
+    bmin, bmax = np.full(3, np.inf), np.full(3, -np.inf)
+    for a in range(0, tris.shape[0], chunk):
+        blk = np.ascontiguousarray(tris[a:a + chunk])
+        np.minimum(bmin, _axis_bound(blk, np.minimum), out=bmin)
+        np.maximum(bmax, _axis_bound(blk, np.maximum), out=bmax)
+    return bmin, bmax
+
+
 _FOLD = 64  # rows of one folding step of `_axis_bound`
 
 
