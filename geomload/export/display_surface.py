@@ -157,6 +157,9 @@ BRUTE_NEAREST_MAX = 100_000_000  # query-centre pairs up to which the nearest ce
 # direct distances in numpy (the sample: 24,000 triangles x 400 panels in about 0.05 s, x 3000
 # panels about 0.4 s); above it a k-d tree pays for its import (scipy.spatial, about 0.5 s)
 _BRUTE_CHUNK = 1 << 15  # pairs per block of the direct search (cache-sized temporaries)
+_TILE_QUERIES = 256  # queries per tile (on average) of the pruned search
+_TILE_MIN_CENTRES = 64  # fewer centres than this: every pair is measured (pruning gains little)
+_PRUNE_SLACK = 1e-9  # relative widening of a tile's distance bound, far above round-off (1e-15)
 
 
 def nearest_centre(centres, query) -> np.ndarray:
@@ -168,6 +171,13 @@ def nearest_centre(centres, query) -> np.ndarray:
         from scipy.spatial import cKDTree
 
         return cKDTree(cen).query(q)[1]
+    if cen.shape[0] < _TILE_MIN_CENTRES or q.shape[0] < 2 * _TILE_QUERIES:
+        return _nearest_brute(cen, q)
+    return _nearest_tiled(cen, q)
+
+
+def _nearest_brute(cen, q):
+    """`nearest_centre` by direct squared distances (dx*dx + dy*dy), in cache-sized blocks."""
     out = np.empty(q.shape[0], dtype=np.intp)
     step = max(1, _BRUTE_CHUNK // max(cen.shape[0], 1))
     cx, cy = cen[:, 0], cen[:, 1]
@@ -178,6 +188,43 @@ def nearest_centre(centres, query) -> np.ndarray:
         dy *= dy
         dx += dy
         out[i:i + step] = np.argmin(dx, axis=1)
+    return out
+
+
+def _nearest_tiled(cen, q):
+    """`nearest_centre` with the queries grouped in square tiles: for each tile only the centres
+    that can be nearest to one of its queries are measured, with the same arithmetic.
+
+    A tile's reference centre r (the one nearest the tile's middle) bounds every query's nearest
+    squared distance by U = max over the tile of |q - r|^2; a centre farther than U from the
+    tile's box is nearer to none of them. The bound is widened by _PRUNE_SLACK (relative) so
+    that round-off cannot drop a centre whose computed distance ties the minimum; candidates
+    keep their index order, so the lowest index still wins a tie. The result is the index the
+    direct search gives, query by query.
+    """
+    m = q.shape[0]
+    lo, hi = q.min(axis=0), q.max(axis=0)
+    g = max(1, int(np.sqrt(m / _TILE_QUERIES)))
+    size = np.maximum(hi - lo, 1e-300) / g
+    t = np.minimum(((q - lo) / size).astype(np.int64), g - 1)
+    tile = t[:, 1] * g + t[:, 0]
+    order = np.argsort(tile, kind="stable")
+    starts = np.searchsorted(tile[order], np.arange(g * g + 1))
+    out = np.empty(m, dtype=np.intp)
+    cx, cy = cen[:, 0], cen[:, 1]
+    for k in range(g * g):
+        idx = order[starts[k]:starts[k + 1]]
+        if idx.size == 0:
+            continue
+        qq = q[idx]
+        b0, b1 = qq.min(axis=0), qq.max(axis=0)
+        mid = 0.5 * (b0 + b1)
+        r = int(np.argmin((mid[0] - cx) ** 2 + (mid[1] - cy) ** 2))
+        u = float((((qq[:, 0] - cx[r]) ** 2) + ((qq[:, 1] - cy[r]) ** 2)).max())
+        gx = np.maximum(np.maximum(b0[0] - cx, cx - b1[0]), 0.0)
+        gy = np.maximum(np.maximum(b0[1] - cy, cy - b1[1]), 0.0)
+        cand = np.nonzero(gx * gx + gy * gy <= u * (1.0 + _PRUNE_SLACK) + 1e-300)[0]
+        out[idx] = cand[_nearest_brute(cen[cand], qq)]
     return out
 
 
