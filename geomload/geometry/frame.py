@@ -89,7 +89,7 @@ def detect_frame_indexed(mesh, span_axis=None, up_axis=None, side=None, index=No
     tris, src = mesh.triangles, mesh.source
     notes = []
     stride = max(1, tris.shape[0] // 200_000)
-    sub = np.ascontiguousarray(tris[::stride])  # one gather; the passes below then stream
+    sub = tris[::stride]
     w = triangle_areas(sub)
     cen = (sub[:, 0] + sub[:, 1] + sub[:, 2]) / 3  # triangle centroids
     mean = (w[:, None] * cen).sum(0) / w.sum()
