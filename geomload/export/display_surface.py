@@ -72,19 +72,18 @@ def decimate_soup(triangles, target: int):
     area = 0.5 * np.linalg.norm(np.cross(ts[:, 1] - ts[:, 0], ts[:, 2] - ts[:, 0]), axis=1).sum()
     area *= t.shape[0] / ts.shape[0]
     v = t.reshape(-1, 3)
-    lo, hi = np.array([v[:, k].min() for k in range(3)]), np.array([v[:, k].max() for k in range(3)])
+    from ..geometry.readers import bounds
+
+    lo, hi = bounds(t)
     h = max(float(np.sqrt(2.0 * area / max(target, 1))), 1e-12)
     dims = np.floor((hi - lo) / h).astype(np.int64) + 2
-    # the cell key, in blocks of vertices (no full-size temporaries besides the key itself):
-    # key = (q0 d1 + q1) d2 + q2 with q = floor((v - lo) / h) (non-negative: truncation)
-    inv_h = 1.0 / h
-    key = np.empty(v.shape[0], np.int64)
-    for a in range(0, v.shape[0], _KEY_BLOCK):
-        q = ((v[a:a + _KEY_BLOCK] - lo) * inv_h).astype(np.int64)
-        key[a:a + _KEY_BLOCK] = (q[:, 0] * dims[1] + q[:, 1]) * dims[2] + q[:, 2]
+    key = _cell_keys(v, lo, 1.0 / h, dims)
     n_cells = int(np.prod(dims))
     if n_cells <= DENSE_GRID_MAX:  # a counting pass over a dense grid: no sort of the vertices
-        occupied = np.bincount(key, minlength=n_cells) > 0
+        counts = np.bincount(key, minlength=n_cells)
+        occupied = counts > 0
+        cnt = counts[occupied].astype(float)  # members per cell
+        del counts
         n = int(occupied.sum())
         lut = np.cumsum(occupied, dtype=np.int64 if n >= 2 ** 31 else np.int32)
         del occupied
@@ -94,10 +93,10 @@ def decimate_soup(triangles, target: int):
     else:
         _, inv = np.unique(key, return_inverse=True)
         n = int(inv.max()) + 1
+        cnt = np.zeros(n)  # members per cell; integer counts, so block sums are exact
+        for a in range(0, inv.size, _KEY_BLOCK):
+            cnt += np.bincount(inv[a:a + _KEY_BLOCK], minlength=n)
     del key
-    cnt = np.zeros(n)  # members per cell; integer counts, so block sums are exact
-    for a in range(0, inv.size, _KEY_BLOCK):
-        cnt += np.bincount(inv[a:a + _KEY_BLOCK], minlength=n)
     # the per-cell sums in blocks, each an unbuffered ufunc.at accumulation in vertex order:
     # the same additions, in the same order, as np.bincount(inv, weights=v[:, k]) (bit for
     # bit), without its contiguous copy of a whole coordinate column (96 MB at 4 M triangles)
@@ -111,16 +110,46 @@ def decimate_soup(triangles, target: int):
     ok = (f[:, 0] != f[:, 1]) & (f[:, 1] != f[:, 2]) & (f[:, 0] != f[:, 2])
     f = f[ok]
     del inv, ok
-    s = np.sort(f, axis=1).astype(np.int64, copy=False)
+    s = np.sort(f, axis=1)  # int32 below 2**31 cells; the face key in int64
     if n ** 3 < 2 ** 62:
-        _, first = np.unique((s[:, 0] * n + s[:, 1]) * n + s[:, 2], return_index=True)
+        _, first = np.unique((s[:, 0].astype(np.int64) * n + s[:, 1]) * n + s[:, 2],
+                             return_index=True)
     else:
         _, first = np.unique(np.ascontiguousarray(s).view(np.dtype((np.void, 24))).ravel(),
                              return_index=True)
     return pts, f[np.sort(first)].astype(np.int64, copy=False)
 
 
-_KEY_BLOCK = 1 << 16  # vertices per block of the cell-key pass
+def _cell_keys(v, lo, inv_h, dims):
+    """Cell key of each vertex v (n, 3): (q0 d1 + q1) d2 + q2 with q = trunc((v - lo) / h)
+    (non-negative), in blocks of `_CELL_BLOCK` vertices through two reused buffers. The
+    products are formed in float64, exact while the grid has under 2**53 cells (integers),
+    so the keys are those of the integer formula; int64 arithmetic above that."""
+    key = np.empty(v.shape[0], np.int64)
+    exact = float(np.prod(dims.astype(float))) < 2.0 ** 53
+    d1, d2 = (float(dims[1]), float(dims[2])) if exact else (int(dims[1]), int(dims[2]))
+    f = np.empty((min(_CELL_BLOCK, v.shape[0]), 3))
+    k = np.empty(f.shape[0]) if exact else np.empty(f.shape[0], np.int64)
+    q = f if exact else np.empty(f.shape, np.int64)
+    for a in range(0, v.shape[0], _CELL_BLOCK):
+        b = min(a + _CELL_BLOCK, v.shape[0])
+        ff, kk, qq = f[:b - a], k[:b - a], q[:b - a]
+        np.subtract(v[a:b], lo, out=ff)
+        np.multiply(ff, inv_h, out=ff)
+        if exact:
+            np.trunc(ff, out=ff)
+        else:
+            qq[...] = ff  # truncation, as astype(int64)
+        np.multiply(qq[:, 0], d1, out=kk)
+        kk += qq[:, 1]
+        kk *= d2
+        kk += qq[:, 2]
+        key[a:b] = kk
+    return key
+
+
+_KEY_BLOCK = 1 << 16  # vertices per block of the count and sum passes
+_CELL_BLOCK = 1 << 13  # vertices per block of the cell-key pass (cache-sized buffers)
 DENSE_GRID_MAX = 40_000_000  # grid cells counted densely (320 MB of int64 at most)
 
 
@@ -128,6 +157,9 @@ BRUTE_NEAREST_MAX = 100_000_000  # query-centre pairs up to which the nearest ce
 # direct distances in numpy (the sample: 24,000 triangles x 400 panels in about 0.05 s, x 3000
 # panels about 0.4 s); above it a k-d tree pays for its import (scipy.spatial, about 0.5 s)
 _BRUTE_CHUNK = 1 << 15  # pairs per block of the direct search (cache-sized temporaries)
+_TILE_QUERIES = 256  # queries per tile (on average) of the pruned search
+_TILE_MIN_CENTRES = 64  # fewer centres than this: every pair is measured (pruning gains little)
+_PRUNE_SLACK = 1e-9  # relative widening of a tile's distance bound, far above round-off (1e-15)
 
 
 def nearest_centre(centres, query) -> np.ndarray:
@@ -139,6 +171,13 @@ def nearest_centre(centres, query) -> np.ndarray:
         from scipy.spatial import cKDTree
 
         return cKDTree(cen).query(q)[1]
+    if cen.shape[0] < _TILE_MIN_CENTRES or q.shape[0] < 2 * _TILE_QUERIES:
+        return _nearest_brute(cen, q)
+    return _nearest_tiled(cen, q)
+
+
+def _nearest_brute(cen, q):
+    """`nearest_centre` by direct squared distances (dx*dx + dy*dy), in cache-sized blocks."""
     out = np.empty(q.shape[0], dtype=np.intp)
     step = max(1, _BRUTE_CHUNK // max(cen.shape[0], 1))
     cx, cy = cen[:, 0], cen[:, 1]
@@ -149,6 +188,43 @@ def nearest_centre(centres, query) -> np.ndarray:
         dy *= dy
         dx += dy
         out[i:i + step] = np.argmin(dx, axis=1)
+    return out
+
+
+def _nearest_tiled(cen, q):
+    """`nearest_centre` with the queries grouped in square tiles: for each tile only the centres
+    that can be nearest to one of its queries are measured, with the same arithmetic.
+
+    A tile's reference centre r (the one nearest the tile's middle) bounds every query's nearest
+    squared distance by U = max over the tile of |q - r|^2; a centre farther than U from the
+    tile's box is nearer to none of them. The bound is widened by _PRUNE_SLACK (relative) so
+    that round-off cannot drop a centre whose computed distance ties the minimum; candidates
+    keep their index order, so the lowest index still wins a tie. The result is the index the
+    direct search gives, query by query.
+    """
+    m = q.shape[0]
+    lo, hi = q.min(axis=0), q.max(axis=0)
+    g = max(1, int(np.sqrt(m / _TILE_QUERIES)))
+    size = np.maximum(hi - lo, 1e-300) / g
+    t = np.minimum(((q - lo) / size).astype(np.int64), g - 1)
+    tile = t[:, 1] * g + t[:, 0]
+    order = np.argsort(tile, kind="stable")
+    starts = np.searchsorted(tile[order], np.arange(g * g + 1))
+    out = np.empty(m, dtype=np.intp)
+    cx, cy = cen[:, 0], cen[:, 1]
+    for k in range(g * g):
+        idx = order[starts[k]:starts[k + 1]]
+        if idx.size == 0:
+            continue
+        qq = q[idx]
+        b0, b1 = qq.min(axis=0), qq.max(axis=0)
+        mid = 0.5 * (b0 + b1)
+        r = int(np.argmin((mid[0] - cx) ** 2 + (mid[1] - cy) ** 2))
+        u = float((((qq[:, 0] - cx[r]) ** 2) + ((qq[:, 1] - cy[r]) ** 2)).max())
+        gx = np.maximum(np.maximum(b0[0] - cx, cx - b1[0]), 0.0)
+        gy = np.maximum(np.maximum(b0[1] - cy, cy - b1[1]), 0.0)
+        cand = np.nonzero(gx * gx + gy * gy <= u * (1.0 + _PRUNE_SLACK) + 1e-300)[0]
+        out[idx] = cand[_nearest_brute(cen[cand], qq)]
     return out
 
 

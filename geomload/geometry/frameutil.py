@@ -36,9 +36,16 @@ def root_cap_normal(tris, y_hat, tol, with_area=False):
     """
     if tris.shape[0] == 0:
         return None
-    yv = tris @ y_hat  # (m, 3)
+    i = int(np.argmax(np.abs(y_hat)))
+    if abs(y_hat[i]) == 1.0 and np.count_nonzero(y_hat) == 1:  # a CAD axis: the coordinate
+        yv = tris[:, :, i] if y_hat[i] > 0 else -tris[:, :, i]  # itself (the product's value)
+    else:
+        yv = tris @ y_hat  # (m, 3)
     level = float(yv.min())
-    near = np.nonzero(np.abs(yv - level).max(1) < tol)[0]
+    # yv >= level, so |yv - level| of a triangle's farthest vertex is max(yv) - level (rounding
+    # is monotonic: the same comparison as the largest of the three differences)
+    top = np.maximum(np.maximum(yv[:, 0], yv[:, 1]), yv[:, 2])
+    near = np.nonzero(top - level < tol)[0]
     if near.size == 0:
         return None
     t = tris[near]

@@ -15,6 +15,7 @@ from __future__ import annotations
 import numpy as np
 
 _CHUNK = 1 << 13  # triangles per block of the bounds pass (stays in cache)
+_KEY_CHUNK = 1 << 16  # triangles per block of the bucket-key pass
 _MAX_BUCKETS = 8192
 _MIN_COS = 1e-3  # |n . e| below this: treat the plane as parallel to the axis (take everything)
 
@@ -54,13 +55,30 @@ class SpanIndex:
         self._box = None
         self.s_min = float(lo.min()) if m else 0.0
         self.s_max = float(hi.max()) if m else 0.0
-        self.h_max = float((hi - lo).max()) if m else 0.0
         nb = int(min(_MAX_BUCKETS, max(1, m // 64)))
         self.width = max(self.s_max - self.s_min, 1e-300) / nb
         self.nb = nb
-        key = self._bucket(lo).astype(np.int16)
+        # bucket keys, counts and the largest extent in blocks (no full-size temporaries); the
+        # same elementwise operations as `_bucket`, and exact integer counts and maxima
+        key = np.empty(m, np.int16)
+        counts = np.zeros(nb, np.int64)
+        h_max = 0.0
+        t = np.empty(min(m, _KEY_CHUNK))
+        for a in range(0, m, _KEY_CHUNK):
+            b = min(a + _KEY_CHUNK, m)
+            u = t[:b - a]
+            np.subtract(hi[a:b], lo[a:b], out=u)
+            h_max = max(h_max, float(u.max()))
+            np.subtract(lo[a:b], self.s_min, out=u)
+            np.divide(u, self.width, out=u)
+            np.floor(u, out=u)
+            np.clip(u, 0, nb - 1, out=u)
+            k = key[a:b]
+            k[...] = u
+            counts += np.bincount(k, minlength=nb)
+        self.h_max = h_max
         self.order = np.argsort(key, kind="stable")  # radix sort for 16-bit keys
-        self.starts = np.concatenate([[0], np.cumsum(np.bincount(key, minlength=nb))])
+        self.starts = np.concatenate([[0], np.cumsum(counts)])
 
     @property
     def box(self):

@@ -170,17 +170,47 @@ def _to_metres(src, scale, chunk=1 << 15):
 
     Blocks of `chunk` triangles are converted and their bounds taken while in cache; the
     product is formed in float64 (a float32 STL value times the unit factor, rounded once).
+    A source with a `blocks(chunk)` method (a binary STL on disk) is read through it.
     """
     m = src.shape[0]
     out = np.empty(src.shape, np.float64)
     bmin, bmax = np.full(3, np.inf), np.full(3, -np.inf)
-    for a in range(0, m, chunk):
-        blk = out[a:a + chunk]
-        np.multiply(src[a:a + chunk], scale, out=blk, dtype=np.float64)
-        for i in range(3):  # per axis: NaN propagates through min/max; inf shows in them
-            bmin[i] = np.minimum(bmin[i], blk[:, :, i].min())
-            bmax[i] = np.maximum(bmax[i], blk[:, :, i].max())
+    blocks = (src.blocks(chunk) if hasattr(src, "blocks")
+              else ((a, src[a:a + chunk]) for a in range(0, m, chunk)))
+    for a, s in blocks:
+        blk = out[a:a + s.shape[0]]
+        np.multiply(s, scale, out=blk, dtype=np.float64)
+        np.minimum(bmin, _axis_bound(blk, np.minimum), out=bmin)
+        np.maximum(bmax, _axis_bound(blk, np.maximum), out=bmax)
     return out, bmin, bmax
+
+
+def bounds(tris, chunk=1 << 15):
+    """Per-axis (min (3,), max (3,)) of all vertices of an (m, 3, 3) array, block by block
+    (exact; NaN propagates; (inf, -inf) when empty)."""
+    bmin, bmax = np.full(3, np.inf), np.full(3, -np.inf)
+    for a in range(0, tris.shape[0], chunk):
+        blk = np.ascontiguousarray(tris[a:a + chunk])
+        np.minimum(bmin, _axis_bound(blk, np.minimum), out=bmin)
+        np.maximum(bmax, _axis_bound(blk, np.maximum), out=bmax)
+    return bmin, bmax
+
+
+_FOLD = 64  # rows of one folding step of `_axis_bound`
+
+
+def _axis_bound(blk, op):
+    """Per-axis op-reduction (np.minimum / np.maximum) of a C-contiguous (k, 3, 3) block.
+
+    The flat block is folded as (64, L / 64) rows and reduced over the rows (contiguous,
+    vectorised) while its length allows (a multiple of 3 * 64 keeps every column on one axis);
+    the short rest is reduced as (n, 3). Min and max are exact and propagate NaN, so the
+    result does not depend on the folding.
+    """
+    v = blk.reshape(-1)
+    while v.size > 3 * _FOLD and v.size % (3 * _FOLD) == 0:
+        v = op.reduce(v.reshape(_FOLD, -1), axis=0)
+    return op.reduce(v.reshape(-1, 3), axis=0)
 
 
 def triangle_areas(tris: np.ndarray) -> np.ndarray:

@@ -51,6 +51,27 @@ class BinaryStl:
                                 f"was read: {rec.shape[0]} of {n} triangles at {start})")
         return rec["v"]
 
+    def blocks(self, chunk):
+        """Yield (start, vertices (k, 3, 3) float32) of successive blocks of `chunk` triangles,
+        read from one open file into one reused buffer (no allocation or page faults per block;
+        each view is valid until the next block is read)."""
+        m = self.shape[0]
+        buf = np.empty(min(chunk, m), STL_RECORD)
+        try:
+            with open(self.path, "rb") as f:
+                f.seek(84)
+                for a in range(0, m, chunk):
+                    n = min(chunk, m - a)
+                    rec = buf[:n]
+                    got = f.readinto(rec.view(np.uint8))
+                    if got != n * STL_RECORD.itemsize:
+                        raise GeometryError(
+                            f"{self.path}: truncated binary STL (the file changed while it was "
+                            f"read: {got // STL_RECORD.itemsize} of {n} triangles at {a})")
+                    yield a, rec["v"]
+        except OSError as exc:
+            raise InputError(f"{self.path}: cannot be read ({exc.strerror or exc})") from None
+
     def astype(self, dtype, copy=True):
         return self[:].astype(dtype)
 
