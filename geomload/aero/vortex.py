@@ -140,12 +140,16 @@ class HorseshoeSet:
 
     The pair terms are written as small matrix products (r0 . (P - A) = P . r0 - A . r0,
     |P - A|^2 = |P|^2 - 2 P . A + |A|^2, (r0 x (P - A)) . n = r0 . (P x n) - n . (r0 x A))
-    after shifting the origin to the lattice centre; rows are done in chunks on a few threads.
+    after shifting the origin to the lattice centre (or to `centre`, (3,) m: the expanded
+    distances lose digits with the shift, so two sets whose results are compared use the same
+    one); rows are done in chunks on a few threads.
     """
 
-    def __init__(self, nodes, core, x_scale=1.0, mirror=False, budget=1 << 16):
+    def __init__(self, nodes, core, x_scale=1.0, mirror=False, budget=1 << 16, centre=None):
         nodes = np.asarray(nodes, float)
-        self.centre = 0.5 * (nodes.reshape(-1, 3).min(0) + nodes.reshape(-1, 3).max(0))
+        if centre is None:
+            centre = 0.5 * (nodes.reshape(-1, 3).min(0) + nodes.reshape(-1, 3).max(0))
+        self.centre = np.asarray(centre, float).reshape(3)
         q = nodes - self.centre
         self.ns, self.nc = q.shape[0] - 1, q.shape[1]
         a = q[:-1].reshape(-1, 3)
@@ -254,6 +258,26 @@ class HorseshoeSet:
         self._rows(m, job)
         return A
 
+    def normalwash_pair(self, points, normals):
+        """The two influence matrices (m, n) of a mirror-symmetric wing split into symmetric and
+        antisymmetric parts: A_self + A_image and A_self - A_image (A_image: the horseshoes'
+        mirror images in y = 0 carrying the same circulation, as `normalwash` with mirror).
+        One evaluation of each part serves both."""
+        pts = np.asarray(points, float) - self.centre
+        nrm = np.asarray(normals, float)
+        m = pts.shape[0]
+        plus, minus = np.empty((m, self.n)), np.empty((m, self.n))
+
+        def job(i0, i1):
+            own = self._wash_chunk(pts[i0:i1], nrm[i0:i1])
+            img = self._wash_chunk(_mirror(pts[i0:i1] + self.centre) - self.centre,
+                                   _mirror(nrm[i0:i1]))
+            np.add(own, img, out=plus[i0:i1])
+            np.subtract(own, img, out=minus[i0:i1])
+
+        self._rows(m, job)
+        return plus, minus
+
     def _vel_chunk(self, p, ops, exclude):
         """Velocity (m, 3, kg) at centred points p. With (r0 x (P - A))_c = [P, 1] . op_c,j the
         sums over horseshoes j become one matrix product k @ (op * g) per chunk, and the legs
@@ -273,11 +297,8 @@ class HorseshoeSet:
         out[:, 0] /= self.x_scale
         return out
 
-    def velocity(self, points, gammas, self_panels=False):
-        """Velocity (m, 3, k) at points (m, 3) from circulations gammas (n, k) (matrix-free).
-        self_panels: the points are the bound midpoints, point i on segment i (whose own
-        bound contribution is dropped)."""
-        pts = np.asarray(points, float) - self.centre
+    def _gamma_ops(self, gammas):
+        """The per-horseshoe operators of `_vel_chunk` for circulations gammas (n, k)."""
         g = np.asarray(gammas, float)
         g = g[:, None] if g.ndim == 1 else g
         gs = g.reshape(self.ns, self.nc, -1)
@@ -291,9 +312,30 @@ class HorseshoeSet:
         q = self.q
         leg_op = np.stack([gnode, gnode * q[:, 2:3], gnode * q[:, 1:2]], axis=1).reshape(
             len(q), -1)
-        ops = (bound_op, leg_op, kg)
+        return bound_op, leg_op, kg
+
+    def velocity(self, points, gammas, self_panels=False):
+        """Velocity (m, 3, k) at points (m, 3) from circulations gammas (n, k) (matrix-free).
+        self_panels: the points are the bound midpoints, point i on segment i (whose own
+        bound contribution is dropped)."""
+        own, img = self._velocity(points, gammas, self_panels, self.mirror)
+        if img is not None:
+            own += img
+        return own
+
+    def velocity_parts(self, points, gammas, self_panels=False):
+        """(own, image): the velocities (m, 3, k) at points (m, 3) induced by the horseshoes
+        with circulations gammas (n, k) and by their mirror images in y = 0 carrying the same
+        circulations, kept apart (`velocity` with mirror is their sum)."""
+        return self._velocity(points, gammas, self_panels, True)
+
+    def _velocity(self, points, gammas, self_panels, images):
+        pts = np.asarray(points, float) - self.centre
+        ops = self._gamma_ops(gammas)
+        kg = ops[2]
         m = pts.shape[0]
         out = np.empty((m, 3, kg))
+        img = np.empty((m, 3, kg)) if images else None
 
         def job(i0, i1):
             ex = None
@@ -301,14 +343,14 @@ class HorseshoeSet:
                 r = np.arange(i1 - i0)
                 ex = (r, r + i0)
             out[i0:i1] = self._vel_chunk(pts[i0:i1], ops, ex)
-            if self.mirror:
+            if images:
                 mp = _mirror(pts[i0:i1] + self.centre) - self.centre
                 v = self._vel_chunk(mp, ops, None)
                 v[:, 1] *= -1.0
-                out[i0:i1] += v
+                img[i0:i1] = v
 
         self._rows(m, job)
-        return out
+        return out, img
 
 
 def trefftz_wash_matrix(y_nodes, z_nodes, y_eval, z_eval, ny_eval, nz_eval):
