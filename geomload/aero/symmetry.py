@@ -15,7 +15,8 @@ which are the starboard ones' images), so with u = g_s + g_m and v = g_s - g_m
 for every right-hand side (deflections on one side, antisymmetric ailerons, roll rate): two
 LU factorisations of half the size (a quarter of the work of one of the full size) and half
 the pair evaluations of the full assembly. It is the same linear system, so the solution is
-the full-span one up to round-off.
+the full-span one up to round-off (the starboard and the port influences are computed term
+by term as for the whole span, see `MirrorSolver`).
 
 The lattice qualifies only when its starboard and port panels are exact mirror images
 (`mirror_split`): a surface on one side only moves that side's strip edges
@@ -34,7 +35,7 @@ MIN_PANELS = 1000  # full-span panels from which the split is used. It makes mir
 # LU left them 1e-10 apart, so the envelope's governing case of such a tie is then the first in
 # case order instead of the one round-off favoured. Below this size (the sample's 800-panel
 # control lattice) the whole-span solve is kept, so the stored sample run keeps its case names;
-# 0 uses the split everywhere (measured at 800 panels: 0.27 -> 0.12 s CPU per model).
+# 0 uses the split everywhere (measured at 800 panels: 0.10 -> 0.05 s CPU per control model).
 
 
 def mirror_split(lattice, min_panels=None):
@@ -59,26 +60,28 @@ def mirror_split(lattice, min_panels=None):
 
 
 class MirrorSolver:
-    """Solutions and induced velocities of a mirror-symmetric full-span lattice through its
-    starboard half and the half's images (see the module docstring).
+    """Solutions and induced velocities of a mirror-symmetric full-span lattice through its two
+    half-span systems (see the module docstring).
 
     lattice : the full-span Lattice; split : `mirror_split(lattice)`; stretch : (3,) the
     Prandtl-Glauert scaling of the coordinates; core : vortex core radius (m); beta : the
     Prandtl-Glauert factor (the x velocity is divided by it).
+
+    The starboard and the port horseshoes are two sets with the whole span's centre, evaluated
+    at the starboard points only: every term is computed as the whole-span set computes it, so
+    the two solutions differ by the round-off of the two factorisations alone.
     """
 
     def __init__(self, lattice, split, stretch, core: float, beta: float):
         self.stb, self.mir = split
         ns, nc = lattice.n_span, lattice.n_chord
         h = ns // 2
-        a = lattice.bound_a.reshape(ns, nc, 3)[h:]
-        b = lattice.bound_b.reshape(ns, nc, 3)[-1:]
-        nodes = np.concatenate([a, b]) * stretch
-        # the centre of the whole span (y = 0): the starboard terms are then computed as the
-        # full-span set computes them and the images as it computes the port ones
-        ends = np.concatenate([lattice.bound_a, lattice.bound_b]) * stretch
-        centre = 0.5 * (ends.min(0) + ends.max(0))
-        self.hs = vortex.HorseshoeSet(nodes, core, x_scale=beta, mirror=True, centre=centre)
+        nodes = np.concatenate([lattice.bound_a.reshape(ns, nc, 3),
+                                lattice.bound_b.reshape(ns, nc, 3)[-1:]]) * stretch
+        centre = 0.5 * (nodes.reshape(-1, 3).min(0) + nodes.reshape(-1, 3).max(0))
+        # port strips 0..h-1 (tip to root) are panels 0..H-1; starboard strips h..ns-1
+        self.port = vortex.HorseshoeSet(nodes[:h + 1], core, x_scale=beta, centre=centre)
+        self.own = vortex.HorseshoeSet(nodes[h:], core, x_scale=beta, centre=centre)
         self.colloc = lattice.colloc[self.stb] * stretch
         self.normal = lattice.normal[self.stb]
         self.mid = 0.5 * (lattice.bound_a + lattice.bound_b)[self.stb] * stretch
@@ -87,7 +90,9 @@ class MirrorSolver:
     def solve(self, rhs, solve_dense) -> np.ndarray:
         """Circulations (N, k) for right-hand sides rhs (N, k); solve_dense(A, b) solves one
         dense half system (raises on a singular or non-finite one)."""
-        plus, minus = self.hs.normalwash_pair(self.colloc, self.normal)
+        # column j of the port block: the mirror of starboard horseshoe j (panel mir[j])
+        plus, minus = self.own.normalwash_sum_diff(self.port, self.colloc, self.normal,
+                                                   self.mir)
         rs, rm = rhs[self.stb], rhs[self.mir]
         u = solve_dense(plus, rs + rm)
         del plus
@@ -102,16 +107,20 @@ class MirrorSolver:
         g = np.asarray(gammas, float)
         g = g[:, None] if g.ndim == 1 else g
         k = g.shape[1]
-        # the starboard horseshoes carry both halves' circulations (columns [g_s, g_m]); their
-        # images then stand for the port horseshoes
-        own, img = self.hs.velocity_parts(self.mid, np.hstack([g[self.stb], g[self.mir]]),
-                                          self_panels=True)
+        h = self.stb.size
+        # at a starboard point: the circulations as they are; at a port point, seen in the
+        # mirror from its starboard twin: the two halves' circulations swapped
+        swapped = np.empty((h, k))
+        swapped[self.mir] = g[self.stb]
+        own = self.own.velocity(self.mid, np.hstack([g[self.stb], g[self.mir]]),
+                                self_panels=True)
+        port = self.port.velocity(self.mid, np.hstack([g[:h], swapped]))
+        own += port
         out = np.empty((self.n, 3, k))
-        out[self.stb] = own[:, :, :k] + img[:, :, k:]
-        # a port point is the mirror of a starboard one, where the two halves swap
-        port = own[:, :, k:] + img[:, :, :k]
-        port[:, 1] *= -1.0
-        out[self.mir] = port
+        out[self.stb] = own[:, :, :k]
+        mirrored = own[:, :, k:]
+        mirrored[:, 1] *= -1.0
+        out[self.mir] = mirrored
         return out
 
 

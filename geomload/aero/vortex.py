@@ -141,8 +141,8 @@ class HorseshoeSet:
     The pair terms are written as small matrix products (r0 . (P - A) = P . r0 - A . r0,
     |P - A|^2 = |P|^2 - 2 P . A + |A|^2, (r0 x (P - A)) . n = r0 . (P x n) - n . (r0 x A))
     after shifting the origin to the lattice centre (or to `centre`, (3,) m: the expanded
-    distances lose digits with the shift, so two sets whose results are compared use the same
-    one); rows are done in chunks on a few threads.
+    distances lose digits with the shift, so sets whose results are added use the same one);
+    rows are done in chunks on a few threads.
     """
 
     def __init__(self, nodes, core, x_scale=1.0, mirror=False, budget=1 << 16, centre=None):
@@ -258,22 +258,23 @@ class HorseshoeSet:
         self._rows(m, job)
         return A
 
-    def normalwash_pair(self, points, normals):
-        """The two influence matrices (m, n) of a mirror-symmetric wing split into symmetric and
-        antisymmetric parts: A_self + A_image and A_self - A_image (A_image: the horseshoes'
-        mirror images in y = 0 carrying the same circulation, as `normalwash` with mirror).
-        One evaluation of each part serves both."""
+    def normalwash_sum_diff(self, other, points, normals, columns):
+        """(A + B[:, columns], A - B[:, columns]), each (m, n), with A = self.normalwash and
+        B = other.normalwash at the same points (m, 3) and unit normals (m, 3), evaluated chunk
+        by chunk (neither A nor B is held whole). Both sets need the same centre and no
+        images; columns: (n,) indices into other's horseshoes."""
+        if self.mirror or other.mirror or not np.array_equal(self.centre, other.centre):
+            raise ValueError("normalwash_sum_diff: two sets without images, one centre")
         pts = np.asarray(points, float) - self.centre
         nrm = np.asarray(normals, float)
         m = pts.shape[0]
         plus, minus = np.empty((m, self.n)), np.empty((m, self.n))
 
         def job(i0, i1):
-            own = self._wash_chunk(pts[i0:i1], nrm[i0:i1])
-            img = self._wash_chunk(_mirror(pts[i0:i1] + self.centre) - self.centre,
-                                   _mirror(nrm[i0:i1]))
-            np.add(own, img, out=plus[i0:i1])
-            np.subtract(own, img, out=minus[i0:i1])
+            a = self._wash_chunk(pts[i0:i1], nrm[i0:i1])
+            b = other._wash_chunk(pts[i0:i1], nrm[i0:i1])[:, columns]
+            np.add(a, b, out=plus[i0:i1])
+            np.subtract(a, b, out=minus[i0:i1])
 
         self._rows(m, job)
         return plus, minus
@@ -297,8 +298,11 @@ class HorseshoeSet:
         out[:, 0] /= self.x_scale
         return out
 
-    def _gamma_ops(self, gammas):
-        """The per-horseshoe operators of `_vel_chunk` for circulations gammas (n, k)."""
+    def velocity(self, points, gammas, self_panels=False):
+        """Velocity (m, 3, k) at points (m, 3) from circulations gammas (n, k) (matrix-free).
+        self_panels: the points are the bound midpoints, point i on segment i (whose own
+        bound contribution is dropped)."""
+        pts = np.asarray(points, float) - self.centre
         g = np.asarray(gammas, float)
         g = g[:, None] if g.ndim == 1 else g
         gs = g.reshape(self.ns, self.nc, -1)
@@ -312,30 +316,9 @@ class HorseshoeSet:
         q = self.q
         leg_op = np.stack([gnode, gnode * q[:, 2:3], gnode * q[:, 1:2]], axis=1).reshape(
             len(q), -1)
-        return bound_op, leg_op, kg
-
-    def velocity(self, points, gammas, self_panels=False):
-        """Velocity (m, 3, k) at points (m, 3) from circulations gammas (n, k) (matrix-free).
-        self_panels: the points are the bound midpoints, point i on segment i (whose own
-        bound contribution is dropped)."""
-        own, img = self._velocity(points, gammas, self_panels, self.mirror)
-        if img is not None:
-            own += img
-        return own
-
-    def velocity_parts(self, points, gammas, self_panels=False):
-        """(own, image): the velocities (m, 3, k) at points (m, 3) induced by the horseshoes
-        with circulations gammas (n, k) and by their mirror images in y = 0 carrying the same
-        circulations, kept apart (`velocity` with mirror is their sum)."""
-        return self._velocity(points, gammas, self_panels, True)
-
-    def _velocity(self, points, gammas, self_panels, images):
-        pts = np.asarray(points, float) - self.centre
-        ops = self._gamma_ops(gammas)
-        kg = ops[2]
+        ops = (bound_op, leg_op, kg)
         m = pts.shape[0]
         out = np.empty((m, 3, kg))
-        img = np.empty((m, 3, kg)) if images else None
 
         def job(i0, i1):
             ex = None
@@ -343,14 +326,14 @@ class HorseshoeSet:
                 r = np.arange(i1 - i0)
                 ex = (r, r + i0)
             out[i0:i1] = self._vel_chunk(pts[i0:i1], ops, ex)
-            if images:
+            if self.mirror:
                 mp = _mirror(pts[i0:i1] + self.centre) - self.centre
                 v = self._vel_chunk(mp, ops, None)
                 v[:, 1] *= -1.0
-                img[i0:i1] = v
+                out[i0:i1] += v
 
         self._rows(m, job)
-        return out, img
+        return out
 
 
 def trefftz_wash_matrix(y_nodes, z_nodes, y_eval, z_eval, ny_eval, nz_eval):

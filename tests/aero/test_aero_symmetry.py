@@ -16,6 +16,10 @@ from geomload.aero.solve import AeroModel
 IMAGES = ("method of images, e.g. Katz & Plotkin, Low-Speed Aerodynamics, 2nd ed., sec. on "
           "symmetry (from memory); reference: numpy.linalg.solve of the full-span matrix")
 MACH = 0.3
+# The whole-span matrix's port rows are the mirror of its starboard rows only to round-off of
+# the kernels (about 1e-12 of the largest entry at these sizes), and the split solves the exact
+# mirror: the two solutions may differ by that much, amplified by the condition number (~100).
+ROUND_OFF = 1e-11
 
 
 def _wing():
@@ -64,9 +68,9 @@ def test_split_solve_equals_the_full_span_solve():
     g = solver.solve(R, np.linalg.solve)
     v = solver.velocity_at_bound(g_ref)
     check(IMAGES, "circulations, max difference / max |gamma| (144 panels, 7 rhs)", 0.0,
-          float(np.abs(g - g_ref).max() / np.abs(g_ref).max()), abs=1e-12)
+          float(np.abs(g - g_ref).max() / np.abs(g_ref).max()), abs=ROUND_OFF)
     check(IMAGES, "induced velocity at the bound vortices, max difference / max |v|", 0.0,
-          float(np.abs(v - v_ref).max() / np.abs(v_ref).max()), abs=1e-11)
+          float(np.abs(v - v_ref).max() / np.abs(v_ref).max()), abs=ROUND_OFF)
     stb, mir = split
     # the free stream is symmetric: both halves carry the same circulation, to the bit
     assert np.array_equal(g[stb, :2], g[mir, :2])
@@ -85,9 +89,9 @@ def test_control_model_above_the_size_threshold_uses_the_split():
     assert cm.model._split is not None
     g_ref, v_ref = _direct(lat, _rhs(lat, surfaces))
     check(IMAGES, f"control model circulations, {lat.colloc.shape[0]} panels", 0.0,
-          float(np.abs(cm._B - g_ref).max() / np.abs(g_ref).max()), abs=1e-11)
+          float(np.abs(cm._B - g_ref).max() / np.abs(g_ref).max()), abs=ROUND_OFF)
     check(IMAGES, "control model bound velocities", 0.0,
-          float(np.abs(cm._V - v_ref).max() / np.abs(v_ref).max()), abs=1e-10)
+          float(np.abs(cm._V - v_ref).max() / np.abs(v_ref).max()), abs=ROUND_OFF)
     state = cm.solve(5.0, {"ail": 8.0, "flap": 10.0}, 0.03)
     assert 0.2 < state.CL < 1.5 and state.Cl_roll != 0.0
 
