@@ -33,7 +33,7 @@ FINE, COARSE = (120, 25), (40, 10)
 
 
 def _wing():
-    from aero_wings import trapezoid
+    from helpers.aero_wings import trapezoid
 
     return trapezoid(8.0, 0.5, 20.0, camber="2412", twist_tip_deg=-2.0, dihedral_deg=4.0)
 

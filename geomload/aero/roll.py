@@ -132,12 +132,13 @@ class ControlModel:
         R = control_rhs(lat, self.controls)
         X = getattr(model, "extra_rhs", None)
         if not R.shape[1]:
-            G = R
+            G, V = R, np.zeros((R.shape[0], 3, 0))
         elif X is not None and X.shape == R.shape and np.array_equal(X, R):
-            G = model.extra_solutions  # solved with the model's basis (`build`)
+            # solved with the model's basis, their velocities with its own (`build`)
+            G, V = model.extra_solutions, model.extra_velocity
         else:
             G = model.solve_rhs(R)  # the influence matrix assembled and solved again
-        V = model.induced_at_bound(G) if R.shape[1] else np.zeros((R.shape[0], 3, 0))
+            V = model.induced_at_bound(G)
         self._B = np.hstack([model._basis, G])  # (N, K)
         self._V = np.concatenate([model._vind, V], axis=2)  # (N, 3, K)
         self._mid = 0.5 * (lat.bound_a + lat.bound_b)

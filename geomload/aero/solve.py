@@ -60,10 +60,11 @@ class AeroModel:
     extra_rhs : optional (N, k) right-hand sides solved with the two basis ones in the same
         LAPACK call (one LU instead of a second assembly and LU in `solve_rhs`), e.g. the
         control deflections and roll rate of `roll.ControlModel.build`; their solutions are kept
-        as `extra_solutions` (N, k) beside `extra_rhs`.
+        as `extra_solutions` (N, k) beside `extra_rhs`, and the velocities they induce at the
+        bound-vortex midpoints (`induced_at_bound`) as `extra_velocity` (N, 3, k).
 
-    Attributes: lattice, mach, beta, warnings (list of str), extra_rhs, extra_solutions (None
-    without extra_rhs).
+    Attributes: lattice, mach, beta, warnings (list of str), extra_rhs, extra_solutions,
+    extra_velocity (None without extra_rhs).
     """
 
     def __init__(self, lattice: Lattice, mach: float = 0.0, extra_rhs=None):
@@ -97,23 +98,38 @@ class AeroModel:
             raise AeroError("lattice: bound vortices of neighbouring strips do not share ends")
         hs = vortex.HorseshoeSet(nodes, self._core, x_scale=beta, mirror=lat.mirrored)
         self._hs, self._colloc_s = hs, lat.colloc * stretch
+        # a full span that is its own mirror image is solved as two half-span systems
+        self._split = None
+        if not lat.mirrored:
+            from geomload.aero.symmetry import MirrorSolver, mirror_split
+
+            split = mirror_split(lat)
+            if split is not None:
+                self._split = MirrorSolver(lat, split, stretch, self._core, beta)
         # Every angle of attack is the superposition cos(a) G_x + sin(a) G_z of two basis
         # solutions, so they are the only right-hand sides a model needs: one LAPACK solve
         # (LU + back-substitution) of the assembled matrix, which is then released (a kept LU
         # is 8 N^2 bytes: 69 MB at 3000 panels). Other right-hand sides (control surfaces,
         # roll) reassemble it in `solve_rhs`.
         basis_rhs = np.column_stack([-lat.normal[:, 0], -lat.normal[:, 2]])
-        self.extra_rhs = self.extra_solutions = None
+        self.extra_rhs = self.extra_solutions = self.extra_velocity = None
+        self._mid_s = 0.5 * (lat.bound_a + lat.bound_b) * stretch
         if extra_rhs is None:
             self._basis = self._solve_assembled(basis_rhs)
+            self._vind = self.induced_at_bound(self._basis)
         else:
             X = self._checked_rhs(extra_rhs)
             sol = self._solve_assembled(np.hstack([basis_rhs, X]))
             self._basis = np.ascontiguousarray(sol[:, :2])
             self.extra_rhs, self.extra_solutions = X, np.ascontiguousarray(sol[:, 2:])
-        mid_s = 0.5 * (lat.bound_a + lat.bound_b) * stretch
-        self._mid_s = mid_s
-        self._vind = hs.velocity(mid_s, self._basis, self_panels=True)
+            if self._split is not None:
+                # the induced velocities of every solution in one pass over the horseshoe pairs
+                vel = self.induced_at_bound(sol)
+                self._vind = np.ascontiguousarray(vel[:, :, :2])
+                self.extra_velocity = np.ascontiguousarray(vel[:, :, 2:])
+            else:  # two passes: the whole-span results stay the same to the bit
+                self._vind = self.induced_at_bound(self._basis)
+                self.extra_velocity = self.induced_at_bound(self.extra_solutions)
         self._prepare_geometry()
         self._check_lift_slope()
 
@@ -136,16 +152,22 @@ class AeroModel:
                 "--panels-chord)")
 
     def _assemble(self) -> np.ndarray:
-        lat = self.lattice
-        A = self._hs.normalwash(self._colloc_s, lat.normal)
-        if not np.all(np.isfinite(A)):
-            raise AeroError("lattice: influence matrix is not finite (degenerate panels)")
-        return A
+        """The influence matrix (N, N) of the whole lattice (images included when mirrored)."""
+        return self._hs.normalwash(self._colloc_s, self.lattice.normal)
 
     def _solve_assembled(self, rhs) -> np.ndarray:
-        """Solutions (N, k) of the influence matrix, assembled for this call and released after
-        (numpy.linalg.solve: LAPACK gesv, the LU with partial pivoting and its back-substitution)."""
-        A = self._assemble()
+        """Solutions (N, k) of the influence matrix, assembled for this call and released after;
+        a mirror-symmetric full span through its two half-span systems (`symmetry`)."""
+        if self._split is not None:
+            return self._split.solve(rhs, self._solve_dense)
+        return self._solve_dense(self._assemble(), rhs)
+
+    @staticmethod
+    def _solve_dense(A, rhs) -> np.ndarray:
+        """numpy.linalg.solve (LAPACK gesv, the LU with partial pivoting and its
+        back-substitution) of one assembled matrix, refused when not finite or singular."""
+        if not np.all(np.isfinite(A)):
+            raise AeroError("lattice: influence matrix is not finite (degenerate panels)")
         try:
             # one BLAS thread at every size: on 2 shared cores the threaded LU of 3000 panels
             # took more wall time (1.26 against 0.86 s) and 1.5 x the CPU, and of 400 panels 5 x
@@ -272,6 +294,8 @@ class AeroModel:
     def induced_at_bound(self, gammas) -> np.ndarray:
         """Velocity (N, 3, k) induced at the bound-vortex midpoints by circulations (N, k)
         (a segment does not act on itself; physical velocities per unit free-stream speed)."""
+        if self._split is not None:
+            return self._split.velocity_at_bound(gammas)
         return self._hs.velocity(self._mid_s, gammas, self_panels=True)
 
     def coefficients(self, alpha_deg: float) -> tuple:

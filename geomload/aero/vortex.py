@@ -140,12 +140,16 @@ class HorseshoeSet:
 
     The pair terms are written as small matrix products (r0 . (P - A) = P . r0 - A . r0,
     |P - A|^2 = |P|^2 - 2 P . A + |A|^2, (r0 x (P - A)) . n = r0 . (P x n) - n . (r0 x A))
-    after shifting the origin to the lattice centre; rows are done in chunks on a few threads.
+    after shifting the origin to the lattice centre (or to `centre`, (3,) m: the expanded
+    distances lose digits with the shift, so sets whose results are added use the same one);
+    rows are done in chunks on a few threads.
     """
 
-    def __init__(self, nodes, core, x_scale=1.0, mirror=False, budget=1 << 16):
+    def __init__(self, nodes, core, x_scale=1.0, mirror=False, budget=1 << 16, centre=None):
         nodes = np.asarray(nodes, float)
-        self.centre = 0.5 * (nodes.reshape(-1, 3).min(0) + nodes.reshape(-1, 3).max(0))
+        if centre is None:
+            centre = 0.5 * (nodes.reshape(-1, 3).min(0) + nodes.reshape(-1, 3).max(0))
+        self.centre = np.asarray(centre, float).reshape(3)
         q = nodes - self.centre
         self.ns, self.nc = q.shape[0] - 1, q.shape[1]
         a = q[:-1].reshape(-1, 3)
@@ -253,6 +257,27 @@ class HorseshoeSet:
 
         self._rows(m, job)
         return A
+
+    def normalwash_sum_diff(self, other, points, normals, columns):
+        """(A + B[:, columns], A - B[:, columns]), each (m, n), with A = self.normalwash and
+        B = other.normalwash at the same points (m, 3) and unit normals (m, 3), evaluated chunk
+        by chunk (neither A nor B is held whole). Both sets need the same centre and no
+        images; columns: (n,) indices into other's horseshoes."""
+        if self.mirror or other.mirror or not np.array_equal(self.centre, other.centre):
+            raise ValueError("normalwash_sum_diff: two sets without images, one centre")
+        pts = np.asarray(points, float) - self.centre
+        nrm = np.asarray(normals, float)
+        m = pts.shape[0]
+        plus, minus = np.empty((m, self.n)), np.empty((m, self.n))
+
+        def job(i0, i1):
+            a = self._wash_chunk(pts[i0:i1], nrm[i0:i1])
+            b = other._wash_chunk(pts[i0:i1], nrm[i0:i1])[:, columns]
+            np.add(a, b, out=plus[i0:i1])
+            np.subtract(a, b, out=minus[i0:i1])
+
+        self._rows(m, job)
+        return plus, minus
 
     def _vel_chunk(self, p, ops, exclude):
         """Velocity (m, 3, kg) at centred points p. With (r0 x (P - A))_c = [P, 1] . op_c,j the
