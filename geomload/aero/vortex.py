@@ -23,6 +23,8 @@ from concurrent.futures import ThreadPoolExecutor
 
 import numpy as np
 
+from geomload.threads import one_blas_thread
+
 FOUR_PI = 4.0 * np.pi
 
 
@@ -105,28 +107,11 @@ BLAS_LIMIT_PAIRS = 0  # point-horseshoe pairs from which the BLAS threads are li
 # while the chunks run (0: always): the chunks' matrix products are thin (inner dimension 3-5)
 # and run on this module's own threads, so BLAS threads only compete with them (measured at
 # 3000 panels on 2 cores: 2.5 x less CPU for the assembly with one BLAS thread). The limit
-# costs about 0.07 ms with the library lookup kept (`_blas_controller`), so it pays at any size.
-_CONTROLLER: list = []  # the threadpoolctl controller, made once per process (about 2 ms)
-
-
-def _blas_controller():
-    """The process's threadpoolctl controller (the BLAS libraries loaded when first asked; the
-    solver's numpy BLAS is loaded by then), or None without threadpoolctl."""
-    if not _CONTROLLER:
-        try:
-            from threadpoolctl import ThreadpoolController
-
-            _CONTROLLER.append(ThreadpoolController())
-        except Exception:  # noqa: BLE001 - no control: the library's own threading is kept
-            _CONTROLLER.append(None)
-    return _CONTROLLER[0]
-
-
+# costs about 0.07 ms with the library lookup kept (`geomload.threads`), so it pays at any size.
 def _single_blas_thread(pairs: int = BLAS_LIMIT_PAIRS):
     """One BLAS thread for the block (threadpoolctl), from BLAS_LIMIT_PAIRS pairs on; a
     context manager (nothing when threadpoolctl is missing)."""
-    c = _blas_controller() if pairs >= BLAS_LIMIT_PAIRS else None
-    return contextlib.nullcontext() if c is None else c.limit(limits=1, user_api="blas")
+    return one_blas_thread() if pairs >= BLAS_LIMIT_PAIRS else contextlib.nullcontext()
 
 
 class HorseshoeSet:

@@ -23,7 +23,7 @@ def _no_progress(stage, done, total):
 def read_wing(path, units=None, body=None, span_axis=None, up_axis=None, n_stations=20,
               spacing="cosine", progress=None, side=None, require_units=False, units_hint=None):
     """See `geometry.read_wing`."""
-    from .threads import one_blas_thread
+    from geomload.threads import one_blas_thread
 
     with one_blas_thread():
         return _read_wing(path, units, body, span_axis, up_axis, n_stations, spacing, progress,

@@ -1,4 +1,5 @@
-"""One BLAS thread for the geometry stage.
+"""One BLAS thread for a block of work: the process's one threadpoolctl controller, below every
+stage (the geometry stage and the lattice assembly and solve use it).
 
 The geometry's matrix products are thin: (n, 3) by (3, k) with n up to a few hundred thousand
 (principal axes, profile extents, cap normals). OpenBLAS splits such a product over its threads
@@ -15,7 +16,9 @@ import contextlib
 _CONTROLLER: list = []  # the threadpoolctl controller, made once per process (about 2 ms)
 
 
-def _controller():
+def blas_controller():
+    """The process's threadpoolctl controller (the BLAS libraries loaded when first asked), or
+    None without threadpoolctl."""
     if not _CONTROLLER:
         try:
             from threadpoolctl import ThreadpoolController
@@ -28,5 +31,5 @@ def _controller():
 
 def one_blas_thread():
     """A context manager limiting BLAS to one thread (nothing when threadpoolctl is missing)."""
-    c = _controller()
+    c = blas_controller()
     return contextlib.nullcontext() if c is None else c.limit(limits=1, user_api="blas")
