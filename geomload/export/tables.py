@@ -50,9 +50,10 @@ def _csv(header_lines, columns: dict) -> str:
         a = np.full((n, len(cols)), np.nan)
         for j, c in enumerate(cols):
             a[: c.size, j] = np.asarray(c, float).ravel()
-        fmt = ",".join(["%.10g"] * len(cols))
-        out.extend(fmt % tuple(r) for r in a.tolist())
-        return "\n".join(out) + "\n"
+        # the whole table in one %-format: the row format repeated once per row, applied to
+        # the values in row order (the same '%.10g' of each value as a per-row format)
+        row = ",".join(["%.10g"] * len(cols)) + "\n"
+        return "\n".join(out) + "\n" + (row * n) % tuple(a.ravel().tolist())
     for i in range(n):
         row = []
         for c, is_text in zip(cols, text):
