@@ -21,6 +21,7 @@ from geomload.export import report_tables as rt
 from geomload.export.atomic import write_text_atomic
 from geomload.export.html_table import esc, fmt as _fmt, table as _table  # noqa: F401
 from geomload.export.report_controls import controls_section
+from geomload.export.tables import bar_lookup
 from geomload.export.view3d import view3d_from_run
 from geomload.report_text import case_cn
 
@@ -128,13 +129,14 @@ def _stall_class(stalled):
 def _root_table(run) -> str:
     rows, stalled = [], rt.stalled_names(run)
     bars = getattr(run, "error_bars", None)
+    of = bar_lookup(bars)  # one lookup table for the run's many cases
     for c in run.cases:
         L, uf = c.loads, float(c.loads.ultimate_factor)
         row = [rt.case_label(c.name, stalled), c.v_eas, c.altitude_m, c.load_factor,
                c.aero.alpha_deg, c.aero.CL, L.shear_N[0], L.bending_Nm[0], L.torsion_Nm[0],
                uf * L.shear_N[0], uf * L.bending_Nm[0], uf * L.torsion_Nm[0],
                rt.residual_text(c.residual)]
-        b = None if bars is None else bars.of(c.name)
+        b = None if bars is None else of(c.name)
         if bars is not None:  # the error estimate beside each root load
             e = (math.nan,) * 3 if b is None else tuple(b.values().values())
             row[7:7] = [e[0]]

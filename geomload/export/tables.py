@@ -216,12 +216,30 @@ def _num(x):
     return x if math.isfinite(x) else None
 
 
-def _error_estimate(run, name, side="starboard"):
+def bar_lookup(bars):
+    """`bars.of` (the ErrorBar of a case name and side, first match, or None) answered from
+    two dicts built once: a run's thousands of cases each look theirs up."""
+    if bars is None:
+        return None
+    index = {"starboard": {}, "port": {}}
+    for side, pairs in (("starboard", bars.cases), ("port", bars.port)):
+        for n, b in pairs:
+            index[side].setdefault(n, b)  # the first one of a name, as bars.of
+
+    def of(name, side="starboard"):
+        return index["port" if side == "port" else "starboard"].get(name)
+
+    return of
+
+
+def _error_estimate(run, name, side="starboard", of=None):
     """{root_shear_N, root_bending_Nm, root_torsion_Nm} absolute discretization error estimates
     (limit loads, N and N m) of case `name` (its `side`; None: the envelope's root extremes),
-    or None when the run has none (geomload.aero.convergence)."""
+    or None when the run has none (geomload.aero.convergence). of: `bar_lookup` of the run's
+    error bars (built once for many cases), else `bars.of` is used."""
     bars = getattr(run, "error_bars", None)
-    bar = None if bars is None else (bars.envelope if name is None else bars.of(name, side))
+    of = of or (None if bars is None else bars.of)
+    bar = None if bars is None else (bars.envelope if name is None else of(name, side))
     if bar is None:
         return None
     return {**{k: _num(v) for k, v in bar.values().items()},
@@ -242,6 +260,7 @@ def summary(run) -> dict:
     """The run summary as plain JSON-able data (SI units; key names carry them)."""
     p = run.planform
     cases = []
+    of = bar_lookup(getattr(run, "error_bars", None))
     for cr in run.cases:
         a, L = cr.aero, cr.loads
         y = np.asarray(L.y)
@@ -260,7 +279,7 @@ def summary(run) -> dict:
             "root_bending_ult_Nm": _num(uf * L.bending_Nm[0]),
             "root_torsion_ult_Nm": _num(uf * L.torsion_Nm[0]),
             "equilibrium_residual": _num(cr.residual), "stall_warning": cr.stall_warning,
-            "error_estimate": _error_estimate(run, cr.name), **_case_kind(cr, run)})
+            "error_estimate": _error_estimate(run, cr.name, of=of), **_case_kind(cr, run, of)})
     out = {"caution": CAUTION, "geomload_version": __version__, "case_file": run.case_path,
            "title": str(getattr(run.case, "title", "") or ""),
            "geometry": {"source": run.mesh.source, "units": run.mesh.units,
@@ -301,7 +320,7 @@ def _frame_keys(run) -> dict:
     return {**frame_dict(run.frame), **frame_in_cad(run.frame, run.mesh)}
 
 
-def _case_kind(cr, run=None) -> dict:
+def _case_kind(cr, run=None, of=None) -> dict:
     """kind; per-side root loads of an unsymmetric case (with their error estimates when the
     run has them); tail load and wing normal force with a tail; the control state (deflections,
     steady roll, rolling derivatives)."""
@@ -317,7 +336,7 @@ def _case_kind(cr, run=None) -> dict:
                 "root_bending_ult_Nm": _num(uf * L.bending_Nm[0]),
                 "root_torsion_ult_Nm": _num(uf * L.torsion_Nm[0]),
                 "equilibrium_residual": _num(L.equilibrium.residual),
-                "error_estimate": None if run is None else _error_estimate(run, cr.name, side)}
+                "error_estimate": None if run is None else _error_estimate(run, cr.name, side, of)}
         out["sides"] = sides
     if cr.tail_load_N is not None:
         out["tail_load_N"] = _num(cr.tail_load_N)
