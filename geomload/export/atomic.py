@@ -126,9 +126,12 @@ def check_not_input(path, inputs) -> None:
     of paths or a `ResolvedInputs` (resolved once for many checks).
     """
     entries = ResolvedInputs(inputs).entries
-    if not entries:
-        return
-    p, pr = _abs(path), _real_str(path)
+    if entries:
+        _not_input(_abs(path), _real_str(path), entries)
+
+
+def _not_input(p: str, pr: str, entries) -> None:
+    """`check_not_input` of the absolute path p whose real path is pr."""
     ident = _ident(p)
     for q, qr, qid in entries:
         if p == q or pr == qr or (ident is not None and ident == qid):
@@ -144,12 +147,15 @@ def check_target(path, inputs=()) -> Path:
     return Path(_check_target(path, inputs))
 
 
-def _check_target(path, inputs) -> str:
-    """`check_target` on strings (the absolute target path as a string)."""
-    final = _abs(path)
+def _check_target(path, inputs, final=None) -> str:
+    """`check_target` on strings (the absolute target path as a string). final: _abs(path)
+    when the caller has it (a second check of the same target)."""
+    final = _abs(path) if final is None else final
     if str(path).strip() == "":
         raise OutputError("output file name is empty")
-    check_not_input(final, inputs)
+    entries = ResolvedInputs(inputs).entries
+    if entries:  # check_not_input(final, inputs), final being absolute already
+        _not_input(final, _real_str(final), entries)
     try:
         st = os.lstat(final)
     except FileNotFoundError:
@@ -169,11 +175,12 @@ def _check_target(path, inputs) -> str:
 
 
 @contextlib.contextmanager
-def _atomic_fd(path, inputs=()):
+def _atomic_fd(path, inputs=(), final=None):
     """Yield (open file descriptor, temporary path) of a new file beside `path`; close it and
-    rename it onto `path` if the block succeeds (see `atomic_path`)."""
+    rename it onto `path` if the block succeeds (see `atomic_path`). final: _abs(path), when the
+    caller has it."""
     inputs = ResolvedInputs(inputs)  # resolved once for both checks
-    final = _check_target(path, inputs)
+    final = _check_target(path, inputs, final)
     pf = Path(final)
     try:
         parent = os.path.dirname(final)
@@ -188,7 +195,7 @@ def _atomic_fd(path, inputs=()):
             yield fd, tmp
         finally:
             os.close(fd)
-        _check_target(final, inputs)  # again: something may have appeared there meanwhile
+        _check_target(final, inputs, final)  # again: something may have appeared there meanwhile
         os.chmod(tmp, 0o666 & ~_UMASK)
         os.rename(tmp, final)
     except OSError as exc:
@@ -277,7 +284,7 @@ def write_bytes_atomic(path, data: bytes, inputs=(), fsync: bool = True) -> Path
     Every byte is checked written (a short write raises); fsync before the rename (inside a
     `sync_at_end` block: in that block's pass, before the run folder is committed)."""
     final = _abs(path)
-    with _atomic_fd(path, inputs) as (fd, tmp):
+    with _atomic_fd(path, inputs, final) as (fd, tmp):
         # written through the descriptor the temporary file was made with: no second open
         # (truncating an emptied file makes some file systems write it back early)
         view, done = memoryview(data), 0
