@@ -126,9 +126,12 @@ def check_not_input(path, inputs) -> None:
     of paths or a `ResolvedInputs` (resolved once for many checks).
     """
     entries = ResolvedInputs(inputs).entries
-    if not entries:
-        return
-    p, pr = _abs(path), _real_str(path)
+    if entries:
+        _not_input(_abs(path), _real_str(path), entries)
+
+
+def _not_input(p: str, pr: str, entries) -> None:
+    """`check_not_input` of the absolute path p whose real path is pr."""
     ident = _ident(p)
     for q, qr, qid in entries:
         if p == q or pr == qr or (ident is not None and ident == qid):
@@ -144,12 +147,15 @@ def check_target(path, inputs=()) -> Path:
     return Path(_check_target(path, inputs))
 
 
-def _check_target(path, inputs) -> str:
-    """`check_target` on strings (the absolute target path as a string)."""
-    final = _abs(path)
+def _check_target(path, inputs, final=None) -> str:
+    """`check_target` on strings (the absolute target path as a string). final: _abs(path)
+    when the caller has it (a second check of the same target)."""
+    final = _abs(path) if final is None else final
     if str(path).strip() == "":
         raise OutputError("output file name is empty")
-    check_not_input(final, inputs)
+    entries = ResolvedInputs(inputs).entries
+    if entries:  # check_not_input(final, inputs), final being absolute already
+        _not_input(final, _real_str(final), entries)
     try:
         st = os.lstat(final)
     except FileNotFoundError:
@@ -169,15 +175,12 @@ def _check_target(path, inputs) -> str:
 
 
 @contextlib.contextmanager
-def atomic_path(path, inputs=()):
-    """Yield a temporary path beside `path`; rename it onto `path` if the block succeeds.
-
-    The temporary name keeps the file's extension (writers may pick the format from it).
-    Refused targets: see `check_target`. Any OSError (in the block or the rename) becomes an
-    OutputError naming the folder and the cause; the temporary file is always removed.
-    """
+def _atomic_fd(path, inputs=(), final=None):
+    """Yield (open file descriptor, temporary path) of a new file beside `path`; close it and
+    rename it onto `path` if the block succeeds (see `atomic_path`). final: _abs(path), when the
+    caller has it."""
     inputs = ResolvedInputs(inputs)  # resolved once for both checks
-    final = _check_target(path, inputs)
+    final = _check_target(path, inputs, final)
     pf = Path(final)
     try:
         parent = os.path.dirname(final)
@@ -185,12 +188,14 @@ def atomic_path(path, inputs=()):
             os.makedirs(parent, exist_ok=True)
         fd, tmp = tempfile.mkstemp(prefix=f".{pf.stem[:60]}.", suffix=".tmp" + pf.suffix[-12:],
                                    dir=parent)
-        os.close(fd)
     except OSError as exc:
         raise write_error(final, exc) from None
     try:
-        yield Path(tmp)
-        _check_target(final, inputs)  # again: something may have appeared there meanwhile
+        try:
+            yield fd, tmp
+        finally:
+            os.close(fd)
+        _check_target(final, inputs, final)  # again: something may have appeared there meanwhile
         os.chmod(tmp, 0o666 & ~_UMASK)
         os.rename(tmp, final)
     except OSError as exc:
@@ -201,6 +206,18 @@ def atomic_path(path, inputs=()):
         with contextlib.suppress(OSError):
             os.unlink(tmp)
         raise
+
+
+@contextlib.contextmanager
+def atomic_path(path, inputs=()):
+    """Yield a temporary path beside `path`; rename it onto `path` if the block succeeds.
+
+    The temporary name keeps the file's extension (writers may pick the format from it).
+    Refused targets: see `check_target`. Any OSError (in the block or the rename) becomes an
+    OutputError naming the folder and the cause; the temporary file is always removed.
+    """
+    with _atomic_fd(path, inputs) as (_fd, tmp):  # the writer opens the file by its name
+        yield Path(tmp)
 
 
 _SYNC_AT_END: dict = {}  # folder (str) -> files written below it whose fsync waits (sync_at_end)
@@ -267,15 +284,21 @@ def write_bytes_atomic(path, data: bytes, inputs=(), fsync: bool = True) -> Path
     Every byte is checked written (a short write raises); fsync before the rename (inside a
     `sync_at_end` block: in that block's pass, before the run folder is committed)."""
     final = _abs(path)
-    with atomic_path(path, inputs) as tmp:
-        with open(tmp, "wb") as fh:
-            n = fh.write(data)
-            if n != len(data):
-                raise OSError(28, f"short write ({n} of {len(data)} bytes)")
-            if fsync:
-                flush_to_disk(fh, final)
+    with _atomic_fd(path, inputs, final) as (fd, tmp):
+        # written through the descriptor the temporary file was made with: no second open
+        # (truncating an emptied file makes some file systems write it back early)
+        view, done = memoryview(data), 0
+        while done < len(view):
+            n = os.write(fd, view[done:])
+            if n <= 0:
+                raise OSError(28, f"short write ({done} of {len(data)} bytes)")
+            done += n
+        if fsync:
+            pending = _pending(final) if _SYNC_AT_END else None
+            if pending is None:
+                os.fsync(fd)
             else:
-                fh.flush()
+                pending.append(final)
     return Path(final)
 
 

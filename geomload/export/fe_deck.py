@@ -75,6 +75,38 @@ def _xyz(v) -> str:
     return "%.14g, %.14g, %.14g" % (v[0], v[1], v[2])  # DECK_DIGITS
 
 
+_XYZ = "%.14g, %.14g, %.14g"  # DECK_DIGITS
+
+
+_SAME_BLOCKS: dict = {}   # (row format, shape, bytes of the table) -> its text (see _block)
+SAME_BLOCKS_KEPT = 64     # texts kept: the few geometry blocks one run's decks share
+
+
+def _block(row_format: str, table, same: bool = False) -> str:
+    """Deck lines of a table in one %-format: `row_format` (one or more lines, no trailing
+    newline) repeated once per row of `table` (2-D float64; integers as exact floats, which
+    '%d' prints as integers), applied to its values in row order. The same text as formatting
+    each row on its own.
+
+    same : the table is one that many decks of a run share (node coordinates, section axes:
+    the geometry, not the loads); its text is kept, keyed by the table's exact bytes, and
+    reused when the same bytes come again. Formatting is a function of those bytes alone, so a
+    kept text is the text formatting would give.
+    """
+    t = np.ascontiguousarray(table, dtype=float)
+    if same:
+        key = (row_format, t.shape, t.tobytes())
+        text = _SAME_BLOCKS.get(key)
+        if text is not None:
+            return text
+    text = ((row_format + "\n") * t.shape[0] % tuple(t.ravel().tolist()))[:-1]
+    if same:
+        if len(_SAME_BLOCKS) >= SAME_BLOCKS_KEPT:
+            _SAME_BLOCKS.clear()
+        _SAME_BLOCKS[key] = text
+    return text
+
+
 def beam_deck(nl: NodalLoads, frame=None, unit_scale_m: float = 1.0, unit: str = "m",
               title: str = "") -> BeamDeck:
     """The CalculiX input deck (text) of the spar beam of one case, in the CAD frame and unit."""
@@ -113,8 +145,8 @@ def beam_deck(nl: NodalLoads, frame=None, unit_scale_m: float = 1.0, unit: str =
           "** Section and material are NOMINAL: the model is statically determinate, so the",
           "** reactions and internal forces do not depend on them (displacements do).",
           "*NODE, NSET=NALL"]
-    pts_l = pts.tolist()
-    L += ["%d, %s" % (i + 1, _xyz(p)) for i, p in enumerate(pts_l)]
+    one_to_n = np.arange(1.0, n + 1.0)  # node numbers 1..n (exact floats, printed by '%d')
+    L.append(_block("%d, " + _XYZ, np.column_stack([one_to_n, pts]), same=True))
     L += [f"{na}, {g(pa)}", f"{nb}, {g(pb)}", f"{nc}, {g(pc)}"]
     # one section per element, its 1-direction the wing's chordwise axis made exactly normal
     # to the element (the section's axes must be normal to the beam)
@@ -122,9 +154,9 @@ def beam_deck(nl: NodalLoads, frame=None, unit_scale_m: float = 1.0, unit: str =
     t /= np.linalg.norm(t, axis=1)[:, None]
     d1 = chordwise[None, :] - (t @ chordwise)[:, None] * t
     d1 /= np.linalg.norm(d1, axis=1)[:, None]
-    for i in range(n - 1):
-        L += [f"*ELEMENT, TYPE=B31, ELSET=E{i + 1}", f"{i + 1}, {i + 1}, {i + 2}"]
-    sections = [(f"E{i + 1}", d) for i, d in enumerate(d1.tolist())]
+    e = one_to_n[:-1]  # element numbers 1..n-1, element i from node i to node i + 1
+    L.append(_block("*ELEMENT, TYPE=B31, ELSET=E%d\n%d, %d, %d", np.column_stack([e, e, e, e + 1]),
+                    same=True))
     L += ["*ELEMENT, TYPE=B31, ELSET=ARMA", f"{n}, 1, {na}", f"{n + 2}, {nc}, 1",
           "*ELEMENT, TYPE=B31, ELSET=ARMB", f"{n + 1}, 1, {nb}"]
     # moment levers: nodal moments enter as force couples on two short arms per node
@@ -134,34 +166,43 @@ def beam_deck(nl: NodalLoads, frame=None, unit_scale_m: float = 1.0, unit: str =
     gB = lev[:, 2:3] * ec                     # force at lever node B_i (and minus it at node i)
     lever_a = {int(i): n + 4 + 2 * int(i) for i in np.flatnonzero(np.any(Mo != 0, axis=1))}
     if lever_a:
+        li = np.array(list(lever_a), float)  # nodes with levers (index i, ascending)
+        k = n + 4 + 2 * li                   # lever node A of node i (B is k + 1)
         L += ["*NODE, NSET=LEVERS"]
-        la = (pts + arm * ea).tolist()
-        lb = (pts + arm * eb).tolist()
-        for i, k in lever_a.items():
-            L += ["%d, %s" % (k, _xyz(la[i])), "%d, %s" % (k + 1, _xyz(lb[i]))]
-        L += ["*ELEMENT, TYPE=B31, ELSET=LEVA"] + [f"{n + 2 + 2 * i + 1}, {i + 1}, {k}"
-                                                   for i, k in lever_a.items()]
-        L += ["*ELEMENT, TYPE=B31, ELSET=LEVB"] + [f"{n + 2 + 2 * i + 2}, {i + 1}, {k + 1}"
-                                                   for i, k in lever_a.items()]
+        L.append(_block("%d, " + _XYZ + "\n%d, " + _XYZ, np.column_stack(
+            [k, pts[li.astype(int)] + arm * ea, k + 1, pts[li.astype(int)] + arm * eb]), same=True))
+        L += ["*ELEMENT, TYPE=B31, ELSET=LEVA"]
+        L.append(_block("%d, %d, %d", np.column_stack([n + 3 + 2 * li, li + 1, k]), same=True))
+        L += ["*ELEMENT, TYPE=B31, ELSET=LEVB"]
+        L.append(_block("%d, %d, %d", np.column_stack([n + 4 + 2 * li, li + 1, k + 1]), same=True))
     L += ["*NSET, NSET=ROOT", "1", "*NSET, NSET=SUPPORT", f"{na}, {nb}, {nc}",
           "*MATERIAL, NAME=NOMINAL", "*ELASTIC", f"{e_mod:.10g}, {NOMINAL_NU:g}"]
-    L += ["*ELSET, ELSET=SPAR"] + [f"E{i + 1}," for i in range(n - 1)]
-    for elset, d in (*sections, ("ARMA", eb.tolist()), ("ARMB", ea.tolist()),
+    L += ["*ELSET, ELSET=SPAR", _block("E%d,", e[:, None], same=True)]
+    wh = f"{w:.10g}, {h:.10g}"
+    L.append(_block("*BEAM SECTION, ELSET=E%d, MATERIAL=NOMINAL, SECTION=RECT\n"
+                    + wh.replace("%", "%%") + "\n" + _XYZ, np.column_stack([e, d1]), same=True))
+    for elset, d in (("ARMA", eb.tolist()), ("ARMB", ea.tolist()),
                      ("LEVA", eb.tolist()), ("LEVB", ea.tolist())):
         if elset.startswith("LEV") and not lever_a:
             continue
         L += [f"*BEAM SECTION, ELSET={elset}, MATERIAL=NOMINAL, SECTION=RECT",
-              f"{w:.10g}, {h:.10g}", _xyz(d)]
+              wh, _xyz(d)]
     L += ["*BOUNDARY", f"{nc}, 1, 3", f"{na}, {b + 1}, {b + 1}", f"{na}, {c + 1}, {c + 1}",
           f"{nb}, {c + 1}, {c + 1}", "*STEP", "*STATIC", "*CLOAD"]
-    node_f = (F - gA - gB).tolist()  # every node with a moment has levers (gA = gB = 0 elsewhere)
-    gA_l, gB_l = gA.tolist(), gB.tolist()
-    for i in range(n):
-        rows = [(i + 1, node_f[i])]
-        if i in lever_a:
-            rows += [(lever_a[i], gA_l[i]), (lever_a[i] + 1, gB_l[i])]
-        for node, vec in rows:
-            L += ["%d, %d, %.14g" % (node, dof + 1, v) for dof, v in enumerate(vec) if v != 0.0]
+    # every node with a moment has levers (gA = gB = 0 elsewhere). Per node i, in order: its
+    # own force, then lever A's and lever B's (nodes with levers only); each DOF 1-3 whose
+    # value is not zero gets a line "node, dof, value"
+    node_f = F - gA - gB
+    has_lev = np.zeros(n, bool)
+    has_lev[list(lever_a)] = True
+    value = np.stack([node_f, gA, gB], axis=1)                           # (n, 3 rows, 3 DOFs)
+    lev_a = n + 4 + 2 * np.arange(n, dtype=float)
+    node = np.column_stack([one_to_n, lev_a, lev_a + 1])[:, :, None]     # (n, 3 rows, 1)
+    dof = np.array([1.0, 2.0, 3.0])
+    used = np.column_stack([np.ones(n, bool), has_lev, has_lev])[:, :, None] & (value != 0.0)
+    cload = np.stack(np.broadcast_arrays(node, dof, value), axis=-1)[used]  # (lines, 3)
+    if cload.shape[0]:
+        L.append(_block("%d, %d, %.14g", cload))
     L += ["*NODE PRINT, NSET=SUPPORT", "RF", "*NODE FILE, NSET=NALL", "U", "*END STEP"]
     return BeamDeck(text="\n".join(L) + "\n", spar_nodes=tuple(range(1, n + 1)),
                     support_nodes={na: pa, nb: pb, nc: pc}, root_cad=pts[0], unit=unit,
@@ -177,9 +218,13 @@ def nodal_loads_csv(nl: NodalLoads, frame=None, unit_scale_m: float = 1.0, unit:
              f"# CAD frame; coordinates in {u} (1 {u} = {float(unit_scale_m):g} m); forces N; "
              f"moments N*{u} about the node",
              f"node,x_{u},y_{u},z_{u},Fx_N,Fy_N,Fz_N,Mx_N{u},My_N{u},Mz_N{u}"]
-    rows = np.column_stack([pts, F, Mo]).tolist()
-    lines += [f"{i + 1}," + ",".join(map(repr, r)) for i, r in enumerate(rows)]
-    return "\n".join(lines) + "\n"
+    # the whole table in one %-format of repr ('%r') of each force and moment, into rows whose
+    # node number and coordinates (repr) are already written: those are the same for every
+    # case of a run (see _block)
+    rows = _block("%d,%r,%r,%r," + ",".join(["%%r"] * 6),
+                  np.column_stack([np.arange(1.0, pts.shape[0] + 1.0), pts]), same=True)
+    return ("\n".join(lines) + "\n" + rows % tuple(np.column_stack([F, Mo]).ravel().tolist())
+            + "\n")
 
 
 # ------------------------------------------------------------------------ reading solver output

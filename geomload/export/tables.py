@@ -50,9 +50,10 @@ def _csv(header_lines, columns: dict) -> str:
         a = np.full((n, len(cols)), np.nan)
         for j, c in enumerate(cols):
             a[: c.size, j] = np.asarray(c, float).ravel()
-        fmt = ",".join(["%.10g"] * len(cols))
-        out.extend(fmt % tuple(r) for r in a.tolist())
-        return "\n".join(out) + "\n"
+        # the whole table in one %-format: the row format repeated once per row, applied to
+        # the values in row order (the same '%.10g' of each value as a per-row format)
+        row = ",".join(["%.10g"] * len(cols)) + "\n"
+        return "\n".join(out) + "\n" + (row * n) % tuple(a.ravel().tolist())
     for i in range(n):
         row = []
         for c, is_text in zip(cols, text):
@@ -218,7 +219,8 @@ def _num(x):
 def _error_estimate(run, name, side="starboard"):
     """{root_shear_N, root_bending_Nm, root_torsion_Nm} absolute discretization error estimates
     (limit loads, N and N m) of case `name` (its `side`; None: the envelope's root extremes),
-    or None when the run has none (geomload.aero.convergence)."""
+    or None when the run has none (geomload.aero.convergence; `ErrorBars.of` answers from an
+    index, so a run's thousands of cases each look theirs up cheaply)."""
     bars = getattr(run, "error_bars", None)
     bar = None if bars is None else (bars.envelope if name is None else bars.of(name, side))
     if bar is None:

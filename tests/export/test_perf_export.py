@@ -165,3 +165,71 @@ def test_control_model_build_solves_every_right_hand_side_with_the_basis():
     # a model built without the extra columns, or with other ones, still solves them itself
     other = ControlModel(AeroModel(lat, mach=0.3, extra_rhs=R[:, :1]), [ail])
     assert np.allclose(other._B, one._B, rtol=0, atol=1e-12 * scale)
+
+
+# Table text made a block at a time must be the text of formatting each row on its own; the
+# reference is Python's own %-formatting and repr of each float (common practice, no source).
+_SPECIAL = [0.0, -0.0, 1.0, -1.5, 0.1, 1 / 3, 2.0 ** -1074, 1e-300, 1e300, 123456789012345.6,
+            -9.87654321e-5, float("nan"), float("inf"), float("-inf"), 70.159097744298]
+
+
+def _table(rows, cols, seed):
+    import numpy as np
+
+    rng = np.random.default_rng(seed)
+    t = rng.standard_normal((rows, cols)) * 10.0 ** rng.integers(-12, 12, (rows, cols))
+    t.flat[: len(_SPECIAL)] = _SPECIAL[: t.size]
+    return t
+
+
+@pytest.mark.parametrize("fmt", ["%.14g, %.14g, %.14g", "%r,%r,%r", "%.10g,%.10g,%.10g"])
+def test_deck_blocks_are_the_text_of_each_row_formatted_alone(fmt):
+    import numpy as np
+
+    from geomload.export import fe_deck
+
+    for seed, rows in ((1, 1), (2, 7), (3, 60)):
+        t = _table(rows, 3, seed)
+        ids = np.arange(1.0, rows + 1.0)[:, None]            # node numbers as exact floats
+        table = np.hstack([ids, t])
+        expected = "\n".join(("%d, " + fmt) % (int(r[0]), *r[1:]) for r in table.tolist())
+        assert fe_deck._block("%d, " + fmt, table) == expected
+        assert fe_deck._block("%d, " + fmt, table, same=True) == expected   # made, then kept
+        assert fe_deck._block("%d, " + fmt, table, same=True) == expected   # the kept text
+        other = table.copy()
+        other[-1, -1] = np.nextafter(other[-1, -1], np.inf)  # one bit: its own text
+        alone = "\n".join(("%d, " + fmt) % (int(r[0]), *r[1:]) for r in other.tolist())
+        assert fe_deck._block("%d, " + fmt, other, same=True) == alone
+
+
+def test_numeric_csv_rows_and_nodal_loads_csv_are_each_value_formatted_alone():
+    import numpy as np
+
+    from geomload.export import fe_deck, tables
+    from geomload.export.fe_nodes import NodalLoads, to_cad
+
+    t = _table(9, 4, 5)
+    text = tables._csv(["head"], {f"c{j}_m": t[:, j] for j in range(4)})
+    rows = [line for line in text.splitlines() if not line.startswith("#")][1:]
+    assert rows == [",".join(f"{v:.10g}" for v in r) for r in t.tolist()]
+    n = 9
+    finite = lambda a: np.where(np.isfinite(a), a, 1.25)  # noqa: E731 (nodal loads are finite)
+    pts = np.column_stack([np.zeros(n), np.linspace(0.0, 1.2, n), np.full(n, -0.0)])
+    nl = NodalLoads(case="QM-36 Pellin pull-up", y_m=pts[:, 1], points_m=pts,
+                    force_N=finite(_table(n, 3, 6)), moment_Nm=finite(_table(n, 3, 7)),
+                    axis_s=pts, axis_b=pts,
+                    axis_n=pts)
+    for _ in range(2):  # the second time with the kept coordinates text
+        csv = fe_deck.nodal_loads_csv(nl)
+        data = [line for line in csv.splitlines() if not line.startswith("#")][1:]
+        assert data == [f"{i + 1}," + ",".join(map(repr, r)) for i, r in enumerate(
+            np.column_stack(to_cad(nl)).tolist())]
+
+
+@pytest.mark.parametrize("size", [0, 1, 200_000])
+def test_atomic_bytes_are_written_whole_with_the_usual_permissions(tmp_path, size):
+    data = os.urandom(size)
+    p = atomic.write_bytes_atomic(tmp_path / "QM-36.bin", data)
+    assert p.read_bytes() == data
+    assert (p.stat().st_mode & 0o777) == (0o666 & ~atomic._UMASK)
+    assert sorted(os.listdir(tmp_path)) == ["QM-36.bin"]       # no temporary file left
