@@ -211,7 +211,8 @@ def _inputs(run, options) -> str:
 def _versions(run, run_time_s) -> str:
     vers = dict(run.versions) or {"geomload": __version__}
     t = dict(run.timings)
-    total = run_time_s if run_time_s is not None else sum(float(v) for v in t.values())
+    total = run_time_s if run_time_s is not None else sum(  # a child's time ran meanwhile
+        float(v) for k, v in t.items() if "child process" not in k)
     rows = [(k, f"{float(v):.3f}") for k, v in t.items()] + [("total", f"{float(total):.3f}")]
     stamp = _dt.datetime.now().astimezone().isoformat(timespec="seconds")
     return (_table(("package", "version"), list(vers.items()), text_cols=(0, 1))

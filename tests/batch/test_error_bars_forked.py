@@ -53,6 +53,8 @@ def test_forked_coarse_lattices_give_the_same_error_bars(in_process, monkeypatch
     assert started[0].proc.exitcode == 0  # the child delivered and ended
     _same_bars(ref, got)
     assert len(ref.error_bars.cases) > 20
+    # the child's own time is reported beside the parent's wait for it
+    assert got.timings["error estimate, coarse lattices in a child process"] > 0.0
 
 
 @pytest.mark.filterwarnings("ignore")
@@ -63,3 +65,4 @@ def test_a_dead_child_costs_only_time(in_process, monkeypatch):
     monkeypatch.setattr(pipeline, "_coarse_levels", lambda *a: os._exit(3))
     got = pipeline.compute(case, error_bars=True, parallel=True)
     _same_bars(ref, got)
+    assert not any("child" in k for k in got.timings)  # no child time when it delivered none
