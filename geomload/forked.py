@@ -34,6 +34,17 @@ def parallel_pays(jobs: int = 1) -> bool:
         return True
 
 
+def _held_signals() -> tuple:
+    import signal
+
+    return tuple(getattr(signal, n) for n in ("SIGINT", "SIGTERM", "SIGHUP") if hasattr(signal, n))
+
+
+_HELD = _held_signals()  # held back while forking: a signal that arrives inside the fork's
+# own callbacks raises the interrupt there, where Python drops it ("Exception ignored"), and the
+# run would go on as if never interrupted; held, it is delivered right after the fork
+
+
 def _child(conn, fn, args) -> None:  # pragma: no cover - runs in the child
     import signal
 
@@ -43,8 +54,9 @@ def _child(conn, fn, args) -> None:  # pragma: no cover - runs in the child
         ctypes.CDLL(None, use_errno=True).prctl(1, signal.SIGTERM)  # PR_SET_PDEATHSIG
     except Exception:  # noqa: BLE001 - not Linux: the parent still stops the child itself
         pass
-    for s in (signal.SIGINT, signal.SIGTERM, signal.SIGHUP):
+    for s in _HELD:
         signal.signal(s, signal.SIG_DFL)
+    signal.pthread_sigmask(signal.SIG_UNBLOCK, _HELD)  # held by the parent around the fork
     code = 0
     try:
         conn.send(fn(*args))
@@ -75,11 +87,18 @@ class ForkedJob:
             ctx = mp.get_context("fork")
         except ValueError:
             return None
+        import signal
+
         recv, send = ctx.Pipe(duplex=False)
         proc = ctx.Process(target=_child, args=(send, fn, tuple(args)), daemon=True)
-        proc.start()
-        send.close()
-        return cls(proc, recv, names, what)
+        held = signal.pthread_sigmask(signal.SIG_BLOCK, _HELD)
+        try:
+            proc.start()
+            send.close()
+            job = cls(proc, recv, names, what)
+        finally:  # a signal held meanwhile is delivered here (the child is daemonic and also
+            signal.pthread_sigmask(signal.SIG_SETMASK, held)  # ends with this process)
+        return job
 
     def result(self) -> dict:
         try:

@@ -103,7 +103,8 @@ def write_all(run, folder, inputs=(), render=True, progress=None, options=None,
                                           more_warnings=warnings))
             for p in vtk.write_all_vtk(f, run, inputs, surface):
                 rec(p)
-            shots = plot_job.result() if plot_job is not None else plots.plot_images(run)
+            shots = (plots.finish_plots(run, plot_job) if plot_job is not None
+                     else plots.plot_images(run))
             images = plots.write_plot_images(shots, f / "plots", inputs)
             tick()
             if render:

@@ -315,8 +315,9 @@ def _formats(name) -> tuple:
     return ("png", "svg") if name == "vn" else ("png",)
 
 
-def build_figures(run) -> dict:
-    """name -> Figure (or the Exception that stopped it, so the report can say so)."""
+def build_figures(run, names=None) -> dict:
+    """name -> Figure (or the Exception that stopped it, so the report can say so); names: only
+    those plots (None: every one)."""
     makers = {"planform": lambda: plot_planform(run.stations, run.planform, run.lattice),
               "spanwise": lambda: plot_spanwise(run), "cl_alpha": lambda: plot_cl_alpha(run),
               "loads": lambda: plot_loads(run), "inplane": lambda: plot_inplane(run)}
@@ -324,6 +325,8 @@ def build_figures(run) -> dict:
         makers["vn"] = lambda: plot_vn(run.vn)
     out = {}
     for name, make in makers.items():
+        if names is not None and name not in names:
+            continue
         try:
             out[name] = make()
         except Exception as exc:  # one bad plot must not lose the run's other outputs
@@ -331,11 +334,12 @@ def build_figures(run) -> dict:
     return out
 
 
-def plot_images(run) -> dict:
+def plot_images(run, names=None) -> dict:
     """name -> {format: file bytes} for every plot (PNG; the V-n diagram also SVG), or the
-    Exception that stopped that plot. Writes no file, so it can run in another process."""
+    Exception that stopped that plot; names: only those plots (None: every one). Writes no
+    file, so it can run in another process."""
     out = {}
-    for name, fig in build_figures(run).items():
+    for name, fig in build_figures(run, names).items():
         if isinstance(fig, Exception):
             out[name] = fig
             continue
@@ -368,16 +372,69 @@ def make_plots(run, folder, inputs=()) -> dict:
     return write_plot_images(plot_images(run), folder, inputs)
 
 
-def _plot_images_sendable(run) -> dict:
-    """`plot_images` with each Exception replaced by a RuntimeError carrying its text (an
+def _sendable(images: dict) -> dict:
+    """`plot_images`' dict with each Exception replaced by a RuntimeError carrying its text (an
     exception of any type may not survive the trip back to the parent process)."""
     return {k: (v if isinstance(v, dict) else RuntimeError(f"{type(v).__name__}: {v}"))
-            for k, v in plot_images(run).items()}
+            for k, v in images.items()}
+
+
+class PlotShare:
+    """The plots of a run shared between the forked child, which draws them from the first on,
+    and this process, which draws from the last on once its own writing is done and the child
+    is still drawing (:func:`finish_plots`): each plot is claimed once, under a lock shared
+    through the fork, so neither process waits while plots remain."""
+
+    def __init__(self, names):
+        import multiprocessing as mp
+
+        self.names = tuple(names)
+        self.claimed = mp.get_context("fork").Array("b", len(self.names))
+
+    def claim(self, i: int) -> bool:
+        with self.claimed.get_lock():
+            if self.claimed[i]:
+                return False
+            self.claimed[i] = 1
+            return True
+
+
+def _child_plots(run, share: PlotShare) -> dict:
+    """In the child: every plot not yet claimed, first to last."""
+    out = {}
+    for i, name in enumerate(share.names):
+        if share.claim(i):
+            out.update(_sendable(plot_images(run, (name,))))
+    return out
 
 
 def start_plot_process(run):
-    """`plot_images(run)` in a forked child (`forked.ForkedJob`; None where fork is unavailable):
-    ``job.result()`` gives its dict, ``job.stop()`` in a finally block ends it."""
+    """The run's plots in a forked child (`forked.ForkedJob`; None where fork or its shared
+    memory is unavailable), shared with this process through a :class:`PlotShare`
+    (``job.share``): :func:`finish_plots` gives every plot; ``job.stop()`` in a finally block
+    ends the child."""
     from geomload.forked import ForkedJob
 
-    return ForkedJob.start(_plot_images_sendable, (run,), plot_names(run), "plot")
+    try:
+        share = PlotShare(plot_names(run))
+    except (OSError, ValueError, ImportError):
+        return None
+    job = ForkedJob.start(_child_plots, (run, share), share.names, "plot")
+    if job is not None:
+        job.share = share
+    return job
+
+
+def finish_plots(run, job) -> dict:
+    """`plot_images(run)` with the child of :func:`start_plot_process`: when the child is still
+    drawing, this process draws the plots it has not claimed, last to first, then takes the
+    child's. The same bytes either way; a plot the child claimed but did not deliver (it died)
+    keeps the reason."""
+    share, mine = job.share, {}
+    if not job.conn.poll():  # still drawing: take from the back until the two meet
+        for i in reversed(range(len(share.names))):
+            if not share.claim(i):
+                break
+            mine.update(plot_images(run, (share.names[i],)))
+    got = {**job.result(), **mine}
+    return {n: got[n] for n in share.names if n in got}

@@ -115,6 +115,23 @@ def test_plots_in_a_child_process_write_the_same_files(tmp_path):
     assert differ == [] and any(k.endswith(".png") for k in serial[0])
 
 
+def test_plots_shared_with_the_child_are_the_plots_drawn_alone():
+    """finish_plots right after the fork: this process draws from the last plot on while the
+    child draws from the first; every plot once, the same PNG bytes as drawn in one process
+    (reference: the in-process drawing; speed work changes no byte, common practice)."""
+    run = fakerun.make_run()
+    alone = plots.plot_images(run)
+    job = plots.start_plot_process(run)
+    try:
+        shared = plots.finish_plots(run, job)
+    finally:
+        job.stop()
+    assert list(shared) == list(plots.plot_names(run)) == list(alone)
+    assert all(job.share.claimed[:])                  # each plot claimed by one process
+    for name, formats in alone.items():
+        assert shared[name]["png"] == formats["png"], name
+
+
 def test_a_dead_plot_process_costs_only_the_plots():
     import signal
 
