@@ -107,16 +107,22 @@ def _block(row_format: str, table, same: bool = False) -> str:
     return text
 
 
-def beam_deck(nl: NodalLoads, frame=None, unit_scale_m: float = 1.0, unit: str = "m",
-              title: str = "") -> BeamDeck:
-    """The CalculiX input deck (text) of the spar beam of one case, in the CAD frame and unit."""
-    pts, F, Mo = to_cad(nl, frame, unit_scale_m)
-    s = float(unit_scale_m)
+_GEOMETRY: dict = {}  # (exact bytes of the spar points, frame, unit scale, lever nodes) -> part
+GEOMETRY_KEPT = 16    # parts kept: the cases of one run share one or a few spar geometries
+
+
+def _geometry_part(pts, R, s: float, lever_nodes: tuple) -> tuple:
+    """The case-independent part of a beam deck, from "*NODE, NSET=NALL" to "*CLOAD": the
+    nodes, elements, levers, sections and supports of the spar on `pts` (CAD frame and unit),
+    with the values the loads part needs. A function of its arguments' exact values alone, so
+    a part kept for the same bytes is the part building it again would give. Returns (lines,
+    (a, b, c, arm, ea, eb, ec), (na, nb, nc), (pa, pb, pc))."""
+    key = (pts.shape, pts.tobytes(), R.tobytes(), s, lever_nodes)
+    hit = _GEOMETRY.get(key)
+    if hit is not None:
+        return hit
     n = pts.shape[0]
     length = float(np.sum(np.linalg.norm(np.diff(pts, axis=0), axis=1)))
-    if n < 2 or length <= 0:
-        raise InputError(f"FE deck of case '{nl.case}': the spar line has zero length")
-    R = np.eye(3) if frame is None else np.asarray(frame.rotation, float)
     chordwise = R[0]  # wing x axis in CAD coordinates: normal to the spar, beam 1-direction
     tangent = pts[1] - pts[0]
     tangent /= np.linalg.norm(tangent)
@@ -130,6 +136,68 @@ def beam_deck(nl: NodalLoads, frame=None, unit_scale_m: float = 1.0, unit: str =
     w, h = (d / s for d in NOMINAL_SECTION_M)
     e_mod = NOMINAL_E_PA * s * s  # N / unit^2
     g = lambda v: _xyz(v.tolist())  # noqa: E731 (DECK_DIGITS)
+    L = ["*NODE, NSET=NALL"]
+    one_to_n = np.arange(1.0, n + 1.0)  # node numbers 1..n (exact floats, printed by '%d')
+    L.append(_block("%d, " + _XYZ, np.column_stack([one_to_n, pts])))
+    L += [f"{na}, {g(pa)}", f"{nb}, {g(pb)}", f"{nc}, {g(pc)}"]
+    # one section per element, its 1-direction the wing's chordwise axis made exactly normal
+    # to the element (the section's axes must be normal to the beam)
+    t = np.diff(pts, axis=0)
+    t /= np.linalg.norm(t, axis=1)[:, None]
+    d1 = chordwise[None, :] - (t @ chordwise)[:, None] * t
+    d1 /= np.linalg.norm(d1, axis=1)[:, None]
+    e = one_to_n[:-1]  # element numbers 1..n-1, element i from node i to node i + 1
+    L.append(_block("*ELEMENT, TYPE=B31, ELSET=E%d\n%d, %d, %d",
+                    np.column_stack([e, e, e, e + 1])))
+    L += ["*ELEMENT, TYPE=B31, ELSET=ARMA", f"{n}, 1, {na}", f"{n + 2}, {nc}, 1",
+          "*ELEMENT, TYPE=B31, ELSET=ARMB", f"{n + 1}, 1, {nb}"]
+    # moment levers: nodal moments enter as force couples on two short arms per node
+    if lever_nodes:
+        li = np.array(lever_nodes, float)  # nodes with levers (index i, ascending)
+        k = n + 4 + 2 * li                 # lever node A of node i (B is k + 1)
+        L += ["*NODE, NSET=LEVERS"]
+        L.append(_block("%d, " + _XYZ + "\n%d, " + _XYZ, np.column_stack(
+            [k, pts[li.astype(int)] + arm * ea, k + 1, pts[li.astype(int)] + arm * eb])))
+        L += ["*ELEMENT, TYPE=B31, ELSET=LEVA"]
+        L.append(_block("%d, %d, %d", np.column_stack([n + 3 + 2 * li, li + 1, k])))
+        L += ["*ELEMENT, TYPE=B31, ELSET=LEVB"]
+        L.append(_block("%d, %d, %d", np.column_stack([n + 4 + 2 * li, li + 1, k + 1])))
+    L += ["*NSET, NSET=ROOT", "1", "*NSET, NSET=SUPPORT", f"{na}, {nb}, {nc}",
+          "*MATERIAL, NAME=NOMINAL", "*ELASTIC", f"{e_mod:.10g}, {NOMINAL_NU:g}"]
+    L += ["*ELSET, ELSET=SPAR", _block("E%d,", e[:, None])]
+    wh = f"{w:.10g}, {h:.10g}"
+    L.append(_block("*BEAM SECTION, ELSET=E%d, MATERIAL=NOMINAL, SECTION=RECT\n"
+                    + wh.replace("%", "%%") + "\n" + _XYZ, np.column_stack([e, d1])))
+    for elset, d in (("ARMA", eb.tolist()), ("ARMB", ea.tolist()),
+                     ("LEVA", eb.tolist()), ("LEVB", ea.tolist())):
+        if elset.startswith("LEV") and not lever_nodes:
+            continue
+        L += [f"*BEAM SECTION, ELSET={elset}, MATERIAL=NOMINAL, SECTION=RECT",
+              wh, _xyz(d)]
+    L += ["*BOUNDARY", f"{nc}, 1, 3", f"{na}, {b + 1}, {b + 1}", f"{na}, {c + 1}, {c + 1}",
+          f"{nb}, {c + 1}, {c + 1}", "*STEP", "*STATIC", "*CLOAD"]
+    part = ("\n".join(L), (a, b, c, arm, ea, eb, ec), (na, nb, nc), (pa, pb, pc))
+    if len(_GEOMETRY) >= GEOMETRY_KEPT:
+        _GEOMETRY.clear()
+    _GEOMETRY[key] = part
+    return part
+
+
+def beam_deck(nl: NodalLoads, frame=None, unit_scale_m: float = 1.0, unit: str = "m",
+              title: str = "") -> BeamDeck:
+    """The CalculiX input deck (text) of the spar beam of one case, in the CAD frame and unit.
+
+    The spar's nodes, elements, sections and supports (`_geometry_part`) are the same for
+    every case on one load grid and are built once; each deck adds its title and its loads."""
+    pts, F, Mo = to_cad(nl, frame, unit_scale_m)
+    s = float(unit_scale_m)
+    n = pts.shape[0]
+    if n < 2 or not float(np.sum(np.linalg.norm(np.diff(pts, axis=0), axis=1))) > 0:
+        raise InputError(f"FE deck of case '{nl.case}': the spar line has zero length")
+    R = np.eye(3) if frame is None else np.asarray(frame.rotation, float)
+    lever_nodes = tuple(int(i) for i in np.flatnonzero(np.any(Mo != 0, axis=1)))
+    geometry, (a, b, c, arm, ea, eb, ec), (na, nb, nc), (pa, pb, pc) = _geometry_part(
+        np.ascontiguousarray(pts, dtype=float), np.ascontiguousarray(R), s, lever_nodes)
     L = _caution_lines("**")
     L += [f"** geomload beam load deck: case '{nl.case}'" + (f" - {title}" if title else "")]
     L += ["** Spar beam on the load stations (node 1 = root). The root is clamped through three",
@@ -144,57 +212,18 @@ def beam_deck(nl: NodalLoads, frame=None, unit_scale_m: float = 1.0, unit: str =
           "** forces and moments (DOF 1-6) for a model of your own.",
           "** Section and material are NOMINAL: the model is statically determinate, so the",
           "** reactions and internal forces do not depend on them (displacements do).",
-          "*NODE, NSET=NALL"]
-    one_to_n = np.arange(1.0, n + 1.0)  # node numbers 1..n (exact floats, printed by '%d')
-    L.append(_block("%d, " + _XYZ, np.column_stack([one_to_n, pts]), same=True))
-    L += [f"{na}, {g(pa)}", f"{nb}, {g(pb)}", f"{nc}, {g(pc)}"]
-    # one section per element, its 1-direction the wing's chordwise axis made exactly normal
-    # to the element (the section's axes must be normal to the beam)
-    t = np.diff(pts, axis=0)
-    t /= np.linalg.norm(t, axis=1)[:, None]
-    d1 = chordwise[None, :] - (t @ chordwise)[:, None] * t
-    d1 /= np.linalg.norm(d1, axis=1)[:, None]
-    e = one_to_n[:-1]  # element numbers 1..n-1, element i from node i to node i + 1
-    L.append(_block("*ELEMENT, TYPE=B31, ELSET=E%d\n%d, %d, %d", np.column_stack([e, e, e, e + 1]),
-                    same=True))
-    L += ["*ELEMENT, TYPE=B31, ELSET=ARMA", f"{n}, 1, {na}", f"{n + 2}, {nc}, 1",
-          "*ELEMENT, TYPE=B31, ELSET=ARMB", f"{n + 1}, 1, {nb}"]
-    # moment levers: nodal moments enter as force couples on two short arms per node
+          geometry]
     lev = np.linalg.solve(arm * np.column_stack([_cross3(ea, eb), _cross3(ea, ec),
                                                  _cross3(eb, ec)]), Mo.T).T
     gA = lev[:, :1] * eb + lev[:, 1:2] * ec   # force at lever node A_i (and minus it at node i)
     gB = lev[:, 2:3] * ec                     # force at lever node B_i (and minus it at node i)
-    lever_a = {int(i): n + 4 + 2 * int(i) for i in np.flatnonzero(np.any(Mo != 0, axis=1))}
-    if lever_a:
-        li = np.array(list(lever_a), float)  # nodes with levers (index i, ascending)
-        k = n + 4 + 2 * li                   # lever node A of node i (B is k + 1)
-        L += ["*NODE, NSET=LEVERS"]
-        L.append(_block("%d, " + _XYZ + "\n%d, " + _XYZ, np.column_stack(
-            [k, pts[li.astype(int)] + arm * ea, k + 1, pts[li.astype(int)] + arm * eb]), same=True))
-        L += ["*ELEMENT, TYPE=B31, ELSET=LEVA"]
-        L.append(_block("%d, %d, %d", np.column_stack([n + 3 + 2 * li, li + 1, k]), same=True))
-        L += ["*ELEMENT, TYPE=B31, ELSET=LEVB"]
-        L.append(_block("%d, %d, %d", np.column_stack([n + 4 + 2 * li, li + 1, k + 1]), same=True))
-    L += ["*NSET, NSET=ROOT", "1", "*NSET, NSET=SUPPORT", f"{na}, {nb}, {nc}",
-          "*MATERIAL, NAME=NOMINAL", "*ELASTIC", f"{e_mod:.10g}, {NOMINAL_NU:g}"]
-    L += ["*ELSET, ELSET=SPAR", _block("E%d,", e[:, None], same=True)]
-    wh = f"{w:.10g}, {h:.10g}"
-    L.append(_block("*BEAM SECTION, ELSET=E%d, MATERIAL=NOMINAL, SECTION=RECT\n"
-                    + wh.replace("%", "%%") + "\n" + _XYZ, np.column_stack([e, d1]), same=True))
-    for elset, d in (("ARMA", eb.tolist()), ("ARMB", ea.tolist()),
-                     ("LEVA", eb.tolist()), ("LEVB", ea.tolist())):
-        if elset.startswith("LEV") and not lever_a:
-            continue
-        L += [f"*BEAM SECTION, ELSET={elset}, MATERIAL=NOMINAL, SECTION=RECT",
-              wh, _xyz(d)]
-    L += ["*BOUNDARY", f"{nc}, 1, 3", f"{na}, {b + 1}, {b + 1}", f"{na}, {c + 1}, {c + 1}",
-          f"{nb}, {c + 1}, {c + 1}", "*STEP", "*STATIC", "*CLOAD"]
     # every node with a moment has levers (gA = gB = 0 elsewhere). Per node i, in order: its
     # own force, then lever A's and lever B's (nodes with levers only); each DOF 1-3 whose
     # value is not zero gets a line "node, dof, value"
+    one_to_n = np.arange(1.0, n + 1.0)
     node_f = F - gA - gB
     has_lev = np.zeros(n, bool)
-    has_lev[list(lever_a)] = True
+    has_lev[list(lever_nodes)] = True
     value = np.stack([node_f, gA, gB], axis=1)                           # (n, 3 rows, 3 DOFs)
     lev_a = n + 4 + 2 * np.arange(n, dtype=float)
     node = np.column_stack([one_to_n, lev_a, lev_a + 1])[:, :, None]     # (n, 3 rows, 1)

@@ -250,3 +250,41 @@ def test_atomic_bytes_are_written_whole_with_the_usual_permissions(tmp_path, siz
     assert p.read_bytes() == data
     assert (p.stat().st_mode & 0o777) == (0o666 & ~atomic._UMASK)
     assert sorted(os.listdir(tmp_path)) == ["QM-36.bin"]       # no temporary file left
+
+
+def test_beam_deck_with_its_kept_geometry_is_the_deck_built_afresh():
+    """Every case of a run shares the spar's nodes, elements and sections: that part of the
+    deck is built once. A deck made with the kept part must be the deck made with none kept,
+    byte for byte, also when the lever nodes (nodes with moments) or one coordinate bit differ
+    (the deck's own text is the reference: common practice, no source)."""
+    import numpy as np
+
+    from geomload.export import fe_deck
+    from geomload.export.fe_nodes import NodalLoads
+
+    n = 12
+    pts = np.column_stack([np.linspace(0.0, 0.3, n), np.linspace(0.0, 1.5, n),
+                           np.linspace(0.0, 0.05, n)])
+    rng = np.random.default_rng(11)
+
+    def case(name, moments_at, p=pts):
+        m = np.zeros((n, 3))
+        m[moments_at] = rng.standard_normal((len(moments_at), 3))
+        return NodalLoads(case=name, y_m=p[:, 1], points_m=p, force_N=rng.standard_normal((n, 3)),
+                          moment_Nm=m, axis_s=p, axis_b=p, axis_n=p)
+
+    other = pts.copy()
+    other[-1, 2] = np.nextafter(other[-1, 2], 1.0)
+    cases = [case("pull-up", [1, 2, 5]), case("push-over", [1, 2, 5]),
+             case("gust", [0, 7]), case("roll", list(range(n))), case("bit", [1, 2, 5], other)]
+    fe_deck._GEOMETRY.clear()
+    kept = [fe_deck.beam_deck(c, unit_scale_m=0.0254, unit="in", title="QM-36 Pellin").text
+            for c in cases]
+    assert len(fe_deck._GEOMETRY) == 4            # (same, same), levers x2, one bit: 4 parts
+    for c, text in zip(cases, kept):
+        fe_deck._GEOMETRY.clear()
+        assert fe_deck.beam_deck(c, unit_scale_m=0.0254, unit="in", title="QM-36 Pellin").text \
+            == text
+    assert kept[0].split("*CLOAD")[0].split("*NODE, NSET=NALL")[1] \
+        == kept[1].split("*CLOAD")[0].split("*NODE, NSET=NALL")[1]
+    assert kept[0] != kept[4]
