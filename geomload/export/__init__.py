@@ -72,7 +72,7 @@ def write_all(run, folder, inputs=(), render=True, progress=None, options=None,
 
     if parallel is None:
         parallel = parallel_pays()
-    plot_job = job = None
+    plot_job = job = deck_job = None
     try:
         with sync_at_end(f):  # a staged run folder: one fsync pass at the end, not per file
             # the plots (matplotlib) and the renders (pyvista) in child processes while this
@@ -83,17 +83,22 @@ def write_all(run, folder, inputs=(), render=True, progress=None, options=None,
                 import matplotlib.backends.backend_agg  # noqa: F401
                 import matplotlib.figure  # noqa: F401
             plot_job = plots.start_plot_process(run) if parallel else None
+            structure = getattr(run.case, "structure", None)
+            if parallel and structure is not None:  # many cases: the FE decks in a child too
+                from geomload.export.fe import start_deck_process
+
+                deck_job = start_deck_process(run)
             surface = vtk.surface_data(run, full=full_surface)  # once: surface.vtp, pictures
             if render:
                 from geomload.export import render as rnd
 
                 job = rnd.RenderProcess.start(run, surface) if parallel else None
             _write_tables(run, f, inputs, rec, loads)
-            structure = getattr(run.case, "structure", None)
             if structure is not None:  # [structure]: FE beam decks, mapped loads, sizing (fe.py)
                 from geomload.export.fe import write_structural_handoff
 
-                handoff = write_structural_handoff(run, f, inputs, **structure.handoff_options())
+                handoff = write_structural_handoff(run, f, inputs, **structure.handoff_options(),
+                                                   deck_job=deck_job)
                 for p in handoff["files"]:
                     rec(p)
                 warnings += handoff["warnings"]
@@ -121,7 +126,7 @@ def write_all(run, folder, inputs=(), render=True, progress=None, options=None,
                                     frag))
             tick()
     finally:
-        for j in (plot_job, job):
+        for j in (plot_job, job, deck_job):
             if j is not None:
                 j.stop()
     images = {k: (v.relative_to(f) if isinstance(v, Path) else v) for k, v in images.items()}

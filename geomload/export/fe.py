@@ -24,25 +24,60 @@ from geomload.export.fe_nodes import (MERGE_FRACTION, SAME_NODE_M, NodalLoads,  
 from geomload.geometry.units import UNITS
 
 
+def deck_texts(loads_list, frame=None, unit_scale_m: float = 1.0, unit: str = "m",
+               title: str = "") -> list:
+    """[(case name, beam deck text, nodal-loads CSV text)] of each SpanLoads of loads_list (no
+    file written: it can run in another process)."""
+    out = []
+    for loads in loads_list:
+        nl = nodal_loads(loads)
+        out.append((loads.case, beam_deck(nl, frame, unit_scale_m, unit, title).text,
+                    nodal_loads_csv(nl, frame, unit_scale_m, unit)))
+    return out
+
+
 def write_fe_decks(folder, loads_list, frame=None, unit_scale_m: float = 1.0, unit: str = "m",
-                   inputs=(), title: str = "") -> list:
+                   inputs=(), title: str = "", texts=None) -> list:
     """Write fe/<case>.inp and fe/<case>_nodal_loads.csv for each SpanLoads of loads_list.
 
     folder : the run folder; files go to folder/fe/. Returns the list of paths written. All
     decks are built before the first file is written, so a bad case writes nothing.
+    texts : `deck_texts` of the same arguments made elsewhere (another process); used when it
+    names the same cases in the same order, else the decks are built here.
     """
-    out, taken = [], set()
-    for loads in loads_list:
-        nl = nodal_loads(loads)
-        name = safe_name(loads.case, taken)
-        out.append((name, beam_deck(nl, frame, unit_scale_m, unit, title).text,
-                    nodal_loads_csv(nl, frame, unit_scale_m, unit)))
-    paths = []
-    for name, deck, csv in out:
-        d = Path(folder) / "fe"
+    if not (isinstance(texts, list) and len(texts) == len(loads_list)
+            and all(t[0] == L.case for t, L in zip(texts, loads_list))):
+        texts = deck_texts(loads_list, frame, unit_scale_m, unit, title)
+    taken, paths = set(), []
+    d = Path(folder) / "fe"
+    for case, deck, csv in texts:
+        name = safe_name(case, taken)
         paths.append(write_text_atomic(d / f"{name}.inp", deck, inputs))
         paths.append(write_text_atomic(d / f"{name}_nodal_loads.csv", csv, inputs))
     return paths
+
+
+# The decks of a run with many cases are formatted in a forked child process while this one
+# writes the loads tables (geomload.forked: the child writes no file; if it fails, the decks
+# are built here, the same text). Below MIN_FORKED_CASES the fork costs more than it saves.
+MIN_FORKED_CASES = 200
+
+
+def _deck_job(loads_list, frame, scale, unit) -> dict:  # pragma: no cover - runs in the child
+    return {"decks": deck_texts(loads_list, frame, scale, unit)}
+
+
+def start_deck_process(run):
+    """A ForkedJob formatting every case's beam deck and nodal-loads CSV of `run` (see
+    `write_structural_handoff(deck_job=...)`), or None when the run has too few cases or
+    fork is unavailable."""
+    if len(run.cases) < MIN_FORKED_CASES:
+        return None
+    from geomload.forked import ForkedJob
+
+    unit, scale = cad_unit(run)
+    return ForkedJob.start(_deck_job, ([c.loads for c in run.cases], run.frame, scale, unit),
+                           names=("decks",), what="FE deck")
 
 
 # --------------------------------------------------------------------------- one call per run
@@ -62,7 +97,8 @@ def cad_unit(run):
 
 def write_structural_handoff(run, folder, inputs=(), structural_mesh=None, material=None,
                              sigma_allow_Pa=None, tau_allow_Pa=None, front_spar_fraction=0.15,
-                             rear_spar_fraction=0.65, cap_depth_factor=None, plot=True) -> dict:
+                             rear_spar_fraction=0.65, cap_depth_factor=None, plot=True,
+                             deck_job=None) -> dict:
     """Every structural hand-off output of a RunResult, into folder:
 
     fe/<case>.inp and fe/<case>_nodal_loads.csv for every case (the envelope's governing cases
@@ -70,6 +106,8 @@ def write_structural_handoff(run, folder, inputs=(), structural_mesh=None, mater
     mapped loads fe/mesh_<case>_*; sizing.csv (+ sizing.png when plot).
     Returns {"files": [paths], "warnings": [one-line warnings]}. Everything that can fail on
     bad input (mesh, material, fractions) is checked before the first file is written.
+    deck_job : `start_deck_process(run)`, the decks' texts formatted in a child process (None:
+    formatted here; so are they when the child fails).
     """
     unit, scale = cad_unit(run)
     mat = sizing.material(material or (None if sigma_allow_Pa is not None else "al-2024-t3"),
@@ -84,7 +122,8 @@ def write_structural_handoff(run, folder, inputs=(), structural_mesh=None, mater
         smesh = mesh_map.read_structural_mesh(structural_mesh)
         for L in loads:
             mesh_map.map_loads(smesh, L, run.frame, scale, run.stations)
-    files = write_fe_decks(folder, loads, run.frame, scale, unit, inputs)
+    texts = deck_job.result().get("decks") if deck_job is not None else None
+    files = write_fe_decks(folder, loads, run.frame, scale, unit, inputs, texts=texts)
     if structural_mesh is not None:
         paths, w = mesh_map.write_mesh_loads(folder, structural_mesh, loads, run.frame, scale,
                                              unit, run.stations, inputs)
@@ -94,6 +133,6 @@ def write_structural_handoff(run, folder, inputs=(), structural_mesh=None, mater
     return {"files": files, "warnings": warnings}
 
 
-__all__ = ["write_structural_handoff", "write_fe_decks", "cad_unit", "NodalLoads", "nodal_loads",
+__all__ = ["write_structural_handoff", "write_fe_decks", "deck_texts", "start_deck_process", "cad_unit", "NodalLoads", "nodal_loads",
            "internal_loads", "to_cad", "BeamDeck", "beam_deck", "nodal_loads_csv",
            "read_reactions", "root_reaction"]

@@ -278,3 +278,56 @@ def test_one_call_writes_the_handoff_and_refuses_a_bad_mesh(sample_run, tmp_path
     with pytest.raises(InputError, match="bad.vtu"):
         fe.write_structural_handoff(sample_run, tmp_path / "no", structural_mesh=bad)
     assert not (tmp_path / "no").exists()
+
+
+# ------------------------------------------------------- decks formatted in a child process
+def _fe_tree(folder):
+    out = {}
+    for p in sorted((folder / "fe").iterdir()):
+        out[p.name] = p.read_bytes()
+    return out
+
+
+def test_decks_formatted_in_a_child_are_the_decks_formatted_here(sample_run, tmp_path,
+                                                                  monkeypatch):
+    """A run with many cases formats its FE decks in a forked child (geomload.forked) while it
+    writes the loads tables; the files must be the ones formatted in one process, byte for
+    byte and in the same order, also when the child dies (the decks are then made here).
+    Reference: the in-process decks, which the ccx checks above validate (speed work changes
+    no byte; common practice, no source)."""
+    import signal
+
+    from geomload.export import write_all
+    from geomload.export.run_folder import OutputDir
+
+    monkeypatch.setattr(fe, "MIN_FORKED_CASES", 1)  # the sample's cases are enough to fork
+    got = {}
+    for how in ("serial", "forked"):
+        out = tmp_path / how
+        with OutputDir(out, inputs=[SAMPLE_CASE]) as od:
+            res = write_all(sample_run, od.staging, render=False, parallel=how == "forked",
+                            run_time_s=1.0)
+        got[how] = (_fe_tree(out), [str(p) for p in res["files"]])
+    assert got["forked"] == got["serial"]
+    job = fe.start_deck_process(sample_run)
+    try:  # what the child sends is what this process makes
+        sent = job.result()["decks"]
+    finally:
+        job.stop()
+    unit, scale = fe.cad_unit(sample_run)
+    assert sent == fe.deck_texts([c.loads for c in sample_run.cases], sample_run.frame, scale,
+                                 unit)
+    job = fe.start_deck_process(sample_run)
+    assert job is not None
+    os.kill(job.proc.pid, signal.SIGKILL)  # a real crash of the child
+    try:
+        with OutputDir(tmp_path / "killed", inputs=[SAMPLE_CASE]) as od:
+            fe.write_structural_handoff(sample_run, od.staging, [SAMPLE_CASE],
+                                        **sample_run.case.structure.handoff_options(),
+                                        deck_job=job)
+    finally:
+        job.stop()
+    killed = _fe_tree(tmp_path / "killed")
+    assert killed == got["serial"][0]
+    n_decks = sum(name.endswith(".inp") for name in killed)
+    assert n_decks == len(sample_run.cases)
