@@ -99,12 +99,22 @@ def decimate_soup(triangles, target: int):
     del key
     # the per-cell sums in blocks, each an unbuffered ufunc.at accumulation in vertex order:
     # the same additions, in the same order, as np.bincount(inv, weights=v[:, k]) (bit for
-    # bit), without its contiguous copy of a whole coordinate column (96 MB at 4 M triangles)
-    pts = np.zeros((n, 3))
+    # bit), without its contiguous copy of a whole coordinate column (96 MB at 4 M triangles).
+    # x and y go through one complex accumulation (complex addition adds the real and the
+    # imaginary parts separately: the same two float64 additions), z on its own
+    sxy, sz = np.zeros(n, np.complex128), np.zeros(n)
+    vxy = _xy_complex(v)
     for a in range(0, v.shape[0], _KEY_BLOCK):
         blk = inv[a:a + _KEY_BLOCK]
-        for k in range(3):
-            np.add.at(pts[:, k], blk, v[a:a + _KEY_BLOCK, k])
+        if vxy is None:
+            np.add.at(sxy.real, blk, v[a:a + _KEY_BLOCK, 0])
+            np.add.at(sxy.imag, blk, v[a:a + _KEY_BLOCK, 1])
+        else:
+            np.add.at(sxy, blk, vxy[a:a + _KEY_BLOCK])
+        np.add.at(sz, blk, v[a:a + _KEY_BLOCK, 2])
+    pts = np.empty((n, 3))
+    pts[:, 0], pts[:, 1], pts[:, 2] = sxy.real, sxy.imag, sz
+    del sxy, sz
     pts /= cnt[:, None]
     f = inv.reshape(-1, 3)
     ok = (f[:, 0] != f[:, 1]) & (f[:, 1] != f[:, 2]) & (f[:, 0] != f[:, 2])
@@ -120,26 +130,58 @@ def decimate_soup(triangles, target: int):
     return pts, f[np.sort(first)].astype(np.int64, copy=False)
 
 
+def _xy_complex(v):
+    """The (x, y) columns of v (n, 3) float64 as one complex128 column (a view), or None when
+    v's rows do not allow the view."""
+    try:
+        return v[:, :2].view(np.complex128)[:, 0]
+    except ValueError:
+        return None
+
+
 def _cell_keys(v, lo, inv_h, dims):
     """Cell key of each vertex v (n, 3): (q0 d1 + q1) d2 + q2 with q = trunc((v - lo) / h)
-    (non-negative), in blocks of `_CELL_BLOCK` vertices through two reused buffers. The
-    products are formed in float64, exact while the grid has under 2**53 cells (integers),
-    so the keys are those of the integer formula; int64 arithmetic above that."""
-    key = np.empty(v.shape[0], np.int64)
-    exact = float(np.prod(dims.astype(float))) < 2.0 ** 53
-    d1, d2 = (float(dims[1]), float(dims[2])) if exact else (int(dims[1]), int(dims[2]))
+    (non-negative), in blocks of `_CELL_BLOCK` vertices through reused buffers.
+
+    While the grid has under 2**53 cells every product and sum is an exact integer in float64,
+    so the key is formed as q0 (d1 d2) + q1 d2 + q2 (one (k, 3) by (3,) product, exact in any
+    order), the keys of the integer formula; q comes from the flat block (x, y, z, x, ...)
+    minus lo repeated per vertex (contiguous elementwise passes). int64 arithmetic above that.
+    """
+    n = v.shape[0]
+    key = np.empty(n, np.int64)
+    if float(np.prod(dims.astype(float))) >= 2.0 ** 53:
+        return _cell_keys_int(v, lo, inv_h, dims, key)
+    m = min(_CELL_BLOCK, n)
+    lo_rep = np.tile(np.asarray(lo, float), m)  # lo per vertex of a flat block
+    w = np.array([float(dims[1]) * float(dims[2]), float(dims[2]), 1.0])
+    f, k = np.empty(3 * m), np.empty(m)
+    from geomload.threads import one_blas_thread
+
+    with one_blas_thread():  # an exact (k, 3) by (3,) product: threads only wait for each other
+        for a in range(0, n, _CELL_BLOCK):
+            b = min(a + _CELL_BLOCK, n)
+            ff, kk = f[:3 * (b - a)], k[:b - a]
+            np.subtract(np.ascontiguousarray(v[a:b]).reshape(-1), lo_rep[:ff.size], out=ff)
+            np.multiply(ff, inv_h, out=ff)
+            np.trunc(ff, out=ff)
+            np.dot(ff.reshape(-1, 3), w, out=kk)
+            key[a:b] = kk
+    return key
+
+
+def _cell_keys_int(v, lo, inv_h, dims, key):
+    """`_cell_keys` in int64 arithmetic (grids of 2**53 cells or more)."""
+    d1, d2 = int(dims[1]), int(dims[2])
     f = np.empty((min(_CELL_BLOCK, v.shape[0]), 3))
-    k = np.empty(f.shape[0]) if exact else np.empty(f.shape[0], np.int64)
-    q = f if exact else np.empty(f.shape, np.int64)
+    q = np.empty(f.shape, np.int64)
+    k = np.empty(f.shape[0], np.int64)
     for a in range(0, v.shape[0], _CELL_BLOCK):
         b = min(a + _CELL_BLOCK, v.shape[0])
         ff, kk, qq = f[:b - a], k[:b - a], q[:b - a]
         np.subtract(v[a:b], lo, out=ff)
         np.multiply(ff, inv_h, out=ff)
-        if exact:
-            np.trunc(ff, out=ff)
-        else:
-            qq[...] = ff  # truncation, as astype(int64)
+        qq[...] = ff  # truncation, as astype(int64)
         np.multiply(qq[:, 0], d1, out=kk)
         kk += qq[:, 1]
         kk *= d2
