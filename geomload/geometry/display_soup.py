@@ -58,24 +58,7 @@ def decimate_soup(triangles, target: int):
         for a in range(0, inv.size, _KEY_BLOCK):
             cnt += np.bincount(inv[a:a + _KEY_BLOCK], minlength=n)
     del key
-    # the per-cell sums in blocks, each an unbuffered ufunc.at accumulation in vertex order:
-    # the same additions, in the same order, as np.bincount(inv, weights=v[:, k]) (bit for
-    # bit), without its contiguous copy of a whole coordinate column (96 MB at 4 M triangles).
-    # x and y go through one complex accumulation (complex addition adds the real and the
-    # imaginary parts separately: the same two float64 additions), z on its own
-    sxy, sz = np.zeros(n, np.complex128), np.zeros(n)
-    vxy = _xy_complex(v)
-    for a in range(0, v.shape[0], _KEY_BLOCK):
-        blk = inv[a:a + _KEY_BLOCK]
-        if vxy is None:
-            np.add.at(sxy.real, blk, v[a:a + _KEY_BLOCK, 0])
-            np.add.at(sxy.imag, blk, v[a:a + _KEY_BLOCK, 1])
-        else:
-            np.add.at(sxy, blk, vxy[a:a + _KEY_BLOCK])
-        np.add.at(sz, blk, v[a:a + _KEY_BLOCK, 2])
-    pts = np.empty((n, 3))
-    pts[:, 0], pts[:, 1], pts[:, 2] = sxy.real, sxy.imag, sz
-    del sxy, sz
+    pts = _cell_sums(v, inv, n)
     pts /= cnt[:, None]
     f = inv.reshape(-1, 3)
     ok = (f[:, 0] != f[:, 1]) & (f[:, 1] != f[:, 2]) & (f[:, 0] != f[:, 2])
@@ -89,6 +72,30 @@ def decimate_soup(triangles, target: int):
         _, first = np.unique(np.ascontiguousarray(s).view(np.dtype((np.void, 24))).ravel(),
                              return_index=True)
     return pts, f[np.sort(first)].astype(np.int64, copy=False)
+
+
+def _cell_sums(v, inv, n):
+    """(n, 3) sums of the vertices v (k, 3) of each cell inv (k,), added in vertex order.
+
+    Blocks, each an unbuffered ufunc.at accumulation: the same additions, in the same order,
+    as np.bincount(inv, weights=v[:, j]) (bit for bit), without its contiguous copy of a
+    whole coordinate column (96 MB at 4 M triangles). x and y go through one complex
+    accumulation (complex addition adds the real and the imaginary parts separately: the same
+    two float64 additions), z on its own.
+    """
+    sxy, sz = np.zeros(n, np.complex128), np.zeros(n)
+    vxy = _xy_complex(v)
+    for a in range(0, v.shape[0], _KEY_BLOCK):
+        blk = inv[a:a + _KEY_BLOCK]
+        if vxy is None:
+            np.add.at(sxy.real, blk, v[a:a + _KEY_BLOCK, 0])
+            np.add.at(sxy.imag, blk, v[a:a + _KEY_BLOCK, 1])
+        else:
+            np.add.at(sxy, blk, vxy[a:a + _KEY_BLOCK])
+        np.add.at(sz, blk, v[a:a + _KEY_BLOCK, 2])
+    pts = np.empty((n, 3))
+    pts[:, 0], pts[:, 1], pts[:, 2] = sxy.real, sxy.imag, sz
+    return pts
 
 
 def _xy_complex(v):
