@@ -18,24 +18,25 @@ DISPLAY_TRIANGLES = 100_000  # above this the display surface is decimated: a 2-
 # no source)
 
 
-def decimate_soup(triangles, target: int):
+def decimate_soup(triangles, target: int, box=None):
     """Vertex clustering of a triangle soup to about `target` triangles.
 
     The vertices are snapped to a cubic grid whose cell h is chosen from the surface area A so
     that about target / 2 cells are occupied (h = sqrt(2 A / target)); each occupied cell becomes
     one vertex at the mean of its members; collapsed and repeated triangles are dropped.
     Returns (points (n, 3), tri (m, 3)). Rossignac-Borrel vertex clustering (1993), the simplest
-    decimation; the shape is kept to within about h.
+    decimation; the shape is kept to within about h. box: the soup's per-axis (min, max) when
+    already known (as `readers.bounds` gives them), else measured here.
     """
     t = np.asarray(triangles, np.float64).reshape(-1, 3, 3)
     step = max(1, t.shape[0] // 200_000)  # the area from a regular sample: it only sets h
-    ts = t[::step]
+    ts = np.ascontiguousarray(t[::step])  # the same values; contiguous rows are faster
     area = 0.5 * np.linalg.norm(np.cross(ts[:, 1] - ts[:, 0], ts[:, 2] - ts[:, 0]), axis=1).sum()
     area *= t.shape[0] / ts.shape[0]
     v = t.reshape(-1, 3)
     from .readers import bounds
 
-    lo, hi = bounds(t)
+    lo, hi = bounds(t) if box is None else (np.asarray(box[0], float), np.asarray(box[1], float))
     h = max(float(np.sqrt(2.0 * area / max(target, 1))), 1e-12)
     dims = np.floor((hi - lo) / h).astype(np.int64) + 2
     key = _cell_keys(v, lo, 1.0 / h, dims)
@@ -167,15 +168,15 @@ class DisplaySoup:
     """`decimate_soup(tris, target)` computed in a worker thread; `result()` waits for it and
     gives (points, tri), or re-raises what stopped it."""
 
-    def __init__(self, tris, target):
-        self.tris, self.target, self._out = tris, int(target), None
+    def __init__(self, tris, target, box=None):
+        self.tris, self.target, self.box, self._out = tris, int(target), box, None
         self._thread = threading.Thread(target=self._work, name="geomload-display-soup",
                                         daemon=True)
         self._thread.start()
 
     def _work(self):
         try:
-            self._out = ("ok", decimate_soup(self.tris, self.target))
+            self._out = ("ok", decimate_soup(self.tris, self.target, self.box))
         except BaseException as exc:  # noqa: BLE001 - handed to result()
             self._out = ("error", exc)
 
@@ -190,11 +191,12 @@ class DisplaySoup:
         return value
 
 
-def start_display_soup(tris, target=DISPLAY_TRIANGLES):
+def start_display_soup(tris, box=None, target=DISPLAY_TRIANGLES):
     """A `DisplaySoup` of `tris` when it is above `target` triangles and a second CPU is free
-    (`forked.parallel_pays`), else None (the export stage then builds it itself)."""
+    (`forked.parallel_pays`), else None (the export stage then builds it itself). box: the
+    soup's per-axis (min, max), when the read measured them."""
     if tris.shape[0] <= target:
         return None
     from geomload.forked import parallel_pays
 
-    return DisplaySoup(tris, target) if parallel_pays(1) else None
+    return DisplaySoup(tris, target, box) if parallel_pays(1) else None

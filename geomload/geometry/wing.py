@@ -34,12 +34,13 @@ def read_wing(path, units=None, body=None, span_axis=None, up_axis=None, n_stati
 def _read_wing(path, units, body, span_axis, up_axis, n_stations, spacing, progress, side,
                require_units, units_hint):
     progress = progress or _no_progress
+    box = []
     mesh = read_mesh(path, units=units, progress=progress, require_units=require_units,
-                     units_hint=units_hint, all_bodies=True)
+                     units_hint=units_hint, all_bodies=True, bounds_out=box)
     # the display surface's clustering of a large single-body mesh, in a worker thread while
     # this one finds the frame and cuts the stations (the export uses it; see display_soup)
     one = body is None and len(mesh.body_sizes) <= 1
-    soup = start_display_soup(mesh.triangles) if one else None
+    soup = start_display_soup(mesh.triangles, box[0]) if one else None
     try:
         return _with_soup(_read_mesh_wing(mesh, body, span_axis, up_axis, n_stations, spacing,
                                           progress, side), soup)

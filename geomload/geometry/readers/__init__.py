@@ -33,7 +33,7 @@ def _no_progress(stage, done, total):
 
 
 def read_mesh(path, units=None, body=None, progress=None, require_units=False, all_bodies=False,
-              units_hint=None) -> WingMesh:
+              units_hint=None, bounds_out=None) -> WingMesh:
     """Read a CAD/mesh file into a `WingMesh` (triangles (m, 3, 3) float64, metres, CAD frame).
 
     Parameters
@@ -54,6 +54,9 @@ def read_mesh(path, units=None, body=None, progress=None, require_units=False, a
     units_hint : str or None
         Wording of "the key to set" in that refusal (default names both the case-file key
         `geometry.units` and the CLI option `--units`).
+    bounds_out : list or None
+        Receives (min (3,), max (3,)) per axis of the returned triangles (m), from the read's
+        own pass (exact, as `bounds`).
 
     Raises
     ------
@@ -151,6 +154,8 @@ def read_mesh(path, units=None, body=None, progress=None, require_units=False, a
     elif extent > SPAN_TOO_BIG_M or extent < SPAN_TOO_SMALL_M:
         notes.append(f"warning: largest extent is {extent:.4g} m after reading in {unit_label}: "
                      f"wrong unit? (give --units m|cm|mm|in|ft)")
+    if bounds_out is not None:
+        bounds_out.append((bmin, bmax))
     return WingMesh(triangles=tris, source=path, units=unit_label, notes=tuple(notes),
                     unit_scale_m=float(cad_scale),
                     units_assumed=units_assumed, body_sizes=sizes)
