@@ -46,8 +46,9 @@ for _ in range(n):
     out = load_wing(path, units="mm", n_stations=24, spacing="cosine")
     t_read, c_read = min(t_read, time.perf_counter() - t0), min(c_read, time.process_time() - c0)
     del out
+from geomload.forked import parallel_pays
 print(json.dumps({"fromfile_s": t_raw, "load_wing_s": t_read, "fromfile_cpu_s": c_raw,
-                  "load_wing_cpu_s": c_read}))
+                  "load_wing_cpu_s": c_read, "cpu_free": parallel_pays(1)}))
 """
 
 
@@ -92,6 +93,9 @@ def main() -> dict:
           f"= {read_ratio:.1f} x fromfile (target <= {TARGET_READ_RATIO:g})")
     print(f"  by CPU time (this process): load_wing {rc['load_wing_cpu_s']:.3f} s = "
           f"{cpu_ratio:.1f} x fromfile {rc['fromfile_cpu_s']:.3f} s")
+    print(f"  a second CPU {'was' if rc.get('cpu_free') else 'was not'} free at the end (load "
+          f"{os.getloadavg()[0]:.2f}): the read's two threads and the display surface's worker "
+          f"thread run only then (CPU time counts both threads)")
     print(t.line("run", "run --no-render"))
     print(f"  run: {t_run:.2f} s (target <= {TARGET_RUN_S:g} s), peak RSS {rss:.0f} MB "
           f"(target <= {TARGET_RSS_MB:g} MB)")

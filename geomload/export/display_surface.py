@@ -10,9 +10,9 @@ from dataclasses import dataclass
 
 import numpy as np
 
-MAX_DISPLAY_TRIANGLES = 100_000  # above this the display surface is decimated: a 2-D picture
-# and a ParaView overview gain nothing from more, and per-case arrays stay small (common
-# practice, no source)
+from geomload.geometry.display_soup import (  # noqa: F401  (the earlier home of these names)
+    DENSE_GRID_MAX, _KEY_BLOCK, _CELL_BLOCK, _cell_keys, _xy_complex, decimate_soup)
+from geomload.geometry.display_soup import DISPLAY_TRIANGLES as MAX_DISPLAY_TRIANGLES
 
 
 @dataclass(frozen=True)
@@ -55,102 +55,6 @@ def surface_points_faces(mesh, frame):
     rows = tri.view(np.dtype((np.void, 24))).ravel()  # one 24-byte key per vertex: fast unique
     _, first, inv = np.unique(rows, return_index=True, return_inverse=True)
     return frame.to_wing(tri[first]), inv.reshape(-1, 3)
-
-
-def decimate_soup(triangles, target: int):
-    """Vertex clustering of a triangle soup to about `target` triangles.
-
-    The vertices are snapped to a cubic grid whose cell h is chosen from the surface area A so
-    that about target / 2 cells are occupied (h = sqrt(2 A / target)); each occupied cell becomes
-    one vertex at the mean of its members; collapsed and repeated triangles are dropped.
-    Returns (points (n, 3), tri (m, 3)). Rossignac-Borrel vertex clustering (1993), the simplest
-    decimation; the shape is kept to within about h.
-    """
-    t = np.asarray(triangles, np.float64).reshape(-1, 3, 3)
-    step = max(1, t.shape[0] // 200_000)  # the area from a regular sample: it only sets h
-    ts = t[::step]
-    area = 0.5 * np.linalg.norm(np.cross(ts[:, 1] - ts[:, 0], ts[:, 2] - ts[:, 0]), axis=1).sum()
-    area *= t.shape[0] / ts.shape[0]
-    v = t.reshape(-1, 3)
-    from ..geometry.readers import bounds
-
-    lo, hi = bounds(t)
-    h = max(float(np.sqrt(2.0 * area / max(target, 1))), 1e-12)
-    dims = np.floor((hi - lo) / h).astype(np.int64) + 2
-    key = _cell_keys(v, lo, 1.0 / h, dims)
-    n_cells = int(np.prod(dims))
-    if n_cells <= DENSE_GRID_MAX:  # a counting pass over a dense grid: no sort of the vertices
-        counts = np.bincount(key, minlength=n_cells)
-        occupied = counts > 0
-        cnt = counts[occupied].astype(float)  # members per cell
-        del counts
-        n = int(occupied.sum())
-        lut = np.cumsum(occupied, dtype=np.int64 if n >= 2 ** 31 else np.int32)
-        del occupied
-        lut -= 1
-        inv = lut[key]  # the cell number of each vertex (int32 below 2**31 cells: half the size)
-        del lut
-    else:
-        _, inv = np.unique(key, return_inverse=True)
-        n = int(inv.max()) + 1
-        cnt = np.zeros(n)  # members per cell; integer counts, so block sums are exact
-        for a in range(0, inv.size, _KEY_BLOCK):
-            cnt += np.bincount(inv[a:a + _KEY_BLOCK], minlength=n)
-    del key
-    # the per-cell sums in blocks, each an unbuffered ufunc.at accumulation in vertex order:
-    # the same additions, in the same order, as np.bincount(inv, weights=v[:, k]) (bit for
-    # bit), without its contiguous copy of a whole coordinate column (96 MB at 4 M triangles)
-    pts = np.zeros((n, 3))
-    for a in range(0, v.shape[0], _KEY_BLOCK):
-        blk = inv[a:a + _KEY_BLOCK]
-        for k in range(3):
-            np.add.at(pts[:, k], blk, v[a:a + _KEY_BLOCK, k])
-    pts /= cnt[:, None]
-    f = inv.reshape(-1, 3)
-    ok = (f[:, 0] != f[:, 1]) & (f[:, 1] != f[:, 2]) & (f[:, 0] != f[:, 2])
-    f = f[ok]
-    del inv, ok
-    s = np.sort(f, axis=1)  # int32 below 2**31 cells; the face key in int64
-    if n ** 3 < 2 ** 62:
-        _, first = np.unique((s[:, 0].astype(np.int64) * n + s[:, 1]) * n + s[:, 2],
-                             return_index=True)
-    else:
-        _, first = np.unique(np.ascontiguousarray(s).view(np.dtype((np.void, 24))).ravel(),
-                             return_index=True)
-    return pts, f[np.sort(first)].astype(np.int64, copy=False)
-
-
-def _cell_keys(v, lo, inv_h, dims):
-    """Cell key of each vertex v (n, 3): (q0 d1 + q1) d2 + q2 with q = trunc((v - lo) / h)
-    (non-negative), in blocks of `_CELL_BLOCK` vertices through two reused buffers. The
-    products are formed in float64, exact while the grid has under 2**53 cells (integers),
-    so the keys are those of the integer formula; int64 arithmetic above that."""
-    key = np.empty(v.shape[0], np.int64)
-    exact = float(np.prod(dims.astype(float))) < 2.0 ** 53
-    d1, d2 = (float(dims[1]), float(dims[2])) if exact else (int(dims[1]), int(dims[2]))
-    f = np.empty((min(_CELL_BLOCK, v.shape[0]), 3))
-    k = np.empty(f.shape[0]) if exact else np.empty(f.shape[0], np.int64)
-    q = f if exact else np.empty(f.shape, np.int64)
-    for a in range(0, v.shape[0], _CELL_BLOCK):
-        b = min(a + _CELL_BLOCK, v.shape[0])
-        ff, kk, qq = f[:b - a], k[:b - a], q[:b - a]
-        np.subtract(v[a:b], lo, out=ff)
-        np.multiply(ff, inv_h, out=ff)
-        if exact:
-            np.trunc(ff, out=ff)
-        else:
-            qq[...] = ff  # truncation, as astype(int64)
-        np.multiply(qq[:, 0], d1, out=kk)
-        kk += qq[:, 1]
-        kk *= d2
-        kk += qq[:, 2]
-        key[a:b] = kk
-    return key
-
-
-_KEY_BLOCK = 1 << 16  # vertices per block of the count and sum passes
-_CELL_BLOCK = 1 << 13  # vertices per block of the cell-key pass (cache-sized buffers)
-DENSE_GRID_MAX = 40_000_000  # grid cells counted densely (320 MB of int64 at most)
 
 
 BRUTE_NEAREST_MAX = 100_000_000  # query-centre pairs up to which the nearest centre is found by
@@ -244,7 +148,7 @@ def surface_data(run, full: bool = False) -> Surface:
         pts, tri = surface_points_faces(m, run.frame)
         dec = False
     else:
-        cad_pts, tri = decimate_soup(m.triangles, MAX_DISPLAY_TRIANGLES)
+        cad_pts, tri = _display_soup(run, m)
         pts, dec = run.frame.to_wing(cad_pts), True
     c = pts[tri].mean(axis=1)
     near = map_to_panels(c[:, :2], run.lattice)
@@ -253,6 +157,16 @@ def surface_data(run, full: bool = False) -> Surface:
     nz = (p1[:, 0] - p0[:, 0]) * (p2[:, 1] - p0[:, 1]) - (p1[:, 1] - p0[:, 1]) * (p2[:, 0] - p0[:, 0])
     return Surface(points=pts, tri=tri, panel=near, side=side, plan_area_m2=0.5 * np.abs(nz),
                    source_triangles=m.n_triangles, decimated=dec)
+
+
+def _display_soup(run, mesh):
+    """decimate_soup(mesh.triangles, MAX_DISPLAY_TRIANGLES): the one the geometry stage built
+    alongside (`Wing.display_soup`, the same function on the same array) when it has it."""
+    wing = getattr(run, "wing", None)
+    pre = getattr(wing, "display_soup", None)
+    if pre is not None and wing.mesh.triangles is mesh.triangles and pre[0] == MAX_DISPLAY_TRIANGLES:
+        return pre[1], pre[2]
+    return decimate_soup(mesh.triangles, MAX_DISPLAY_TRIANGLES)
 
 
 def surface_polydata(run, surface: Surface | None = None, scalars: dict | None = None):

@@ -175,7 +175,7 @@ def detect_frame_indexed(mesh, span_axis=None, up_axis=None, side=None, index=No
             else:
                 cand = index.query(hi - band, hi)
                 near = cand[hi - index.hi[cand] < band]
-            cap = _root_cap_normal(tris[near], y_hat, 0.002 * (hi - lo))
+            cap = _root_cap_normal(tris, y_hat, 0.002 * (hi - lo), rows=near)
             if cap is not None:
                 y_hat = _snap(cap, 0.2)[0]
                 notes.append("root plane from the flat root cap")

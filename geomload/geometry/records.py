@@ -8,7 +8,7 @@ added after the first release has a default, so older constructors keep working.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from typing import Optional
 
 import numpy as np
@@ -257,6 +257,9 @@ class Wing:
     decision that can change a number); notes: facts that cannot change a number;
     fuselage_side_y_m: wing-frame y of the fuselage's side at the wing root chord (the station
     where the exposed wing meets the fuselage; the wing is carried through inside), or None.
+    display_soup: (target, points (n, 3) CAD m, tri (m, 3)) = `display_soup.decimate_soup` of
+    `mesh.triangles` to about `target` triangles when the geometry stage built it alongside
+    (a large mesh, a free CPU), else None; the export's display surface uses it.
     """
 
     mesh: WingMesh
@@ -269,3 +272,4 @@ class Wing:
     warnings: tuple = ()
     notes: tuple = ()
     fuselage_side_y_m: Optional[float] = None
+    display_soup: Optional[tuple] = field(default=None, compare=False, repr=False)

@@ -68,7 +68,7 @@ def _end_cap(index, axis, deg=_CAP_AGREES_DEG, band=0.004):
     out = []
     for k, (end, y_hat) in enumerate(((lo, axis), (hi, -axis))):
         near = index.query(end - band * (hi - lo), end + band * (hi - lo))
-        c = _root_cap_normal(index.tris[near], y_hat, 0.002 * (hi - lo), with_area=True)
+        c = _root_cap_normal(index.tris, y_hat, 0.002 * (hi - lo), with_area=True, rows=near)
         if c is not None and c[0] @ y_hat > np.cos(np.radians(deg)):
             out.append((k, c[1]))
     return out

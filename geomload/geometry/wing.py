@@ -7,6 +7,7 @@ import os
 
 import numpy as np
 
+from .display_soup import start_display_soup
 from .frame import detect_frame_indexed
 from .planform import summarize
 from .readers import read_mesh
@@ -32,11 +33,34 @@ def read_wing(path, units=None, body=None, span_axis=None, up_axis=None, n_stati
 
 def _read_wing(path, units, body, span_axis, up_axis, n_stations, spacing, progress, side,
                require_units, units_hint):
+    progress = progress or _no_progress
+    box = []
+    mesh = read_mesh(path, units=units, progress=progress, require_units=require_units,
+                     units_hint=units_hint, all_bodies=True, bounds_out=box)
+    # the display surface's clustering of a large single-body mesh, in a worker thread while
+    # this one finds the frame and cuts the stations (the export uses it; see display_soup)
+    one = body is None and len(mesh.body_sizes) <= 1
+    soup = start_display_soup(mesh.triangles, box[0]) if one else None
+    try:
+        return _with_soup(_read_mesh_wing(mesh, body, span_axis, up_axis, n_stations, spacing,
+                                          progress, side), soup)
+    finally:
+        if soup is not None:
+            soup.join()  # no thread outlives the stage (the run forks after it)
+
+
+def _with_soup(wing, soup):
+    """The Wing with the display soup built alongside, when it is of the wing's own mesh."""
+    if soup is None or wing.mesh.triangles is not soup.tris:
+        return wing
+    import dataclasses
+
+    return dataclasses.replace(wing, display_soup=(soup.target, *soup.result()))
+
+
+def _read_mesh_wing(mesh, body, span_axis, up_axis, n_stations, spacing, progress, side):
     from ..errors import GeometryError
 
-    progress = progress or _no_progress
-    mesh = read_mesh(path, units=units, progress=progress, require_units=require_units,
-                     units_hint=units_hint, all_bodies=True)
     args = (body, span_axis, up_axis, n_stations, spacing, progress, side)
     try:
         return _from_mesh(mesh, *args)

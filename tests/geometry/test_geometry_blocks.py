@@ -70,3 +70,97 @@ def test_nearest_centre_ties_go_to_lowest_index():
     # reference: numpy.argmin over every squared distance (first index among ties)
     validation.check("numpy.argmin over all pairs", "queries with another centre than the first "
                      "nearest", 0, int((got != ref).sum()), abs=0)
+
+
+def test_two_thread_read_matches_whole_array_numpy(tmp_path, monkeypatch):
+    """A large binary STL read by two threads (each half of the file through its own buffer)
+    gives numpy's whole-array product and bounds, value for value."""
+    import geomload.forked
+    from geomload.geometry import readers
+
+    monkeypatch.setattr(readers, "PARALLEL_READ_MIN", 1000)  # the threshold, not the reader
+    monkeypatch.setattr(geomload.forked, "parallel_pays", lambda jobs=1: True)
+    m = 70_001
+    rng = np.random.default_rng(11)
+    v = (rng.normal(size=(m, 3, 3)) * [300.0, 1800.0, 40.0]).astype(np.float32)
+    v[5, 1, 2] = -9000.0  # the extremes in the second half and the first
+    v[m - 3, 2, 0] = 7000.0
+    path = tmp_path / "w.stl"
+    _write_stl(path, v)
+    mesh = read_mesh(path, units="mm")
+    ref = v.astype(np.float64) * 1e-3
+    # reference: numpy's own float32 -> float64 conversion and product (whole array at once)
+    validation.check("numpy whole-array float32*1e-3", "max |two-thread read - numpy|, m", 0.0,
+                     float(np.abs(mesh.triangles - ref).max()), abs=0.0)
+    _, lo, hi = readers._to_metres(readers.stl.BinaryStl(str(path), m), 1e-3)
+    flat = ref.reshape(-1, 3)
+    # reference: numpy min/max over all vertices per axis
+    validation.check("numpy ndarray.min/max per axis", "two-thread bounding box error, m", 0.0,
+                     float(max(np.abs(lo - flat.min(0)).max(), np.abs(hi - flat.max(0)).max())),
+                     abs=0.0)
+
+
+@pytest.mark.parametrize("big", [False, True])  # float64 keys, and int64 above 2**53 cells
+def test_cell_keys_match_integer_formula(big):
+    from geomload.geometry.display_soup import _cell_keys
+
+    rng = np.random.default_rng(5)
+    v = rng.uniform(-1.0, 2.0, size=(20_011, 3))  # a ragged last block
+    lo = v.min(0)
+    inv_h = 37.0
+    q = ((v - lo) * inv_h).astype(np.int64)  # numpy's truncating cast of the same products
+    dims = q.max(0) + 2
+    if big:
+        dims = dims * np.array([1, 3_000_000, 3_000_000])
+    ref = (q[:, 0] * dims[1] + q[:, 1]) * dims[2] + q[:, 2]
+    # reference: the cell number in numpy int64 arithmetic, (q0 d1 + q1) d2 + q2
+    validation.check("numpy int64 arithmetic", f"cell keys differing ({'int64' if big else 'float64'} path)",
+                     0, int((_cell_keys(v, lo, inv_h, dims) != ref).sum()), abs=0)
+
+
+@pytest.mark.parametrize("order", ["C", "F"])  # (x, y) as one complex column, and column by column
+def test_cell_sums_match_bincount(order):
+    from geomload.geometry.display_soup import _cell_sums
+
+    rng = np.random.default_rng(9)
+    v = np.asarray(rng.normal(size=(150_001, 3)) * [1.0, 1e-3, 1e5], order=order)
+    inv = rng.integers(0, 997, v.shape[0]).astype(np.int32)
+    got = _cell_sums(v, inv, 997)
+    ref = np.column_stack([np.bincount(inv, weights=v[:, k], minlength=997) for k in range(3)])
+    # reference: numpy.bincount with weights (each bin summed in input order)
+    validation.check("numpy.bincount(weights=...)", f"per-cell sums differing bits ({order} order)",
+                     0, int((got != ref).sum()), abs=0)
+
+
+@pytest.mark.parametrize("sign", [1.0, -1.0])
+def test_root_cap_normal_by_rows_matches_plain_numpy(sign):
+    """The cap normal and area from a band of rows (the cap-facing pre-selection) against the
+    plain formula on every triangle near the root plane: numpy cross products and norms."""
+    from geomload.geometry.frameutil import CAP_NORMAL_DEG, root_cap_normal
+
+    rng = np.random.default_rng(21)
+    k = 40_000
+    base = rng.uniform(0.0, 1.0, size=(k, 1, 3)) * [0.3, 0.0, 0.04]
+    d = rng.normal(size=(k, 3, 3)) * 0.004
+    tilt = np.radians(rng.uniform(0.0, 20.0, k))  # facets from flat to 20 deg off the cap plane
+    d[:, :, 1] = (d[:, :, 0] * np.tan(tilt)[:, None]) * sign
+    tris = (base + d) * [1.0, sign, 1.0]
+    tris[::3, :, 1] += sign * rng.uniform(0.0, 0.02, (tris[::3].shape[0], 1))  # some off the plane
+    soup = np.concatenate([rng.normal(size=(5000, 3, 3)), tris])
+    rows = np.arange(5000, soup.shape[0])
+    y_hat = np.array([0.0, sign, 0.0])
+    tol = 0.01
+    got = root_cap_normal(soup, y_hat, tol, with_area=True, rows=rows)
+    # reference: every near triangle through numpy's cross product and norm
+    yv = tris[:, :, 1] * sign
+    near = (yv.max(1) - yv.min()) < tol
+    n = np.cross(tris[near, 1] - tris[near, 0], tris[near, 2] - tris[near, 0])
+    n = n * np.sign(n @ y_hat)[:, None]
+    a = np.linalg.norm(n, axis=1)
+    good = (n @ y_hat) > np.cos(np.radians(CAP_NORMAL_DEG)) * a
+    ref_n = n[good].sum(0) / np.linalg.norm(n[good].sum(0))
+    validation.check("numpy.cross / numpy.linalg.norm over all near triangles",
+                     "cap normal difference", 0.0, float(np.abs(got[0] - ref_n).max()), abs=0.0)
+    validation.check("numpy.cross / numpy.linalg.norm over all near triangles",
+                     "cap area difference, m^2", 0.0, abs(got[1] - 0.5 * float(a[good].sum())),
+                     abs=0.0)

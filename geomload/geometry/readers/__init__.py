@@ -33,7 +33,7 @@ def _no_progress(stage, done, total):
 
 
 def read_mesh(path, units=None, body=None, progress=None, require_units=False, all_bodies=False,
-              units_hint=None) -> WingMesh:
+              units_hint=None, bounds_out=None) -> WingMesh:
     """Read a CAD/mesh file into a `WingMesh` (triangles (m, 3, 3) float64, metres, CAD frame).
 
     Parameters
@@ -54,6 +54,9 @@ def read_mesh(path, units=None, body=None, progress=None, require_units=False, a
     units_hint : str or None
         Wording of "the key to set" in that refusal (default names both the case-file key
         `geometry.units` and the CLI option `--units`).
+    bounds_out : list or None
+        Receives (min (3,), max (3,)) per axis of the returned triangles (m), from the read's
+        own pass (exact, as `bounds`).
 
     Raises
     ------
@@ -151,6 +154,8 @@ def read_mesh(path, units=None, body=None, progress=None, require_units=False, a
     elif extent > SPAN_TOO_BIG_M or extent < SPAN_TOO_SMALL_M:
         notes.append(f"warning: largest extent is {extent:.4g} m after reading in {unit_label}: "
                      f"wrong unit? (give --units m|cm|mm|in|ft)")
+    if bounds_out is not None:
+        bounds_out.append((bmin, bmax))
     return WingMesh(triangles=tris, source=path, units=unit_label, notes=tuple(notes),
                     unit_scale_m=float(cad_scale),
                     units_assumed=units_assumed, body_sizes=sizes)
@@ -170,19 +175,66 @@ def _to_metres(src, scale, chunk=1 << 15):
 
     Blocks of `chunk` triangles are converted and their bounds taken while in cache; the
     product is formed in float64 (a float32 STL value times the unit factor, rounded once).
-    A source with a `blocks(chunk)` method (a binary STL on disk) is read through it.
+    A source with a `blocks(chunk, start, stop)` method (a binary STL on disk) is read through
+    it, a large one in two halves by two threads when a CPU is free (`PARALLEL_READ_MIN`): the
+    same elementwise product per value, and min / max are exact in any order.
     """
     m = src.shape[0]
     out = np.empty(src.shape, np.float64)
+    if hasattr(src, "blocks"):
+        halves = [(0, m)]
+        if m >= PARALLEL_READ_MIN:
+            from geomload.forked import parallel_pays
+
+            if parallel_pays(1):
+                half = (m // 2 // chunk) * chunk
+                halves = [(0, half), (half, m)]
+        parts = [None] * len(halves)
+
+        def convert(k):
+            parts[k] = _convert(src.blocks(chunk, *halves[k]), out, scale)
+
+        if len(halves) == 2:
+            import threading
+
+            err = []
+
+            def second():
+                try:
+                    convert(1)
+                except BaseException as exc:  # noqa: BLE001 - raised below, in this thread
+                    err.append(exc)
+
+            t = threading.Thread(target=second, name="geomload-read")
+            t.start()
+            try:
+                convert(0)
+            finally:
+                t.join()
+            if err:
+                raise err[0]
+        else:
+            convert(0)
+        bmin = np.minimum.reduce([p[0] for p in parts])
+        bmax = np.maximum.reduce([p[1] for p in parts])
+        return out, bmin, bmax
+    bmin, bmax = _convert(((a, src[a:a + chunk]) for a in range(0, m, chunk)), out, scale)
+    return out, bmin, bmax
+
+
+PARALLEL_READ_MIN = 1 << 20  # triangles (50 MB of binary STL) from which two threads read
+
+
+def _convert(blocks, out, scale):
+    """out[a:a + k] = block * scale (float64) for each (a, block); returns the blocks' (min, max)
+    per axis."""
     bmin, bmax = np.full(3, np.inf), np.full(3, -np.inf)
-    blocks = (src.blocks(chunk) if hasattr(src, "blocks")
-              else ((a, src[a:a + chunk]) for a in range(0, m, chunk)))
     for a, s in blocks:
         blk = out[a:a + s.shape[0]]
         np.multiply(s, scale, out=blk, dtype=np.float64)
         np.minimum(bmin, _axis_bound(blk, np.minimum), out=bmin)
         np.maximum(bmax, _axis_bound(blk, np.maximum), out=bmax)
-    return out, bmin, bmax
+    return bmin, bmax
 
 
 def bounds(tris, chunk=1 << 15):

@@ -51,16 +51,16 @@ class BinaryStl:
                                 f"was read: {rec.shape[0]} of {n} triangles at {start})")
         return rec["v"]
 
-    def blocks(self, chunk):
-        """Yield (start, vertices (k, 3, 3) float32) of successive blocks of `chunk` triangles,
-        read from one open file into one reused buffer (no allocation or page faults per block;
-        each view is valid until the next block is read)."""
-        m = self.shape[0]
-        buf = np.empty(min(chunk, m), STL_RECORD)
+    def blocks(self, chunk, start=0, stop=None):
+        """Yield (start, vertices (k, 3, 3) float32) of successive blocks of `chunk` triangles
+        (from triangle `start` to `stop`), read from one open file into one reused buffer (no
+        allocation or page faults per block; each view is valid until the next block is read)."""
+        m = self.shape[0] if stop is None else min(int(stop), self.shape[0])
+        buf = np.empty(max(0, min(chunk, m - start)), STL_RECORD)
         try:
             with open(self.path, "rb") as f:
-                f.seek(84)
-                for a in range(0, m, chunk):
+                f.seek(84 + STL_RECORD.itemsize * start)
+                for a in range(start, m, chunk):
                     n = min(chunk, m - a)
                     rec = buf[:n]
                     got = f.readinto(rec.view(np.uint8))
