@@ -173,12 +173,9 @@ class HorseshoeSet:
         self.rho_op = np.vstack([-2 * qf[:, 1], -2 * qf[:, 2], np.ones(len(qf)),
                                  qf[:, 1] ** 2 + qf[:, 2] ** 2])
         self.x_scale, self.mirror, self.budget = float(x_scale), bool(mirror), budget
-        self._vel_ops = np.zeros((3, 4, len(r0sq)))
-        for c, (i1, i2) in enumerate(((1, 2), (2, 0), (0, 1))):
-            # (r0 x (P - A))_c = r0_i1 P_i2 - r0_i2 P_i1 - (r0 x A)_c
-            self._vel_ops[c, i2] = r0[:, i1]
-            self._vel_ops[c, i1] = -r0[:, i2]
-            self._vel_ops[c, 3] = -self.r0xa[:, c]
+        # (r0 x (P - A))_c = (r0 x P)_c - (r0 x A)_c: the sums over horseshoes of k g r0 and
+        # k g (r0 x A) give every component (`_vel_chunk`)
+        self._vel_ops6 = np.hstack([r0, self.r0xa])  # (n, 6)
         self._proj_op = np.vstack([np.ones(len(qf)), qf[:, 2], qf[:, 1]]) / FOUR_PI
 
     @property
@@ -313,9 +310,24 @@ class HorseshoeSet:
         if exclude is not None:
             k[exclude[0], exclude[1]] = 0.0
         m = p.shape[0]
-        aug = np.hstack([p, np.ones((m, 1))])
-        rb = (k @ bound_op).reshape(m, 3, 4, kg)
-        out = np.einsum("md,mcdk->mck", aug, rb)
+        # S_i = sum_j k r0_i g, T_c = sum_j k (r0 x A)_c g; (r0 x P)_c - T_c term by term in
+        # the order of the sum over [P, 1] of the 4-slot form (a zero term where P_c is)
+        st = (k @ bound_op).reshape(m, 6, kg)
+        s0, s1, s2 = st[:, 0], st[:, 1], st[:, 2]
+        px, py, pz = p[:, 0:1], p[:, 1:2], p[:, 2:3]
+        out = np.empty((m, 3, kg))
+        o = out[:, 0]
+        np.multiply(py, s2, out=o)
+        np.subtract(pz * s1, o, out=o)
+        o -= st[:, 3]
+        o = out[:, 1]
+        np.multiply(px, s2, out=o)
+        o -= pz * s0
+        o -= st[:, 4]
+        o = out[:, 2]
+        np.multiply(py, s0, out=o)
+        o -= px * s1
+        o -= st[:, 5]
         rl = (f @ leg_op).reshape(m, 3, kg)
         out[:, 1] -= p[:, 2:3] * rl[:, 0] - rl[:, 1]
         out[:, 2] += p[:, 1:2] * rl[:, 0] - rl[:, 2]
@@ -336,8 +348,7 @@ class HorseshoeSet:
         gnode[:-1] -= gs
         gnode = gnode.reshape(-1, g.shape[1])
         kg = g.shape[1]
-        bound_op = (self._vel_ops.transpose(2, 0, 1)[:, :, :, None] * g[:, None, None, :])
-        bound_op = bound_op.reshape(self.n, -1)
+        bound_op = (self._vel_ops6[:, :, None] * g[:, None, :]).reshape(self.n, -1)
         q = self.q
         leg_op = np.stack([gnode, gnode * q[:, 2:3], gnode * q[:, 1:2]], axis=1).reshape(
             len(q), -1)
