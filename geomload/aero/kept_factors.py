@@ -73,7 +73,9 @@ class KeptFactors:
 
     def solve(self, A, rhs, slot=0) -> np.ndarray:
         """x (N, k) with A x = rhs: by refinement with the slot's kept factors, or by a new LU
-        (kept for the slot). A: finite (N, N); raises numpy.linalg.LinAlgError when singular."""
+        (kept for the slot). A: finite, C-ordered (N, N); when it is factorised its memory
+        becomes the kept factors (A is overwritten: no copy of N^2 values). Raises
+        numpy.linalg.LinAlgError when A is singular."""
         from scipy.linalg import lu_factor, lu_solve
 
         with _one_blas_thread():
@@ -83,18 +85,20 @@ class KeptFactors:
                 if x is not None:
                     self.refined += 1
                     return x
-            lu = lu_factor(A, check_finite=False)
+            # A^T is A's memory in Fortran order: LAPACK factorises it in place, and A x = b
+            # is then solved as (A^T)^T x = b (trans=1)
+            lu = lu_factor(A.T, overwrite_a=True, check_finite=False)
             if not np.all(np.isfinite(lu[0])) or np.any(np.diagonal(lu[0]) == 0.0):
                 raise np.linalg.LinAlgError("singular matrix")
             self._lu[slot] = lu
             self.direct += 1
-            return lu_solve(lu, rhs, check_finite=False)
+            return lu_solve(lu, rhs, trans=1, check_finite=False)
 
     def _refine(self, A, rhs, lu, lu_solve):
-        x = lu_solve(lu, rhs, check_finite=False)
+        x = lu_solve(lu, rhs, trans=1, check_finite=False)
         prev = np.inf
         for _ in range(MAX_STEPS):
-            dx = lu_solve(lu, rhs - A @ x, check_finite=False)
+            dx = lu_solve(lu, rhs - A @ x, trans=1, check_finite=False)
             x += dx
             self.steps += 1
             # the largest correction of each column relative to that column's largest value
