@@ -104,6 +104,14 @@ def _workers() -> int:
     return max(1, min(4, os.cpu_count() or 1))
 
 
+COMPACT_VELOCITY_MIN = 1000  # horseshoes from which `velocity` sums the bound vortices as
+# k @ [g r0, g (r0 x A)] (6 columns per circulation) instead of the 4-slot form (12, three of
+# them zero): the same sums in another order, so the velocities differ by round-off (up to 1e-14
+# of the largest), which a trim's Newton stop can carry to 1e-9 of a load. Below it (the sample's
+# lattices: 400 and 800 horseshoes) the 4-slot form keeps their outputs the same to the bit;
+# measured at 3000 horseshoes and 7 circulations: 1.1 -> 0.87 s CPU for a control model's pass.
+
+
 BLAS_LIMIT_PAIRS = 0  # point-horseshoe pairs from which the BLAS threads are limited to one
 # while the chunks run (0: always): the chunks' matrix products are thin (inner dimension 3-5)
 # and run on this module's own threads, so BLAS threads only compete with them (measured at
@@ -173,8 +181,13 @@ class HorseshoeSet:
         self.rho_op = np.vstack([-2 * qf[:, 1], -2 * qf[:, 2], np.ones(len(qf)),
                                  qf[:, 1] ** 2 + qf[:, 2] ** 2])
         self.x_scale, self.mirror, self.budget = float(x_scale), bool(mirror), budget
-        # (r0 x (P - A))_c = (r0 x P)_c - (r0 x A)_c: the sums over horseshoes of k g r0 and
-        # k g (r0 x A) give every component (`_vel_chunk`)
+        self._vel_ops = np.zeros((3, 4, len(r0sq)))
+        for c, (i1, i2) in enumerate(((1, 2), (2, 0), (0, 1))):
+            # (r0 x (P - A))_c = r0_i1 P_i2 - r0_i2 P_i1 - (r0 x A)_c
+            self._vel_ops[c, i2] = r0[:, i1]
+            self._vel_ops[c, i1] = -r0[:, i2]
+            self._vel_ops[c, 3] = -self.r0xa[:, c]
+        # the same as sums over horseshoes of k g r0 and k g (r0 x A) (`_vel_chunk`)
         self._vel_ops6 = np.hstack([r0, self.r0xa])  # (n, 6)
         self._proj_op = np.vstack([np.ones(len(qf)), qf[:, 2], qf[:, 1]]) / FOUR_PI
 
@@ -310,9 +323,26 @@ class HorseshoeSet:
         if exclude is not None:
             k[exclude[0], exclude[1]] = 0.0
         m = p.shape[0]
-        # S_i = sum_j k r0_i g, T_c = sum_j k (r0 x A)_c g; (r0 x P)_c - T_c term by term in
-        # the order of the sum over [P, 1] of the 4-slot form (a zero term where P_c is)
-        st = (k @ bound_op).reshape(m, 6, kg)
+        if bound_op.shape[1] == 12 * kg:  # the 4-slot form [P, 1] . op_c (fewer horseshoes)
+            aug = np.hstack([p, np.ones((m, 1))])
+            rb = (k @ bound_op).reshape(m, 3, 4, kg)
+            out = np.einsum("md,mcdk->mck", aug, rb)
+        else:
+            out = self._bound_compact(p, k @ bound_op, kg)
+        rl = (f @ leg_op).reshape(m, 3, kg)
+        out[:, 1] -= p[:, 2:3] * rl[:, 0] - rl[:, 1]
+        out[:, 2] += p[:, 1:2] * rl[:, 0] - rl[:, 2]
+        out *= 1.0 / FOUR_PI
+        out[:, 0] /= self.x_scale
+        return out
+
+    @staticmethod
+    def _bound_compact(p, st, kg):
+        """Bound-vortex velocities (m, 3, kg) at centred points p from st = k @ [g r0,
+        g (r0 x A)] (m, 6 kg): V = S x P - T with S = sum_j k g r0, T = sum_j k g (r0 x A)
+        (before the 1 / (4 pi) and x scaling of `_vel_chunk`)."""
+        m = p.shape[0]
+        st = st.reshape(m, 6, kg)
         s0, s1, s2 = st[:, 0], st[:, 1], st[:, 2]
         px, py, pz = p[:, 0:1], p[:, 1:2], p[:, 2:3]
         out = np.empty((m, 3, kg))
@@ -328,11 +358,6 @@ class HorseshoeSet:
         np.multiply(py, s0, out=o)
         o -= px * s1
         o -= st[:, 5]
-        rl = (f @ leg_op).reshape(m, 3, kg)
-        out[:, 1] -= p[:, 2:3] * rl[:, 0] - rl[:, 1]
-        out[:, 2] += p[:, 1:2] * rl[:, 0] - rl[:, 2]
-        out *= 1.0 / FOUR_PI
-        out[:, 0] /= self.x_scale
         return out
 
     def velocity(self, points, gammas, self_panels=False):
@@ -348,7 +373,11 @@ class HorseshoeSet:
         gnode[:-1] -= gs
         gnode = gnode.reshape(-1, g.shape[1])
         kg = g.shape[1]
-        bound_op = (self._vel_ops6[:, :, None] * g[:, None, :]).reshape(self.n, -1)
+        if self.n >= COMPACT_VELOCITY_MIN:
+            bound_op = (self._vel_ops6[:, :, None] * g[:, None, :]).reshape(self.n, -1)
+        else:
+            bound_op = (self._vel_ops.transpose(2, 0, 1)[:, :, :, None] * g[:, None, None, :])
+            bound_op = bound_op.reshape(self.n, -1)
         q = self.q
         leg_op = np.stack([gnode, gnode * q[:, 2:3], gnode * q[:, 1:2]], axis=1).reshape(
             len(q), -1)
