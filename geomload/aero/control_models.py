@@ -32,6 +32,9 @@ class ControlModels:
         self.lattice = lat
         self.controls, self.progress, self.models = case.controls.surfaces, progress, {}
         self.warnings = []
+        from .kept_factors import KeptFactors
+
+        self.factors = KeptFactors()  # the first large model's LU, reused by the others
 
     def get(self, mach: float):
         """The ControlModel at the lattice Mach of ``mach`` (built once)."""
@@ -43,7 +46,8 @@ class ControlModels:
             m = None if self.cache is None else self.cache.get(ck)
             if m is None:
                 self.progress(f"control lattice M={key:.2f}", 0, 1)
-                m = ControlModel.build(self.lattice, key, self.controls)  # one LU for every RHS
+                # one LU for every RHS (or refinement with the first model's, `kept_factors`)
+                m = ControlModel.build(self.lattice, key, self.controls, factors=self.factors)
                 self.progress(f"control lattice M={key:.2f}", 1, 1)
                 if self.cache is not None:
                     self.cache[ck] = m

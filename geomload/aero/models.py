@@ -63,6 +63,10 @@ class MachModels:
         self.models, self._cla, self._stall, self._drag = {}, {}, {}, {}
         self._store, self._key = store, key
         self.built = 0  # models factorised by this cache (not found in the store)
+        # the LU of the first large model built here, reused by the others (`kept_factors`)
+        from geomload.aero.kept_factors import KeptFactors
+
+        self.factors = KeptFactors()
 
     def get(self, mach: float):
         """The model at the lattice Mach of ``mach``."""
@@ -73,7 +77,7 @@ class MachModels:
                 from geomload.aero.solve import AeroModel
 
                 self.progress(f"lattice M={key:.2f}", 0, 1)
-                shared = AeroModel(self.lattice, mach=key)
+                shared = AeroModel(self.lattice, mach=key, factors=self.factors)
                 self.built += 1
                 self.progress(f"lattice M={key:.2f}", 1, 1)
                 if self._store is not None:

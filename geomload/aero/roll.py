@@ -146,16 +146,19 @@ class ControlModel:
         self._quadratic_forms()
 
     @classmethod
-    def build(cls, lattice, mach: float = 0.0, controls=()):
+    def build(cls, lattice, mach: float = 0.0, controls=(), factors=None):
         """The ControlModel of `lattice` at `mach` with its AeroModel, every right-hand side
         (free stream, deflections, roll rate) solved in one LAPACK call: one assembly and one
-        LU, where ``ControlModel(AeroModel(lattice, mach), controls)`` needs two of each."""
+        LU, where ``ControlModel(AeroModel(lattice, mach), controls)`` needs two of each.
+        factors: optional KeptFactors shared with the lattice's models at other Machs (see
+        `AeroModel`)."""
         from geomload.aero.solve import AeroModel
 
         controls = tuple(controls)
         check_controls(controls, 0.5 * lattice.b_ref, full_span=not lattice.mirrored)
         R = control_rhs(lattice, controls)
-        return cls(AeroModel(lattice, mach=mach, extra_rhs=R if R.shape[1] else None), controls)
+        return cls(AeroModel(lattice, mach=mach, extra_rhs=R if R.shape[1] else None,
+                             factors=factors), controls)
 
     def _quadratic_forms(self):
         """The total forces, rolling and pitching moments as quadratic forms of the weights w.

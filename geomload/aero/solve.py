@@ -63,11 +63,16 @@ class AeroModel:
         as `extra_solutions` (N, k) beside `extra_rhs`, and the velocities they induce at the
         bound-vortex midpoints (`induced_at_bound`) as `extra_velocity` (N, 3, k).
 
+    factors : optional `kept_factors.KeptFactors` shared by the models of one lattice at other
+        Mach numbers: from `kept_factors.MIN_PANELS` equations on, a system is solved by
+        iterative refinement with the LU factors of the first one solved (the same solution to
+        round-off, measured within 4e-15; see `kept_factors`); None: a new LU for each model.
+
     Attributes: lattice, mach, beta, warnings (list of str), extra_rhs, extra_solutions,
     extra_velocity (None without extra_rhs).
     """
 
-    def __init__(self, lattice: Lattice, mach: float = 0.0, extra_rhs=None):
+    def __init__(self, lattice: Lattice, mach: float = 0.0, extra_rhs=None, factors=None):
         try:
             m = float(mach)
         except (TypeError, ValueError):
@@ -86,6 +91,7 @@ class AeroModel:
                 f"lattice: {lattice.n_chord} chordwise panel(s): camber and section pitching "
                 "moments (torsion) are not resolved below 4; use 8 or more for loads")
         self.lattice, self.mach = lattice, m
+        self._factors = factors
         self.beta = beta = math.sqrt(1.0 - m * m)
         lat = lattice
         self._fac = 2.0 if lat.mirrored else 1.0
@@ -159,8 +165,27 @@ class AeroModel:
         """Solutions (N, k) of the influence matrix, assembled for this call and released after;
         a mirror-symmetric full span through its two half-span systems (`symmetry`)."""
         if self._split is not None:
-            return self._split.solve(rhs, self._solve_dense)
-        return self._solve_dense(self._assemble(), rhs)
+            return self._split.solve(rhs, self._solve_system, slotted=True)
+        return self._solve_system(self._assemble(), rhs, 0)
+
+    def _solve_system(self, A, rhs, slot=0) -> np.ndarray:
+        """One dense system: with kept factors (`factors`, from kept_factors.MIN_PANELS
+        equations) by refinement or a kept LU, else `_solve_dense`. slot: which of a lattice's
+        systems it is (the two halves of a mirror split have their own factors)."""
+        from geomload.aero import kept_factors
+
+        if self._factors is None or A.shape[0] < kept_factors.MIN_PANELS:
+            return self._solve_dense(A, rhs)
+        if not np.all(np.isfinite(A)):
+            raise AeroError("lattice: influence matrix is not finite (degenerate panels)")
+        try:
+            with vortex._single_blas_thread():  # one BLAS thread, as in `_solve_dense`
+                g = self._factors.solve(A, rhs, slot)
+        except np.linalg.LinAlgError:
+            raise AeroError("lattice: influence matrix is singular (degenerate panels)") from None
+        if not np.all(np.isfinite(g)):
+            raise AeroError("lattice: influence matrix is singular (degenerate panels)")
+        return g
 
     @staticmethod
     def _solve_dense(A, rhs) -> np.ndarray:

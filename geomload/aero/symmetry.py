@@ -87,16 +87,19 @@ class MirrorSolver:
         self.mid = 0.5 * (lattice.bound_a + lattice.bound_b)[self.stb] * stretch
         self.n = lattice.colloc.shape[0]
 
-    def solve(self, rhs, solve_dense) -> np.ndarray:
+    def solve(self, rhs, solve_dense, slotted=False) -> np.ndarray:
         """Circulations (N, k) for right-hand sides rhs (N, k); solve_dense(A, b) solves one
-        dense half system (raises on a singular or non-finite one)."""
+        dense half system (raises on a singular or non-finite one); slotted: it is called as
+        solve_dense(A, b, slot), slot 0 for the symmetric and 1 for the antisymmetric system."""
         # column j of the port block: the mirror of starboard horseshoe j (panel mir[j])
         plus, minus = self.own.normalwash_sum_diff(self.port, self.colloc, self.normal,
                                                    self.mir)
         rs, rm = rhs[self.stb], rhs[self.mir]
-        u = solve_dense(plus, rs + rm)
+        extra = (0,) if slotted else ()
+        u = solve_dense(plus, rs + rm, *extra)
         del plus
-        v = solve_dense(minus, rs - rm)
+        extra = (1,) if slotted else ()
+        v = solve_dense(minus, rs - rm, *extra)
         g = np.empty((self.n,) + u.shape[1:])
         g[self.stb] = 0.5 * (u + v)
         g[self.mir] = 0.5 * (u - v)
