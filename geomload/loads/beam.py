@@ -160,6 +160,20 @@ def integrate_loads(y, spar_x, spar_z, lift_N_per_m, *, drag_N_per_m=None, side_
                      schrenk_lift_N_per_m=schrenk_lift_N_per_m)
 
 
+def _columns(x, y, z, n=None):
+    """np.column_stack([x, y, z]) of (n,) arrays (a scalar fills its column)."""
+    out = np.empty((len(x) if n is None else n, 3))
+    out[:, 0], out[:, 1], out[:, 2] = x, y, z
+    return out
+
+
+def _couple(dy, pitch):
+    """(n-1, 3) segment couples of the section moments, about axes parallel to y."""
+    couple = np.zeros((dy.size, 3))
+    couple[:, 1] = 0.5 * dy * (pitch[:-1] + pitch[1:])
+    return couple
+
+
 def _reverse_cumsum(a):
     """out[i] = sum of a[i:] along axis 0, with one zero row appended (the tip)."""
     out = np.zeros((a.shape[0] + 1,) + a.shape[1:])
@@ -190,30 +204,53 @@ def integrate(y, spar_x, spar_z, applied: AppliedLoads, *, case: str = "",
     lift, drag, side, pitch, q = (a.lift_N_per_m, a.drag_N_per_m, a.side_N_per_m,
                                   a.pitch_Nm_per_m, a.inertia_N_per_m)
     ax, az, ix, iz = a.load_x_m, a.load_z_m, a.inertia_x_m, a.inertia_z_m
-    zero = np.zeros(n)
     s, b, nrm, p, rel, dy = _shared_spar_frame(y, sx, sz)
 
     ca, sa = np.cos(np.radians(a.alpha_deg)), np.sin(np.radians(a.alpha_deg))
     fx_aero, fz_aero = drag * ca - lift * sa, lift * ca + drag * sa
     h = dy[:, None]
     bi = np.radians(a.inertia_alpha_deg)
-    ra, fa_line = np.column_stack([ax, y, az]), np.column_stack([fx_aero, side, fz_aero])
-    ri, fi_line = (np.column_stack([ix, y, iz]),
-                   np.column_stack([q * np.sin(bi), zero, -q * np.cos(bi)]))
-    (fa, ma), (fi, mi) = _segment_moments_many(h, p, ((ra, fa_line), (ri, fi_line)))
-    couple = np.zeros((n - 1, 3))
-    couple[:, 1] = 0.5 * dy * (pitch[:-1] + pitch[1:])  # about axes parallel to y
+    ra, fa_line = _columns(ax, y, az), _columns(fx_aero, side, fz_aero)
+    ri, fi_line = _columns(ix, y, iz), _columns(q * np.sin(bi), 0.0, -q * np.cos(bi), n)
+    # the forces first (no cross product), then every cross product of the case in one call
+    # (elementwise: the same bits as one call per product)
+    fa = 0.5 * h * (fa_line[:-1] + fa_line[1:])
+    fi = 0.5 * h * (fi_line[:-1] + fi_line[1:])
     seg_f = fa + fi
-    seg_m = ma + mi + couple
     force = _reverse_cumsum(seg_f)
-    moment = (_reverse_cumsum(seg_m) + _reverse_cumsum(_cross(rel[:-1], seg_f))
-              - _cross(rel, force))
     tol = 1e-12 * max(1.0, float(y[-1] - y[0]))
-    for pl in a.point_loads:
-        r, fv = pl.position, pl.force
-        k = int(np.searchsorted(y, r[1] + tol, side="right"))  # y increases: y <= r_y + tol
-        force[:k] += fv  # is the first k stations
-        moment[:k] += _cross(r[None, :] - p[:k], fv[None, :])
+    ks = [int(np.searchsorted(y, pl.position[1] + tol, side="right"))  # y increases:
+          for pl in a.point_loads]  # y <= r_y + tol is the first k stations
+    m = n - 1
+    rows = 8 * m + 1 + sum(ks)
+    arms, loads = np.empty((rows, 3)), np.empty((rows, 3))
+    for j, (r, f) in enumerate(((ra, fa_line), (ri, fi_line))):
+        o = 3 * m * j
+        arms[o:o + m] = r[:-1] - p[:-1]
+        arms[o + 2 * m:o + 3 * m] = r[1:] - p[:-1]
+        arms[o + m:o + 2 * m] = arms[o:o + m] + arms[o + 2 * m:o + 3 * m]
+        loads[o:o + m], loads[o + 2 * m:o + 3 * m] = f[:-1], f[1:]
+        loads[o + m:o + 2 * m] = f[:-1] + f[1:]
+    arms[6 * m:7 * m], loads[6 * m:7 * m] = rel[:-1], seg_f
+    arms[7 * m:8 * m + 1], loads[7 * m:8 * m + 1] = rel, force
+    o = 8 * m + 1
+    for pl, k in zip(a.point_loads, ks):
+        arms[o:o + k], loads[o:o + k] = pl.position[None, :] - p[:k], pl.force[None, :]
+        o += k
+    c = _cross(arms, loads)
+    ma = h / 6.0 * (c[:m] + c[m:2 * m] + c[2 * m:3 * m])
+    mi = h / 6.0 * (c[3 * m:4 * m] + c[4 * m:5 * m] + c[5 * m:6 * m])
+    seg_m = np.empty((m, 6))
+    seg_m[:, :3] = ma + mi
+    seg_m[:, :3] += _couple(dy, pitch)
+    seg_m[:, 3:] = c[6 * m:7 * m]
+    sums = _reverse_cumsum(seg_m)
+    moment = (sums[:, :3] + sums[:, 3:]) - c[7 * m:8 * m + 1]
+    o = 8 * m + 1
+    for pl, k in zip(a.point_loads, ks):
+        force[:k] += pl.force
+        moment[:k] += c[o:o + k]
+        o += k
 
     dot = lambda u, e: np.einsum("ij,ij->i", u, e)  # noqa: E731
     pitch_spar = pitch + (az - sz) * fx_aero - (ax - sx) * fz_aero
