@@ -327,12 +327,12 @@ def _equilibrium(case, y, a, spar_points, force_N, moment_Nm, lines=None) -> Equ
                np.stack([2.0 * fa[:-1] + fa[1:], fa[:-1] + 2.0 * fa[1:],
                          2.0 * fi[:-1] + fi[1:], fi[:-1] + 2.0 * fi[1:]]))
     for k, f in enumerate((fa, fi)):
-        force += np.sum(0.5 * h * (f[1:] + f[:-1]), axis=0)  # trapezoid, exact for linear f
-        moment += np.sum(h / 6.0 * (c[2 * k] + c[2 * k + 1]), axis=0)
-    moment[1] += float(np.sum(0.5 * dy * (a.pitch_Nm_per_m[1:] + a.pitch_Nm_per_m[:-1])))
+        force += (0.5 * h * (f[1:] + f[:-1])).sum(axis=0)  # trapezoid, exact for linear f
+        moment += (h / 6.0 * (c[2 * k] + c[2 * k + 1])).sum(axis=0)
+    moment[1] += float((0.5 * dy * (a.pitch_Nm_per_m[1:] + a.pitch_Nm_per_m[:-1])).sum())
     tol = 1e-12 * max(1.0, float(y[-1] - y[0]))
-    gross = float(np.sum(0.5 * dy * (np.abs(lift[1:]) + np.abs(lift[:-1]) + np.abs(q[1:])
-                                     + np.abs(q[:-1]) + np.abs(drag[1:]) + np.abs(drag[:-1]))))
+    gross = float((0.5 * dy * (np.abs(lift[1:]) + np.abs(lift[:-1]) + np.abs(q[1:])
+                               + np.abs(q[:-1]) + np.abs(drag[1:]) + np.abs(drag[:-1]))).sum())
     for pl in a.point_loads:
         r, fv = pl.position - p0, pl.force
         if r[1] >= -tol:

@@ -14,8 +14,10 @@ import math
 import numpy as np
 
 from .beam import integrate
-from .grid import strip_to_grid
-from .masses import inertia_loads
+from geomload.units import G0
+
+from .grid import _to_grid, strip_to_grid  # noqa: F401  (strip_to_grid: the earlier import)
+from .masses import inertia_loads  # noqa: F401  (the earlier import)
 from .schrenk_twist import schrenk_with_twist
 from .records import (AppliedLoads, LoadGrid, MassDistribution, PointLoad, SpanLoads,
                       TrimState)
@@ -30,34 +32,58 @@ def applied_loads(grid: LoadGrid, trimmed, strip_width, masses: MassDistribution
     """
     sol, q = trimmed.solution, trimmed.q_pa
     y = grid.y
-    keep = np.asarray(sol.y) >= 0  # a full-span lattice: the starboard strips
-    ys, ws = np.asarray(sol.y)[keep], np.asarray(strip_width)[keep]
-    order = np.argsort(ys)
-    ys, ws = ys[order], ws[order]
+    idx, ys, ws, h = _starboard_strips(np.asarray(sol.y), np.asarray(strip_width), y)
 
     def pick(a):
-        return np.asarray(a)[keep][order]
+        return np.asarray(a)[idx]
 
     lift_s = pick(sol.lift_per_q) * q
     drag_s = pick(sol.drag_per_q) * q + trimmed.cd0 * q * pick(sol.chord)
     pitch_s = pick(sol.moment_per_q) * q
-    lift = strip_to_grid(y, ys, lift_s, ws)
-    drag = strip_to_grid(y, ys, drag_s, ws)
-    pitch = strip_to_grid(y, ys, pitch_s, ws)
-    inertia, point_loads = inertia_loads(masses, trimmed.load_factor, point_masses)
+    lift = _to_grid(y, h, ys, lift_s, ws)
+    drag = _to_grid(y, h, ys, drag_s, ws)
+    pitch = _to_grid(y, h, ys, pitch_s, ws)
+    inertia = trimmed.load_factor * G0 * masses.kg_per_m  # masses.inertia_loads, without
     # inertia along the load factor: normal to the longitudinal axis (body, 14 CFR 23.321(a)),
     # or opposite the lift (flight path)
     tilt = 0.0 if trimmed.body_axis else trimmed.alpha_deg
     ca, sa = math.cos(math.radians(tilt)), math.sin(math.radians(tilt))
-    point_loads = tuple(PointLoad(p.name, p.position,
-                                  np.array([-p.force[2] * sa, 0.0, p.force[2] * ca]))
-                        for p in point_loads)
+    # the point masses' weights -n g m along -z (inertia_loads' PointLoad forces), tilted
+    point_loads = []
+    for p in tuple(point_masses) + tuple(masses.lumped):
+        fz = np.float64(-trimmed.load_factor * G0 * p.mass)
+        point_loads.append(PointLoad(p.name, np.asarray(p.position, float),
+                                     np.array([-fz * sa, 0.0, fz * ca])))
+    point_loads = tuple(point_loads)
     side = -lift * _slope(grid.load_z, y)
     return AppliedLoads(lift_N_per_m=lift, drag_N_per_m=drag, side_N_per_m=side,
                         pitch_Nm_per_m=pitch, load_x_m=grid.load_x, load_z_m=grid.load_z,
                         inertia_N_per_m=inertia, inertia_x_m=masses.x_m, inertia_z_m=masses.z_m,
                         point_loads=point_loads, alpha_deg=trimmed.alpha_deg,
                         inertia_alpha_deg=tilt)
+
+
+_STRIPS: dict = {}  # (strip y, strip width, grid y) bytes -> read-only pieces (one per lattice)
+_STRIPS_KEEP = 8
+
+
+def _starboard_strips(strip_y, strip_width, y) -> tuple:
+    """(index, y, width, diff(grid y)): the starboard strips of a lattice (a full-span lattice's
+    y >= 0) in increasing y, as an index into the strip arrays, computed once per lattice and
+    grid (every case of a run shares them; returned read-only)."""
+    key = (strip_y.tobytes(), strip_width.tobytes(), y.tobytes())
+    hit = _STRIPS.get(key)
+    if hit is None:
+        keep = strip_y >= 0
+        ys, ws = strip_y[keep], strip_width[keep]
+        order = np.argsort(ys)
+        hit = (np.flatnonzero(keep)[order], ys[order], ws[order], y[1:] - y[:-1])
+        for a in hit:
+            a.setflags(write=False)
+        if len(_STRIPS) >= _STRIPS_KEEP:
+            _STRIPS.clear()
+        _STRIPS[key] = hit
+    return hit
 
 
 _SLOPES: dict = {}  # (z, y) bytes -> read-only dz/dy: every case of a run shares one grid
@@ -94,7 +120,7 @@ def case_loads(grid: LoadGrid, trimmed, applied: AppliedLoads, semispan: float,
     record, Schrenk NaN): for runs whose loads only feed a comparison (the error estimate's
     coarser lattices), whose own lattice run carries both checks."""
     y, lift = grid.y, applied.lift_N_per_m
-    half_lift = float(np.sum(0.5 * (lift[1:] + lift[:-1]) * np.diff(y)))
+    half_lift = float((0.5 * (lift[1:] + lift[:-1]) * (y[1:] - y[:-1])).sum())
     trim = TrimState(CL_required=trimmed.CL_required, q_pa=trimmed.q_pa,
                      load_factor_axis="body" if trimmed.body_axis else "flight-path",
                      force_required_N=trimmed.force_required_N, lift_total_N=2.0 * half_lift,

@@ -17,7 +17,7 @@ from .records import SpanLoads, TrimState
 
 
 def _trapezoid(f, y) -> float:
-    return float(np.sum(0.5 * (f[1:] + f[:-1]) * np.diff(y)))
+    return float((0.5 * (f[1:] + f[:-1]) * (y[1:] - y[:-1])).sum())  # np.diff's arithmetic
 
 
 def normal_force(stb: SpanLoads, port: SpanLoads, body_axis: bool) -> float:
