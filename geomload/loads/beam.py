@@ -17,6 +17,8 @@ For an unswept, flat wing these are F_z, M_x, M_y, F_x and -M_z of the wing fram
 
 from __future__ import annotations
 
+import math
+
 import numpy as np
 
 from geomload.aero.vortex import cross as _cross  # component form, numpy.cross's arithmetic
@@ -160,13 +162,6 @@ def integrate_loads(y, spar_x, spar_z, lift_N_per_m, *, drag_N_per_m=None, side_
                      schrenk_lift_N_per_m=schrenk_lift_N_per_m)
 
 
-def _columns(x, y, z, n=None):
-    """np.column_stack([x, y, z]) of (n,) arrays (a scalar fills its column)."""
-    out = np.empty((len(x) if n is None else n, 3))
-    out[:, 0], out[:, 1], out[:, 2] = x, y, z
-    return out
-
-
 def _couple(dy, pitch):
     """(n-1, 3) segment couples of the section moments, about axes parallel to y."""
     couple = np.zeros((dy.size, 3))
@@ -210,13 +205,17 @@ def integrate(y, spar_x, spar_z, applied: AppliedLoads, *, case: str = "",
     fx_aero, fz_aero = drag * ca - lift * sa, lift * ca + drag * sa
     h = dy[:, None]
     bi = np.radians(a.inertia_alpha_deg)
-    ra, fa_line = _columns(ax, y, az), _columns(fx_aero, side, fz_aero)
-    ri, fi_line = _columns(ix, y, iz), _columns(q * np.sin(bi), 0.0, -q * np.cos(bi), n)
+    # the aero (0) and inertia (1) lines and loads stacked: each operation once for both
+    R, L = np.empty((2, n, 3)), np.empty((2, n, 3))
+    R[0, :, 0], R[0, :, 1], R[0, :, 2] = ax, y, az
+    R[1, :, 0], R[1, :, 1], R[1, :, 2] = ix, y, iz
+    L[0, :, 0], L[0, :, 1], L[0, :, 2] = fx_aero, side, fz_aero
+    L[1, :, 0], L[1, :, 1], L[1, :, 2] = q * np.sin(bi), 0.0, -q * np.cos(bi)
     # the forces first (no cross product), then every cross product of the case in one call
     # (elementwise: the same bits as one call per product)
-    fa = 0.5 * h * (fa_line[:-1] + fa_line[1:])
-    fi = 0.5 * h * (fi_line[:-1] + fi_line[1:])
-    seg_f = fa + fi
+    l_ab = L[:, :-1] + L[:, 1:]
+    f_seg = 0.5 * h * l_ab
+    seg_f = f_seg[0] + f_seg[1]
     force = _reverse_cumsum(seg_f)
     tol = 1e-12 * max(1.0, float(y[-1] - y[0]))
     ks = [int(np.searchsorted(y, pl.position[1] + tol, side="right"))  # y increases:
@@ -224,13 +223,12 @@ def integrate(y, spar_x, spar_z, applied: AppliedLoads, *, case: str = "",
     m = n - 1
     rows = 8 * m + 1 + sum(ks)
     arms, loads = np.empty((rows, 3)), np.empty((rows, 3))
-    for j, (r, f) in enumerate(((ra, fa_line), (ri, fi_line))):
-        o = 3 * m * j
-        arms[o:o + m] = r[:-1] - p[:-1]
-        arms[o + 2 * m:o + 3 * m] = r[1:] - p[:-1]
-        arms[o + m:o + 2 * m] = arms[o:o + m] + arms[o + 2 * m:o + 3 * m]
-        loads[o:o + m], loads[o + 2 * m:o + 3 * m] = f[:-1], f[1:]
-        loads[o + m:o + 2 * m] = f[:-1] + f[1:]
+    # per line (Simpson): arms r_a, r_a + r_b, r_b about p[j] and loads f_a, f_a + f_b, f_b
+    va, vl = arms[:6 * m].reshape(2, 3, m, 3), loads[:6 * m].reshape(2, 3, m, 3)
+    va[:, 0] = R[:, :-1] - p[:-1]
+    va[:, 2] = R[:, 1:] - p[:-1]
+    va[:, 1] = va[:, 0] + va[:, 2]
+    vl[:, 0], vl[:, 1], vl[:, 2] = L[:, :-1], l_ab, L[:, 1:]
     arms[6 * m:7 * m], loads[6 * m:7 * m] = rel[:-1], seg_f
     arms[7 * m:8 * m + 1], loads[7 * m:8 * m + 1] = rel, force
     o = 8 * m + 1
@@ -238,10 +236,10 @@ def integrate(y, spar_x, spar_z, applied: AppliedLoads, *, case: str = "",
         arms[o:o + k], loads[o:o + k] = pl.position[None, :] - p[:k], pl.force[None, :]
         o += k
     c = _cross(arms, loads)
-    ma = h / 6.0 * (c[:m] + c[m:2 * m] + c[2 * m:3 * m])
-    mi = h / 6.0 * (c[3 * m:4 * m] + c[4 * m:5 * m] + c[5 * m:6 * m])
+    vc = c[:6 * m].reshape(2, 3, m, 3)
+    m_seg = h / 6.0 * (vc[:, 0] + vc[:, 1] + vc[:, 2])
     seg_m = np.empty((m, 6))
-    seg_m[:, :3] = ma + mi
+    seg_m[:, :3] = m_seg[0] + m_seg[1]
     seg_m[:, :3] += _couple(dy, pitch)
     seg_m[:, 3:] = c[6 * m:7 * m]
     sums = _reverse_cumsum(seg_m)
@@ -255,7 +253,7 @@ def integrate(y, spar_x, spar_z, applied: AppliedLoads, *, case: str = "",
     dot = lambda u, e: np.einsum("ij,ij->i", u, e)  # noqa: E731
     pitch_spar = pitch + (az - sz) * fx_aero - (ax - sx) * fz_aero
     eq = (_equilibrium(case, y, applied, p, force, moment,
-                       ((ra, fa_line), (ri, fi_line), dy)) if check_equilibrium else None)
+                       ((R[0], L[0]), (R[1], L[1]), dy)) if check_equilibrium else None)
     return SpanLoads(
         case=case, y=y, lift_N_per_m=lift, drag_N_per_m=drag, pitch_Nm_per_m=pitch_spar,
         inertia_N_per_m=q, shear_N=dot(force, nrm), bending_Nm=dot(moment, b),
@@ -341,11 +339,16 @@ def _equilibrium(case, y, a, spar_points, force_N, moment_Nm, lines=None) -> Equ
         gross += float(np.abs(fv).sum())
     f0, m0 = force_N[0], moment_Nm[0]
     span = float(y[-1] - y[0]) or 1.0
-    f_ref = max(float(np.linalg.norm(force)), gross, 1e-300)
-    m_ref = max(float(np.linalg.norm(moment)), gross * span, 1e-300)
+    f_ref = max(_norm(force), gross, 1e-300)
+    m_ref = max(_norm(moment), gross * span, 1e-300)
     return Equilibrium(total_vertical_N=float(force[2]), first_moment_Nm=float(moment[0]),
-                       shear_residual_rel=float(np.linalg.norm(f0 - force)) / f_ref,
-                       bending_residual_rel=float(np.linalg.norm(m0 - moment)) / m_ref)
+                       shear_residual_rel=_norm(f0 - force) / f_ref,
+                       bending_residual_rel=_norm(m0 - moment) / m_ref)
+
+
+def _norm(v) -> float:
+    """np.linalg.norm of a real vector, its own arithmetic (sqrt of v.v) without its dispatch."""
+    return math.sqrt(float(v.dot(v)))
 
 
 def schrenk(y, chord, semispan, total_lift_half):

@@ -18,7 +18,8 @@ from geomload.units import G0
 
 from .grid import _to_grid, strip_to_grid  # noqa: F401  (strip_to_grid: the earlier import)
 from .masses import inertia_loads  # noqa: F401  (the earlier import)
-from .schrenk_twist import schrenk_with_twist
+from .beam import _trapz
+from .schrenk_twist import basic_loading_per_q, schrenk_with_twist
 from .records import (AppliedLoads, LoadGrid, MassDistribution, PointLoad, SpanLoads,
                       TrimState)
 
@@ -110,6 +111,33 @@ def grid_twist_deg(grid: LoadGrid) -> np.ndarray:
     return np.degrees(np.arctan2(grid.le[:, 2] - grid.te[:, 2], grid.te[:, 0] - grid.le[:, 0]))
 
 
+_SCHRENK: dict = {}  # id(grid) -> (grid, semispan, chord area, ellipse shape, basic loading / q)
+_SCHRENK_KEEP = 8
+
+
+def _schrenk(grid: LoadGrid, semispan: float, half_lift: float, q_pa: float) -> np.ndarray:
+    """schrenk_with_twist(grid.y, grid.chord, semispan, half_lift, q_pa, grid_twist_deg(grid))
+    with the parts that depend on the grid alone (the chord area, the elliptic shape, the
+    basic loading per q) computed once per grid: the same arithmetic per case."""
+    hit = _SCHRENK.get(id(grid))
+    if hit is None or hit[0] is not grid or hit[1] != semispan:
+        y, c = grid.y, grid.chord
+        area = _trapz(y, c)
+        if area <= 0 or semispan <= 0:  # schrenk's own message
+            return schrenk_with_twist(y, c, semispan, half_lift, q_pa, grid_twist_deg(grid))
+        hit = (grid, semispan, area, np.sqrt(np.clip(1 - (y / semispan) ** 2, 0, None)),
+               basic_loading_per_q(y, c, grid_twist_deg(grid)))
+        if len(_SCHRENK) >= _SCHRENK_KEEP:
+            _SCHRENK.clear()
+        _SCHRENK[id(grid)] = hit
+    _g, _s, area, shape, basic = hit
+    # beam.schrenk: the mean of the planform and the elliptic distributions, then the basic
+    # loading (schrenk_twist.schrenk_with_twist)
+    planform = half_lift * grid.chord / area
+    ellipse = 4.0 * half_lift / (np.pi * semispan) * shape
+    return 0.5 * (planform + ellipse) + float(q_pa) * basic
+
+
 def case_loads(grid: LoadGrid, trimmed, applied: AppliedLoads, semispan: float,
                ultimate_factor: float, detail: bool = True) -> SpanLoads:
     """Integrate the applied loads of a TrimmedCase: SpanLoads with its trim state, the
@@ -127,8 +155,8 @@ def case_loads(grid: LoadGrid, trimmed, applied: AppliedLoads, semispan: float,
                      mach_lattice=trimmed.mach_lattice)
     return integrate(y, grid.spar_x, grid.spar_z, applied, case=trimmed.name,
                      ultimate_factor=ultimate_factor,
-                     schrenk_lift_N_per_m=None if not detail else schrenk_with_twist(
-                         y, grid.chord, semispan, half_lift, trimmed.q_pa, grid_twist_deg(grid)),
+                     schrenk_lift_N_per_m=None if not detail else _schrenk(
+                         grid, semispan, half_lift, trimmed.q_pa),
                      trim=trim, chord_m=grid.chord,
                      output_rows=None if grid.output_rows.all() else grid.output_rows,
                      check_equilibrium=detail)
