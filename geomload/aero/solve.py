@@ -349,11 +349,21 @@ class AeroModel:
         G = self._gamma(rads)
         return [self._solution(d, r, G[:, k]) for k, (d, r) in enumerate(zip(degs, rads))]
 
+    def _vind_rows(self) -> np.ndarray:
+        """The basis velocities at the bound midpoints (N, 3, 2) as a (3N, 2) matrix (kept)."""
+        hit = self.__dict__.get("_vind_2d")
+        if hit is None or hit[0] is not self._vind:
+            hit = (self._vind, self._vind.reshape(-1, 2))
+            self._vind_2d = hit
+        return hit[1]
+
     def _solution(self, alpha_deg: float, alpha: float, g) -> AeroSolution:
         lat = self.lattice
         ns, nc = lat.n_span, lat.n_chord
         ca, sa = math.cos(alpha), math.sin(alpha)
-        vt = self._vind @ np.array([ca, sa])
+        # the (N, 3, 2) basis velocities as one (3N, 2) matrix: one matrix-vector product
+        # instead of N small ones (the same row products, the same bits)
+        vt = (self._vind_rows() @ np.array([ca, sa])).reshape(-1, 3)
         vt[:, 0] += ca
         vt[:, 2] += sa
         F = 2.0 * g[:, None] * vortex.cross(vt, self._l)  # force / q per panel (m^2)
