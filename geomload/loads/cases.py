@@ -23,7 +23,7 @@ from .flight_case import applied_loads, case_loads
 from .grid import load_grid
 from .masses import mass_distribution
 from .records import LoadGrid, MassDistribution
-from .side_loads import normal_force
+from .side_loads import symmetric_normal_force
 
 # the spar at the quarter chord when the case gives no spar: thin-airfoil theory's aerodynamic
 # centre (Abbott & von Doenhoff, Theory of Wing Sections, ch. 4; from memory)
@@ -88,7 +88,7 @@ def solve_case(lc, ctx: CaseContext, wing_force_N=None, *, name=None,
     extra = {"lift_share": lc.lift_share}
     if tail is not None:
         extra = {"tail_load_N": tail[0], "x_cg_m": tail[1], "lift_share": tail[2],
-                 "wing_normal_force_N": normal_force(loads, loads, case.body_axis)}
+                 "wing_normal_force_N": symmetric_normal_force(loads, case.body_axis)}
     return CaseResult(name=name, v_eas=trimmed.v_eas, v_tas=trimmed.v_tas,
                       altitude_m=lc.altitude_m, mach=trimmed.mach, q_pa=trimmed.q_pa,
                       load_factor=lc.load_factor, mass_kg=trimmed.mass_kg,

@@ -16,7 +16,7 @@ import numpy as np
 from .beam import integrate
 from geomload.units import G0
 
-from .grid import _to_grid, strip_to_grid  # noqa: F401  (strip_to_grid: the earlier import)
+from .grid import _to_grid_rows, strip_to_grid  # noqa: F401  (strip_to_grid: the earlier import)
 from .masses import inertia_loads  # noqa: F401  (the earlier import)
 from .beam import _trapz
 from .schrenk_twist import basic_loading_per_q, schrenk_with_twist
@@ -41,9 +41,7 @@ def applied_loads(grid: LoadGrid, trimmed, strip_width, masses: MassDistribution
     lift_s = pick(sol.lift_per_q) * q
     drag_s = pick(sol.drag_per_q) * q + trimmed.cd0 * q * pick(sol.chord)
     pitch_s = pick(sol.moment_per_q) * q
-    lift = _to_grid(y, h, ys, lift_s, ws)
-    drag = _to_grid(y, h, ys, drag_s, ws)
-    pitch = _to_grid(y, h, ys, pitch_s, ws)
+    lift, drag, pitch = _to_grid_rows(y, h, ys, (lift_s, drag_s, pitch_s), ws)
     inertia = trimmed.load_factor * G0 * masses.kg_per_m  # masses.inertia_loads, without
     # inertia along the load factor: normal to the longitudinal axis (body, 14 CFR 23.321(a)),
     # or opposite the lift (flight path)

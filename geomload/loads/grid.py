@@ -106,3 +106,27 @@ def _to_grid(y_edges, h, y_strip, values, width, total=None, tip_zero=True):
     if a_total > 0.0:
         v = v + (strip_total - grid_total) * a / a_total
     return v
+
+
+def _to_grid_rows(y_edges, h, y_strip, series, width) -> list:
+    """_to_grid (tip zero, the strip total) of several strip series on one grid: the same
+    arithmetic per series with the sums taken as the rows of one array (a row's sum is the
+    sum of that series alone)."""
+    k, n = len(series), y_edges.size
+    v = np.empty((k, n))
+    extrapolate = y_strip.size >= 2 and y_edges[0] < y_strip[0]
+    for i, values in enumerate(series):
+        v[i] = np.interp(y_edges, y_strip, values)
+        if extrapolate:
+            slope = (values[1] - values[0]) / (y_strip[1] - y_strip[0])
+            v[i, 0] = values[0] + slope * (y_edges[0] - y_strip[0])
+    v[:, -1] = 0.0
+    strip_total = (np.stack(series) * width).sum(axis=1)
+    grid_total = (0.5 * (v[:, 1:] + v[:, :-1]) * h).sum(axis=1)
+    a = np.abs(v)
+    a_total = (0.5 * (a[:, 1:] + a[:, :-1]) * h).sum(axis=1)
+    out = []
+    for i in range(k):
+        st, gt, at = float(strip_total[i]), float(grid_total[i]), float(a_total[i])
+        out.append(v[i] + (st - gt) * a[i] / at if at > 0.0 else v[i].copy())
+    return out
