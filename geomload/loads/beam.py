@@ -171,8 +171,9 @@ def _couple(dy, pitch):
 
 def _reverse_cumsum(a):
     """out[i] = sum of a[i:] along axis 0, with one zero row appended (the tip)."""
-    out = np.zeros((a.shape[0] + 1,) + a.shape[1:])
-    out[:-1] = np.cumsum(a[::-1], axis=0)[::-1]
+    out = np.empty((a.shape[0] + 1,) + a.shape[1:])
+    out[-1] = 0.0
+    np.cumsum(a[::-1], axis=0, out=out[-2::-1])  # written in place, tip to root
     return out
 
 
@@ -218,8 +219,9 @@ def integrate(y, spar_x, spar_z, applied: AppliedLoads, *, case: str = "",
     seg_f = f_seg[0] + f_seg[1]
     force = _reverse_cumsum(seg_f)
     tol = 1e-12 * max(1.0, float(y[-1] - y[0]))
-    ks = [int(np.searchsorted(y, pl.position[1] + tol, side="right"))  # y increases:
-          for pl in a.point_loads]  # y <= r_y + tol is the first k stations
+    # y increases: y <= r_y + tol is the first k stations (one search for every point load)
+    ks = (np.searchsorted(y, [pl.position[1] + tol for pl in a.point_loads],
+                          side="right").tolist() if a.point_loads else [])
     m = n - 1
     rows = 8 * m + 1 + sum(ks)
     arms, loads = np.empty((rows, 3)), np.empty((rows, 3))
