@@ -13,12 +13,11 @@ import math
 
 import numpy as np
 
-from .beam import integrate
 from geomload.units import G0
 
+from .beam import _trapz, integrate
 from .grid import _to_grid_rows, strip_to_grid  # noqa: F401  (strip_to_grid: the earlier import)
 from .masses import inertia_loads  # noqa: F401  (the earlier import)
-from .beam import _trapz
 from .schrenk_twist import basic_loading_per_q, schrenk_with_twist
 from .records import (AppliedLoads, LoadGrid, MassDistribution, PointLoad, SpanLoads,
                       TrimState)
@@ -42,12 +41,13 @@ def applied_loads(grid: LoadGrid, trimmed, strip_width, masses: MassDistribution
     drag_s = pick(sol.drag_per_q) * q + trimmed.cd0 * q * pick(sol.chord)
     pitch_s = pick(sol.moment_per_q) * q
     lift, drag, pitch = _to_grid_rows(y, h, ys, (lift_s, drag_s, pitch_s), ws)
-    inertia = trimmed.load_factor * G0 * masses.kg_per_m  # masses.inertia_loads, without
+    # n g m'(y) and the point masses' weights: masses.inertia_loads' arithmetic, each PointLoad
+    # built once (with the tilted force) instead of twice
+    inertia = trimmed.load_factor * G0 * masses.kg_per_m
     # inertia along the load factor: normal to the longitudinal axis (body, 14 CFR 23.321(a)),
     # or opposite the lift (flight path)
     tilt = 0.0 if trimmed.body_axis else trimmed.alpha_deg
     ca, sa = math.cos(math.radians(tilt)), math.sin(math.radians(tilt))
-    # the point masses' weights -n g m along -z (inertia_loads' PointLoad forces), tilted
     point_loads = []
     for p in tuple(point_masses) + tuple(masses.lumped):
         fz = np.float64(-trimmed.load_factor * G0 * p.mass)
