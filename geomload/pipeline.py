@@ -91,6 +91,24 @@ def compute(case, progress=None, cache=None, error_bars=False, detail=True,
             job.stop()
 
 
+def _run_atmosphere():
+    """The run's atmosphere: :func:`density_and_sound` (h -> (rho, a)) remembered per altitude
+    for one run (a pure function: the same tuples; a run's cases share a few altitudes, each
+    asking for it several times)."""
+    memo = {}
+
+    def atmosphere(h_m):
+        try:
+            return memo[h_m]
+        except KeyError:
+            memo[h_m] = got = density_and_sound(h_m)
+            return got
+        except TypeError:  # not hashable: not remembered
+            return density_and_sound(h_m)
+
+    return atmosphere
+
+
 def _compute_cases(case, progress, cache, detail, wing_key, wing, messages,
                    timings) -> RunResult:
     """compute() from the resolved case and its wing on: lattice, models, cases, envelope."""
@@ -102,7 +120,7 @@ def _compute_cases(case, progress, cache, detail, wing_key, wing, messages,
     lattice_key, lattice = cached_lattice(case.lattice, case.moment_reference, stations,
                                           wing_key, cache)
     models = MachModels(lattice, progress, store=cache, key=lattice_key)
-    atmosphere = density_and_sound  # the one atmosphere of the run
+    atmosphere = _run_atmosphere()  # the one atmosphere of the run
     load_cases, vn = list(case.load_cases), None
     if case.envelope is not None:
         extra, vn, notes = flight_envelope_cases(case, lattice.s_ref, lattice.s_ref / lattice.b_ref,

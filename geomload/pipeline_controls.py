@@ -75,13 +75,11 @@ def symmetric_with_tail(lc, ctx, solve_case) -> list:
     out = []
     for label, x_cg in zip(CG_LABELS, case.controls.cg_x_m):
         pt = _pitch(ctx, coefficients, lc.load_factor, mass * G0, q, x_cg)
-        named = dataclasses.replace(lc, name=f"{lc.name} {label}")
-        r = solve_case(named, ctx, wing_force_N=pt.wing_lift_N)
-        out.append(dataclasses.replace(r, tail_load_N=pt.tail_load_N, x_cg_m=x_cg,
-                                       lift_share=carried_share(pt.wing_lift_N,
-                                                                lc.load_factor, mass),
-                                       wing_normal_force_N=normal_force(r.loads, r.loads,
-                                                                        case.body_axis)))
+        # the case at this c.g., named for it, with its tail load, its share and the wing's
+        # normal force (built once)
+        out.append(solve_case(lc, ctx, wing_force_N=pt.wing_lift_N, name=f"{lc.name} {label}",
+                              tail=(pt.tail_load_N, x_cg,
+                                    carried_share(pt.wing_lift_N, lc.load_factor, mass))))
     return out
 
 

@@ -27,6 +27,9 @@ def vector(name: str, a, n: int, *, finite: bool = True, width: Optional[int] = 
     return a
 
 
+_F64 = np.dtype(np.float64)
+
+
 def fields(obj, prefix: str, names, n: int, *, finite: bool = True,
            width: Optional[int] = None) -> None:
     """:func:`vector` on each field ``names`` of ``obj`` (set back as float arrays), the
@@ -37,7 +40,7 @@ def fields(obj, prefix: str, names, n: int, *, finite: bool = True,
     arrays = []
     for k in names:
         a = getattr(obj, k)
-        if type(a) is not np.ndarray or a.dtype != np.float64:
+        if type(a) is not np.ndarray or a.dtype is not _F64:  # (an equal dtype: no copy)
             a = np.asarray(a, dtype=float)
             object.__setattr__(obj, k, a)
         if a.shape != shape:

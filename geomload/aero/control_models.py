@@ -66,6 +66,10 @@ def axis_coefficients(coefficients, drag_form=None, cd0: float = 0.0):
     """
     if drag_form is None:
         return coefficients
+    from .solve import AeroModel
+
+    if getattr(coefficients, "__func__", None) is AeroModel.coefficients:
+        return coefficients.__self__.axis_coefficients(drag_form, cd0)  # the same, in one call
     qxx, qxz, qzz = drag_form
 
     def on_axis(alpha_deg):

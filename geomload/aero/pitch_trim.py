@@ -99,9 +99,12 @@ def trim_pitch(coefficients, s_ref: float, c_ref: float, x_ref_m: float, n: floa
         Mcg = qSc * (Cm + cm0_fuselage) - dx * Lw
         return Lw, Mcg, CL, Cm
 
-    def f(a):
-        Lw, Mcg, _, _ = parts(a)
-        return Lw + Mcg / arm - n * W
+    nW = n * W
+
+    def f(a):  # parts(a) inline: the Newton step below calls it three times per iteration
+        CL, Cm = coefficients(a)
+        Lw = qS * CL
+        return Lw + (qSc * (Cm + cm0_fuselage) - dx * Lw) / arm - nW
 
     a, h = float(alpha0_deg), 1e-3
     for _ in range(40):

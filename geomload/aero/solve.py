@@ -35,6 +35,9 @@ from geomload.aero import vortex
 
 MACH_WARN = 0.7
 DEFAULT_CL_MAX = 1.4  # common practice for a plain section at low speed, no source
+# step (rad) of the central difference for dCL/dalpha and dCm/dCL: CL(alpha) is smooth (two
+# basis solutions), half a degree keeps the difference well above round-off
+_SLOPE_STEP = math.radians(0.5)
 
 
 def _alpha_rad(alpha_deg) -> float:
@@ -263,16 +266,26 @@ class AeroModel:
         ca, sa = math.cos(alpha), math.sin(alpha)
         return np.array([ca * ca, ca * sa, sa * sa]), ca, sa
 
+    def _cl_cm_consts(self) -> tuple:
+        """The scalars of :meth:`_cl_cm`, gathered on first use: (x0, z0, x1, z1, x2, z2, m0,
+        m1, m2, fac, S, S c_ref), the force and moment forms' coefficients and the references."""
+        k = self.__dict__.get("_clcm_k")
+        if k is None:
+            (x0, z0), (x1, z1), (x2, z2) = self._Fq_tot_xz
+            m0, m1, m2 = self._My_ref_f
+            S = self.lattice.s_ref
+            k = (x0, z0, x1, z1, x2, z2, m0, m1, m2, self._fac, S, S * self.lattice.c_ref)
+            self._clcm_k = k
+        return k
+
     def _cl_cm(self, alpha: float):
         # scalar arithmetic: the trim calls this a few dozen times per load case
+        k = self.__dict__.get("_clcm_k") or self._cl_cm_consts()
+        x0, z0, x1, z1, x2, z2, m0, m1, m2, fac, S, Sc = k
         ca, sa = math.cos(alpha), math.sin(alpha)
         w0, w1, w2 = ca * ca, ca * sa, sa * sa
-        (x0, z0), (x1, z1), (x2, z2) = self._Fq_tot_xz
-        m0, m1, m2 = self._My_ref_f
         lift = -sa * (w0 * x0 + w1 * x1 + w2 * x2) + ca * (w0 * z0 + w1 * z1 + w2 * z2)
-        S = self.lattice.s_ref
-        return (self._fac * lift / S,
-                self._fac * (w0 * m0 + w1 * m1 + w2 * m2) / (S * self.lattice.c_ref))
+        return fac * lift / S, fac * (w0 * m0 + w1 * m1 + w2 * m2) / Sc
 
     def _zero_lift(self, alpha: float, cla: float) -> float:
         a = alpha
@@ -281,7 +294,7 @@ class AeroModel:
         return a
 
     def _derivatives(self, alpha: float):
-        h = math.radians(0.5)
+        h = _SLOPE_STEP
         cl_p, cm_p = self._cl_cm(alpha + h)
         cl_m, cm_m = self._cl_cm(alpha - h)
         cla = (cl_p - cl_m) / (2 * h)
@@ -327,6 +340,26 @@ class AeroModel:
         """(CL, Cm about lattice.x_ref) at `alpha_deg` (deg) by superposition (cheap)."""
         return self._cl_cm(_alpha_rad(alpha_deg))
 
+    def axis_coefficients(self, drag_form, cd0: float = 0.0):
+        """alpha_deg -> (CF, Cm): :func:`geomload.aero.control_models.axis_coefficients` of
+        :meth:`coefficients` (CF = CL cos a + (CDi + cd0) sin a, CDi from ``drag_form``
+        (Q_xx, Q_xz, Q_zz)) in one function: the same arithmetic, the cosine and sine of alpha
+        taken once (the pitch trim calls it a dozen times per case)."""
+        qxx, qxz, qzz = drag_form
+        x0, z0, x1, z1, x2, z2, m0, m1, m2, fac, S, Sc = self._cl_cm_consts()
+        cos, sin, rad = math.cos, math.sin, _alpha_rad
+
+        def on_axis(alpha_deg):
+            a = rad(alpha_deg)
+            ca, sa = cos(a), sin(a)
+            w0, w1, w2 = ca * ca, ca * sa, sa * sa
+            lift = -sa * (w0 * x0 + w1 * x1 + w2 * x2) + ca * (w0 * z0 + w1 * z1 + w2 * z2)
+            CL, Cm = fac * lift / S, fac * (w0 * m0 + w1 * m1 + w2 * m2) / Sc
+            cdi = qxx * ca * ca + 2.0 * qxz * ca * sa + qzz * sa * sa
+            return CL * ca + (cdi + cd0) * sa, Cm
+
+        return on_axis
+
     def solve(self, alpha_deg: float) -> AeroSolution:
         """Loads at angle of attack `alpha_deg` (deg), per unit dynamic pressure q where the
         field says so (see records.AeroSolution); circulation per unit free-stream speed."""
@@ -341,11 +374,21 @@ class AeroModel:
         G = self._gamma(rads)
         return [self._solution(d, r, G[:, k]) for k, (d, r) in enumerate(zip(degs, rads))]
 
+    def _vind_rows(self) -> np.ndarray:
+        """The basis velocities at the bound midpoints (N, 3, 2) as a (3N, 2) matrix (kept)."""
+        hit = self.__dict__.get("_vind_2d")
+        if hit is None or hit[0] is not self._vind:
+            hit = (self._vind, self._vind.reshape(-1, 2))
+            self._vind_2d = hit
+        return hit[1]
+
     def _solution(self, alpha_deg: float, alpha: float, g) -> AeroSolution:
         lat = self.lattice
         ns, nc = lat.n_span, lat.n_chord
         ca, sa = math.cos(alpha), math.sin(alpha)
-        vt = self._vind @ np.array([ca, sa])
+        # the (N, 3, 2) basis velocities as one (3N, 2) matrix: one matrix-vector product
+        # instead of N small ones (the same row products, the same bits)
+        vt = (self._vind_rows() @ np.array([ca, sa])).reshape(-1, 3)
         vt[:, 0] += ca
         vt[:, 2] += sa
         F = 2.0 * g[:, None] * vortex.cross(vt, self._l)  # force / q per panel (m^2)
@@ -398,11 +441,27 @@ class AeroModel:
             raise AeroError(f"CL: target lift coefficient must be finite, got {CL!r}")
         a0, cla, _ = self._linear()
         a = a0 + target / cla
+        # Newton on CL(alpha) with the central-difference slope of _derivatives, CL alone and
+        # inline (the same arithmetic: the same iterates to the bit)
+        x0, z0, x1, z1, x2, z2, _m0, _m1, _m2, fac, S, _Sc = (self.__dict__.get("_clcm_k")
+                                                               or self._cl_cm_consts())
+        cos, sin, h = math.cos, math.sin, _SLOPE_STEP
+        tol = 1e-12 * max(1.0, abs(target))
+
+        def cl_at(x):
+            ca, sa = cos(x), sin(x)
+            w0, w1, w2 = ca * ca, ca * sa, sa * sa
+            return fac * (-sa * (w0 * x0 + w1 * x1 + w2 * x2)
+                          + ca * (w0 * z0 + w1 * z1 + w2 * z2)) / S
+
         for _ in range(20):
-            cl = self._cl_cm(a)[0]
-            if abs(cl - target) <= 1e-12 * max(1.0, abs(target)):
+            cl = cl_at(a)
+            if abs(cl - target) <= tol:
                 break
-            a -= (cl - target) / self._derivatives(a)[0]
+            slope = (cl_at(a + h) - cl_at(a - h)) / (2 * h)
+            if not abs(slope) > 1e-12:
+                raise AeroError("lattice: lift slope is zero; the wing produces no lift")
+            a -= (cl - target) / slope
         if abs(a) > math.radians(60.0):
             raise AeroError(f"CL: {target:g} needs |alpha| > 60 deg; outside linear theory")
         return math.degrees(a)

@@ -119,18 +119,20 @@ def stall_warning(cf_req: float, CL_req: float, mach: float, models: MachModels,
 
 
 def trim_case(lc, case, models: MachModels, atmosphere=density_and_sound,
-              wing_force_N=None) -> TrimmedCase:
+              wing_force_N=None, name=None) -> TrimmedCase:
     """Trim one LoadCase of a Case on the models' lattice; atmosphere: h -> (rho, a), the one
     atmosphere of the run (used for the airspeeds, the Mach number and q). wing_force_N: the
     wing's force (both sides, on the case's load-factor axis) when a pitch trim with a tail
-    gives it; None = lift_share x n W."""
+    gives it; None = lift_share x n W. name: the case's name when not lc.name (one c.g. of a
+    case trimmed in pitch)."""
+    name = lc.name if name is None else name
     v_eas, v_tas = airspeeds(lc.speed_m_s, lc.speed_type, lc.altitude_m, atmosphere)
     mach = mach_number(v_tas, lc.altitude_m, atmosphere)
     if not math.isfinite(mach) or mach >= 1.0:
-        raise AeroError(f"{case.path}: load_case '{lc.name}': Mach {mach:.3f} >= 1 "
+        raise AeroError(f"{case.path}: load_case '{name}': Mach {mach:.3f} >= 1 "
                         "(speed too high for linear subsonic theory)")
     if v_tas <= 0:
-        raise CaseError(f"{case.path}: load_case '{lc.name}': speed must be > 0")
+        raise CaseError(f"{case.path}: load_case '{name}': speed must be > 0")
     q = dynamic_pressure(v_tas, lc.altitude_m, atmosphere)
     mass = case.aircraft.gross_mass_kg if lc.mass_kg is None else lc.mass_kg
     force_req = (lc.lift_share * lc.load_factor * mass * G0 if wing_force_N is None
@@ -146,7 +148,7 @@ def trim_case(lc, case, models: MachModels, atmosphere=density_and_sound,
                          lc.cl_max if lc.cl_max is not None else case.aircraft.cl_max,
                          None if env is None else env.cl_max_pos,
                          None if env is None else env.cl_max_neg)
-    return TrimmedCase(name=lc.name, v_eas=v_eas, v_tas=v_tas, altitude_m=lc.altitude_m,
+    return TrimmedCase(name=name, v_eas=v_eas, v_tas=v_tas, altitude_m=lc.altitude_m,
                        mach=mach, mach_lattice=lattice_mach(mach), q_pa=q,
                        load_factor=lc.load_factor, mass_kg=mass, lift_share=lc.lift_share,
                        force_required_N=force_req, cf_required=cf_req, CL_required=CL_req,

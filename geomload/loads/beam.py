@@ -17,6 +17,8 @@ For an unswept, flat wing these are F_z, M_x, M_y, F_x and -M_z of the wing fram
 
 from __future__ import annotations
 
+import math
+
 import numpy as np
 
 from geomload.aero.vortex import cross as _cross  # component form, numpy.cross's arithmetic
@@ -160,10 +162,18 @@ def integrate_loads(y, spar_x, spar_z, lift_N_per_m, *, drag_N_per_m=None, side_
                      schrenk_lift_N_per_m=schrenk_lift_N_per_m)
 
 
+def _couple(dy, pitch):
+    """(n-1, 3) segment couples of the section moments, about axes parallel to y."""
+    couple = np.zeros((dy.size, 3))
+    couple[:, 1] = 0.5 * dy * (pitch[:-1] + pitch[1:])
+    return couple
+
+
 def _reverse_cumsum(a):
     """out[i] = sum of a[i:] along axis 0, with one zero row appended (the tip)."""
-    out = np.zeros((a.shape[0] + 1,) + a.shape[1:])
-    out[:-1] = np.cumsum(a[::-1], axis=0)[::-1]
+    out = np.empty((a.shape[0] + 1,) + a.shape[1:])
+    out[-1] = 0.0
+    np.cumsum(a[::-1], axis=0, out=out[-2::-1])  # written in place, tip to root
     return out
 
 
@@ -190,35 +200,62 @@ def integrate(y, spar_x, spar_z, applied: AppliedLoads, *, case: str = "",
     lift, drag, side, pitch, q = (a.lift_N_per_m, a.drag_N_per_m, a.side_N_per_m,
                                   a.pitch_Nm_per_m, a.inertia_N_per_m)
     ax, az, ix, iz = a.load_x_m, a.load_z_m, a.inertia_x_m, a.inertia_z_m
-    zero = np.zeros(n)
     s, b, nrm, p, rel, dy = _shared_spar_frame(y, sx, sz)
 
     ca, sa = np.cos(np.radians(a.alpha_deg)), np.sin(np.radians(a.alpha_deg))
     fx_aero, fz_aero = drag * ca - lift * sa, lift * ca + drag * sa
     h = dy[:, None]
     bi = np.radians(a.inertia_alpha_deg)
-    ra, fa_line = np.column_stack([ax, y, az]), np.column_stack([fx_aero, side, fz_aero])
-    ri, fi_line = (np.column_stack([ix, y, iz]),
-                   np.column_stack([q * np.sin(bi), zero, -q * np.cos(bi)]))
-    (fa, ma), (fi, mi) = _segment_moments_many(h, p, ((ra, fa_line), (ri, fi_line)))
-    couple = np.zeros((n - 1, 3))
-    couple[:, 1] = 0.5 * dy * (pitch[:-1] + pitch[1:])  # about axes parallel to y
-    seg_f = fa + fi
-    seg_m = ma + mi + couple
+    # the aero (0) and inertia (1) lines and loads stacked: each operation once for both
+    R, L = np.empty((2, n, 3)), np.empty((2, n, 3))
+    R[0, :, 0], R[0, :, 1], R[0, :, 2] = ax, y, az
+    R[1, :, 0], R[1, :, 1], R[1, :, 2] = ix, y, iz
+    L[0, :, 0], L[0, :, 1], L[0, :, 2] = fx_aero, side, fz_aero
+    L[1, :, 0], L[1, :, 1], L[1, :, 2] = q * np.sin(bi), 0.0, -q * np.cos(bi)
+    # the forces first (no cross product), then every cross product of the case in one call
+    # (elementwise: the same bits as one call per product)
+    l_ab = L[:, :-1] + L[:, 1:]
+    f_seg = 0.5 * h * l_ab
+    seg_f = f_seg[0] + f_seg[1]
     force = _reverse_cumsum(seg_f)
-    moment = (_reverse_cumsum(seg_m) + _reverse_cumsum(_cross(rel[:-1], seg_f))
-              - _cross(rel, force))
     tol = 1e-12 * max(1.0, float(y[-1] - y[0]))
-    for pl in a.point_loads:
-        r, fv = pl.position, pl.force
-        k = int(np.searchsorted(y, r[1] + tol, side="right"))  # y increases: y <= r_y + tol
-        force[:k] += fv  # is the first k stations
-        moment[:k] += _cross(r[None, :] - p[:k], fv[None, :])
+    # y increases: y <= r_y + tol is the first k stations (one search for every point load)
+    ks = (np.searchsorted(y, [pl.position[1] + tol for pl in a.point_loads],
+                          side="right").tolist() if a.point_loads else [])
+    m = n - 1
+    rows = 8 * m + 1 + sum(ks)
+    arms, loads = np.empty((rows, 3)), np.empty((rows, 3))
+    # per line (Simpson): arms r_a, r_a + r_b, r_b about p[j] and loads f_a, f_a + f_b, f_b
+    va, vl = arms[:6 * m].reshape(2, 3, m, 3), loads[:6 * m].reshape(2, 3, m, 3)
+    va[:, 0] = R[:, :-1] - p[:-1]
+    va[:, 2] = R[:, 1:] - p[:-1]
+    va[:, 1] = va[:, 0] + va[:, 2]
+    vl[:, 0], vl[:, 1], vl[:, 2] = L[:, :-1], l_ab, L[:, 1:]
+    arms[6 * m:7 * m], loads[6 * m:7 * m] = rel[:-1], seg_f
+    arms[7 * m:8 * m + 1], loads[7 * m:8 * m + 1] = rel, force
+    o = 8 * m + 1
+    for pl, k in zip(a.point_loads, ks):
+        arms[o:o + k], loads[o:o + k] = pl.position[None, :] - p[:k], pl.force[None, :]
+        o += k
+    c = _cross(arms, loads)
+    vc = c[:6 * m].reshape(2, 3, m, 3)
+    m_seg = h / 6.0 * (vc[:, 0] + vc[:, 1] + vc[:, 2])
+    seg_m = np.empty((m, 6))
+    seg_m[:, :3] = m_seg[0] + m_seg[1]
+    seg_m[:, :3] += _couple(dy, pitch)
+    seg_m[:, 3:] = c[6 * m:7 * m]
+    sums = _reverse_cumsum(seg_m)
+    moment = (sums[:, :3] + sums[:, 3:]) - c[7 * m:8 * m + 1]
+    o = 8 * m + 1
+    for pl, k in zip(a.point_loads, ks):
+        force[:k] += pl.force
+        moment[:k] += c[o:o + k]
+        o += k
 
     dot = lambda u, e: np.einsum("ij,ij->i", u, e)  # noqa: E731
     pitch_spar = pitch + (az - sz) * fx_aero - (ax - sx) * fz_aero
     eq = (_equilibrium(case, y, applied, p, force, moment,
-                       ((ra, fa_line), (ri, fi_line), dy)) if check_equilibrium else None)
+                       ((R[0], L[0]), (R[1], L[1]), dy)) if check_equilibrium else None)
     return SpanLoads(
         case=case, y=y, lift_N_per_m=lift, drag_N_per_m=drag, pitch_Nm_per_m=pitch_spar,
         inertia_N_per_m=q, shear_N=dot(force, nrm), bending_Nm=dot(moment, b),
@@ -290,12 +327,12 @@ def _equilibrium(case, y, a, spar_points, force_N, moment_Nm, lines=None) -> Equ
                np.stack([2.0 * fa[:-1] + fa[1:], fa[:-1] + 2.0 * fa[1:],
                          2.0 * fi[:-1] + fi[1:], fi[:-1] + 2.0 * fi[1:]]))
     for k, f in enumerate((fa, fi)):
-        force += np.sum(0.5 * h * (f[1:] + f[:-1]), axis=0)  # trapezoid, exact for linear f
-        moment += np.sum(h / 6.0 * (c[2 * k] + c[2 * k + 1]), axis=0)
-    moment[1] += float(np.sum(0.5 * dy * (a.pitch_Nm_per_m[1:] + a.pitch_Nm_per_m[:-1])))
+        force += (0.5 * h * (f[1:] + f[:-1])).sum(axis=0)  # trapezoid, exact for linear f
+        moment += (h / 6.0 * (c[2 * k] + c[2 * k + 1])).sum(axis=0)
+    moment[1] += float((0.5 * dy * (a.pitch_Nm_per_m[1:] + a.pitch_Nm_per_m[:-1])).sum())
     tol = 1e-12 * max(1.0, float(y[-1] - y[0]))
-    gross = float(np.sum(0.5 * dy * (np.abs(lift[1:]) + np.abs(lift[:-1]) + np.abs(q[1:])
-                                     + np.abs(q[:-1]) + np.abs(drag[1:]) + np.abs(drag[:-1]))))
+    gross = float((0.5 * dy * (np.abs(lift[1:]) + np.abs(lift[:-1]) + np.abs(q[1:])
+                               + np.abs(q[:-1]) + np.abs(drag[1:]) + np.abs(drag[:-1]))).sum())
     for pl in a.point_loads:
         r, fv = pl.position - p0, pl.force
         if r[1] >= -tol:
@@ -304,11 +341,16 @@ def _equilibrium(case, y, a, spar_points, force_N, moment_Nm, lines=None) -> Equ
         gross += float(np.abs(fv).sum())
     f0, m0 = force_N[0], moment_Nm[0]
     span = float(y[-1] - y[0]) or 1.0
-    f_ref = max(float(np.linalg.norm(force)), gross, 1e-300)
-    m_ref = max(float(np.linalg.norm(moment)), gross * span, 1e-300)
+    f_ref = max(_norm(force), gross, 1e-300)
+    m_ref = max(_norm(moment), gross * span, 1e-300)
     return Equilibrium(total_vertical_N=float(force[2]), first_moment_Nm=float(moment[0]),
-                       shear_residual_rel=float(np.linalg.norm(f0 - force)) / f_ref,
-                       bending_residual_rel=float(np.linalg.norm(m0 - moment)) / m_ref)
+                       shear_residual_rel=_norm(f0 - force) / f_ref,
+                       bending_residual_rel=_norm(m0 - moment) / m_ref)
+
+
+def _norm(v) -> float:
+    """np.linalg.norm of a real vector, its own arithmetic (sqrt of v.v) without its dispatch."""
+    return math.sqrt(float(v.dot(v)))
 
 
 def schrenk(y, chord, semispan, total_lift_half):

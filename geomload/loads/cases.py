@@ -23,6 +23,7 @@ from .flight_case import applied_loads, case_loads
 from .grid import load_grid
 from .masses import mass_distribution
 from .records import LoadGrid, MassDistribution
+from .side_loads import symmetric_normal_force
 
 # the spar at the quarter chord when the case gives no spar: thin-airfoil theory's aerodynamic
 # centre (Abbott & von Doenhoff, Theory of Wing Sections, ch. 4; from memory)
@@ -68,24 +69,33 @@ def case_grid(case: Case, lattice: Lattice) -> LoadGrid:
                      ends=[float(t.y_to_m) for t in case.fuel_tanks])
 
 
-def solve_case(lc, ctx: CaseContext, wing_force_N=None) -> CaseResult:
+def solve_case(lc, ctx: CaseContext, wing_force_N=None, *, name=None,
+               tail=None) -> CaseResult:
     """Trim one LoadCase and integrate its loads. Returns a CaseResult.
 
     wing_force_N: the wing's force from a pitch trim with a tail (N; None: lift_share x n W).
+    name: the result's name when not lc.name (one c.g. of a case trimmed in pitch).
+    tail: (tail_load_N, x_cg_m, lift_share) of a case trimmed in pitch with a tail, stored in
+    the result with the wing's normal force (both sides, :func:`side_loads.normal_force`).
     """
     case, grid = ctx.case, ctx.grid
-    trimmed = trim_case(lc, case, ctx.models, ctx.atmosphere, wing_force_N)
+    name = lc.name if name is None else name
+    trimmed = trim_case(lc, case, ctx.models, ctx.atmosphere, wing_force_N, name=name)
     applied = applied_loads(grid, trimmed, ctx.models.lattice.strip_width,
                             ctx.masses_for(lc.fuel_fraction), case.point_masses)
     loads = case_loads(grid, trimmed, applied, ctx.stations.semispan, case.ultimate_factor,
                        detail=ctx.detail)
-    return CaseResult(name=lc.name, v_eas=trimmed.v_eas, v_tas=trimmed.v_tas,
+    extra = {"lift_share": lc.lift_share}
+    if tail is not None:
+        extra = {"tail_load_N": tail[0], "x_cg_m": tail[1], "lift_share": tail[2],
+                 "wing_normal_force_N": symmetric_normal_force(loads, case.body_axis)}
+    return CaseResult(name=name, v_eas=trimmed.v_eas, v_tas=trimmed.v_tas,
                       altitude_m=lc.altitude_m, mach=trimmed.mach, q_pa=trimmed.q_pa,
                       load_factor=lc.load_factor, mass_kg=trimmed.mass_kg,
-                      lift_share=lc.lift_share, aero=trimmed.solution, loads=loads,
+                      aero=trimmed.solution, loads=loads,
                       stall_warning=trimmed.stall_warning,
                       residual=(float("nan") if loads.equilibrium is None
-                                else loads.equilibrium.residual))
+                                else loads.equilibrium.residual), **extra)
 
 
 def check_case_names(case_path, cases) -> None:

@@ -13,7 +13,7 @@ import numpy as np
 from geomload.config.schema import CATEGORIES, FlightEnvelopeSpec, LoadCase  # noqa: F401
 from geomload.errors import InputError
 
-from .beam import ultimate
+from .beam import ultimate  # noqa: F401  (the earlier import)
 from .records import (QUANTITIES, DesignSpeeds, Envelope, FlightPoint, GustPoint,  # noqa: F401
                       LoadsEnvelope, SpanLoads, VnDiagram)
 from .rules_part23 import (design_speeds, gust_alleviation, gust_load_factor,  # noqa: F401
@@ -33,6 +33,8 @@ def envelope_of(span_loads: Sequence[SpanLoads]) -> LoadsEnvelope:
         raise InputError("envelope_of: no load cases")
     y = span_loads[0].y
     for s in span_loads[1:]:
+        if s.y is y:  # the run's cases share the grid's array (finite: checked by SpanLoads)
+            continue
         if s.y.shape != y.shape or not np.allclose(s.y, y, rtol=0, atol=1e-9 * max(1.0, abs(y).max())):
             raise InputError(f"envelope_of: case {s.case!r} has a different station grid")
     names = tuple(s.case for s in span_loads)
@@ -41,7 +43,7 @@ def envelope_of(span_loads: Sequence[SpanLoads]) -> LoadsEnvelope:
                            "ultimate_min", "ultimate_max_case", "ultimate_min_case")}
     for q in QUANTITIES:
         lim = np.array([getattr(s, q) for s in span_loads])
-        ult = np.array([ultimate(s)[q] for s in span_loads])
+        ult = np.array([s.ultimate_factor * getattr(s, q) for s in span_loads])  # ultimate()
         for arr, mx, mn, cmx, cmn in ((lim, "maximum", "minimum", "max_case", "min_case"),
                                       (ult, "ultimate_max", "ultimate_min", "ultimate_max_case",
                                        "ultimate_min_case")):

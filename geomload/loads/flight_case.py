@@ -13,10 +13,12 @@ import math
 
 import numpy as np
 
-from .beam import integrate
-from .grid import strip_to_grid
-from .masses import inertia_loads
-from .schrenk_twist import schrenk_with_twist
+from geomload.units import G0
+
+from .beam import _trapz, integrate
+from .grid import _to_grid_rows, strip_to_grid  # noqa: F401  (strip_to_grid: the earlier import)
+from .masses import inertia_loads  # noqa: F401  (the earlier import)
+from .schrenk_twist import basic_loading_per_q, schrenk_with_twist
 from .records import (AppliedLoads, LoadGrid, MassDistribution, PointLoad, SpanLoads,
                       TrimState)
 
@@ -30,34 +32,57 @@ def applied_loads(grid: LoadGrid, trimmed, strip_width, masses: MassDistribution
     """
     sol, q = trimmed.solution, trimmed.q_pa
     y = grid.y
-    keep = np.asarray(sol.y) >= 0  # a full-span lattice: the starboard strips
-    ys, ws = np.asarray(sol.y)[keep], np.asarray(strip_width)[keep]
-    order = np.argsort(ys)
-    ys, ws = ys[order], ws[order]
+    idx, ys, ws, h = _starboard_strips(np.asarray(sol.y), np.asarray(strip_width), y)
 
     def pick(a):
-        return np.asarray(a)[keep][order]
+        return np.asarray(a)[idx]
 
     lift_s = pick(sol.lift_per_q) * q
     drag_s = pick(sol.drag_per_q) * q + trimmed.cd0 * q * pick(sol.chord)
     pitch_s = pick(sol.moment_per_q) * q
-    lift = strip_to_grid(y, ys, lift_s, ws)
-    drag = strip_to_grid(y, ys, drag_s, ws)
-    pitch = strip_to_grid(y, ys, pitch_s, ws)
-    inertia, point_loads = inertia_loads(masses, trimmed.load_factor, point_masses)
+    lift, drag, pitch = _to_grid_rows(y, h, ys, (lift_s, drag_s, pitch_s), ws)
+    # n g m'(y) and the point masses' weights: masses.inertia_loads' arithmetic, each PointLoad
+    # built once (with the tilted force) instead of twice
+    inertia = trimmed.load_factor * G0 * masses.kg_per_m
     # inertia along the load factor: normal to the longitudinal axis (body, 14 CFR 23.321(a)),
     # or opposite the lift (flight path)
     tilt = 0.0 if trimmed.body_axis else trimmed.alpha_deg
     ca, sa = math.cos(math.radians(tilt)), math.sin(math.radians(tilt))
-    point_loads = tuple(PointLoad(p.name, p.position,
-                                  np.array([-p.force[2] * sa, 0.0, p.force[2] * ca]))
-                        for p in point_loads)
+    point_loads = []
+    for p in tuple(point_masses) + tuple(masses.lumped):
+        fz = np.float64(-trimmed.load_factor * G0 * p.mass)
+        point_loads.append(PointLoad(p.name, np.asarray(p.position, float),
+                                     np.array([-fz * sa, 0.0, fz * ca])))
+    point_loads = tuple(point_loads)
     side = -lift * _slope(grid.load_z, y)
     return AppliedLoads(lift_N_per_m=lift, drag_N_per_m=drag, side_N_per_m=side,
                         pitch_Nm_per_m=pitch, load_x_m=grid.load_x, load_z_m=grid.load_z,
                         inertia_N_per_m=inertia, inertia_x_m=masses.x_m, inertia_z_m=masses.z_m,
                         point_loads=point_loads, alpha_deg=trimmed.alpha_deg,
                         inertia_alpha_deg=tilt)
+
+
+_STRIPS: dict = {}  # (strip y, strip width, grid y) bytes -> read-only pieces (one per lattice)
+_STRIPS_KEEP = 8
+
+
+def _starboard_strips(strip_y, strip_width, y) -> tuple:
+    """(index, y, width, diff(grid y)): the starboard strips of a lattice (a full-span lattice's
+    y >= 0) in increasing y, as an index into the strip arrays, computed once per lattice and
+    grid (every case of a run shares them; returned read-only)."""
+    key = (strip_y.tobytes(), strip_width.tobytes(), y.tobytes())
+    hit = _STRIPS.get(key)
+    if hit is None:
+        keep = strip_y >= 0
+        ys, ws = strip_y[keep], strip_width[keep]
+        order = np.argsort(ys)
+        hit = (np.flatnonzero(keep)[order], ys[order], ws[order], y[1:] - y[:-1])
+        for a in hit:
+            a.setflags(write=False)
+        if len(_STRIPS) >= _STRIPS_KEEP:
+            _STRIPS.clear()
+        _STRIPS[key] = hit
+    return hit
 
 
 _SLOPES: dict = {}  # (z, y) bytes -> read-only dz/dy: every case of a run shares one grid
@@ -84,6 +109,33 @@ def grid_twist_deg(grid: LoadGrid) -> np.ndarray:
     return np.degrees(np.arctan2(grid.le[:, 2] - grid.te[:, 2], grid.te[:, 0] - grid.le[:, 0]))
 
 
+_SCHRENK: dict = {}  # id(grid) -> (grid, semispan, chord area, ellipse shape, basic loading / q)
+_SCHRENK_KEEP = 8
+
+
+def _schrenk(grid: LoadGrid, semispan: float, half_lift: float, q_pa: float) -> np.ndarray:
+    """schrenk_with_twist(grid.y, grid.chord, semispan, half_lift, q_pa, grid_twist_deg(grid))
+    with the parts that depend on the grid alone (the chord area, the elliptic shape, the
+    basic loading per q) computed once per grid: the same arithmetic per case."""
+    hit = _SCHRENK.get(id(grid))
+    if hit is None or hit[0] is not grid or hit[1] != semispan:
+        y, c = grid.y, grid.chord
+        area = _trapz(y, c)
+        if area <= 0 or semispan <= 0:  # schrenk's own message
+            return schrenk_with_twist(y, c, semispan, half_lift, q_pa, grid_twist_deg(grid))
+        hit = (grid, semispan, area, np.sqrt(np.clip(1 - (y / semispan) ** 2, 0, None)),
+               basic_loading_per_q(y, c, grid_twist_deg(grid)))
+        if len(_SCHRENK) >= _SCHRENK_KEEP:
+            _SCHRENK.clear()
+        _SCHRENK[id(grid)] = hit
+    _g, _s, area, shape, basic = hit
+    # beam.schrenk: the mean of the planform and the elliptic distributions, then the basic
+    # loading (schrenk_twist.schrenk_with_twist)
+    planform = half_lift * grid.chord / area
+    ellipse = 4.0 * half_lift / (np.pi * semispan) * shape
+    return 0.5 * (planform + ellipse) + float(q_pa) * basic
+
+
 def case_loads(grid: LoadGrid, trimmed, applied: AppliedLoads, semispan: float,
                ultimate_factor: float, detail: bool = True) -> SpanLoads:
     """Integrate the applied loads of a TrimmedCase: SpanLoads with its trim state, the
@@ -94,15 +146,15 @@ def case_loads(grid: LoadGrid, trimmed, applied: AppliedLoads, semispan: float,
     record, Schrenk NaN): for runs whose loads only feed a comparison (the error estimate's
     coarser lattices), whose own lattice run carries both checks."""
     y, lift = grid.y, applied.lift_N_per_m
-    half_lift = float(np.sum(0.5 * (lift[1:] + lift[:-1]) * np.diff(y)))
+    half_lift = float((0.5 * (lift[1:] + lift[:-1]) * (y[1:] - y[:-1])).sum())
     trim = TrimState(CL_required=trimmed.CL_required, q_pa=trimmed.q_pa,
                      load_factor_axis="body" if trimmed.body_axis else "flight-path",
                      force_required_N=trimmed.force_required_N, lift_total_N=2.0 * half_lift,
                      mach_lattice=trimmed.mach_lattice)
     return integrate(y, grid.spar_x, grid.spar_z, applied, case=trimmed.name,
                      ultimate_factor=ultimate_factor,
-                     schrenk_lift_N_per_m=None if not detail else schrenk_with_twist(
-                         y, grid.chord, semispan, half_lift, trimmed.q_pa, grid_twist_deg(grid)),
+                     schrenk_lift_N_per_m=None if not detail else _schrenk(
+                         grid, semispan, half_lift, trimmed.q_pa),
                      trim=trim, chord_m=grid.chord,
                      output_rows=None if grid.output_rows.all() else grid.output_rows,
                      check_equilibrium=detail)

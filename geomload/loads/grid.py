@@ -85,17 +85,48 @@ def strip_to_grid(y_edges, y_strip, values, width, total=None, tip_zero=True):
     strip total. The correction is additive, in proportion to |value|, so a distribution whose net
     total is about zero (an n = 0 case: lift up inboard, down outboard) keeps its shape; for a
     one-signed distribution it is the same as scaling."""
+    y_edges = np.asarray(y_edges)
+    return _to_grid(y_edges, y_edges[1:] - y_edges[:-1], y_strip, values, width, total,
+                    tip_zero)
+
+
+def _to_grid(y_edges, h, y_strip, values, width, total=None, tip_zero=True):
+    """strip_to_grid with the grid's segment lengths h = diff(y_edges) given (a case moves
+    three series onto one grid)."""
     v = np.interp(y_edges, y_strip, values)
     if y_strip.size >= 2 and y_edges[0] < y_strip[0]:
         slope = (values[1] - values[0]) / (y_strip[1] - y_strip[0])
         v[0] = values[0] + slope * (y_edges[0] - y_strip[0])
     if tip_zero:
         v[-1] = 0.0
-    strip_total = float(np.sum(values * width)) if total is None else float(total)
-    h = np.diff(y_edges)
-    grid_total = float(np.sum(0.5 * (v[1:] + v[:-1]) * h))
+    strip_total = float(np.asarray(values * width).sum()) if total is None else float(total)
+    grid_total = float((0.5 * (v[1:] + v[:-1]) * h).sum())
     a = np.abs(v)
-    a_total = float(np.sum(0.5 * (a[1:] + a[:-1]) * h))
+    a_total = float((0.5 * (a[1:] + a[:-1]) * h).sum())
     if a_total > 0.0:
         v = v + (strip_total - grid_total) * a / a_total
     return v
+
+
+def _to_grid_rows(y_edges, h, y_strip, series, width) -> list:
+    """_to_grid (tip zero, the strip total) of several strip series on one grid: the same
+    arithmetic per series with the sums taken as the rows of one array (a row's sum is the
+    sum of that series alone)."""
+    k, n = len(series), y_edges.size
+    v = np.empty((k, n))
+    extrapolate = y_strip.size >= 2 and y_edges[0] < y_strip[0]
+    for i, values in enumerate(series):
+        v[i] = np.interp(y_edges, y_strip, values)
+        if extrapolate:
+            slope = (values[1] - values[0]) / (y_strip[1] - y_strip[0])
+            v[i, 0] = values[0] + slope * (y_edges[0] - y_strip[0])
+    v[:, -1] = 0.0
+    strip_total = (np.stack(series) * width).sum(axis=1)
+    grid_total = (0.5 * (v[:, 1:] + v[:, :-1]) * h).sum(axis=1)
+    a = np.abs(v)
+    a_total = (0.5 * (a[:, 1:] + a[:, :-1]) * h).sum(axis=1)
+    out = []
+    for i in range(k):
+        st, gt, at = float(strip_total[i]), float(grid_total[i]), float(a_total[i])
+        out.append(v[i] + (st - gt) * a[i] / at if at > 0.0 else v[i].copy())
+    return out

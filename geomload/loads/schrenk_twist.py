@@ -24,7 +24,7 @@ from geomload.errors import InputError
 
 
 def _trapz(y, f):
-    return float(np.sum(0.5 * (f[1:] + f[:-1]) * np.diff(y)))
+    return float((0.5 * (f[1:] + f[:-1]) * (y[1:] - y[:-1])).sum())  # np.diff's arithmetic
 
 
 def basic_loading_per_q(y, chord, twist_deg, a0_per_rad: float = 2.0 * math.pi) -> np.ndarray:

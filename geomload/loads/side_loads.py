@@ -17,7 +17,7 @@ from .records import SpanLoads, TrimState
 
 
 def _trapezoid(f, y) -> float:
-    return float(np.sum(0.5 * (f[1:] + f[:-1]) * np.diff(y)))
+    return float((0.5 * (f[1:] + f[:-1]) * (y[1:] - y[:-1])).sum())  # np.diff's arithmetic
 
 
 def normal_force(stb: SpanLoads, port: SpanLoads, body_axis: bool) -> float:
@@ -25,13 +25,27 @@ def normal_force(stb: SpanLoads, port: SpanLoads, body_axis: bool) -> float:
     side: lift cos a + drag sin a (body axis) or the lift (flight path)."""
     tot = 0.0
     for s in (stb, port):
-        a, y = s.applied, s.y
-        f = a.lift_N_per_m
-        if body_axis:
-            al = math.radians(a.alpha_deg)
-            f = f * math.cos(al) + a.drag_N_per_m * math.sin(al)
-        tot += _trapezoid(f, y)
+        tot += _side_normal_force(s, body_axis)
     return tot
+
+
+def symmetric_normal_force(loads: SpanLoads, body_axis: bool) -> float:
+    """normal_force(loads, loads, body_axis) of a symmetric case: the side's integral taken
+    once (the same sum, 0 + F + F)."""
+    f = _side_normal_force(loads, body_axis)
+    tot = 0.0
+    tot += f
+    tot += f
+    return tot
+
+
+def _side_normal_force(s: SpanLoads, body_axis: bool) -> float:
+    a, y = s.applied, s.y
+    f = a.lift_N_per_m
+    if body_axis:
+        al = math.radians(a.alpha_deg)
+        f = f * math.cos(al) + a.drag_N_per_m * math.sin(al)
+    return _trapezoid(f, y)
 
 
 def airload_rolling_moment(stb: SpanLoads, port: SpanLoads, lattice) -> float:

@@ -70,3 +70,24 @@ def test_bad_trim_inputs(wing):
     with pytest.raises(CaseError, match=r"^tail.x_ac_m: tail arm 0 m"):
         trim_pitch(wing.coefficients, lat.s_ref, lat.c_ref, lat.x_ref[0], 1.0, 1e4, 2e3,
                    x_le + 0.25 * lat.c_ref, tail)
+
+
+def test_fused_on_axis_coefficients_match_the_composition(wing):
+    """The model's one-function force coefficient on the body axis (what a pitch trim with
+    the body load-factor axis calls) equals the general composition of CL, Cm and the induced
+    drag form to the bit (the same arithmetic; both are this program's, so the check is of
+    one against the other: common practice, no source)."""
+    from geomload.aero.control_models import axis_coefficients
+
+    form, cd0 = (0.011, -0.004, 0.052), 0.027
+    fused = axis_coefficients(wing.coefficients, form, cd0)
+    general = axis_coefficients(lambda a: wing.coefficients(a), form, cd0)
+    assert "AeroModel.axis_coefficients" in fused.__qualname__  # the fused path is taken
+    assert "AeroModel" not in general.__qualname__
+    for a in (-12.0, -3.3, 0.0, 1e-9, 4.7, 11.25, 17.0):
+        assert fused(a) == general(a)
+    lat = wing.lattice
+    tail = Tailplane(area_m2=3.2, x_ac_m=lat.x_ref[0] + 5.0)
+    trims = [trim_pitch(c, lat.s_ref, lat.c_ref, lat.x_ref[0], 3.8, 11000.0, 2400.0,
+                        lat.x_ref[0], tail, cm0_fuselage=-0.02) for c in (fused, general)]
+    assert trims[0] == trims[1]
