@@ -59,8 +59,10 @@ def _write_set(od):
 def test_staged_files_equal_the_checked_path_and_leak_nothing(tmp_path, project, fast,
                                                               monkeypatch):
     if not fast:  # a system without renameat2/syncfs: every file through the checked path
-        monkeypatch.setattr(atomic, "_LIBC", [None])
-        monkeypatch.setattr(atomic, "_SYNCFS_OK", [False])
+        from geomload.export import atomic_staged
+
+        monkeypatch.setattr(atomic_staged, "_LIBC", [None])
+        monkeypatch.setattr(atomic_staged, "_SYNCFS_OK", [False])
     before = _fds()
     with OutputDir(tmp_path / "run", inputs=[project / "case.toml"]) as od:
         with atomic.sync_at_end(od.staging):
