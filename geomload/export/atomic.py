@@ -30,6 +30,7 @@ import os
 from pathlib import Path
 
 from geomload import textsafe
+from geomload.errors import OutputError
 from geomload.export.atomic_checks import (  # noqa: F401 - re-exported
     _STAGING, _TEMP_FLAGS, _TEMP_SEQUENCE, _UMASK, ResolvedInputs, _abs, _cause, _check_target,
     _ident, _new_temp, _not_input, _real, _real_str, _resolved, _under, check_not_input,
@@ -139,7 +140,8 @@ def sync_at_end(folder):
                 import ctypes
 
                 e = ctypes.get_errno()
-                raise write_error(os.path.join(f, "*"), OSError(e, os.strerror(e)))
+                raise OutputError(f"{shown(f)}: cannot write the run's files to disk "
+                                  f"({os.strerror(e)})")
             files = []  # flushed, every one
     finally:
         _SYNC_AT_END.pop(f, None)
