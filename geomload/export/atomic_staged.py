@@ -109,7 +109,7 @@ def _staged_fd(final: str, inputs, dfd: int, name: str):
         finally:
             os.close(fd)
         lib = _libc()
-        moved = lib is not None and lib.renameat2(dfd, tname.encode(), dfd, name.encode(),
+        moved = lib is not None and lib.renameat2(dfd, os.fsencode(tname), dfd, os.fsencode(name),
                                                   _RENAME_NOREPLACE) == 0
         if not moved:  # the name is taken, or no RENAME_NOREPLACE here: check, then rename
             _check_target(final, ResolvedInputs(inputs), final)

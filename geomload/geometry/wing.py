@@ -55,7 +55,11 @@ def _with_soup(wing, soup):
         return wing
     import dataclasses
 
-    return dataclasses.replace(wing, display_soup=(soup.target, *soup.result()))
+    try:
+        built = soup.result()
+    except Exception:  # noqa: BLE001 - the export builds the display surface itself (and says
+        return wing    # why there if it fails again): the geometry stage does not need it
+    return dataclasses.replace(wing, display_soup=(soup.target, *built))
 
 
 def _read_mesh_wing(mesh, body, span_axis, up_axis, n_stations, spacing, progress, side):
