@@ -187,22 +187,16 @@ def index_html(variants, outcomes, keys, plots: dict, with_source: bool) -> str:
 
 def flush_to_disk(folder) -> None:
     """Everything written under `folder` reaches the disk before the batch folder is moved into
-    place: one flush of its file system (Linux syncfs; os.sync elsewhere) instead of one fsync per
-    file (a sweep writes thousands; each forces a journal commit). The guarantee is the same: no
-    renamed-in folder with files still only in memory after a power loss."""
-    import ctypes
+    place: one syncfs(2) of its file system where that reports every write-back error (Linux
+    5.8 or later on a local file system, `atomic_staged.syncfs_reports_errors`), else one fsync
+    per file and folder below it (a sweep writes thousands; a flush per file as it is written
+    would force a journal commit each). The guarantee is the same: no renamed-in folder with
+    files still only in memory after a power loss. A failure (EIO, a full disk found at
+    write-back) raises an OutputError naming the folder or file; the batch folder is then not
+    committed."""
+    from geomload.export.atomic_staged import flush_folder
 
-    fd = os.open(folder, os.O_RDONLY)
-    try:
-        syncfs = getattr(ctypes.CDLL(None, use_errno=True), "syncfs", None)
-        if syncfs is not None and syncfs(fd) == 0:
-            return
-    except (OSError, TypeError):  # no C library to load (not a POSIX system)
-        pass
-    finally:
-        os.close(fd)
-    if hasattr(os, "sync"):
-        os.sync()
+    flush_folder(folder)
 
 
 def write_batch_folder(od, variants, outcomes, keys, with_source: bool) -> list:

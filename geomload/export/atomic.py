@@ -36,7 +36,8 @@ from geomload.export.atomic_checks import (  # noqa: F401 - re-exported
     _ident, _new_temp, _not_input, _real, _real_str, _resolved, _under, check_not_input,
     check_target, shown, write_error)
 from geomload.export.atomic_staged import (  # noqa: F401 - re-exported
-    _DIR_FLAGS, _STAGED_DIRS, _libc, _staged_fd, _staged_parent, _syncfs_reports_errors)
+    _DIR_FLAGS, _STAGED_DIRS, _staged_fd, _staged_parent, fsync_ours, syncfs,
+    syncfs_reports_errors)
 
 
 @contextlib.contextmanager
@@ -91,7 +92,8 @@ def atomic_path(path, inputs=()):
         yield Path(tmp)
 
 
-_SYNC_AT_END: dict = {}  # folder (str) -> files written below it whose fsync waits (sync_at_end)
+_SYNC_AT_END: dict = {}  # folder (str) -> [(file, (st_dev, st_ino))] written below it whose
+#                         fsync waits (sync_at_end)
 
 
 def _staged(folder: str) -> bool:
@@ -115,11 +117,14 @@ def sync_at_end(folder):
     output is visible under its final name until the staging folder is moved into place, which
     happens after this pass, so a file only needs to be on disk by then, not at its own rename.
     One pass is cheaper than an fsync per file: the file system commits its journal once for
-    many files instead of once per file. On Linux 5.8 or later the pass is one syncfs(2) of
-    the folder's file system, which reports any write-back error since the block began (an
-    fsync per file costs about ten times more for a few thousand files); elsewhere one fsync
-    per file. A failed pass (EIO, a full disk found at write-back) raises an OutputError naming
-    the file (or, for syncfs, the folder), and the run folder is not committed. Inside the
+    many files instead of once per file. On Linux 5.8 or later, on a local file system whose
+    syncfs(2) reports its write-back errors (`atomic_staged.syncfs_reports_errors`), the pass is
+    one syncfs of the folder's file system, which reports any write-back error since the block
+    began (an fsync per file costs about ten times more for a few thousand files); elsewhere
+    one fsync per file, of the very file written only (a name that holds anything else, a FIFO
+    say, is left alone and never blocks the pass). A failed pass (EIO, a full disk found at
+    write-back) raises an OutputError naming the file (or, for syncfs, the folder), and the
+    run folder is not committed. Inside the
     block the files are written through folder descriptors (see `_staged_fd`). In any other
     folder the block changes nothing (each file is flushed before its rename, as always).
     """
@@ -135,26 +140,19 @@ def sync_at_end(folder):
         _STAGED_DIRS[f] = {f: root}
     try:
         yield
-        if root is not None and _syncfs_reports_errors():
-            if _libc().syncfs(root) != 0:
-                import ctypes
-
-                e = ctypes.get_errno()
-                raise OutputError(f"{shown(f)}: cannot write the run's files to disk "
-                                  f"({os.strerror(e)})")
+        if root is not None and syncfs_reports_errors(root):
+            syncfs(root, f)
             files = []  # flushed, every one
     finally:
         _SYNC_AT_END.pop(f, None)
         for fd in _STAGED_DIRS.pop(f, {}).values():
             with contextlib.suppress(OSError):
                 os.close(fd)
-    for path in files:  # only reached when the block succeeded
+    for path, ident in files:  # only reached when the block succeeded
         try:
-            fd = os.open(path, os.O_RDONLY)
-            try:
-                os.fsync(fd)
-            finally:
-                os.close(fd)
+            fsync_ours(path, ident)
+        except FileNotFoundError:
+            continue  # its write failed and said so (the rename raised): nothing of ours there
         except OSError as exc:
             raise write_error(path, exc) from None
 
@@ -167,7 +165,8 @@ def flush_to_disk(fh, final) -> None:
     if pending is None:
         os.fsync(fh.fileno())
     else:
-        pending.append(str(final))
+        st = os.fstat(fh.fileno())
+        pending.append((str(final), (st.st_dev, st.st_ino)))
 
 
 def write_bytes_atomic(path, data: bytes, inputs=(), fsync: bool = True) -> Path:
@@ -189,7 +188,8 @@ def write_bytes_atomic(path, data: bytes, inputs=(), fsync: bool = True) -> Path
             if pending is None:
                 os.fsync(fd)
             else:
-                pending.append(final)
+                st = os.fstat(fd)
+                pending.append((final, (st.st_dev, st.st_ino)))
     return Path(final)
 
 

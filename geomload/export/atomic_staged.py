@@ -32,16 +32,25 @@ _LIBC: list = []  # [libc or None], loaded on first use
 
 
 def _libc():
-    """The C library (ctypes) when it has renameat2 and syncfs (Linux), else None."""
+    """The C library (ctypes) when it has renameat2, syncfs and fstatfs (Linux), else None. Each
+    function's argument and result types are declared (no guessing by ctypes)."""
     if not _LIBC:
         lib = None
         try:
             import ctypes
 
-            lib = ctypes.CDLL(None, use_errno=True)
-            if not (hasattr(lib, "renameat2") and hasattr(lib, "syncfs")):
+            lib = ctypes.CDLL(None, use_errno=True)  # TypeError on Windows (no default library)
+            if not all(hasattr(lib, f) for f in ("renameat2", "syncfs", "fstatfs")):
                 lib = None
-        except (OSError, ImportError, AttributeError):
+            else:
+                c = ctypes
+                lib.renameat2.argtypes = [c.c_int, c.c_char_p, c.c_int, c.c_char_p, c.c_uint]
+                lib.renameat2.restype = c.c_int
+                lib.syncfs.argtypes = [c.c_int]
+                lib.syncfs.restype = c.c_int
+                lib.fstatfs.argtypes = [c.c_int, c.c_void_p]
+                lib.fstatfs.restype = c.c_int
+        except (OSError, ImportError, AttributeError, TypeError):
             lib = None
         _LIBC.append(lib)
     return _LIBC[0]
@@ -136,11 +145,23 @@ def _new_temp_at(dfd: int, parent: str, prefix: str, suffix: str) -> tuple:
 
 
 _SYNCFS_OK: list = []
+# File systems whose syncfs(2) returns the write-back errors of their own files (errseq on the
+# superblock, Linux 5.8 and later; statfs(2) f_type magic numbers from linux/magic.h): local
+# block file systems, and tmpfs, which has no write-back to fail. Stacked and network file
+# systems (overlayfs, FUSE, NFS, ...) may not pass their lower layer's errors up to syncfs:
+# there the flush is one fsync per file, whose errors every file system reports.
+_SYNCFS_TYPES = frozenset({
+    0xEF53,      # ext2, ext3, ext4
+    0x58465342,  # xfs
+    0x9123683E,  # btrfs
+    0xF2F52010,  # f2fs
+    0x01021994,  # tmpfs
+})
 
 
-def _syncfs_reports_errors() -> bool:
+def _kernel_reports_syncfs_errors() -> bool:
     """True where syncfs(2) exists and returns write-back errors (Linux 5.8 and later: before,
-    it returned 0 whatever happened, so the pass fsyncs each file instead)."""
+    it returned 0 whatever happened)."""
     if not _SYNCFS_OK:
         ok = False
         if _libc() is not None:
@@ -153,3 +174,85 @@ def _syncfs_reports_errors() -> bool:
                 ok = False
         _SYNCFS_OK.append(ok)
     return _SYNCFS_OK[0]
+
+
+def fs_type(fd: int):
+    """The statfs(2) f_type of the file system holding the open descriptor `fd`, or None where
+    it cannot be read."""
+    lib = _libc()
+    if lib is None:
+        return None
+    import ctypes
+
+    buf = ctypes.create_string_buffer(512)  # struct statfs: 120 bytes on 64-bit Linux
+    if lib.fstatfs(fd, buf) != 0:
+        return None
+    return ctypes.c_long.from_buffer(buf).value & 0xFFFFFFFF  # f_type: the first member
+
+
+def syncfs_reports_errors(fd: int) -> bool:
+    """True when one syncfs(2) of the file system holding `fd` reports every write-back error of
+    the files written there since `fd` was opened: Linux 5.8 or later and a file system of
+    `_SYNCFS_TYPES`. Elsewhere a flush is one fsync per file."""
+    return _kernel_reports_syncfs_errors() and fs_type(fd) in _SYNCFS_TYPES
+
+
+def syncfs(fd: int, folder: str) -> None:
+    """syncfs(2) of the file system holding `fd` (open on `folder`); a failure raises an
+    OutputError naming the folder (call only where `syncfs_reports_errors(fd)`)."""
+    import ctypes
+
+    if _libc().syncfs(fd) != 0:
+        e = ctypes.get_errno()
+        raise OutputError(f"{shown(folder)}: cannot write the run's files to disk "
+                          f"({os.strerror(e)})")
+
+
+def fsync_ours(path: str, ident=None) -> None:
+    """fsync the file at `path`, opened without following a link and without blocking (a FIFO
+    or device put there by someone else never hangs the flush); only a regular file, and, with
+    ident=(st_dev, st_ino), only the very file that was written (anything else at that name is
+    not ours and is left alone). An OSError is the caller's to report."""
+    fd = os.open(path, os.O_RDONLY | getattr(os, "O_NOFOLLOW", 0) | getattr(os, "O_NONBLOCK", 0)
+                 | getattr(os, "O_CLOEXEC", 0))
+    try:
+        st = os.fstat(fd)
+        if not stat.S_ISREG(st.st_mode):
+            return
+        if ident is not None and (st.st_dev, st.st_ino) != tuple(ident):
+            return
+        os.fsync(fd)
+    finally:
+        os.close(fd)
+
+
+def flush_folder(folder) -> None:
+    """Every file and folder below `folder` to disk: one syncfs(2) where that reports every
+    write-back error (`syncfs_reports_errors`), else one fsync per file and folder (regular
+    files only, links not followed). A failure raises an OutputError naming the folder or file."""
+    folder = str(folder)
+    try:
+        fd = os.open(folder, _DIR_FLAGS)
+    except OSError as exc:
+        raise write_error(folder, exc) from None
+    try:
+        if syncfs_reports_errors(fd):
+            syncfs(fd, folder)
+            return
+    finally:
+        os.close(fd)
+    for here, _dirs, names in os.walk(folder):  # os.walk does not follow links to folders
+        for name in names:
+            path = os.path.join(here, name)
+            try:
+                fsync_ours(path)
+            except OSError as exc:
+                raise write_error(path, exc) from None
+        try:
+            dfd = os.open(here, _DIR_FLAGS)
+            try:
+                os.fsync(dfd)
+            finally:
+                os.close(dfd)
+        except OSError as exc:
+            raise write_error(here, exc) from None

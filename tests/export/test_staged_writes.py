@@ -68,7 +68,7 @@ def test_staged_files_equal_the_checked_path_and_leak_nothing(tmp_path, project,
         with atomic.sync_at_end(od.staging):
             _write_set(od)
             assert len(atomic._STAGED_DIRS) == 1
-            assert sorted(Path(p).name for p in atomic._SYNC_AT_END[str(od.staging)]) == [
+            assert sorted(Path(p).name for p, _ident in atomic._SYNC_AT_END[str(od.staging)]) == [
                 "a.csv", "b.csv", "c.vtp", "deck one.inp"]
         assert atomic._STAGED_DIRS == {} and atomic._SYNC_AT_END == {}
     assert _fds() == before
@@ -135,3 +135,105 @@ def test_full_disk_inside_the_block_fails_with_one_line_and_leaves_nothing(small
     msg = str(e.value)
     assert "\n" not in msg and str(out) in msg and "No space left on device" in msg
     assert os.listdir(disk) == [] and atomic._STAGED_DIRS == {}
+
+
+@pytest.fixture()
+def per_file_flush(monkeypatch):
+    """The flush pass as on a system where syncfs does not report write-back errors (a kernel
+    before 5.8, a stacked or network file system): one fsync per file."""
+    from geomload.export import atomic_staged
+
+    monkeypatch.setattr(atomic_staged, "_SYNCFS_OK", [False])
+
+
+def _bounded(seconds: int):
+    """A SIGALRM after `seconds`: a call that would block for ever fails the test instead."""
+    import signal
+
+    def boom(*_):
+        raise TimeoutError("blocked")
+
+    old = signal.signal(signal.SIGALRM, boom)
+    signal.alarm(seconds)
+    return lambda: (signal.alarm(0), signal.signal(signal.SIGALRM, old))
+
+
+def test_a_refused_fifo_target_never_hangs_the_per_file_flush(tmp_path, project,
+                                                              per_file_flush):
+    # open(2) of a FIFO for reading blocks until a writer comes, unless O_NONBLOCK (fifo(7),
+    # open(2) man pages): the pass must not open a name whose write was refused like that
+    done = _bounded(10)
+    try:
+        with OutputDir(tmp_path / "run", inputs=[project / "case.toml"]) as od:
+            with atomic.sync_at_end(od.staging):
+                write_text_atomic(od.staging / "a.csv", "a\n", [])
+                os.mkfifo(od.staging / "pipe.csv")
+                with pytest.raises(OutputError, match="FIFO"):
+                    write_text_atomic(od.staging / "pipe.csv", "never\n", [])
+                os.unlink(od.staging / "pipe.csv")  # the caller cleans up, and goes on
+    finally:
+        done()
+    assert (tmp_path / "run" / "a.csv").read_text() == "a\n"
+    assert not (tmp_path / "run" / "pipe.csv").exists()
+
+
+def test_the_per_file_flush_leaves_alone_what_is_not_the_file_written(tmp_path,
+                                                                     per_file_flush):
+    from geomload.export.atomic_staged import fsync_ours
+
+    done = _bounded(10)
+    try:
+        fifo = tmp_path / "fifo"
+        os.mkfifo(fifo)
+        fsync_ours(str(fifo))  # not a regular file: returned at once, nothing opened to wait
+        f = tmp_path / "f.csv"
+        f.write_text("x\n")
+        st = os.stat(f)
+        fsync_ours(str(f), (st.st_dev, st.st_ino))  # the very file: flushed without error
+        fsync_ours(str(f), (st.st_dev, st.st_ino + 1))  # another inode: left alone
+        link = tmp_path / "link.csv"
+        link.symlink_to(f)
+        with pytest.raises(OSError):  # a link at the name is not followed (O_NOFOLLOW)
+            fsync_ours(str(link))
+    finally:
+        done()
+
+
+def test_syncfs_is_trusted_only_on_a_local_file_system_it_reports_for(tmp_path):
+    # statfs(2) f_type against GNU coreutils' `stat -f -c %t` (hex magic), an outside reader of
+    # the same call; the magic numbers are those of linux/magic.h
+    import shutil
+    import subprocess
+
+    from geomload.export import atomic_staged as st
+
+    if st._libc() is None or shutil.which("stat") is None:
+        pytest.skip("no fstatfs or no stat(1) here")
+    fd = os.open(tmp_path, os.O_RDONLY)
+    try:
+        got = st.fs_type(fd)
+        ref = int(subprocess.run(["stat", "-f", "-c", "%t", str(tmp_path)], check=True,
+                                 capture_output=True, text=True).stdout.strip(), 16)
+        assert got == ref
+        assert st.syncfs_reports_errors(fd) == (st._kernel_reports_syncfs_errors()
+                                                and ref in st._SYNCFS_TYPES)
+    finally:
+        os.close(fd)
+    assert 0x794C7630 not in st._SYNCFS_TYPES  # overlayfs (linux/magic.h OVERLAYFS_SUPER_MAGIC)
+
+
+def test_a_batch_folder_flush_per_file_skips_fifos_and_links(tmp_path, per_file_flush):
+    from geomload.batch.assemble import flush_to_disk
+
+    (tmp_path / "b" / "runs" / "v1").mkdir(parents=True)
+    (tmp_path / "b" / "runs" / "v1" / "loads.csv").write_text("1\n")
+    os.mkfifo(tmp_path / "b" / "runs" / "pipe")
+    (tmp_path / "outside").mkdir()
+    (tmp_path / "b" / "to_outside").symlink_to(tmp_path / "outside")
+    done = _bounded(10)
+    try:
+        flush_to_disk(tmp_path / "b")  # returns: the FIFO not waited on, the link not followed
+    finally:
+        done()
+    with pytest.raises(OutputError, match="cannot write"):
+        flush_to_disk(tmp_path / "missing")
