@@ -27,6 +27,7 @@ from geomload import CAUTION
 from geomload.errors import InputError
 from geomload.export.atomic import atomic_path, write_text_atomic
 from geomload.geometry.airfoil import naca4_thickness
+from geomload.loads.envelope import governing_rows
 
 DEPTH_FACTOR = 0.9  # h_eff / h: cap centroids inside the outer mould line (common practice,
                     # no source; the user can change it)
@@ -122,8 +123,8 @@ def size_spar(y, chord, spar_depth_m, front_depth_m, rear_depth_m, front_fractio
     out = {}
     for col in ("bending_Nm", "shear_N", "torsion_Nm"):
         table = np.array([ult(L, col) for L in loads_list])
-        k = np.argmax(table, axis=0)
-        out[col] = (table[k, np.arange(y.size)], tuple(names[i] for i in k))
+        k = governing_rows(table)  # ties to round-off: the first case (loads.envelope)
+        out[col] = (table.max(axis=0), tuple(names[i] for i in k))
     M, V, T = out["bending_Nm"][0], out["shear_N"][0], out["torsion_Nm"][0]
     return Sizing(y_m=y, chord_m=arr["chord"], spar_depth_m=h, box_width_m=width,
                   box_area_m2=area, bending_ult_Nm=M, shear_ult_N=V, torsion_ult_Nm=T,

@@ -23,11 +23,28 @@ from .vn import critical_points, points_to_load_cases, vn_diagram  # noqa: F401
 
 EnvelopeSpec = FlightEnvelopeSpec  # the earlier name
 
+# Two cases whose values at a station differ by less than this fraction of the quantity's
+# largest magnitude are a tie for the name of the governing case: well above the round-off of
+# the lattice solve and the beam's sums (1e-15 to 1e-12 relative), well below any difference
+# the loads tables print (ten significant digits) or an analyst could act on.
+TIE_RTOL = 1e-9
+
+
+def governing_rows(table: np.ndarray) -> np.ndarray:
+    """For each column of `table` (cases x stations), the row of the first case whose value lies
+    within round-off of the column's maximum (TIE_RTOL x the table's largest magnitude): the
+    governing case, the same whatever the round-off of a tie."""
+    tol = TIE_RTOL * float(np.abs(table).max(initial=0.0))
+    return np.argmax(table >= table.max(axis=0) - tol, axis=0)  # argmax of bools: first True
+
 
 def envelope_of(span_loads: Sequence[SpanLoads]) -> LoadsEnvelope:
     """Station-wise maximum and minimum of every quantity over the cases, with the case that
     governs each; ultimate extremes from each case's own ultimate_factor. All cases must share
-    the station grid. Ties go to the first case in the list."""
+    the station grid. The value is the exact extreme; the case named is the first in the list
+    whose value lies within round-off of it (TIE_RTOL x the quantity's largest magnitude over
+    every case and station), so two cases equal in exact arithmetic (a left and a right roll,
+    the same point reached twice) name the same case whatever the round-off of one run."""
     span_loads = list(span_loads)
     if not span_loads:
         raise InputError("envelope_of: no load cases")
@@ -47,10 +64,9 @@ def envelope_of(span_loads: Sequence[SpanLoads]) -> LoadsEnvelope:
         for arr, mx, mn, cmx, cmn in ((lim, "maximum", "minimum", "max_case", "min_case"),
                                       (ult, "ultimate_max", "ultimate_min", "ultimate_max_case",
                                        "ultimate_min_case")):
-            imax, imin = np.argmax(arr, axis=0), np.argmin(arr, axis=0)
-            res[mx][q], res[mn][q] = arr[imax, cols], arr[imin, cols]
-            res[cmx][q] = tuple(names[i] for i in imax)
-            res[cmn][q] = tuple(names[i] for i in imin)
+            res[mx][q], res[mn][q] = arr.max(axis=0), arr.min(axis=0)
+            res[cmx][q] = tuple(names[i] for i in governing_rows(arr))
+            res[cmn][q] = tuple(names[i] for i in governing_rows(-arr))
     rows = span_loads[0].output_rows
     return LoadsEnvelope(y=y.copy(), cases=names, output_rows=rows, **res)
 
