@@ -112,6 +112,14 @@ COMPACT_VELOCITY_MIN = 1000  # horseshoes from which `velocity` sums the bound v
 # measured at 3000 horseshoes and 7 circulations: 1.1 -> 0.87 s CPU for a control model's pass.
 
 
+QUADRATIC_C2_MIN = 1000  # horseshoes from which `_common` finds c2 = |r0 x (P - A)|^2 +
+# |r0|^2 core^2 as one matrix product [P P^T terms, P, 1] @ c2_op (a quadratic form in P, 10 terms)
+# instead of four passes over the (rows x horseshoes) arrays (|P - A|^2 |r0|^2 - t^2 + ...):
+# the same value, other round-off (1e-16 of |r0|^2 |P|^2, the cancellation of either form), so
+# smaller sets (the sample's 400 and 800 horseshoes) keep the four passes and their results to
+# the bit. Measured at 3000 horseshoes: c2 4.9 -> 0.7 ns per pair (one thread).
+
+
 BLAS_LIMIT_PAIRS = 0  # point-horseshoe pairs from which the BLAS threads are limited to one
 # while the chunks run (0: always): the chunks' matrix products are thin (inner dimension 3-5)
 # and run on this module's own threads, so BLAS threads only compete with them (measured at
@@ -190,6 +198,19 @@ class HorseshoeSet:
         # the same as sums over horseshoes of k g r0 and k g (r0 x A) (`_vel_chunk`)
         self._vel_ops6 = np.hstack([r0, self.r0xa])  # (n, 6)
         self._proj_op = np.vstack([np.ones(len(qf)), qf[:, 2], qf[:, 1]]) / FOUR_PI
+        self._c2_op = self._quadratic_c2_op(r0, a, r0sq) if len(r0sq) >= QUADRATIC_C2_MIN else None
+
+    def _quadratic_c2_op(self, r0, a, r0sq):
+        """(10, n) operator of c2 = |r0 x (P - A)|^2 + |r0|^2 core^2 as a quadratic form in P:
+        with M = |r0|^2 I - r0 r0^T, |r0 x u|^2 = u^T M u (Lagrange's identity), so for u = P - A
+        c2 = P^T M P - 2 (M A) . P + A^T M A + |r0|^2 core^2, i.e.
+        [Px^2, Py^2, Pz^2, Px Py, Px Pz, Py Pz, Px, Py, Pz, 1] @ op."""
+        M = r0sq[:, None, None] * np.eye(3) - r0[:, :, None] * r0[:, None, :]  # (n, 3, 3)
+        Ma = np.einsum("nij,nj->ni", M, a)
+        rxa = np.cross(r0, a)
+        return np.vstack([M[:, 0, 0], M[:, 1, 1], M[:, 2, 2], 2.0 * M[:, 0, 1],
+                          2.0 * M[:, 0, 2], 2.0 * M[:, 1, 2], -2.0 * Ma.T,
+                          np.einsum("ij,ij->i", rxa, rxa) + r0sq * self.core2])
 
     @property
     def n(self) -> int:
@@ -213,9 +234,14 @@ class HorseshoeSet:
         r3, d3 = r.reshape(shape), dsq.reshape(shape)
         t = np.matmul(np.hstack([p, one]), self.t_op, out=ws.get("t", m, n)).reshape(m, ns, nc)
         r0sq = self.r0sq.reshape(ns, nc)
-        c2 = np.multiply(d3[:, :-1], r0sq, out=ws.get("c2", m, n).reshape(m, ns, nc))
-        c2 -= np.multiply(t, t, out=ws.get("c", m, n).reshape(m, ns, nc))
-        c2 += self.r0sq_core.reshape(ns, nc)
+        if self._c2_op is None:
+            c2 = np.multiply(d3[:, :-1], r0sq, out=ws.get("c2", m, n).reshape(m, ns, nc))
+            c2 -= np.multiply(t, t, out=ws.get("c", m, n).reshape(m, ns, nc))
+            c2 += self.r0sq_core.reshape(ns, nc)
+        else:
+            px, py, pz = p[:, 0:1], p[:, 1:2], p[:, 2:3]
+            quad = np.hstack([p * p, px * py, px * pz, py * pz, p, one])
+            c2 = np.matmul(quad, self._c2_op, out=ws.get("c2", m, n)).reshape(m, ns, nc)
         k = ws.get("k", m, n) if k_out is None else k_out
         k3 = np.divide(t, r3[:, :-1], out=k.reshape(m, ns, nc))
         t -= r0sq
