@@ -44,8 +44,10 @@ def test_semi_infinite_leg_is_half_a_line_at_its_start():
 def test_fast_kernels_match_direct_formula(mirror, beta, compact, monkeypatch):
     # internal consistency (no outside source): the fast kernels against the direct
     # Biot-Savart block, which the closed-form tests above check against Katz & Plotkin;
-    # compact: the velocity's bound-vortex sums in the form used from COMPACT_VELOCITY_MIN
+    # compact: the velocity's bound-vortex sums in the form used from COMPACT_VELOCITY_MIN,
+    # and c2 as the quadratic form used from QUADRATIC_C2_MIN (both: the large lattices' path)
     monkeypatch.setattr(vortex, "COMPACT_VELOCITY_MIN", 0 if compact else 10 ** 9)
+    monkeypatch.setattr(vortex, "QUADRATIC_C2_MIN", 0 if compact else 10 ** 9)
     st = trapezoid(5.0, 0.5, 35.0, camber="2412", dihedral_deg=7.0, twist_tip_deg=-4.0)
     lat = build_lattice(st, n_span=5, n_chord=3)
     ns, nc = lat.n_span, lat.n_chord
