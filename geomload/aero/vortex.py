@@ -117,7 +117,7 @@ QUADRATIC_C2_MIN = 1000  # horseshoes from which `_common` finds c2 = |r0 x (P -
 # instead of four passes over the (rows x horseshoes) arrays (|P - A|^2 |r0|^2 - t^2 + ...):
 # the same value, other round-off (1e-16 of |r0|^2 |P|^2, the cancellation of either form), so
 # smaller sets (the sample's 400 and 800 horseshoes) keep the four passes and their results to
-# the bit. Measured at 3000 horseshoes: c2 4.9 -> 0.7 ns per pair (one thread).
+# the bit. Measured at 3000 horseshoes: c2 about 5 -> 0.7 ns per pair (one thread).
 
 
 BLAS_LIMIT_PAIRS = 0  # point-horseshoe pairs from which the BLAS threads are limited to one
