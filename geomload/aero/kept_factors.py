@@ -59,6 +59,20 @@ def _one_blas_thread():
     return contextlib.nullcontext() if c is None else c.limit(limits=1, user_api="blas")
 
 
+def _lu_factor_quiet(a):
+    """(lu, piv) of a (F-ordered, finite), factorised in its own memory: LAPACK getrf, the
+    routine scipy.linalg.lu_factor calls, the same factors to the bit. An exactly singular
+    matrix (getrf's info > 0: a zero pivot) is left to the caller's pivot check, without
+    lu_factor's LinAlgWarning (printed on stderr by default, before the caller's own error)."""
+    from scipy.linalg import get_lapack_funcs
+
+    getrf, = get_lapack_funcs(("getrf",), (a,))
+    lu, piv, info = getrf(a, overwrite_a=True)
+    if info < 0:  # an argument LAPACK refused: a programming error, not the input's
+        raise ValueError(f"getrf: illegal value in argument {-info}")
+    return lu, piv
+
+
 class KeptFactors:
     """LU factors of the first system solved in each slot (e.g. 0 and 1 for the two half
     systems of a mirror-symmetric lattice), reused for the later systems of the same slot.
@@ -76,7 +90,7 @@ class KeptFactors:
         (kept for the slot). A: finite, C-ordered (N, N); when it is factorised its memory
         becomes the kept factors (A is overwritten: no copy of N^2 values). Raises
         numpy.linalg.LinAlgError when A is singular."""
-        from scipy.linalg import lu_factor, lu_solve
+        from scipy.linalg import lu_solve
 
         with _one_blas_thread():
             lu = self._lu.get(slot)
@@ -87,7 +101,7 @@ class KeptFactors:
                     return x
             # A^T is A's memory in Fortran order: LAPACK factorises it in place, and A x = b
             # is then solved as (A^T)^T x = b (trans=1)
-            lu = lu_factor(A.T, overwrite_a=True, check_finite=False)
+            lu = _lu_factor_quiet(A.T)
             if not np.all(np.isfinite(lu[0])) or np.any(np.diagonal(lu[0]) == 0.0):
                 raise np.linalg.LinAlgError("singular matrix")
             self._lu[slot] = lu

@@ -112,6 +112,14 @@ COMPACT_VELOCITY_MIN = 1000  # horseshoes from which `velocity` sums the bound v
 # measured at 3000 horseshoes and 7 circulations: 1.1 -> 0.87 s CPU for a control model's pass.
 
 
+QUADRATIC_C2_MIN = 1000  # horseshoes from which `_common` finds c2 = |r0 x (P - A)|^2 +
+# |r0|^2 core^2 as one matrix product [P P^T terms, P, 1] @ c2_op (a quadratic form in P, 10 terms)
+# instead of four passes over the (rows x horseshoes) arrays (|P - A|^2 |r0|^2 - t^2 + ...):
+# the same value, other round-off (1e-16 of |r0|^2 |P|^2, the cancellation of either form), so
+# smaller sets (the sample's 400 and 800 horseshoes) keep the four passes and their results to
+# the bit. Measured at 3000 horseshoes: c2 about 5 -> 0.7 ns per pair (one thread).
+
+
 BLAS_LIMIT_PAIRS = 0  # point-horseshoe pairs from which the BLAS threads are limited to one
 # while the chunks run (0: always): the chunks' matrix products are thin (inner dimension 3-5)
 # and run on this module's own threads, so BLAS threads only compete with them (measured at
@@ -190,40 +198,80 @@ class HorseshoeSet:
         # the same as sums over horseshoes of k g r0 and k g (r0 x A) (`_vel_chunk`)
         self._vel_ops6 = np.hstack([r0, self.r0xa])  # (n, 6)
         self._proj_op = np.vstack([np.ones(len(qf)), qf[:, 2], qf[:, 1]]) / FOUR_PI
+        self._c2_op = self._quadratic_c2_op(r0, a, r0sq) if len(r0sq) >= QUADRATIC_C2_MIN else None
+
+    def _quadratic_c2_op(self, r0, a, r0sq):
+        """(10, n) operator of c2 = |r0 x (P - A)|^2 + |r0|^2 core^2 as a quadratic form in P:
+        with M = |r0|^2 I - r0 r0^T, |r0 x u|^2 = u^T M u (Lagrange's identity), so for u = P - A
+        c2 = P^T M P - 2 (M A) . P + A^T M A + |r0|^2 core^2, i.e.
+        [Px^2, Py^2, Pz^2, Px Py, Px Pz, Py Pz, Px, Py, Pz, 1] @ op."""
+        M = r0sq[:, None, None] * np.eye(3) - r0[:, :, None] * r0[:, None, :]  # (n, 3, 3)
+        Ma = np.einsum("nij,nj->ni", M, a)
+        rxa = np.cross(r0, a)
+        return np.vstack([M[:, 0, 0], M[:, 1, 1], M[:, 2, 2], 2.0 * M[:, 0, 1],
+                          2.0 * M[:, 0, 2], 2.0 * M[:, 1, 2], -2.0 * Ma.T,
+                          np.einsum("ij,ij->i", rxa, rxa) + r0sq * self.core2])
 
     @property
     def n(self) -> int:
         return self.ns * self.nc
 
-    def _common(self, p, ws, k_out=None):
-        """Per-chunk pair quantities for centred points p (m, 3): bound factor k (m, n) with
-        V_bound = k (r0 x r1), and leg factor f (m, nodes) with V_leg = f (0, -dz, dy).
+    def _features(self, p, nrm=None) -> dict:
+        """The left factors of the chunks' matrix products for centred points p (m, 3) (and unit
+        normals nrm (m, 3) for the normal wash), made once per call for every row (a chunk takes
+        its rows: the same values as made per chunk, without about 0.2 ms of small-array work
+        per chunk)."""
+        m = p.shape[0]
+        one = np.ones((m, 1))
+        psq = np.einsum("ij,ij->i", p, p)[:, None]
+        py, pz = p[:, 1:2], p[:, 2:3]
+        feats = {"p": p, "d": np.hstack([p, psq, one]), "t": np.hstack([p, one]),
+                 "yz": np.hstack([py, pz, py ** 2 + pz ** 2 + self.core2, one])}
+        if self._c2_op is not None:
+            px = p[:, 0:1]
+            feats["quad"] = np.hstack([p * p, px * py, px * pz, py * pz, p, one])
+        if nrm is not None:
+            ns_ = nrm * np.array([1.0 / self.x_scale, 1.0, 1.0])
+            feats["cn"] = np.hstack([np.cross(p, ns_), -ns_])
+            feats["proj"] = np.hstack([(-p[:, 2] * ns_[:, 1] + p[:, 1] * ns_[:, 2])[:, None],
+                                       ns_[:, 1:2], -ns_[:, 2:3]])
+        return feats
+
+    @staticmethod
+    def _chunk(feats, i0, i1) -> dict:
+        return {key: v[i0:i1] for key, v in feats.items()}
+
+    def _common(self, feats, ws, k_out=None):
+        """Per-chunk pair quantities for a chunk's `_features` (centred points p (m, 3)): bound
+        factor k (m, n) with V_bound = k (r0 x r1), and leg factor f (m, nodes) with
+        V_leg = f (0, -dz, dy).
         Distances to the nodes serve both the bound segments (|r1|, |r2|) and the legs.
         ws: the calling thread's `_Workspace` (every (m, n) array lives in it: fresh arrays of
         this size cost more in page faults than their arithmetic); k_out: (m, n) array for k
         (a workspace buffer when None). f is the workspace's "f" buffer; "d" and "c" are free
         again on return."""
+        p = feats["p"]
         m, ns, nc = p.shape[0], self.ns, self.nc
         nn, n = (ns + 1) * nc, ns * nc
-        one = np.ones((m, 1))
-        psq = np.einsum("ij,ij->i", p, p)[:, None]
-        dsq = np.matmul(np.hstack([p, psq, one]), self.d_op, out=ws.get("d", m, nn))
+        dsq = np.matmul(feats["d"], self.d_op, out=ws.get("d", m, nn))
         r = np.sqrt(dsq, out=ws.get("r", m, nn))  # |P - Q|, (m, nodes)
         shape = (m, ns + 1, nc)
         r3, d3 = r.reshape(shape), dsq.reshape(shape)
-        t = np.matmul(np.hstack([p, one]), self.t_op, out=ws.get("t", m, n)).reshape(m, ns, nc)
+        t = np.matmul(feats["t"], self.t_op, out=ws.get("t", m, n)).reshape(m, ns, nc)
         r0sq = self.r0sq.reshape(ns, nc)
-        c2 = np.multiply(d3[:, :-1], r0sq, out=ws.get("c2", m, n).reshape(m, ns, nc))
-        c2 -= np.multiply(t, t, out=ws.get("c", m, n).reshape(m, ns, nc))
-        c2 += self.r0sq_core.reshape(ns, nc)
+        if self._c2_op is None:
+            c2 = np.multiply(d3[:, :-1], r0sq, out=ws.get("c2", m, n).reshape(m, ns, nc))
+            c2 -= np.multiply(t, t, out=ws.get("c", m, n).reshape(m, ns, nc))
+            c2 += self.r0sq_core.reshape(ns, nc)
+        else:
+            c2 = np.matmul(feats["quad"], self._c2_op, out=ws.get("c2", m, n)).reshape(m, ns, nc)
         k = ws.get("k", m, n) if k_out is None else k_out
         k3 = np.divide(t, r3[:, :-1], out=k.reshape(m, ns, nc))
         t -= r0sq
         t /= r3[:, 1:]
         k3 -= t
         k3 /= c2
-        yz = np.hstack([p[:, 1:2], p[:, 2:3], p[:, 1:2] ** 2 + p[:, 2:3] ** 2 + self.core2, one])
-        rho2 = np.matmul(yz, self.rho_op, out=dsq)
+        rho2 = np.matmul(feats["yz"], self.rho_op, out=dsq)
         f = np.subtract(p[:, 0:1], self.q[:, 0], out=ws.get("f", m, nn))
         f /= r
         f += 1.0
@@ -238,17 +286,13 @@ class HorseshoeSet:
         o += lg[:, 1:]
         o -= lg[:, :-1]
 
-    def _wash_chunk(self, p, nrm, ws, out=None):
-        """Normal wash (m, n) at centred points p (m, 3) with unit normals nrm (m, 3), in `out`
-        (m, n) or a workspace buffer."""
-        ns_ = nrm * np.array([1.0 / self.x_scale, 1.0, 1.0])
-        k, f = self._common(p, ws, out)
-        m = p.shape[0]
-        k *= np.matmul(np.hstack([np.cross(p, ns_), -ns_]), self.cn_op,
-                       out=ws.get("c", m, k.shape[1]))
-        proj = np.matmul(np.hstack([(-p[:, 2] * ns_[:, 1] + p[:, 1] * ns_[:, 2])[:, None],
-                                    ns_[:, 1:2], -ns_[:, 2:3]]), self._proj_op,
-                         out=ws.get("d", m, f.shape[1]))
+    def _wash_chunk(self, feats, ws, out=None):
+        """Normal wash (m, n) for a chunk's `_features` (centred points with unit normals), in
+        `out` (m, n) or a workspace buffer."""
+        k, f = self._common(feats, ws, out)
+        m = k.shape[0]
+        k *= np.matmul(feats["cn"], self.cn_op, out=ws.get("c", m, k.shape[1]))
+        proj = np.matmul(feats["proj"], self._proj_op, out=ws.get("d", m, f.shape[1]))
         f *= proj
         self._legs_to_panels(f, k)
         return k
@@ -282,12 +326,14 @@ class HorseshoeSet:
         nrm = np.asarray(normals, float)
         m = pts.shape[0]
         A = np.empty((m, self.n))
+        feats = self._features(pts, nrm)
+        if self.mirror:
+            images = self._features(_mirror(pts + self.centre) - self.centre, _mirror(nrm))
 
         def job(i0, i1, ws):
-            self._wash_chunk(pts[i0:i1], nrm[i0:i1], ws, A[i0:i1])
+            self._wash_chunk(self._chunk(feats, i0, i1), ws, A[i0:i1])
             if self.mirror:
-                A[i0:i1] += self._wash_chunk(_mirror(pts[i0:i1] + self.centre) - self.centre,
-                                             _mirror(nrm[i0:i1]), ws)
+                A[i0:i1] += self._wash_chunk(self._chunk(images, i0, i1), ws)
 
         self._rows(m, job)
         return A
@@ -303,10 +349,11 @@ class HorseshoeSet:
         nrm = np.asarray(normals, float)
         m = pts.shape[0]
         plus, minus = np.empty((m, self.n)), np.empty((m, self.n))
+        own_f, other_f = self._features(pts, nrm), other._features(pts, nrm)
 
         def job(i0, i1, ws):
-            a = self._wash_chunk(pts[i0:i1], nrm[i0:i1], ws, ws.get("a", i1 - i0, self.n))
-            b = np.take(other._wash_chunk(pts[i0:i1], nrm[i0:i1], ws), columns, axis=1,
+            a = self._wash_chunk(self._chunk(own_f, i0, i1), ws, ws.get("a", i1 - i0, self.n))
+            b = np.take(other._wash_chunk(self._chunk(other_f, i0, i1), ws), columns, axis=1,
                         out=ws.get("b", i1 - i0, self.n))
             np.add(a, b, out=plus[i0:i1])
             np.subtract(a, b, out=minus[i0:i1])
@@ -314,19 +361,19 @@ class HorseshoeSet:
         self._rows(m, job)
         return plus, minus
 
-    def _vel_chunk(self, p, ops, exclude, ws):
+    def _vel_chunk(self, feats, ops, exclude, ws):
         """Velocity (m, 3, kg) at centred points p. With (r0 x (P - A))_c = [P, 1] . op_c,j the
         sums over horseshoes j become one matrix product k @ (op * g) per chunk, and the legs
         f @ [g, g Qz, g Qy] (V_leg = f (0, -(Pz - Qz), Py - Qy))."""
         bound_op, leg_op, kg = ops
-        k, f = self._common(p, ws)
+        p = feats["p"]
+        k, f = self._common(feats, ws)
         if exclude is not None:
             k[exclude[0], exclude[1]] = 0.0
         m = p.shape[0]
         if bound_op.shape[1] == 12 * kg:  # the 4-slot form [P, 1] . op_c (fewer horseshoes)
-            aug = np.hstack([p, np.ones((m, 1))])
             rb = (k @ bound_op).reshape(m, 3, 4, kg)
-            out = np.einsum("md,mcdk->mck", aug, rb)
+            out = np.einsum("md,mcdk->mck", feats["t"], rb)
         else:
             out = self._bound_compact(p, k @ bound_op, kg)
         rl = (f @ leg_op).reshape(m, 3, kg)
@@ -384,16 +431,18 @@ class HorseshoeSet:
         ops = (bound_op, leg_op, kg)
         m = pts.shape[0]
         out = np.empty((m, 3, kg))
+        feats = self._features(pts)
+        if self.mirror:
+            images = self._features(_mirror(pts + self.centre) - self.centre)
 
         def job(i0, i1, ws):
             ex = None
             if self_panels:
                 r = np.arange(i1 - i0)
                 ex = (r, r + i0)
-            out[i0:i1] = self._vel_chunk(pts[i0:i1], ops, ex, ws)
+            out[i0:i1] = self._vel_chunk(self._chunk(feats, i0, i1), ops, ex, ws)
             if self.mirror:
-                mp = _mirror(pts[i0:i1] + self.centre) - self.centre
-                v = self._vel_chunk(mp, ops, None, ws)
+                v = self._vel_chunk(self._chunk(images, i0, i1), ops, None, ws)
                 v[:, 1] *= -1.0
                 out[i0:i1] += v
 

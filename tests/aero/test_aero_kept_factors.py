@@ -80,3 +80,32 @@ def test_mirror_split_control_models_keep_one_lu_per_half_system(monkeypatch):
         check(REFINEMENT, f"induced velocities at the bound vortices at M = {mach}, "
               "max difference / max", 0.0, _rel(cm._V, ref._V), abs=100 * ROUND_OFF)
     assert (kf.direct, kf.refined) == (2, 2)  # the symmetric and antisymmetric halves
+
+
+def test_an_exactly_singular_system_is_one_aero_error_and_no_warning(monkeypatch):
+    # a panel whose normal is zero (a degenerate panel) gives a zero row: a singular matrix
+    # (linear algebra; the rank from numpy.linalg.matrix_rank, a general-purpose reference
+    # library) on which LAPACK's LU meets an exact zero pivot. The run must say so once, as its
+    # own error, with no library warning printed before it.
+    import warnings
+
+    import pytest
+
+    from geomload.errors import AeroError
+
+    _small_thresholds(monkeypatch)
+    lat = build_lattice(_wing(), n_span=20, n_chord=6)
+    m = AeroModel(lat, 0.1, factors=kept_factors.KeptFactors())
+    A = m._assemble()
+    A[1] = 0.0
+    n = A.shape[0]
+    check("numpy.linalg.matrix_rank", "rank of the influence matrix with a zero row", n - 1,
+          np.linalg.matrix_rank(A), abs=0)
+    fresh = kept_factors.KeptFactors()  # no factors kept: the system is factorised
+    m._factors = fresh
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        with pytest.raises(AeroError, match="singular"):
+            m._solve_system(A, np.ones((n, 2)), 0)
+    assert [str(w.message) for w in caught] == []
+    assert fresh.direct == 0  # nothing kept from the failed factorisation

@@ -44,8 +44,10 @@ def test_semi_infinite_leg_is_half_a_line_at_its_start():
 def test_fast_kernels_match_direct_formula(mirror, beta, compact, monkeypatch):
     # internal consistency (no outside source): the fast kernels against the direct
     # Biot-Savart block, which the closed-form tests above check against Katz & Plotkin;
-    # compact: the velocity's bound-vortex sums in the form used from COMPACT_VELOCITY_MIN
+    # compact: the velocity's bound-vortex sums in the form used from COMPACT_VELOCITY_MIN,
+    # and c2 as the quadratic form used from QUADRATIC_C2_MIN (both: the large lattices' path)
     monkeypatch.setattr(vortex, "COMPACT_VELOCITY_MIN", 0 if compact else 10 ** 9)
+    monkeypatch.setattr(vortex, "QUADRATIC_C2_MIN", 0 if compact else 10 ** 9)
     st = trapezoid(5.0, 0.5, 35.0, camber="2412", dihedral_deg=7.0, twist_tip_deg=-4.0)
     lat = build_lattice(st, n_span=5, n_chord=3)
     ns, nc = lat.n_span, lat.n_chord
@@ -80,3 +82,55 @@ def test_trefftz_wash_of_a_vortex_pair():
                                    np.zeros(1), np.zeros(1), np.ones(1))
     check(KATZ, "Trefftz-plane wash midway between a vortex pair, G = 1 (m/s)", -1 / math.pi,
           (W @ np.array([-1.0, 1.0]))[0], rel=1e-12)
+
+
+ANDERSON = ("Anderson, Fundamentals of Aerodynamics, ch. 5, Biot-Savart law: straight vortex "
+            "filament V = G / (4 pi h) (cos t1 - cos t2), t the angles at its ends (from memory)")
+
+
+def _filament(p, start, e, far_start=False, end=None):
+    """Velocity (3,) at p of a unit straight vortex along unit direction e, from `start` to
+    `end` (None: to infinity), or from infinity to `start` when far_start: the textbook form in
+    the perpendicular distance h and the end angles (no cross-product identities)."""
+    foot = start + np.dot(p - start, e) * e  # foot of the perpendicular on the line
+    hv = p - foot
+    h = np.linalg.norm(hv)
+    direction = np.cross(e, hv / h)  # right-hand rule about the vortex
+    if far_start:  # from infinity to `start`: angle 0 at the far end
+        cos1, cos2 = 1.0, np.dot(p - start, e) / np.linalg.norm(p - start)
+    else:
+        cos1 = np.dot(p - start, e) / np.linalg.norm(p - start)
+        cos2 = -1.0 if end is None else np.dot(p - end, e) / np.linalg.norm(p - end)
+    return (cos1 - cos2) / (4 * math.pi * h) * direction
+
+
+@pytest.mark.parametrize("quadratic", [False, True])
+def test_horseshoe_set_against_the_filament_formula(quadratic, monkeypatch):
+    # a horseshoe (+inf -> A, A -> B, B -> +inf along +x) summed from three textbook
+    # filaments; quadratic: c2 from the quadratic form used from QUADRATIC_C2_MIN horseshoes
+    monkeypatch.setattr(vortex, "QUADRATIC_C2_MIN", 0 if quadratic else 10 ** 9)
+    rng = np.random.default_rng(7)
+    nodes = np.array([[[0.0, -0.6, 0.02], [0.3, -0.6, 0.05]],
+                      [[0.05, 0.1, 0.0], [0.36, 0.1, 0.04]],
+                      [[0.12, 0.9, 0.09], [0.41, 0.95, 0.1]]])  # (ns + 1, nc, 3): 2 x 2 horseshoes
+    hs = vortex.HorseshoeSet(nodes, 1e-9)
+    assert (hs._c2_op is not None) == quadratic
+    pts = np.array([[0.4, -0.2, 0.3], [-0.5, 0.5, -0.2], [1.5, 0.0, 0.1], [0.2, 1.4, 0.6]])
+    g = rng.random((4, 2)) - 0.5
+    ex = np.array([1.0, 0.0, 0.0])
+    unit = np.zeros((len(pts), 3, 4))  # velocity at each point per unit horseshoe
+    for s in range(2):
+        for c in range(2):
+            a, b = nodes[s, c], nodes[s + 1, c]
+            e = (b - a) / np.linalg.norm(b - a)
+            for i, p in enumerate(pts):
+                unit[i, :, s * 2 + c] = (_filament(p, a, -ex, far_start=True)
+                                         + _filament(p, a, e, end=b) + _filament(p, b, ex))
+    ref = unit @ g
+    check(ANDERSON, "horseshoe velocities, max difference / max |V|", 0.0,
+          float(np.abs(hs.velocity(pts, g) - ref).max() / np.abs(ref).max()), abs=1e-12)
+    nrm = rng.random((len(pts), 3)) - 0.5
+    nrm /= np.linalg.norm(nrm, axis=1)[:, None]
+    ref = np.einsum("icj,ic->ij", unit, nrm)
+    check(ANDERSON, "normal wash per unit horseshoe, max difference / max", 0.0,
+          float(np.abs(hs.normalwash(pts, nrm) - ref).max() / np.abs(ref).max()), abs=1e-12)
