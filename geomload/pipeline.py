@@ -35,7 +35,7 @@ from geomload.export.run_folder import fill_run_folder, open_run_folder, run_inp
 from geomload.export.run_marker import software_versions
 from geomload.loads.cases import CaseContext, case_grid, check_case_names, solve_case
 from geomload.loads.envelope import envelope_of
-from geomload.loads.roots import solve_case_roots
+from geomload.loads.roots import RootsBatch
 from geomload.loads.vn import flight_envelope_cases
 from geomload.pipeline_controls import (case_with_geometry_controls, symmetric_with_tail,
                                         unsymmetric_cases, unused_lift_shares)
@@ -150,7 +150,8 @@ def _compute_cases(case, progress, cache, detail, wing_key, wing, messages,
     results = []
     tail = case.controls is not None and case.controls.tail is not None
     messages += _warnings(unused_lift_shares(case, load_cases))
-    solve = solve_case_roots if detail == ROOTS else solve_case
+    batch = RootsBatch(ctx) if detail == ROOTS else None  # root loads integrated together
+    solve = solve_case if batch is None else batch.solve
     for i, lc in enumerate(load_cases):
         if tail:
             results += symmetric_with_tail(lc, ctx, solve)
@@ -161,9 +162,11 @@ def _compute_cases(case, progress, cache, detail, wing_key, wing, messages,
         more, notes = unsymmetric_cases(ctx, vn, solve_case, progress)
         results += more
         messages += _warnings(notes)
+    if batch is not None:  # the symmetric cases' root loads, the others' full loads
+        results = batch.results(results)
     check_case_names(case.path, results)
     timings["aero and loads"] = time.perf_counter() - t1
-    if detail == ROOTS:  # the symmetric cases' root loads, the others' full loads
+    if batch is not None:
         return RootsRun(cases=tuple(results))
     if not detail:
         return RunResult(case_path=case.path, case_text="", case=case, wing=wing,

@@ -65,6 +65,15 @@ def applied_arrays(grid: LoadGrid, strip_y, strip_width, lift_per_q, drag_per_q,
     # n g m'(y) and the point masses' weights: masses.inertia_loads' arithmetic, each force
     # built once (with the tilt)
     inertia = load_factor * G0 * masses.kg_per_m
+    points, tilt = point_forces(load_factor, alpha_deg, body_axis, masses, point_masses)
+    side = -lift * _slope(grid.load_z, y)
+    return lift, drag, side, pitch, inertia, tilt, points
+
+
+def point_forces(load_factor, alpha_deg, body_axis, masses: MassDistribution,
+                 point_masses=()) -> tuple:
+    """(((name, position (3,) m, force (3,) N) of each point mass, then each lumped mass),
+    inertia tilt (deg)): the weights n g m of the point masses along the load factor."""
     # inertia along the load factor: normal to the longitudinal axis (body, 14 CFR 23.321(a)),
     # or opposite the lift (flight path)
     tilt = 0.0 if body_axis else alpha_deg
@@ -73,8 +82,7 @@ def applied_arrays(grid: LoadGrid, strip_y, strip_width, lift_per_q, drag_per_q,
     for p in tuple(point_masses) + tuple(masses.lumped):
         fz = np.float64(-load_factor * G0 * p.mass)
         points.append((p.name, np.asarray(p.position, float), np.array([-fz * sa, 0.0, fz * ca])))
-    side = -lift * _slope(grid.load_z, y)
-    return lift, drag, side, pitch, inertia, tilt, points
+    return points, tilt
 
 
 _STRIPS: dict = {}  # (strip y, strip width, grid y) bytes -> read-only pieces (one per lattice)

@@ -11,6 +11,8 @@ records (AppliedLoads, SpanLoads, CaseResult) a full case builds.
 
 from __future__ import annotations
 
+from typing import NamedTuple
+
 import numpy as np
 
 from geomload.aero.trim import flight_state, trim_alpha
@@ -18,7 +20,9 @@ from geomload.aero.vortex import cross as _cross
 
 from .beam import _couple, _shared_spar_frame
 from .case_records import CaseRoots, RootLoads
-from .flight_case import applied_arrays
+from geomload.units import G0
+
+from .flight_case import _slope, _starboard_strips, applied_arrays, point_forces
 
 
 def _tip_to_root_sum(a):
@@ -86,25 +90,196 @@ def root_resultants(y, spar_x, spar_z, lift, drag, side, pitch, load_x, load_z, 
     return float(d[0]), float(d[1]), float(d[2])
 
 
-def solve_case_roots(lc, ctx, wing_force_N=None, *, name=None, tail=None) -> CaseRoots:
-    """The root resultants of one symmetric LoadCase (:func:`geomload.loads.cases.solve_case`'s
-    trim, applied loads and integration, their root values only): a CaseRoots. Same arguments
-    as solve_case (``tail`` is accepted and not used: no tail record is kept)."""
-    case, grid, models = ctx.case, ctx.grid, ctx.models
+def root_resultants_many(y, spar_x, spar_z, lift, drag, side, pitch, load_x, load_z, inertia,
+                         inertia_x, inertia_z, points, alpha_deg, inertia_alpha_deg) -> np.ndarray:
+    """:func:`root_resultants` of K cases on one grid at once: (K, 3) (shear_N, bending_Nm,
+    torsion_Nm) per case, each row equal to the bit to that case's root_resultants.
+
+    lift, drag, side, pitch, inertia, inertia_x, inertia_z: (K, n); load_x, load_z: (n,) (the
+    grid's load line); points: K sequences of (name, position, force); alpha_deg,
+    inertia_alpha_deg: K angles (deg). Every operation is root_resultants' own, elementwise
+    over the cases (the running sums are along the stations, case by case); the cosines and
+    sines of the angles are taken one case at a time, as there.
+    """
+    y = np.asarray(y, dtype=float)
+    n, k = y.size, len(points)
+    sx, sz = np.asarray(spar_x, float), np.asarray(spar_z, float)
+    s, b, nrm, p, rel, dy = _shared_spar_frame(y, sx, sz)
+    ang = np.empty((4, k))
+    for i, (a, t) in enumerate(zip(alpha_deg, inertia_alpha_deg)):
+        bi = np.radians(t)
+        ang[:, i] = (np.cos(np.radians(a)), np.sin(np.radians(a)), np.sin(bi), np.cos(bi))
+    ca, sa, sb, cb = (ang[j][:, None] for j in range(4))
+    fx_aero, fz_aero = drag * ca - lift * sa, lift * ca + drag * sa
+    h = dy[:, None]
+    R, L = np.empty((k, 2, n, 3)), np.empty((k, 2, n, 3))
+    R[:, 0, :, 0], R[:, 0, :, 1], R[:, 0, :, 2] = load_x, y, load_z
+    R[:, 1, :, 0], R[:, 1, :, 1], R[:, 1, :, 2] = inertia_x, y, inertia_z
+    L[:, 0, :, 0], L[:, 0, :, 1], L[:, 0, :, 2] = fx_aero, side, fz_aero
+    L[:, 1, :, 0], L[:, 1, :, 1], L[:, 1, :, 2] = inertia * sb, 0.0, -inertia * cb
+    l_ab = L[:, :, :-1] + L[:, :, 1:]
+    f_seg = 0.5 * h * l_ab
+    seg_f = f_seg[:, 0] + f_seg[:, 1]
+    force = np.cumsum(seg_f[:, ::-1], axis=1)[:, -1]
+    m = n - 1
+    arms, loads = np.empty((k, 7 * m + 1, 3)), np.empty((k, 7 * m + 1, 3))
+    va, vl = arms[:, :6 * m].reshape(k, 2, 3, m, 3), loads[:, :6 * m].reshape(k, 2, 3, m, 3)
+    va[:, :, 0] = R[:, :, :-1] - p[:-1]
+    va[:, :, 2] = R[:, :, 1:] - p[:-1]
+    va[:, :, 1] = va[:, :, 0] + va[:, :, 2]
+    vl[:, :, 0], vl[:, :, 1], vl[:, :, 2] = L[:, :, :-1], l_ab, L[:, :, 1:]
+    arms[:, 6 * m:7 * m], loads[:, 6 * m:7 * m] = rel[:-1], seg_f
+    arms[:, 7 * m], loads[:, 7 * m] = rel[0], force
+    c = _cross(arms, loads)
+    vc = c[:, :6 * m].reshape(k, 2, 3, m, 3)
+    m_seg = h / 6.0 * (vc[:, :, 0] + vc[:, :, 1] + vc[:, :, 2])
+    seg_m = np.empty((k, m, 6))
+    seg_m[:, :, :3] = m_seg[:, 0] + m_seg[:, 1]
+    couple = np.zeros((k, m, 3))  # beam._couple of each case
+    couple[:, :, 1] = 0.5 * dy * (pitch[:, :-1] + pitch[:, 1:])
+    seg_m[:, :, :3] += couple
+    seg_m[:, :, 3:] = c[:, 6 * m:7 * m]
+    sums = np.cumsum(seg_m[:, ::-1], axis=1)[:, -1]
+    moment = (sums[:, :3] + sums[:, 3:]) - c[:, 7 * m]
+    # the point loads at the root, case by case in their order (root_resultants' rule)
+    tol = 1e-12 * max(1.0, float(y[-1] - y[0]))
+    which, pos, fs = [], [], []
+    for i, pts in enumerate(points):
+        for _name, ps, f in pts:
+            if y[0] <= ps[1] + tol:
+                which.append(i)
+                pos.append(ps - p[0])
+                fs.append(f)
+    if which:
+        cp = _cross(np.stack(pos), np.stack(fs))
+        for i, f, cm in zip(which, fs, cp):
+            force[i] += f
+            moment[i] += cm
+    fm = np.stack([force, moment, moment], axis=1).reshape(3 * k, 3)
+    axes = np.broadcast_to(np.stack([nrm[0], b[0], s[0]]), (k, 3, 3)).reshape(3 * k, 3)
+    return np.einsum("ij,ij->i", fm, axes).reshape(k, 3)
+
+
+def _trimmed(lc, ctx, wing_force_N, name) -> tuple:
+    """(name, strip lift, drag and moment per q, q, cd0, load factor, alpha, body axis, masses,
+    points, tilt): one symmetric case trimmed (solve_case's trim), its strip loads and its
+    point loads (applied_arrays' arithmetic)."""
+    case, models = ctx.case, ctx.models
     name = lc.name if name is None else name
     fs = flight_state(lc, case, models, ctx.atmosphere, wing_force_N, name)
     _v_eas, _v_tas, _mach, q, _mass, _force, model, cd0, body_axis, cf_req, drag_form = fs
     alpha, _cl = trim_alpha(model, cf_req, cd0, body_axis, drag_form)
     lift_pq, drag_pq, mom_pq = model.strip_loads(alpha)
-    lat = models.lattice
+    masses = ctx.masses_for(lc.fuel_fraction)
+    points, tilt = point_forces(lc.load_factor, alpha, body_axis, masses, case.point_masses)
+    return (name, lift_pq, drag_pq, mom_pq, q, cd0, lc.load_factor, alpha, body_axis, masses,
+            points, tilt)
+
+
+def _case_pieces(lc, ctx, wing_force_N, name) -> tuple:
+    """(name, lift, drag, side, pitch, inertia, masses, points, alpha, tilt): one symmetric
+    case trimmed and its loads on the grid (solve_case's trim and applied loads)."""
+    case, grid, lat = ctx.case, ctx.grid, ctx.models.lattice
+    name = lc.name if name is None else name
+    fs = flight_state(lc, case, ctx.models, ctx.atmosphere, wing_force_N, name)
+    _v_eas, _v_tas, _mach, q, _mass, _force, model, cd0, body_axis, cf_req, drag_form = fs
+    alpha, _cl = trim_alpha(model, cf_req, cd0, body_axis, drag_form)
+    lift_pq, drag_pq, mom_pq = model.strip_loads(alpha)
     masses = ctx.masses_for(lc.fuel_fraction)
     lift, drag, side, pitch, inertia, tilt, points = applied_arrays(
         grid, lat.strip_y, lat.strip_width, lift_pq, drag_pq, mom_pq, lat.strip_chord, q, cd0,
         lc.load_factor, alpha, body_axis, masses, case.point_masses)
+    return name, lift, drag, side, pitch, inertia, masses, points, alpha, tilt
+
+
+def _grid_loads_many(grid, lat, lift_pq, drag_pq, mom_pq, q, cd0, load_factor, kg_per_m):
+    """applied_arrays' lift, drag, side, pitch and inertia ((K, n) each) of K cases at once:
+    its operations elementwise over the cases (the interpolation row by row, the sums of each
+    row alone, as grid._to_grid_rows takes them). lift_pq, drag_pq, mom_pq: (K, strips);
+    q, cd0, load_factor: (K,); kg_per_m: (K, n)."""
+    y = grid.y
+    idx, ys, ws, h = _starboard_strips(np.asarray(lat.strip_y), np.asarray(lat.strip_width), y)
+    k, n = len(q), y.size
+    qc, cd0c = q[:, None], cd0[:, None]
+    series = np.empty((k, 3, idx.size))
+    series[:, 0] = lift_pq[:, idx] * qc
+    series[:, 1] = drag_pq[:, idx] * qc + cd0c * qc * np.asarray(lat.strip_chord)[idx]
+    series[:, 2] = mom_pq[:, idx] * qc
+    series = series.reshape(3 * k, idx.size)
+    v = np.empty((3 * k, n))
+    extrapolate = ys.size >= 2 and y[0] < ys[0]
+    for i, values in enumerate(series):
+        v[i] = np.interp(y, ys, values)
+        if extrapolate:
+            slope = (values[1] - values[0]) / (ys[1] - ys[0])
+            v[i, 0] = values[0] + slope * (y[0] - ys[0])
+    v[:, -1] = 0.0
+    strip_total = (series * ws).sum(axis=1)
+    grid_total = (0.5 * (v[:, 1:] + v[:, :-1]) * h).sum(axis=1)
+    a = np.abs(v)
+    a_total = (0.5 * (a[:, 1:] + a[:, :-1]) * h).sum(axis=1)
+    pos = a_total > 0.0
+    out = v.copy()
+    out[pos] = v[pos] + (strip_total[pos] - grid_total[pos])[:, None] * a[pos] / a_total[pos][:, None]
+    out = out.reshape(k, 3, n)
+    lift, drag, pitch = out[:, 0], out[:, 1], out[:, 2]
+    inertia = (load_factor * G0)[:, None] * kg_per_m
+    side = -lift * _slope(grid.load_z, y)
+    return lift, drag, side, pitch, inertia
+
+
+def solve_case_roots(lc, ctx, wing_force_N=None, *, name=None, tail=None) -> CaseRoots:
+    """The root resultants of one symmetric LoadCase (:func:`geomload.loads.cases.solve_case`'s
+    trim, applied loads and integration, their root values only): a CaseRoots. Same arguments
+    as solve_case (``tail`` is accepted and not used: no tail record is kept)."""
+    grid = ctx.grid
+    name, lift, drag, side, pitch, inertia, masses, points, alpha, tilt = _case_pieces(
+        lc, ctx, wing_force_N, name)
     v, mb, t = root_resultants(grid.y, grid.spar_x, grid.spar_z, lift, drag, side, pitch,
                                grid.load_x, grid.load_z, inertia, masses.x_m, masses.z_m,
                                points, alpha, tilt)
     return CaseRoots(name, RootLoads((v,), (mb,), (t,)))
 
 
-__all__ = ["root_resultants", "solve_case_roots"]
+class RootsBatch:
+    """The symmetric cases of a root-only run, trimmed one by one and integrated together.
+
+    :meth:`solve` has solve_case's arguments: it trims the case and puts its loads on the grid
+    (as :func:`solve_case_roots`) and returns a placeholder; :meth:`results` replaces the
+    placeholders of a list of results by their CaseRoots, every case's root loads from one
+    :func:`root_resultants_many` (the same values to the bit as solve_case_roots)."""
+
+    def __init__(self, ctx):
+        self.ctx, self.pieces = ctx, []
+
+    def solve(self, lc, ctx=None, wing_force_N=None, *, name=None, tail=None) -> "_Pending":
+        self.pieces.append(_trimmed(lc, ctx or self.ctx, wing_force_N, name))
+        return _Pending(len(self.pieces) - 1)
+
+    def results(self, items) -> list:
+        """``items`` with every placeholder of this batch replaced by its CaseRoots."""
+        got = self._roots()
+        return [got[i.index] if isinstance(i, _Pending) else i for i in items]
+
+    def _roots(self) -> list:
+        if not self.pieces:
+            return []
+        g, lat = self.ctx.grid, self.ctx.models.lattice
+        (names, lift_pq, drag_pq, mom_pq, q, cd0, lf, alpha, _body, masses, points,
+         tilt) = zip(*self.pieces)
+        lift, drag, side, pitch, inertia = _grid_loads_many(
+            g, lat, np.stack(lift_pq), np.stack(drag_pq), np.stack(mom_pq),
+            np.array(q, float), np.array(cd0, float), np.array(lf, float),
+            np.stack([mm.kg_per_m for mm in masses]))
+        r = root_resultants_many(
+            g.y, g.spar_x, g.spar_z, lift, drag, side, pitch, g.load_x, g.load_z, inertia,
+            np.stack([mm.x_m for mm in masses]), np.stack([mm.z_m for mm in masses]), points,
+            alpha, tilt).tolist()
+        return [CaseRoots(nm, RootLoads((v,), (mb,), (t,))) for nm, (v, mb, t) in zip(names, r)]
+
+
+class _Pending(NamedTuple):
+    index: int
+
+
+__all__ = ["root_resultants", "root_resultants_many", "solve_case_roots", "RootsBatch"]

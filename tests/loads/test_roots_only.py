@@ -20,7 +20,7 @@ from geomload.aero.convergence import _side_roots
 from geomload.config.parse import read_case_file
 from geomload.loads.beam import integrate
 from geomload.loads.records import AppliedLoads, PointLoad
-from geomload.loads.roots import root_resultants
+from geomload.loads.roots import root_resultants, root_resultants_many
 from geomload.pipeline import ROOTS, compute
 from helpers.paths import SAMPLES
 from helpers.validation import check
@@ -57,6 +57,30 @@ def test_root_resultants_equal_the_integration_root_row(seed, alpha, tilt):
                           ld["inertia_z"], pts, alpha, tilt)
     # the same arithmetic: equal to the bit (common practice, no source)
     assert got == (full.shear_N[0], full.bending_Nm[0], full.torsion_Nm[0])
+
+
+def test_many_cases_at_once_equal_one_case_at_a_time():
+    """root_resultants_many over cases with different loads, angles and point loads (one case
+    without any) equals root_resultants case by case, to the bit (common practice, no
+    source)."""
+    cases = [_random_loads(seed) for seed in (11, 12, 13, 14)]
+    y, sx, sz = cases[0][:3]
+    angles = [(5.0, 0.0), (-3.2, -3.2), (0.0, 0.0), (11.5, 11.5)]
+    points = [c[4] for c in cases]
+    points[2] = []
+    one = [root_resultants(y, sx, sz, c[3]["lift"], c[3]["drag"], c[3]["side"], c[3]["pitch"],
+                           cases[0][3]["load_x"], cases[0][3]["load_z"], c[3]["inertia"],
+                           c[3]["inertia_x"], c[3]["inertia_z"], pts, a, t)
+           for c, pts, (a, t) in zip(cases, points, angles)]
+
+    def stack(key):
+        return np.stack([c[3][key] for c in cases])
+
+    many = root_resultants_many(y, sx, sz, stack("lift"), stack("drag"), stack("side"),
+                                stack("pitch"), cases[0][3]["load_x"], cases[0][3]["load_z"],
+                                stack("inertia"), stack("inertia_x"), stack("inertia_z"),
+                                points, [a for a, _t in angles], [t for _a, t in angles])
+    assert [tuple(r) for r in many.tolist()] == one
 
 
 def test_root_resultants_of_a_uniform_load_are_cantilever_statics():
