@@ -17,12 +17,16 @@ import numpy as np
 
 from geomload.aero.trim import flight_state, trim_alpha
 from geomload.aero.vortex import cross as _cross
+from geomload.errors import InputError
+from geomload.units import G0
 
 from .beam import _couple, _shared_spar_frame
 from .case_records import CaseRoots, RootLoads
-from geomload.units import G0
-
 from .flight_case import _slope, _starboard_strips, applied_arrays, point_forces
+
+
+BATCH_CASES = 256  # cases integrated together: the arrays of a batch stay a few MB (about
+# 30 kB a case at 60 stations), and the per-call overhead is already spread thin
 
 
 def _tip_to_root_sum(a):
@@ -220,7 +224,8 @@ def _grid_loads_many(grid, lat, lift_pq, drag_pq, mom_pq, q, cd0, load_factor, k
     a_total = (0.5 * (a[:, 1:] + a[:, :-1]) * h).sum(axis=1)
     pos = a_total > 0.0
     out = v.copy()
-    out[pos] = v[pos] + (strip_total[pos] - grid_total[pos])[:, None] * a[pos] / a_total[pos][:, None]
+    excess = (strip_total[pos] - grid_total[pos])[:, None]
+    out[pos] = v[pos] + excess * a[pos] / a_total[pos][:, None]
     out = out.reshape(k, 3, n)
     lift, drag, pitch = out[:, 0], out[:, 1], out[:, 2]
     inertia = (load_factor * G0)[:, None] * kg_per_m
@@ -253,7 +258,7 @@ class RootsBatch:
         self.ctx, self.pieces = ctx, []
 
     def solve(self, lc, ctx=None, wing_force_N=None, *, name=None, tail=None) -> "_Pending":
-        self.pieces.append(_trimmed(lc, ctx or self.ctx, wing_force_N, name))
+        self.pieces.append(_trimmed(lc, self.ctx if ctx is None else ctx, wing_force_N, name))
         return _Pending(len(self.pieces) - 1)
 
     def results(self, items) -> list:
@@ -262,11 +267,15 @@ class RootsBatch:
         return [got[i.index] if isinstance(i, _Pending) else i for i in items]
 
     def _roots(self) -> list:
-        if not self.pieces:
-            return []
+        out = []
+        for start in range(0, len(self.pieces), BATCH_CASES):
+            out += self._chunk(self.pieces[start:start + BATCH_CASES])
+        return out
+
+    def _chunk(self, pieces) -> list:
         g, lat = self.ctx.grid, self.ctx.models.lattice
         (names, lift_pq, drag_pq, mom_pq, q, cd0, lf, alpha, _body, masses, points,
-         tilt) = zip(*self.pieces)
+         tilt) = zip(*pieces)
         lift, drag, side, pitch, inertia = _grid_loads_many(
             g, lat, np.stack(lift_pq), np.stack(drag_pq), np.stack(mom_pq),
             np.array(q, float), np.array(cd0, float), np.array(lf, float),
@@ -274,8 +283,13 @@ class RootsBatch:
         r = root_resultants_many(
             g.y, g.spar_x, g.spar_z, lift, drag, side, pitch, g.load_x, g.load_z, inertia,
             np.stack([mm.x_m for mm in masses]), np.stack([mm.z_m for mm in masses]), points,
-            alpha, tilt).tolist()
-        return [CaseRoots(nm, RootLoads((v,), (mb,), (t,))) for nm, (v, mb, t) in zip(names, r)]
+            alpha, tilt)
+        bad = np.flatnonzero(~np.isfinite(r).all(axis=1))
+        if bad.size:  # what the records of a full case would have refused
+            raise InputError(f"root loads of case {names[bad[0]]!r}: not finite on the "
+                             f"{lat.n_span}x{lat.n_chord} lattice")
+        return [CaseRoots(nm, RootLoads((v,), (mb,), (t,)))
+                for nm, (v, mb, t) in zip(names, r.tolist())]
 
 
 class _Pending(NamedTuple):
