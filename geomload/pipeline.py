@@ -75,8 +75,8 @@ def compute(case, progress=None, cache=None, error_bars=False, detail=True,
     detail=False: every case's loads without their cross-checks (equilibrium, Schrenk) and no
     envelope, lift curve or stall summary. detail=ROOTS ("roots"): less still, what the error
     estimate reads on each coarser lattice: a RootsRun (not a RunResult) whose symmetric cases
-    carry only their root shear, bending and torsion (:func:`geomload.loads.roots.
-    solve_case_roots`, the full integration's root values to the bit).
+    carry only their root shear, bending and torsion (:class:`geomload.loads.roots.RootsBatch`,
+    the full integration's root values to the bit).
 
     parallel: with error_bars, compute the coarser lattices in a forked child process while this
     one computes the run's own lattice, when a CPU is free (:func:`geomload.forked.

@@ -6,7 +6,9 @@ every station with cumulative sums from the tip; the root's is the last of those
 module takes that last sum only, with the same operations in the same order (the tip-to-root
 running sum, the same cross products and the same dot products), so the root values are the
 integration's own to the bit, without the series of the other stations and without the
-records (AppliedLoads, SpanLoads, CaseResult) a full case builds.
+records (AppliedLoads, SpanLoads, CaseResult) a full case builds. :class:`RootsBatch` trims the
+cases one by one (the trim's scalar iterations as solve_case has them) and puts many cases on
+the grid and integrates them at once: the same operations, elementwise over the cases.
 """
 
 from __future__ import annotations
@@ -22,7 +24,7 @@ from geomload.units import G0
 
 from .beam import _couple, _shared_spar_frame
 from .case_records import CaseRoots, RootLoads
-from .flight_case import _slope, _starboard_strips, applied_arrays, point_forces
+from .flight_case import _slope, _starboard_strips, point_forces
 
 
 BATCH_CASES = 256  # cases integrated together: the arrays of a batch stay a few MB (about
@@ -180,22 +182,6 @@ def _trimmed(lc, ctx, wing_force_N, name) -> tuple:
             points, tilt)
 
 
-def _case_pieces(lc, ctx, wing_force_N, name) -> tuple:
-    """(name, lift, drag, side, pitch, inertia, masses, points, alpha, tilt): one symmetric
-    case trimmed and its loads on the grid (solve_case's trim and applied loads)."""
-    case, grid, lat = ctx.case, ctx.grid, ctx.models.lattice
-    name = lc.name if name is None else name
-    fs = flight_state(lc, case, ctx.models, ctx.atmosphere, wing_force_N, name)
-    _v_eas, _v_tas, _mach, q, _mass, _force, model, cd0, body_axis, cf_req, drag_form = fs
-    alpha, _cl = trim_alpha(model, cf_req, cd0, body_axis, drag_form)
-    lift_pq, drag_pq, mom_pq = model.strip_loads(alpha)
-    masses = ctx.masses_for(lc.fuel_fraction)
-    lift, drag, side, pitch, inertia, tilt, points = applied_arrays(
-        grid, lat.strip_y, lat.strip_width, lift_pq, drag_pq, mom_pq, lat.strip_chord, q, cd0,
-        lc.load_factor, alpha, body_axis, masses, case.point_masses)
-    return name, lift, drag, side, pitch, inertia, masses, points, alpha, tilt
-
-
 def _grid_loads_many(grid, lat, lift_pq, drag_pq, mom_pq, q, cd0, load_factor, kg_per_m):
     """applied_arrays' lift, drag, side, pitch and inertia ((K, n) each) of K cases at once:
     its operations elementwise over the cases (the interpolation row by row, the sums of each
@@ -233,26 +219,14 @@ def _grid_loads_many(grid, lat, lift_pq, drag_pq, mom_pq, q, cd0, load_factor, k
     return lift, drag, side, pitch, inertia
 
 
-def solve_case_roots(lc, ctx, wing_force_N=None, *, name=None, tail=None) -> CaseRoots:
-    """The root resultants of one symmetric LoadCase (:func:`geomload.loads.cases.solve_case`'s
-    trim, applied loads and integration, their root values only): a CaseRoots. Same arguments
-    as solve_case (``tail`` is accepted and not used: no tail record is kept)."""
-    grid = ctx.grid
-    name, lift, drag, side, pitch, inertia, masses, points, alpha, tilt = _case_pieces(
-        lc, ctx, wing_force_N, name)
-    v, mb, t = root_resultants(grid.y, grid.spar_x, grid.spar_z, lift, drag, side, pitch,
-                               grid.load_x, grid.load_z, inertia, masses.x_m, masses.z_m,
-                               points, alpha, tilt)
-    return CaseRoots(name, RootLoads((v,), (mb,), (t,)))
-
-
 class RootsBatch:
     """The symmetric cases of a root-only run, trimmed one by one and integrated together.
 
     :meth:`solve` has solve_case's arguments: it trims the case and puts its loads on the grid
-    (as :func:`solve_case_roots`) and returns a placeholder; :meth:`results` replaces the
-    placeholders of a list of results by their CaseRoots, every case's root loads from one
-    :func:`root_resultants_many` (the same values to the bit as solve_case_roots)."""
+    and returns a placeholder; :meth:`results` replaces the placeholders of a list of results by
+    their CaseRoots, the root loads of up to BATCH_CASES cases from one
+    :func:`root_resultants_many` (the same values to the bit as solve_case and the beam
+    integration give)."""
 
     def __init__(self, ctx):
         self.ctx, self.pieces = ctx, []
@@ -296,4 +270,4 @@ class _Pending(NamedTuple):
     index: int
 
 
-__all__ = ["root_resultants", "root_resultants_many", "solve_case_roots", "RootsBatch"]
+__all__ = ["root_resultants", "root_resultants_many", "RootsBatch", "BATCH_CASES"]
