@@ -18,6 +18,7 @@ from __future__ import annotations
 import dataclasses
 import time
 from pathlib import Path
+from typing import NamedTuple
 
 from geomload.aero.atmosphere import density_and_sound
 from geomload.aero.convergence import coarse_roots, coarser_lattices
@@ -34,12 +35,23 @@ from geomload.export.run_folder import fill_run_folder, open_run_folder, run_inp
 from geomload.export.run_marker import software_versions
 from geomload.loads.cases import CaseContext, case_grid, check_case_names, solve_case
 from geomload.loads.envelope import envelope_of
+from geomload.loads.roots import RootsBatch
 from geomload.loads.vn import flight_envelope_cases
 from geomload.pipeline_controls import (case_with_geometry_controls, symmetric_with_tail,
                                         unsymmetric_cases, unused_lift_shares)
 from geomload.messages import Message, no_progress
 from geomload.run_result import RunResult
 from geomload.run_geometry import case_wing, wing_messages
+
+
+ROOTS = "roots"  # compute(detail=ROOTS): the cases' root loads only (the error estimate)
+
+
+class RootsRun(NamedTuple):
+    """What compute(detail=ROOTS) returns: ``cases``, a tuple with one CaseRoots per symmetric
+    case (its root loads) and one CaseResult per unsymmetric case (detail=False), run order."""
+
+    cases: tuple
 
 
 def _warnings(texts) -> list:
@@ -61,8 +73,10 @@ def compute(case, progress=None, cache=None, error_bars=False, detail=True,
     compute of the same geometry and lattice with the same cache reads and factorises nothing.
 
     detail=False: every case's loads without their cross-checks (equilibrium, Schrenk) and no
-    envelope, lift curve or stall summary: the run the error estimate makes on each coarser
-    lattice, of which it reads only the cases' loads.
+    envelope, lift curve or stall summary. detail=ROOTS ("roots"): less still, what the error
+    estimate reads on each coarser lattice: a RootsRun (not a RunResult) whose symmetric cases
+    carry only their root shear, bending and torsion (:class:`geomload.loads.roots.RootsBatch`,
+    the full integration's root values to the bit).
 
     parallel: with error_bars, compute the coarser lattices in a forked child process while this
     one computes the run's own lattice, when a CPU is free (:func:`geomload.forked.
@@ -131,22 +145,29 @@ def _compute_cases(case, progress, cache, detail, wing_key, wing, messages,
         raise CaseError(f"{case.path}: no load_case and no [envelope]: nothing to run")
     check_case_names(case.path, load_cases)
     ctx = CaseContext(case, stations, models, case_grid(case, lattice), atmosphere, {},
-                      float(planform.x_mac_le), cache, lattice_key, detail)
+                      float(planform.x_mac_le), cache, lattice_key,
+                      bool(detail) and detail != ROOTS)
     results = []
     tail = case.controls is not None and case.controls.tail is not None
     messages += _warnings(unused_lift_shares(case, load_cases))
+    batch = RootsBatch(ctx) if detail == ROOTS else None  # root loads integrated together
+    solve = solve_case if batch is None else batch.solve
     for i, lc in enumerate(load_cases):
         if tail:
-            results += symmetric_with_tail(lc, ctx, solve_case)
+            results += symmetric_with_tail(lc, ctx, solve)
         else:
-            results.append(solve_case(lc, ctx))
+            results.append(solve(lc, ctx))
         progress("cases", i + 1, len(load_cases))
     if case.controls is not None and vn:
         more, notes = unsymmetric_cases(ctx, vn, solve_case, progress)
         results += more
         messages += _warnings(notes)
+    if batch is not None:  # the symmetric cases' root loads, the others' full loads
+        results = batch.results(results)
     check_case_names(case.path, results)
     timings["aero and loads"] = time.perf_counter() - t1
+    if batch is not None:
+        return RootsRun(cases=tuple(results))
     if not detail:
         return RunResult(case_path=case.path, case_text="", case=case, wing=wing,
                          mesh=wing.mesh, frame=wing.frame, stations=stations,
@@ -166,6 +187,12 @@ def _compute_cases(case, progress, cache, detail, wing_key, wing, messages,
     return result
 
 
+def _compute_roots(case, cache=None, detail=False) -> RootsRun:
+    """The error estimate's run of a coarser lattice (its ``compute(case, cache=...,
+    detail=False)``) with only the root loads it reads: compute(detail=ROOTS)."""
+    return compute(case, cache=cache, detail=ROOTS)
+
+
 def _coarse_levels(case, cache) -> dict:
     """In the forked child: the coarse lattices' root loads (plain floats), warnings silenced
     (the parent reports the run's own)."""
@@ -173,7 +200,7 @@ def _coarse_levels(case, cache) -> dict:
 
     warnings.simplefilter("ignore")
     t = time.perf_counter()
-    levels = coarse_roots(case, compute, cache)
+    levels = coarse_roots(case, _compute_roots, cache)
     return {"levels": levels, "seconds": time.perf_counter() - t}
 
 
@@ -199,7 +226,7 @@ def _with_error_bars(result, cache, job=None):
             levels = got["levels"]
             # the child's own time: the run's "error estimate" is then only what it waited
             child = {"error estimate, coarse lattices in a child process": got["seconds"]}
-    bars, warnings = estimate_error_bars(result.case, result, compute, cache, levels)
+    bars, warnings = estimate_error_bars(result.case, result, _compute_roots, cache, levels)
     return dataclasses.replace(
         result, error_bars=bars, messages=result.messages + tuple(_warnings(warnings)),
         timings={**result.timings, "error estimate": time.perf_counter() - t, **child})

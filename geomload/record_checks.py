@@ -8,7 +8,7 @@ naming the record and the field.
 
 from __future__ import annotations
 
-from typing import Optional
+from typing import Any, Callable, Hashable, Optional
 
 import numpy as np
 
@@ -74,3 +74,36 @@ def check_items(name: str, items, kind) -> tuple:
     if bad:
         raise TypeError(f"{name}: {kind.__name__} records only, got {bad[0]}")
     return items
+
+
+def _frozen(value):
+    """``value`` with every numpy array in it (itself, or the items of a tuple or list, one
+    level) made read-only; returned as is."""
+    if isinstance(value, np.ndarray):
+        value.setflags(write=False)
+    elif isinstance(value, (tuple, list)):
+        for v in value:
+            if isinstance(v, np.ndarray):
+                v.setflags(write=False)
+    return value
+
+
+def kept(cache: dict, key: Hashable, build: Callable[[], Any], keep: int):
+    """``cache[key]``, or ``build()`` stored under ``key`` and returned: a bounded, read-only
+    memo of what every case of a run shares (a grid's spar frame, a lattice's strips).
+
+    The numpy arrays of a built value (the value itself, or the items of a tuple or list) are
+    made read-only, since every caller shares them. The dict is cleared before it would hold
+    more than ``keep`` entries (a long batch process does not grow it without bound; a run
+    uses one or two entries). ``key`` must be exact (e.g. the arrays' bytes), not an ``id``:
+    an equal key must mean an equal value.
+    """
+    try:
+        return cache[key]
+    except KeyError:
+        pass
+    value = _frozen(build())
+    if len(cache) >= keep:
+        cache.clear()
+    cache[key] = value
+    return value

@@ -382,7 +382,9 @@ class AeroModel:
             self._vind_2d = hit
         return hit[1]
 
-    def _solution(self, alpha_deg: float, alpha: float, g) -> AeroSolution:
+    def _strip_sums(self, alpha: float, g) -> tuple:
+        """(F (N, 3) force / q per panel, lift, pitching moment and induced drag per strip, all
+        per q) at `alpha` (rad) with circulations g (N,): the strip part of :meth:`_solution`."""
         lat = self.lattice
         ns, nc = lat.n_span, lat.n_chord
         ca, sa = math.cos(alpha), math.sin(alpha)
@@ -397,6 +399,20 @@ class AeroModel:
         my_s = self._moment(F, self._arm_strip).reshape(ns, nc).sum(axis=1)
         G = g.reshape(ns, nc).sum(axis=1)
         drag_s = -G * (self._W_trefftz @ G) * self._ds
+        return F, lift_s, my_s, drag_s
+
+    def strip_loads(self, alpha_deg: float) -> tuple:
+        """(lift_per_q, drag_per_q, moment_per_q) per strip (m, m, m^2) at `alpha_deg` (deg):
+        the three strip series of :meth:`solve`'s AeroSolution (the same arithmetic, the same
+        bits) without the rest of the record."""
+        alpha = _alpha_rad(alpha_deg)
+        _F, lift_s, my_s, drag_s = self._strip_sums(alpha, self._gamma([alpha])[:, 0])
+        w = self.lattice.strip_width
+        return lift_s / w, drag_s / w, my_s / w
+
+    def _solution(self, alpha_deg: float, alpha: float, g) -> AeroSolution:
+        lat = self.lattice
+        F, lift_s, my_s, drag_s = self._strip_sums(alpha, g)
         S, fac = lat.s_ref, self._fac
         CL = fac * lift_s.sum() / S
         CDi = fac * drag_s.sum() / S

@@ -65,10 +65,16 @@ def trim(model, cf_req: float, cd0: float, body_axis: bool, drag_form=None) -> t
     drag_form: (Q_xx, Q_xz, Q_zz) of CDi(alpha) (MachModels.induced_drag_form); without it each
     step solves the lattice.
     """
+    alpha, CL = trim_alpha(model, cf_req, cd0, body_axis, drag_form)
+    return alpha, model.solve(alpha), CL
+
+
+def trim_alpha(model, cf_req: float, cd0: float, body_axis: bool, drag_form=None) -> tuple:
+    """(alpha_deg, CL) of :func:`trim` (the same iterates) without the solve at the end."""
     CL = cf_req
     alpha = model.alpha_for_cl(CL)
     if not body_axis:
-        return alpha, model.solve(alpha), CL
+        return alpha, CL
 
     def cdi(alpha_deg):
         if drag_form is None:
@@ -84,7 +90,7 @@ def trim(model, cf_req: float, cd0: float, body_axis: bool, drag_form=None) -> t
             break
         CL = cl_new
         alpha = model.alpha_for_cl(CL)
-    return alpha, model.solve(alpha), CL
+    return alpha, CL
 
 
 def stall_warning(cf_req: float, CL_req: float, mach: float, models: MachModels, body_axis: bool,
@@ -118,13 +124,11 @@ def stall_warning(cf_req: float, CL_req: float, mach: float, models: MachModels,
     return ""
 
 
-def trim_case(lc, case, models: MachModels, atmosphere=density_and_sound,
-              wing_force_N=None, name=None) -> TrimmedCase:
-    """Trim one LoadCase of a Case on the models' lattice; atmosphere: h -> (rho, a), the one
-    atmosphere of the run (used for the airspeeds, the Mach number and q). wing_force_N: the
-    wing's force (both sides, on the case's load-factor axis) when a pitch trim with a tail
-    gives it; None = lift_share x n W. name: the case's name when not lc.name (one c.g. of a
-    case trimmed in pitch)."""
+def flight_state(lc, case, models: MachModels, atmosphere=density_and_sound,
+                 wing_force_N=None, name=None) -> tuple:
+    """What :func:`trim_case` needs before it trims: (v_eas, v_tas, mach, q_pa, mass_kg,
+    force_required_N, model, cd0, body_axis, cf_required, drag_form); the case's errors (Mach
+    1 or more, speed not positive) raised naming it."""
     name = lc.name if name is None else name
     v_eas, v_tas = airspeeds(lc.speed_m_s, lc.speed_type, lc.altitude_m, atmosphere)
     mach = mach_number(v_tas, lc.altitude_m, atmosphere)
@@ -142,6 +146,19 @@ def trim_case(lc, case, models: MachModels, atmosphere=density_and_sound,
     body_axis = case.load_factor_axis == "body"
     cf_req = force_req / (q * models.lattice.s_ref)
     drag_form = models.induced_drag_form(mach) if body_axis else None
+    return v_eas, v_tas, mach, q, mass, force_req, model, cd0, body_axis, cf_req, drag_form
+
+
+def trim_case(lc, case, models: MachModels, atmosphere=density_and_sound,
+              wing_force_N=None, name=None) -> TrimmedCase:
+    """Trim one LoadCase of a Case on the models' lattice; atmosphere: h -> (rho, a), the one
+    atmosphere of the run (used for the airspeeds, the Mach number and q). wing_force_N: the
+    wing's force (both sides, on the case's load-factor axis) when a pitch trim with a tail
+    gives it; None = lift_share x n W. name: the case's name when not lc.name (one c.g. of a
+    case trimmed in pitch)."""
+    name = lc.name if name is None else name
+    fc = flight_state(lc, case, models, atmosphere, wing_force_N, name)
+    v_eas, v_tas, mach, q, mass, force_req, model, cd0, body_axis, cf_req, drag_form = fc
     alpha, sol, CL_req = trim(model, cf_req, cd0, body_axis, drag_form)
     env = case.envelope
     warn = stall_warning(cf_req, CL_req, mach, models, body_axis,

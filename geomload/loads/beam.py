@@ -24,6 +24,7 @@ import numpy as np
 from geomload.aero.vortex import cross as _cross  # component form, numpy.cross's arithmetic
 from geomload.errors import InputError
 from geomload.geometry.sparline import spar_line  # noqa: F401  (re-exported)
+from geomload.record_checks import kept
 
 from .records import AppliedLoads, Equilibrium, LoadGrid, PointLoad, SpanLoads  # noqa: F401
 
@@ -63,17 +64,12 @@ _FRAMES_KEEP = 8  # shares one grid, and np.gradient costs about 0.2 ms per call
 def _shared_spar_frame(y, spar_x, spar_z):
     """(s, b, n, p, p - p[-1], diff(y)): spar_frame, the spar points and the segment lengths,
     computed once per grid (the arrays are returned read-only and shared)."""
-    key = (y.tobytes(), spar_x.tobytes(), spar_z.tobytes())
-    hit = _FRAMES.get(key)
-    if hit is None:
+
+    def build():
         p = np.column_stack([spar_x, y, spar_z])
-        hit = (*spar_frame(y, spar_x, spar_z), p, p - p[-1], np.diff(y))
-        for a in hit:
-            a.setflags(write=False)
-        if len(_FRAMES) >= _FRAMES_KEEP:
-            _FRAMES.clear()
-        _FRAMES[key] = hit
-    return hit
+        return (*spar_frame(y, spar_x, spar_z), p, p - p[-1], np.diff(y))
+
+    return kept(_FRAMES, (y.tobytes(), spar_x.tobytes(), spar_z.tobytes()), build, _FRAMES_KEEP)
 
 
 def _segment_moments(y, p, r, f):

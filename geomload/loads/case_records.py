@@ -7,7 +7,7 @@ orchestration; frozen, checked when built, never changed after.
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Optional
+from typing import NamedTuple, Optional
 
 from geomload.aero.records import AeroSolution
 from geomload.record_checks import check_type, set_field
@@ -112,4 +112,23 @@ class ControlState:
         set_field(self, "side_factors", factors)
 
 
-__all__ = ["CASE_KINDS", "CaseResult", "ControlState"]
+class RootLoads(NamedTuple):
+    """The root resultants of one side of a case, for a run that needs nothing else (the error
+    estimate's coarser lattices): shear_N, bending_Nm, torsion_Nm, each a one-item tuple (the
+    root row of the SpanLoads series of the same name: ``loads.shear_N[0]`` reads both)."""
+
+    shear_N: tuple
+    bending_Nm: tuple
+    torsion_Nm: tuple
+
+
+class CaseRoots(NamedTuple):
+    """One case's name and its starboard RootLoads (port_loads None: a symmetric case), read
+    like a CaseResult's ``name``, ``loads`` and ``port_loads``."""
+
+    name: str
+    loads: RootLoads
+    port_loads: Optional[RootLoads] = None
+
+
+__all__ = ["CASE_KINDS", "CaseResult", "ControlState", "RootLoads", "CaseRoots"]

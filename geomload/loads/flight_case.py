@@ -13,6 +13,7 @@ import math
 
 import numpy as np
 
+from geomload.record_checks import kept
 from geomload.units import G0
 
 from .beam import _trapz, integrate
@@ -30,36 +31,58 @@ def applied_loads(grid: LoadGrid, trimmed, strip_width, masses: MassDistribution
     strip_width: (ns,) the lattice strip widths (m); masses: the case's MassDistribution on the
     grid; point_masses: PointMass items (starboard, full mass each).
     """
-    sol, q = trimmed.solution, trimmed.q_pa
-    y = grid.y
-    idx, ys, ws, h = _starboard_strips(np.asarray(sol.y), np.asarray(strip_width), y)
-
-    def pick(a):
-        return np.asarray(a)[idx]
-
-    lift_s = pick(sol.lift_per_q) * q
-    drag_s = pick(sol.drag_per_q) * q + trimmed.cd0 * q * pick(sol.chord)
-    pitch_s = pick(sol.moment_per_q) * q
-    lift, drag, pitch = _to_grid_rows(y, h, ys, (lift_s, drag_s, pitch_s), ws)
-    # n g m'(y) and the point masses' weights: masses.inertia_loads' arithmetic, each PointLoad
-    # built once (with the tilted force) instead of twice
-    inertia = trimmed.load_factor * G0 * masses.kg_per_m
-    # inertia along the load factor: normal to the longitudinal axis (body, 14 CFR 23.321(a)),
-    # or opposite the lift (flight path)
-    tilt = 0.0 if trimmed.body_axis else trimmed.alpha_deg
-    ca, sa = math.cos(math.radians(tilt)), math.sin(math.radians(tilt))
-    point_loads = []
-    for p in tuple(point_masses) + tuple(masses.lumped):
-        fz = np.float64(-trimmed.load_factor * G0 * p.mass)
-        point_loads.append(PointLoad(p.name, np.asarray(p.position, float),
-                                     np.array([-fz * sa, 0.0, fz * ca])))
-    point_loads = tuple(point_loads)
-    side = -lift * _slope(grid.load_z, y)
+    sol = trimmed.solution
+    lift, drag, side, pitch, inertia, tilt, points = applied_arrays(
+        grid, sol.y, strip_width, sol.lift_per_q, sol.drag_per_q, sol.moment_per_q, sol.chord,
+        trimmed.q_pa, trimmed.cd0, trimmed.load_factor, trimmed.alpha_deg, trimmed.body_axis,
+        masses, point_masses)
+    point_loads = tuple(PointLoad(name, position, force) for name, position, force in points)
     return AppliedLoads(lift_N_per_m=lift, drag_N_per_m=drag, side_N_per_m=side,
                         pitch_Nm_per_m=pitch, load_x_m=grid.load_x, load_z_m=grid.load_z,
                         inertia_N_per_m=inertia, inertia_x_m=masses.x_m, inertia_z_m=masses.z_m,
                         point_loads=point_loads, alpha_deg=trimmed.alpha_deg,
                         inertia_alpha_deg=tilt)
+
+
+def applied_arrays(grid: LoadGrid, strip_y, strip_width, lift_per_q, drag_per_q, moment_per_q,
+                   chord, q_pa, cd0, load_factor, alpha_deg, body_axis, masses: MassDistribution,
+                   point_masses=()) -> tuple:
+    """The pieces of :func:`applied_loads` without the record: (lift, drag, side, pitch,
+    inertia (each (n,) on the grid: N/m, N m/m), inertia tilt (deg), ((name, position (3,) m,
+    force (3,) N) of each point mass, then each lumped mass)). Strip series per q as an
+    AeroSolution holds them (strip_y, chord in m)."""
+    y = grid.y
+    idx, ys, ws, h = _starboard_strips(np.asarray(strip_y), np.asarray(strip_width), y)
+
+    def pick(a):
+        return np.asarray(a)[idx]
+
+    q = q_pa
+    lift_s = pick(lift_per_q) * q
+    drag_s = pick(drag_per_q) * q + cd0 * q * pick(chord)
+    pitch_s = pick(moment_per_q) * q
+    lift, drag, pitch = _to_grid_rows(y, h, ys, (lift_s, drag_s, pitch_s), ws)
+    # n g m'(y) and the point masses' weights: masses.inertia_loads' arithmetic, each force
+    # built once (with the tilt)
+    inertia = load_factor * G0 * masses.kg_per_m
+    points, tilt = point_forces(load_factor, alpha_deg, body_axis, masses, point_masses)
+    side = -lift * _slope(grid.load_z, y)
+    return lift, drag, side, pitch, inertia, tilt, points
+
+
+def point_forces(load_factor, alpha_deg, body_axis, masses: MassDistribution,
+                 point_masses=()) -> tuple:
+    """(((name, position (3,) m, force (3,) N) of each point mass, then each lumped mass),
+    inertia tilt (deg)): the weights n g m of the point masses along the load factor."""
+    # inertia along the load factor: normal to the longitudinal axis (body, 14 CFR 23.321(a)),
+    # or opposite the lift (flight path)
+    tilt = 0.0 if body_axis else alpha_deg
+    ca, sa = math.cos(math.radians(tilt)), math.sin(math.radians(tilt))
+    points = []
+    for p in tuple(point_masses) + tuple(masses.lumped):
+        fz = np.float64(-load_factor * G0 * p.mass)
+        points.append((p.name, np.asarray(p.position, float), np.array([-fz * sa, 0.0, fz * ca])))
+    return points, tilt
 
 
 _STRIPS: dict = {}  # (strip y, strip width, grid y) bytes -> read-only pieces (one per lattice)
@@ -70,19 +93,15 @@ def _starboard_strips(strip_y, strip_width, y) -> tuple:
     """(index, y, width, diff(grid y)): the starboard strips of a lattice (a full-span lattice's
     y >= 0) in increasing y, as an index into the strip arrays, computed once per lattice and
     grid (every case of a run shares them; returned read-only)."""
-    key = (strip_y.tobytes(), strip_width.tobytes(), y.tobytes())
-    hit = _STRIPS.get(key)
-    if hit is None:
+
+    def build():
         keep = strip_y >= 0
         ys, ws = strip_y[keep], strip_width[keep]
         order = np.argsort(ys)
-        hit = (np.flatnonzero(keep)[order], ys[order], ws[order], y[1:] - y[:-1])
-        for a in hit:
-            a.setflags(write=False)
-        if len(_STRIPS) >= _STRIPS_KEEP:
-            _STRIPS.clear()
-        _STRIPS[key] = hit
-    return hit
+        return (np.flatnonzero(keep)[order], ys[order], ws[order], y[1:] - y[:-1])
+
+    return kept(_STRIPS, (strip_y.tobytes(), strip_width.tobytes(), y.tobytes()), build,
+                _STRIPS_KEEP)
 
 
 _SLOPES: dict = {}  # (z, y) bytes -> read-only dz/dy: every case of a run shares one grid
@@ -91,15 +110,7 @@ _SLOPES_KEEP = 8
 
 def _slope(z, y) -> np.ndarray:
     """np.gradient(z, y), computed once per grid (returned read-only and shared)."""
-    key = (z.tobytes(), y.tobytes())
-    hit = _SLOPES.get(key)
-    if hit is None:
-        hit = np.gradient(z, y)
-        hit.setflags(write=False)
-        if len(_SLOPES) >= _SLOPES_KEEP:
-            _SLOPES.clear()
-        _SLOPES[key] = hit
-    return hit
+    return kept(_SLOPES, (z.tobytes(), y.tobytes()), lambda: np.gradient(z, y), _SLOPES_KEEP)
 
 
 def grid_twist_deg(grid: LoadGrid) -> np.ndarray:
