@@ -45,7 +45,8 @@ def compute_takes_cache() -> bool:
 
 
 def compute(case, progress=None, cache=None, error_bars=False, detail=True):
-    """Run every load case of `case` in memory; returns a RunResult.
+    """Run every load case of `case` in memory; returns a RunResult (detail False: a
+    pipeline.RootsRun, the cases' root loads only, for the error estimate's coarser lattices).
 
     cache: a dict shared between calls in one process (same geometry, same lattice and Mach);
     passed on only when the pipeline supports it. error_bars: also estimate the discretization
@@ -62,8 +63,10 @@ def compute(case, progress=None, cache=None, error_bars=False, detail=True):
         if not compute_takes("error_bars"):
             raise GeomloadError("this geomload's pipeline cannot estimate error bars")
         kw["error_bars"] = True
-    if not detail:  # loads only, without their cross-checks (the error estimate's coarse runs)
-        kw["detail"] = False
+    if not detail:  # the error estimate's coarse runs: the cases' root loads are all it reads
+        from geomload.pipeline import ROOTS
+
+        kw["detail"] = ROOTS
     return _compute(case, progress, **kw) if kw else _compute(case, progress)
 
 
