@@ -12,7 +12,6 @@ number that is not finite is written as null.
 
 from __future__ import annotations
 
-import json
 import math
 
 import numpy as np
@@ -21,6 +20,7 @@ from geomload import CAUTION, __version__
 from geomload import textsafe
 from geomload.export import envelope_access as ea
 from geomload.export.atomic import write_text_atomic
+from geomload.export.json_text import dumps_safe
 
 SIGNS = ("sign convention: shear positive up (net upward load outboard of the station); "
          "bending positive tip-up (upper skin in compression); torsion positive nose-up about "
@@ -344,8 +344,9 @@ def write_summary_json(path, run_result, inputs=(), more_warnings=()):
     structural hand-off's), listed after the run's."""
     data = summary(run_result)
     data["warnings"] += [w for w in more_warnings if w not in data["warnings"]]
-    text = json.dumps(textsafe.json_safe(data), indent=1, allow_nan=False, ensure_ascii=False)
-    return write_text_atomic(path, text + "\n", inputs)
+    # the text of json.dumps(textsafe.json_safe(data), indent=1, allow_nan=False,
+    # ensure_ascii=False), byte for byte, in one faster pass (json_text)
+    return write_text_atomic(path, dumps_safe(data, indent=1) + "\n", inputs)
 
 
 def write_aero_csv(path, solution, source="", inputs=()):
