@@ -55,8 +55,8 @@ def printable(s, keep_newlines: bool = False) -> str:
     Windows).
     """
     s = str(s)
-    if s.isascii() and s.isprintable():  # nothing to escape: printable ASCII has no Cc/Cf/Z*
-        return s
+    if s.isprintable():  # nothing to escape: str.isprintable() is False for every character
+        return s         # of category C* or Z* but the ASCII space (the same Unicode database)
     out = []
     for ch in s:
         if keep_newlines and ch in "\n\t":

@@ -3,6 +3,7 @@
 import dataclasses
 import json
 import math
+import unicodedata
 
 import numpy as np
 import pytest
@@ -113,3 +114,15 @@ def test_loads_plot_uses_one_collection_for_many_cases():
     allv = np.concatenate([c.loads.shear_N for c in run.cases])
     assert lo <= allv.min() and hi >= allv.max()
     assert not math.isnan(lo)
+
+
+def test_printable_leaves_exactly_the_characters_outside_the_escaped_categories():
+    # Unicode Character Database (Python's unicodedata): a character is escaped when its
+    # general category is Cc, Cf, Zl, Zp, Cs, Co or Cn; every other character stays as it is
+    escaped = {"Cc", "Cf", "Zl", "Zp", "Cs", "Co", "Cn"}
+    wrong = [o for o in range(0x110000)
+             if (textsafe.printable(chr(o)) != chr(o))
+             != (unicodedata.category(chr(o)) in escaped)]
+    assert wrong == []
+    assert textsafe.printable("Überziehen — 60° ·") == "Überziehen — 60° ·"
+    assert textsafe.printable("a\u2029b\u00a0c") == "a\\u2029b\u00a0c"  # Zp escaped, Zs kept
