@@ -32,8 +32,9 @@ def deck_texts(loads_list, frame=None, unit_scale_m: float = 1.0, unit: str = "m
     out = []
     for loads in loads_list:
         nl = nodal_loads(loads)
-        out.append((loads.case, beam_deck(nl, frame, unit_scale_m, unit, title).text,
-                    nodal_loads_csv(nl, frame, unit_scale_m, unit)))
+        cad = to_cad(nl, frame, unit_scale_m)  # once for both texts
+        out.append((loads.case, beam_deck(nl, frame, unit_scale_m, unit, title, cad=cad).text,
+                    nodal_loads_csv(nl, frame, unit_scale_m, unit, cad=cad)))
     return out
 
 

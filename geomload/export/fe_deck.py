@@ -183,6 +183,23 @@ def _geometry_part(pts, R, s: float, lever_nodes: tuple) -> tuple:
     return part
 
 
+_LEVER_MATRICES: dict = {}  # (exact bytes of the lever axes and arm) -> their 3 x 3 matrix
+
+
+def _lever_matrix(ea, eb, ec, arm) -> np.ndarray:
+    """arm [ea x eb, ea x ec, eb x ec] (columns): a nodal moment's force couples on the two
+    lever arms solve this matrix. Kept per geometry (the same for every deck of a run)."""
+    key = (ea.tobytes(), eb.tobytes(), ec.tobytes(), float(arm))
+    m = _LEVER_MATRICES.get(key)
+    if m is None:
+        m = arm * np.column_stack([_cross3(ea, eb), _cross3(ea, ec), _cross3(eb, ec)])
+        m.setflags(write=False)
+        if len(_LEVER_MATRICES) >= GEOMETRY_KEPT:
+            _LEVER_MATRICES.clear()
+        _LEVER_MATRICES[key] = m
+    return m
+
+
 _CLOAD_STARTS: dict = {}  # n -> (n, 3, 3) "node, dof, " texts of the *CLOAD lines
 
 
@@ -204,12 +221,13 @@ def _cload_starts(n: int) -> np.ndarray:
 
 
 def beam_deck(nl: NodalLoads, frame=None, unit_scale_m: float = 1.0, unit: str = "m",
-              title: str = "") -> BeamDeck:
+              title: str = "", cad=None) -> BeamDeck:
     """The CalculiX input deck (text) of the spar beam of one case, in the CAD frame and unit.
 
     The spar's nodes, elements, sections and supports (`_geometry_part`) are the same for
-    every case on one load grid and are built once; each deck adds its title and its loads."""
-    pts, F, Mo = to_cad(nl, frame, unit_scale_m)
+    every case on one load grid and are built once; each deck adds its title and its loads.
+    cad : `to_cad(nl, frame, unit_scale_m)` when the caller has it already."""
+    pts, F, Mo = to_cad(nl, frame, unit_scale_m) if cad is None else cad
     s = float(unit_scale_m)
     n = pts.shape[0]
     if n < 2 or not float(np.sum(np.linalg.norm(np.diff(pts, axis=0), axis=1))) > 0:
@@ -233,8 +251,7 @@ def beam_deck(nl: NodalLoads, frame=None, unit_scale_m: float = 1.0, unit: str =
           "** Section and material are NOMINAL: the model is statically determinate, so the",
           "** reactions and internal forces do not depend on them (displacements do).",
           geometry]
-    lev = np.linalg.solve(arm * np.column_stack([_cross3(ea, eb), _cross3(ea, ec),
-                                                 _cross3(eb, ec)]), Mo.T).T
+    lev = np.linalg.solve(_lever_matrix(ea, eb, ec, arm), Mo.T).T
     gA = lev[:, :1] * eb + lev[:, 1:2] * ec   # force at lever node A_i (and minus it at node i)
     gB = lev[:, 2:3] * ec                     # force at lever node B_i (and minus it at node i)
     # every node with a moment has levers (gA = gB = 0 elsewhere). Per node i, in order: its
@@ -256,9 +273,11 @@ def beam_deck(nl: NodalLoads, frame=None, unit_scale_m: float = 1.0, unit: str =
                     unit_scale_m=s)
 
 
-def nodal_loads_csv(nl: NodalLoads, frame=None, unit_scale_m: float = 1.0, unit: str = "m") -> str:
-    """CSV text: node, x, y, z (CAD unit), Fx, Fy, Fz (N), Mx, My, Mz (N*unit), CAD frame."""
-    pts, F, Mo = to_cad(nl, frame, unit_scale_m)
+def nodal_loads_csv(nl: NodalLoads, frame=None, unit_scale_m: float = 1.0, unit: str = "m",
+                    cad=None) -> str:
+    """CSV text: node, x, y, z (CAD unit), Fx, Fy, Fz (N), Mx, My, Mz (N*unit), CAD frame.
+    cad : `to_cad(nl, frame, unit_scale_m)` when the caller has it already."""
+    pts, F, Mo = to_cad(nl, frame, unit_scale_m) if cad is None else cad
     u = unit
     lines = ["# " + CAUTION,
              f"# geomload nodal loads of the spar beam deck, case '{nl.case}' (limit loads)",
