@@ -9,7 +9,7 @@ as str, any other object as its str), in one pass and without the standard libra
 encoder, which is pure Python and passes every value up through one generator per nesting
 level. Numbers are written by the same functions json uses (``float.__repr__``,
 ``int.__repr__``), strings by json's own ``encode_basestring`` and the layout is json's: one
-item per line, ``indent`` spaces per level, ``", "``-free separators (``","`` and ``": "``),
+item per line, ``indent`` spaces per level, ``","`` after an item and ``": "`` after a key,
 ``[]`` and ``{}`` for empty containers. Keys repeat across a run's cases, so each key's encoded
 line start is kept per nesting level.
 """
