@@ -55,17 +55,21 @@ def printable(s, keep_newlines: bool = False) -> str:
     Windows).
     """
     s = str(s)
-    if s.isascii() and s.isprintable():  # nothing to escape: printable ASCII has no Cc/Cf/Z*
-        return s
+    if s.isprintable():  # nothing to escape: str.isprintable() is False for every character
+        return s         # of category C* or Z* but the ASCII space (the same Unicode database)
+    if keep_newlines:  # the rule is per character: each piece between newlines and TABs alone
+        return "".join(p if p in ("\n", "\t") else printable(p)
+                       for p in _KEPT_SPACE.split(s))
     out = []
     for ch in s:
-        if keep_newlines and ch in "\n\t":
-            out.append(ch)
-        elif _unsafe(ch):
+        if _unsafe(ch):
             out.append(_escape_char(ch))
         else:
             out.append(ch)
     return "".join(out)
+
+
+_KEPT_SPACE = re.compile(r"([\n\t])")  # split keeping the separators
 
 
 def csv_text_cell(s) -> str:

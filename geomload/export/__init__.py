@@ -19,7 +19,8 @@ Run folder layout written by `write_all`::
 from __future__ import annotations
 
 import dataclasses
-from pathlib import Path
+import os
+from pathlib import Path, PurePath
 
 
 def write_all(run, folder, inputs=(), render=True, progress=None, options=None,
@@ -65,8 +66,10 @@ def write_all(run, folder, inputs=(), render=True, progress=None, options=None,
         if progress is not None:
             progress("export", step[0], total)
 
-    def rec(p, tick_too=True):
-        files.append(Path(p).relative_to(f) if Path(p).is_absolute() else Path(p))
+    prefix = _prefix(f)
+
+    def rec(p, tick_too=True, rel=None):
+        files.append(_relative(p, f, prefix, rel))
         if tick_too:
             tick()
 
@@ -133,6 +136,31 @@ def write_all(run, folder, inputs=(), render=True, progress=None, options=None,
     return {"files": files, "images": images, "loads": loads, "warnings": warnings}
 
 
+def _prefix(f: Path):
+    """str(f) + the separator when f is absolute (else None): the start of every path written
+    into the run folder f, as a string."""
+    if not f.is_absolute():
+        return None
+    s = str(f)
+    return s if s.endswith(os.sep) else s + os.sep
+
+
+def _relative(p, f: Path, prefix, rel=None) -> Path:
+    """Path(p).relative_to(f) for an absolute p (else Path(p)). A path written into f (a Path
+    whose string starts with `prefix`) is cut as a string, and `rel` (the relative path the
+    caller built) is returned itself when it is that remainder: no path parsed again for each
+    of a run's thousands of files."""
+    if prefix is not None and isinstance(p, PurePath):
+        s = str(p)
+        if s.startswith(prefix) and len(s) > len(prefix):
+            tail = s[len(prefix):]
+            if rel is not None and str(rel) == tail:
+                return rel
+            return Path(tail)
+    q = Path(p)
+    return q.relative_to(f) if q.is_absolute() else q
+
+
 def _write_tables(run, f, inputs, rec, loads) -> None:
     """stations.csv, loads/<case>.csv (an unsymmetric case: one file per side), envelope.csv,
     vn.csv into the run folder f; rec(path, tick_too) records each file written (summary.json
@@ -143,18 +171,22 @@ def _write_tables(run, f, inputs, rec, loads) -> None:
     rec(tables.write_stations_csv(f / "stations.csv", run.stations, run.frame, run.mesh.source,
                                   run.mesh.units, inputs))
     taken: set = set()
+    folder = str(f)  # paths joined as strings (safe_name: no separator, never '.' or '..')
     for cr in run.cases:
         if cr.port_loads is None:
-            rel = Path("loads") / f"{safe_name(cr.name, taken)}.csv"
-            rec(tables.write_loads_csv(f / rel, cr, frame=run.frame, inputs=inputs))
+            file = f"{safe_name(cr.name, taken)}.csv"
+            rel = Path("loads", file)
+            rec(tables.write_loads_csv(os.path.join(folder, "loads", file), cr, frame=run.frame,
+                                       inputs=inputs), rel=rel)
             loads[cr.name] = rel
             continue
         for k, (side, sl) in enumerate(cr.sides):  # one progress step per case
             name = f"{cr.name}__{side}"
-            rel = Path("loads") / f"{safe_name(name, taken)}.csv"
+            file = f"{safe_name(name, taken)}.csv"
+            rel = Path("loads", file)
             one = dataclasses.replace(cr, name=name, loads=sl, residual=sl.equilibrium.residual)
-            rec(tables.write_loads_csv(f / rel, one, frame=run.frame, inputs=inputs),
-                tick_too=k == len(cr.sides) - 1)
+            rec(tables.write_loads_csv(os.path.join(folder, "loads", file), one, frame=run.frame,
+                                       inputs=inputs), tick_too=k == len(cr.sides) - 1, rel=rel)
             loads[name] = rel
     if run.envelope is not None:
         rec(tables.write_envelope_csv(f / "envelope.csv", run.envelope, inputs))

@@ -12,6 +12,7 @@ user chose (the stored WingFrame transform applied back); forces in N, moments i
 
 from __future__ import annotations
 
+import os
 from pathlib import Path
 
 from geomload.export import mesh_map, sizing
@@ -31,8 +32,9 @@ def deck_texts(loads_list, frame=None, unit_scale_m: float = 1.0, unit: str = "m
     out = []
     for loads in loads_list:
         nl = nodal_loads(loads)
-        out.append((loads.case, beam_deck(nl, frame, unit_scale_m, unit, title).text,
-                    nodal_loads_csv(nl, frame, unit_scale_m, unit)))
+        cad = to_cad(nl, frame, unit_scale_m)  # once for both texts
+        out.append((loads.case, beam_deck(nl, frame, unit_scale_m, unit, title, cad=cad).text,
+                    nodal_loads_csv(nl, frame, unit_scale_m, unit, cad=cad)))
     return out
 
 
@@ -49,11 +51,11 @@ def write_fe_decks(folder, loads_list, frame=None, unit_scale_m: float = 1.0, un
             and all(t[0] == L.case for t, L in zip(texts, loads_list))):
         texts = deck_texts(loads_list, frame, unit_scale_m, unit, title)
     taken, paths = set(), []
-    d = Path(folder) / "fe"
+    d = str(Path(folder) / "fe")  # joined as strings (safe_name: no separator, never '..')
     for case, deck, csv in texts:
         name = safe_name(case, taken)
-        paths.append(write_text_atomic(d / f"{name}.inp", deck, inputs))
-        paths.append(write_text_atomic(d / f"{name}_nodal_loads.csv", csv, inputs))
+        paths.append(write_text_atomic(os.path.join(d, f"{name}.inp"), deck, inputs))
+        paths.append(write_text_atomic(os.path.join(d, f"{name}_nodal_loads.csv"), csv, inputs))
     return paths
 
 

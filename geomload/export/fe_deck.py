@@ -183,13 +183,51 @@ def _geometry_part(pts, R, s: float, lever_nodes: tuple) -> tuple:
     return part
 
 
+_LEVER_MATRICES: dict = {}  # (exact bytes of the lever axes and arm) -> their 3 x 3 matrix
+
+
+def _lever_matrix(ea, eb, ec, arm) -> np.ndarray:
+    """arm [ea x eb, ea x ec, eb x ec] (columns): a nodal moment's force couples on the two
+    lever arms solve this matrix. Kept per geometry (the same for every deck of a run)."""
+    key = (ea.tobytes(), eb.tobytes(), ec.tobytes(), float(arm))
+    m = _LEVER_MATRICES.get(key)
+    if m is None:
+        m = arm * np.column_stack([_cross3(ea, eb), _cross3(ea, ec), _cross3(eb, ec)])
+        m.setflags(write=False)
+        if len(_LEVER_MATRICES) >= GEOMETRY_KEPT:
+            _LEVER_MATRICES.clear()
+        _LEVER_MATRICES[key] = m
+    return m
+
+
+_CLOAD_STARTS: dict = {}  # n -> (n, 3, 3) "node, dof, " texts of the *CLOAD lines
+
+
+def _cload_starts(n: int) -> np.ndarray:
+    """The starts "node, dof, " of every possible *CLOAD line of a deck with n spar nodes, as
+    an (n, 3, 3) object array: per node i its own node (i + 1) and its two lever nodes
+    (n + 4 + 2 i and n + 5 + 2 i), each with DOF 1, 2, 3 (beam_deck's line order)."""
+    hit = _CLOAD_STARTS.get(n)
+    if hit is None:
+        out = np.empty((n, 3, 3), dtype=object)
+        for i in range(n):
+            for r, node in enumerate((i + 1, n + 4 + 2 * i, n + 5 + 2 * i)):
+                for d in range(3):
+                    out[i, r, d] = f"{node}, {d + 1}, "
+        if len(_CLOAD_STARTS) >= GEOMETRY_KEPT:
+            _CLOAD_STARTS.clear()
+        hit = _CLOAD_STARTS[n] = out
+    return hit
+
+
 def beam_deck(nl: NodalLoads, frame=None, unit_scale_m: float = 1.0, unit: str = "m",
-              title: str = "") -> BeamDeck:
+              title: str = "", cad=None) -> BeamDeck:
     """The CalculiX input deck (text) of the spar beam of one case, in the CAD frame and unit.
 
     The spar's nodes, elements, sections and supports (`_geometry_part`) are the same for
-    every case on one load grid and are built once; each deck adds its title and its loads."""
-    pts, F, Mo = to_cad(nl, frame, unit_scale_m)
+    every case on one load grid and are built once; each deck adds its title and its loads.
+    cad : `to_cad(nl, frame, unit_scale_m)` when the caller has it already."""
+    pts, F, Mo = to_cad(nl, frame, unit_scale_m) if cad is None else cad
     s = float(unit_scale_m)
     n = pts.shape[0]
     if n < 2 or not float(np.sum(np.linalg.norm(np.diff(pts, axis=0), axis=1))) > 0:
@@ -213,34 +251,33 @@ def beam_deck(nl: NodalLoads, frame=None, unit_scale_m: float = 1.0, unit: str =
           "** Section and material are NOMINAL: the model is statically determinate, so the",
           "** reactions and internal forces do not depend on them (displacements do).",
           geometry]
-    lev = np.linalg.solve(arm * np.column_stack([_cross3(ea, eb), _cross3(ea, ec),
-                                                 _cross3(eb, ec)]), Mo.T).T
+    lev = np.linalg.solve(_lever_matrix(ea, eb, ec, arm), Mo.T).T
     gA = lev[:, :1] * eb + lev[:, 1:2] * ec   # force at lever node A_i (and minus it at node i)
     gB = lev[:, 2:3] * ec                     # force at lever node B_i (and minus it at node i)
     # every node with a moment has levers (gA = gB = 0 elsewhere). Per node i, in order: its
     # own force, then lever A's and lever B's (nodes with levers only); each DOF 1-3 whose
     # value is not zero gets a line "node, dof, value"
-    one_to_n = np.arange(1.0, n + 1.0)
     node_f = F - gA - gB
     has_lev = np.zeros(n, bool)
     has_lev[list(lever_nodes)] = True
     value = np.stack([node_f, gA, gB], axis=1)                           # (n, 3 rows, 3 DOFs)
-    lev_a = n + 4 + 2 * np.arange(n, dtype=float)
-    node = np.column_stack([one_to_n, lev_a, lev_a + 1])[:, :, None]     # (n, 3 rows, 1)
-    dof = np.array([1.0, 2.0, 3.0])
     used = np.column_stack([np.ones(n, bool), has_lev, has_lev])[:, :, None] & (value != 0.0)
-    cload = np.stack(np.broadcast_arrays(node, dof, value), axis=-1)[used]  # (lines, 3)
-    if cload.shape[0]:
-        L.append(_block("%d, %d, %.14g", cload))
+    if used.any():
+        # the lines "node, dof, value" in one %-format: the "node, dof, " starts of the used
+        # lines (the same for every deck with n nodes) joined by the value's '%.14g'
+        starts = _cload_starts(n)[used].tolist()
+        L.append(("%.14g\n".join(starts) + "%.14g") % tuple(value[used].tolist()))
     L += ["*NODE PRINT, NSET=SUPPORT", "RF", "*NODE FILE, NSET=NALL", "U", "*END STEP"]
     return BeamDeck(text="\n".join(L) + "\n", spar_nodes=tuple(range(1, n + 1)),
                     support_nodes={na: pa, nb: pb, nc: pc}, root_cad=pts[0], unit=unit,
                     unit_scale_m=s)
 
 
-def nodal_loads_csv(nl: NodalLoads, frame=None, unit_scale_m: float = 1.0, unit: str = "m") -> str:
-    """CSV text: node, x, y, z (CAD unit), Fx, Fy, Fz (N), Mx, My, Mz (N*unit), CAD frame."""
-    pts, F, Mo = to_cad(nl, frame, unit_scale_m)
+def nodal_loads_csv(nl: NodalLoads, frame=None, unit_scale_m: float = 1.0, unit: str = "m",
+                    cad=None) -> str:
+    """CSV text: node, x, y, z (CAD unit), Fx, Fy, Fz (N), Mx, My, Mz (N*unit), CAD frame.
+    cad : `to_cad(nl, frame, unit_scale_m)` when the caller has it already."""
+    pts, F, Mo = to_cad(nl, frame, unit_scale_m) if cad is None else cad
     u = unit
     lines = ["# " + CAUTION,
              f"# geomload nodal loads of the spar beam deck, case '{nl.case}' (limit loads)",

@@ -72,9 +72,11 @@ def nodal_loads(loads, rows=None) -> NodalLoads:
         raise InputError(f"FE deck of case '{loads.case}': rows must be ({n_all},) booleans")
     sel[0] = True  # the root is always a node (the clamp)
     idx = np.flatnonzero(sel)
-    F = np.asarray(loads.force_N, float)[idx]
-    M = np.asarray(loads.moment_Nm, float)[idx]
-    P = np.asarray(loads.spar_points_m, float)[idx]
+    every = idx.size == n_all  # every station a node: the arrays as they are (same values)
+    pick = (lambda a: a) if every else (lambda a: a[idx])  # noqa: E731
+    F = pick(np.asarray(loads.force_N, float))
+    M = pick(np.asarray(loads.moment_Nm, float))
+    P = pick(np.asarray(loads.spar_points_m, float))
     n = P.shape[0]
     if n < 2 or F.shape != (n, 3) or M.shape != (n, 3) or not np.all(np.isfinite(F)) \
             or not np.all(np.isfinite(M)):
@@ -86,7 +88,7 @@ def nodal_loads(loads, rows=None) -> NodalLoads:
     m = M - Mn - _cross(Pn - P, Fn)
     # stations closer than MERGE_FRACTION x span share the inboard one's node; a moved load
     # takes its transfer moment along, so the statics stay exact
-    y = np.asarray(loads.y, float)[idx]
+    y = pick(np.asarray(loads.y, float))
     gap = MERGE_FRACTION * max(float(y[-1] - y[0]), SAME_NODE_M)
     keep = np.ones(n, bool)
     if not np.all(np.diff(y) > gap):  # some stations merge (else every station is a node)
@@ -97,21 +99,24 @@ def nodal_loads(loads, rows=None) -> NodalLoads:
                 last = y[i]
     group = np.cumsum(keep) - 1
     k = int(group[-1]) + 1
-    anchor = P[keep][group]
     fs, ms = np.zeros((k, 3)), np.zeros((k, 3))
     if k == n:  # one station per node: the same sums as numpy.add.at, without its slow path
+        # (every station its own anchor: P[keep][group] is P itself, the same values)
         fs += f
-        ms += m + _cross(P - anchor, f)
+        ms += m + _cross(P - P, f)
+        last = lambda a: a  # noqa: E731 - a[keep] with every station kept: the same values
     else:
+        anchor = P[keep][group]
         np.add.at(fs, group, f)
         np.add.at(ms, group, m + _cross(P - anchor, f))
-    ax = {a: np.asarray(getattr(loads, a), float)[idx][keep] if getattr(loads, a) is not None
+        last = lambda a: a[keep]  # noqa: E731
+    ax = {a: last(pick(np.asarray(getattr(loads, a), float))) if getattr(loads, a) is not None
           else None
           for a in ("axis_s", "axis_b", "axis_n")}
     if any(v is None for v in ax.values()):
         ax["axis_s"], ax["axis_b"], ax["axis_n"] = spar_frame(y[keep], P[keep, 0], P[keep, 2])
-    return NodalLoads(case=str(loads.case), y_m=y[keep], points_m=P[keep], force_N=fs,
-                      moment_Nm=ms, station_index=idx[keep], **ax)
+    return NodalLoads(case=str(loads.case), y_m=last(y), points_m=last(P), force_N=fs,
+                      moment_Nm=ms, station_index=last(idx), **ax)
 
 
 def internal_loads(nl: NodalLoads) -> dict:

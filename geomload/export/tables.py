@@ -12,7 +12,6 @@ number that is not finite is written as null.
 
 from __future__ import annotations
 
-import json
 import math
 
 import numpy as np
@@ -21,6 +20,7 @@ from geomload import CAUTION, __version__
 from geomload import textsafe
 from geomload.export import envelope_access as ea
 from geomload.export.atomic import write_text_atomic
+from geomload.export.json_text import dumps_safe
 
 SIGNS = ("sign convention: shear positive up (net upward load outboard of the station); "
          "bending positive tip-up (upper skin in compression); torsion positive nose-up about "
@@ -29,12 +29,23 @@ FRAME = ("wing frame: x aft along the root chord, y along the span (starboard po
          "y = 0 on the symmetry plane), z up; metres")
 
 
+_CLEANED: dict = {}   # header line -> its cleaned text: most lines repeat in every table
+CLEANED_KEPT = 256    # lines kept (the constant lines of a run's tables come first)
+
+
 def _clean(s) -> str:
     """One line of text safe inside a '#' comment line."""
-    s = str(s)
-    if not (s.isascii() and s.isprintable()):  # printable ASCII has nothing to escape
-        s = textsafe.printable(s)
-    return " ".join(s.split())
+    if type(s) is str:
+        hit = _CLEANED.get(s)
+        if hit is not None:
+            return hit
+    t = str(s)
+    if not (t.isascii() and t.isprintable()):  # printable ASCII has nothing to escape
+        t = textsafe.printable(t)
+    t = " ".join(t.split())
+    if type(s) is str and len(_CLEANED) < CLEANED_KEPT:
+        _CLEANED[s] = t
+    return t
 
 
 def _csv(header_lines, columns: dict) -> str:
@@ -73,13 +84,22 @@ def _cell_text(v) -> str:
     return textsafe.csv_text_cell(v)
 
 
+_FRAME_LINES: list = [None, None]  # the last frame's values and its lines (one per run)
+
+
 def frame_lines(frame) -> list:
     lines = [FRAME]
     if frame is not None:
         r = np.asarray(frame.rotation)
+        o = np.asarray(frame.origin)
+        key = (frame.span_axis, frame.up_axis, bool(frame.full_span), r.dtype.str, r.shape,
+               r.tobytes(), o.dtype.str, o.shape, o.tobytes())  # every value the lines print
+        if key == _FRAME_LINES[0]:
+            return list(_FRAME_LINES[1])
         lines.append(f"CAD axes: span {frame.span_axis}, up {frame.up_axis}; full span "
                      f"{bool(frame.full_span)}; p_wing = R (p_cad - origin), origin "
                      f"{np.round(frame.origin, 6).tolist()} m, R rows {np.round(r, 6).tolist()}")
+        _FRAME_LINES[:] = [key, list(lines)]
     return lines
 
 
@@ -166,10 +186,55 @@ def write_loads_csv(path, case_result, caution=CAUTION, frame=None, inputs=()):
             "torsion_ult_Nm": uf * np.asarray(L.torsion_Nm),
             "inplane_shear_ult_N": uf * np.asarray(L.inplane_shear_N),
             "inplane_bending_ult_Nm": uf * np.asarray(L.inplane_bending_Nm)}
-    if not L.rows.all():
+    rows = L.rows
+    if not rows.all():
         head.append("rows: the structure's stations (spar.rib_y_m); loads integrated on the full "
                     "grid, two rows where a load step falls on a station")
-    return write_text_atomic(path, _csv(head, _only(cols, L.rows)), inputs)
+    text = _numeric_csv(head, cols, rows, shared=("y_m", "chord_m"))
+    return write_text_atomic(path, text if text is not None else _csv(head, _only(cols, rows)),
+                             inputs)
+
+
+_TEMPLATES: dict = {}  # (names, shared, their exact bytes) -> the rows with those written
+TEMPLATES_KEPT = 16    # the few load grids of one run
+
+
+def _numeric_csv(header_lines, columns: dict, rows, shared=()):
+    """The text `_csv(header_lines, _only(columns, rows))` gives when every column is a 1-D
+    numeric array over the rows of the mask `rows`; None otherwise (then use those two).
+
+    shared : names of columns that many tables of a run hold with the same values (the load
+    grid's y and chord): their cells are written once into a row template, kept by the
+    columns' exact bytes and reused, and only the other cells are formatted per table. Every
+    cell is '%.10g' of the same float64 either way, so the text is the same.
+    """
+    rows = np.asarray(rows, bool)
+    m = int(np.count_nonzero(rows))
+    every = m == rows.size
+    names = list(columns)
+    table = np.empty((len(names), m))
+    for j, v in enumerate(columns.values()):
+        a = np.asarray(v)
+        if a.ndim != 1 or a.shape[0] != rows.size or a.dtype.kind not in "fiu":
+            return None
+        table[j] = a if every else a[rows]
+    keep = [j for j, k in enumerate(names) if k not in shared]
+    fixed = [j for j, k in enumerate(names) if k in shared]
+    out = "\n".join([f"# {_clean(h)}" for h in header_lines] + [",".join(names)]) + "\n"
+    if not fixed or not m:
+        row = ",".join(["%.10g"] * len(names)) + "\n"
+        return out + (row * m) % tuple(table.T.ravel().tolist())
+    shared_t = table[fixed]
+    key = (tuple(names), tuple(fixed), m, shared_t.tobytes())
+    template = _TEMPLATES.get(key)
+    if template is None:
+        # the shared cells written, every other cell left as '%.10g' for the table's values
+        row = ",".join(["%.10g" if j in fixed else "%%.10g" for j in range(len(names))]) + "\n"
+        template = (row * m) % tuple(shared_t.T.ravel().tolist())
+        if len(_TEMPLATES) >= TEMPLATES_KEPT:
+            _TEMPLATES.clear()
+        _TEMPLATES[key] = template
+    return out + template % tuple(table[keep].T.ravel().tolist())
 
 
 def write_envelope_csv(path, envelope, inputs=()):
@@ -344,8 +409,9 @@ def write_summary_json(path, run_result, inputs=(), more_warnings=()):
     structural hand-off's), listed after the run's."""
     data = summary(run_result)
     data["warnings"] += [w for w in more_warnings if w not in data["warnings"]]
-    text = json.dumps(textsafe.json_safe(data), indent=1, allow_nan=False, ensure_ascii=False)
-    return write_text_atomic(path, text + "\n", inputs)
+    # the text of json.dumps(textsafe.json_safe(data), indent=1, allow_nan=False,
+    # ensure_ascii=False), byte for byte, in one faster pass (json_text)
+    return write_text_atomic(path, dumps_safe(data, indent=1) + "\n", inputs)
 
 
 def write_aero_csv(path, solution, source="", inputs=()):

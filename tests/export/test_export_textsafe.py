@@ -3,9 +3,12 @@
 import dataclasses
 import json
 import math
+import unicodedata
 
 import numpy as np
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from geomload import textsafe
 from geomload.export import plots, tables
@@ -113,3 +116,26 @@ def test_loads_plot_uses_one_collection_for_many_cases():
     allv = np.concatenate([c.loads.shear_N for c in run.cases])
     assert lo <= allv.min() and hi >= allv.max()
     assert not math.isnan(lo)
+
+
+def test_printable_leaves_exactly_the_characters_outside_the_escaped_categories():
+    # Unicode Character Database (Python's unicodedata): a character is escaped when its
+    # general category is Cc, Cf, Zl, Zp, Cs, Co or Cn; every other character stays as it is
+    escaped = {"Cc", "Cf", "Zl", "Zp", "Cs", "Co", "Cn"}
+    wrong = [o for o in range(0x110000)
+             if (textsafe.printable(chr(o)) != chr(o))
+             != (unicodedata.category(chr(o)) in escaped)]
+    assert wrong == []
+    assert textsafe.printable("Überziehen — 60° ·") == "Überziehen — 60° ·"
+    assert textsafe.printable("a\u2029b\u00a0c") == "a\\u2029b\u00a0c"  # Zp escaped, Zs kept
+
+
+@settings(max_examples=300, deadline=None)
+@given(st.text(alphabet=st.sampled_from(["a", "\n", "\t", "\r", "\x1b", "é", "\u202e", "\u2028",
+                                         "\u00a0", " ", "\ue000", "\U0001F6E9", "\x85", "\\"]),
+               max_size=16), st.booleans())
+def test_printable_applies_the_character_rule_to_every_character(s, keep_newlines):
+    # the rule is per character (Unicode Character Database categories, checked above for
+    # every code point): the text's result is the characters' results side by side
+    ref = "".join(ch if keep_newlines and ch in "\n\t" else textsafe.printable(ch) for ch in s)
+    assert textsafe.printable(s, keep_newlines=keep_newlines) == ref
