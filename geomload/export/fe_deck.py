@@ -34,6 +34,7 @@ import numpy as np
 
 from geomload import CAUTION
 from geomload.errors import InputError
+from geomload.record_checks import kept
 from geomload.export.fe_nodes import NodalLoads, to_cad
 
 # Nominal beam section and material: they change displacements only, never the reactions or
@@ -94,17 +95,13 @@ def _block(row_format: str, table, same: bool = False) -> str:
     kept text is the text formatting would give.
     """
     t = np.ascontiguousarray(table, dtype=float)
+
+    def text():
+        return ((row_format + "\n") * t.shape[0] % tuple(t.ravel().tolist()))[:-1]
+
     if same:
-        key = (row_format, t.shape, t.tobytes())
-        text = _SAME_BLOCKS.get(key)
-        if text is not None:
-            return text
-    text = ((row_format + "\n") * t.shape[0] % tuple(t.ravel().tolist()))[:-1]
-    if same:
-        if len(_SAME_BLOCKS) >= SAME_BLOCKS_KEPT:
-            _SAME_BLOCKS.clear()
-        _SAME_BLOCKS[key] = text
-    return text
+        return kept(_SAME_BLOCKS, (row_format, t.shape, t.tobytes()), text, SAME_BLOCKS_KEPT)
+    return text()
 
 
 _GEOMETRY: dict = {}  # (exact bytes of the spar points, frame, unit scale, lever nodes) -> part
@@ -117,10 +114,12 @@ def _geometry_part(pts, R, s: float, lever_nodes: tuple) -> tuple:
     with the values the loads part needs. A function of its arguments' exact values alone, so
     a part kept for the same bytes is the part building it again would give. Returns (lines,
     (a, b, c, arm, ea, eb, ec), (na, nb, nc), (pa, pb, pc))."""
-    key = (pts.shape, pts.tobytes(), R.tobytes(), s, lever_nodes)
-    hit = _GEOMETRY.get(key)
-    if hit is not None:
-        return hit
+    return kept(_GEOMETRY, (pts.shape, pts.tobytes(), R.tobytes(), s, lever_nodes),
+                lambda: _build_geometry_part(pts, R, s, lever_nodes), GEOMETRY_KEPT)
+
+
+def _build_geometry_part(pts, R, s: float, lever_nodes: tuple) -> tuple:
+    """`_geometry_part` built afresh."""
     n = pts.shape[0]
     length = float(np.sum(np.linalg.norm(np.diff(pts, axis=0), axis=1)))
     chordwise = R[0]  # wing x axis in CAD coordinates: normal to the spar, beam 1-direction
@@ -176,11 +175,7 @@ def _geometry_part(pts, R, s: float, lever_nodes: tuple) -> tuple:
               wh, _xyz(d)]
     L += ["*BOUNDARY", f"{nc}, 1, 3", f"{na}, {b + 1}, {b + 1}", f"{na}, {c + 1}, {c + 1}",
           f"{nb}, {c + 1}, {c + 1}", "*STEP", "*STATIC", "*CLOAD"]
-    part = ("\n".join(L), (a, b, c, arm, ea, eb, ec), (na, nb, nc), (pa, pb, pc))
-    if len(_GEOMETRY) >= GEOMETRY_KEPT:
-        _GEOMETRY.clear()
-    _GEOMETRY[key] = part
-    return part
+    return ("\n".join(L), (a, b, c, arm, ea, eb, ec), (na, nb, nc), (pa, pb, pc))
 
 
 _LEVER_MATRICES: dict = {}  # (exact bytes of the lever axes and arm) -> their 3 x 3 matrix
@@ -189,15 +184,9 @@ _LEVER_MATRICES: dict = {}  # (exact bytes of the lever axes and arm) -> their 3
 def _lever_matrix(ea, eb, ec, arm) -> np.ndarray:
     """arm [ea x eb, ea x ec, eb x ec] (columns): a nodal moment's force couples on the two
     lever arms solve this matrix. Kept per geometry (the same for every deck of a run)."""
-    key = (ea.tobytes(), eb.tobytes(), ec.tobytes(), float(arm))
-    m = _LEVER_MATRICES.get(key)
-    if m is None:
-        m = arm * np.column_stack([_cross3(ea, eb), _cross3(ea, ec), _cross3(eb, ec)])
-        m.setflags(write=False)
-        if len(_LEVER_MATRICES) >= GEOMETRY_KEPT:
-            _LEVER_MATRICES.clear()
-        _LEVER_MATRICES[key] = m
-    return m
+    return kept(_LEVER_MATRICES, (ea.tobytes(), eb.tobytes(), ec.tobytes(), float(arm)),
+                lambda: arm * np.column_stack([_cross3(ea, eb), _cross3(ea, ec),
+                                               _cross3(eb, ec)]), GEOMETRY_KEPT)
 
 
 _CLOAD_STARTS: dict = {}  # n -> (n, 3, 3) "node, dof, " texts of the *CLOAD lines
@@ -207,17 +196,15 @@ def _cload_starts(n: int) -> np.ndarray:
     """The starts "node, dof, " of every possible *CLOAD line of a deck with n spar nodes, as
     an (n, 3, 3) object array: per node i its own node (i + 1) and its two lever nodes
     (n + 4 + 2 i and n + 5 + 2 i), each with DOF 1, 2, 3 (beam_deck's line order)."""
-    hit = _CLOAD_STARTS.get(n)
-    if hit is None:
+    def build():
         out = np.empty((n, 3, 3), dtype=object)
         for i in range(n):
             for r, node in enumerate((i + 1, n + 4 + 2 * i, n + 5 + 2 * i)):
                 for d in range(3):
                     out[i, r, d] = f"{node}, {d + 1}, "
-        if len(_CLOAD_STARTS) >= GEOMETRY_KEPT:
-            _CLOAD_STARTS.clear()
-        hit = _CLOAD_STARTS[n] = out
-    return hit
+        return out
+
+    return kept(_CLOAD_STARTS, n, build, GEOMETRY_KEPT)
 
 
 def beam_deck(nl: NodalLoads, frame=None, unit_scale_m: float = 1.0, unit: str = "m",
