@@ -66,7 +66,7 @@ def test_one_fsync_pass_only_inside_a_staged_run_folder(tmp_path, project):
             write_text_atomic(od.path("a.csv"), "a\n")
             write_text_atomic(od.path("loads/b.csv"), "b\n")
             (pending,) = atomic._SYNC_AT_END.values()
-            assert sorted(Path(p).name for p in pending) == ["a.csv", "b.csv"]
+            assert sorted(Path(p).name for p, _ident in pending) == ["a.csv", "b.csv"]
         assert atomic._SYNC_AT_END == {}
         od.commit()
     finally:
