@@ -32,7 +32,7 @@ def case_wing(case, progress, cache=None):
     wing = read_wing(g.file, units=g.units, body=g.body, span_axis=g.span_axis,
                      up_axis=g.up_axis, n_stations=g.n_stations, spacing=g.spacing,
                      progress=progress, side=getattr(g, "side", None),
-                     require_units=False, units_hint=UNITS_HINT)
+                     require_units=False, units_hint=UNITS_HINT, display=True)
     check_units(case, wing)
     if cache is not None:
         cache[key] = wing

@@ -23,7 +23,8 @@ def load_wing(path, units=None, body=None, span_axis=None, up_axis=None, n_stati
 
 
 def read_wing(path, units=None, body=None, span_axis=None, up_axis=None, n_stations=20,
-              spacing="cosine", progress=None, side=None, require_units=False, units_hint=None):
+              spacing="cosine", progress=None, side=None, require_units=False, units_hint=None,
+              display=False):
     """Read a CAD file and analyse its wing: returns a `records.Wing`.
 
     Parameters
@@ -42,6 +43,10 @@ def read_wing(path, units=None, body=None, span_axis=None, up_axis=None, n_stati
     require_units : bool
         Refuse a unit-less mesh (STL/OBJ/PLY/OFF) read with no unit (GeometryError naming the
         file, the likely unit and the key to set; `units_hint` words the key).
+    display : bool
+        Also build the decimated display surface of a large single-body mesh (Wing.display_soup)
+        in a worker thread beside the frame and the cuts, for a caller that writes one (a run);
+        a command that only measures the wing leaves it (False).
 
     Raises
     ------
@@ -51,7 +56,7 @@ def read_wing(path, units=None, body=None, span_axis=None, up_axis=None, n_stati
 
     return _read(path, units=units, body=body, span_axis=span_axis, up_axis=up_axis,
                  n_stations=n_stations, spacing=spacing, progress=progress, side=side,
-                 require_units=require_units, units_hint=units_hint)
+                 require_units=require_units, units_hint=units_hint, display=display)
 
 
 __all__ = ["load_wing", "read_wing", "guess_unit", "UNITS"]

@@ -22,24 +22,26 @@ def _no_progress(stage, done, total):
 
 
 def read_wing(path, units=None, body=None, span_axis=None, up_axis=None, n_stations=20,
-              spacing="cosine", progress=None, side=None, require_units=False, units_hint=None):
+              spacing="cosine", progress=None, side=None, require_units=False, units_hint=None,
+              display=False):
     """See `geometry.read_wing`."""
     from geomload.threads import one_blas_thread
 
     with one_blas_thread():
         return _read_wing(path, units, body, span_axis, up_axis, n_stations, spacing, progress,
-                          side, require_units, units_hint)
+                          side, require_units, units_hint, display)
 
 
 def _read_wing(path, units, body, span_axis, up_axis, n_stations, spacing, progress, side,
-               require_units, units_hint):
+               require_units, units_hint, display=False):
     progress = progress or _no_progress
     box = []
     mesh = read_mesh(path, units=units, progress=progress, require_units=require_units,
                      units_hint=units_hint, all_bodies=True, bounds_out=box)
     # the display surface's clustering of a large single-body mesh, in a worker thread while
-    # this one finds the frame and cuts the stations (the export uses it; see display_soup)
-    one = body is None and len(mesh.body_sizes) <= 1
+    # this one finds the frame and cuts the stations (the export uses it; see display_soup);
+    # only when the caller writes one (a run), not for a command that only measures the wing
+    one = display and body is None and len(mesh.body_sizes) <= 1
     soup = start_display_soup(mesh.triangles, box[0]) if one else None
     try:
         return _with_soup(_read_mesh_wing(mesh, body, span_axis, up_axis, n_stations, spacing,

@@ -164,3 +164,25 @@ def test_root_cap_normal_by_rows_matches_plain_numpy(sign):
     validation.check("numpy.cross / numpy.linalg.norm over all near triangles",
                      "cap area difference, m^2", 0.0, abs(got[1] - 0.5 * float(a[good].sum())),
                      abs=0.0)
+
+
+def test_display_surface_built_beside_the_read_only_when_asked(tmp_path):
+    # a command that only measures the wing (inspect) does no display-surface work; a run asks
+    # for it and, when a second CPU built it, gets the clustering of the very mesh read
+    # (reference: the same clustering applied afterwards, as the export does without it)
+    from geomload.geometry import read_wing
+    from geomload.geometry.display_soup import DISPLAY_TRIANGLES, decimate_soup
+    from helpers.wingfactory import design, wing_triangles, write_stl
+
+    tris = wing_triangles(design(), n_chord=300, n_span=100)
+    assert tris.shape[0] > DISPLAY_TRIANGLES
+    path = write_stl(tmp_path / "fine.stl", tris)
+    measured = read_wing(path, units="m")
+    assert measured.display_soup is None
+    wing = read_wing(path, units="m", display=True)
+    if wing.display_soup is None:  # no CPU was free: the export builds it then
+        pytest.skip("no second CPU free for the display surface's thread")
+    target, pts, tri = wing.display_soup
+    ref_pts, ref_tri = decimate_soup(wing.mesh.triangles, target)
+    assert target == DISPLAY_TRIANGLES
+    assert np.array_equal(pts, ref_pts) and np.array_equal(tri, ref_tri)
