@@ -10,37 +10,33 @@ Run: python benchmarks/run_all.py [NAME ...]     NAME: a script's short name (cl
 large_stl, lattice, import) to run only those. GEOMLOAD_BENCH_REPEAT=N sets every repeat count
 (1 = a quick look). See DEVELOPERS.md and docs/performance.md.
 
-Every target, as last measured (round 4 after integration, 2026-12-03 04:05-04:20 UTC, 2 cores,
-quiet machine: load 1.1-1.7; GEOMLOAD_BENCH_REPEAT=3 except where noted; the sample has the
-tail, the control-surface cases (rolling at the first instant and in steady roll, flaps down),
-[structure] and error bars; the causes of each miss in docs/performance.md):
+Every target, as last measured (round 7 after integration, 2026-12-03 12:27-12:48 UTC, 2 cores,
+no other session: load 0.2-1.7; GEOMLOAD_BENCH_REPEAT=3; the sample has the tail, the
+control-surface cases, [structure] and error bars; the causes of each miss and the paired
+before/after runs in docs/performance.md):
 
 figure                                        target   measured  floor (same run)               met
-sample_run_vs_numpy_import_ratio                   8       42.5  import numpy 0.113 s           no
-sample_no_render_vs_numpy_import_ratio             5       36.5  import numpy 0.113 s           no
-sample_run_vs_numpy_import_cpu_ratio               -       35.9  import numpy cpu 0.195 s       -
-sample_no_render_vs_numpy_import_cpu_ratio         -       26.1  import numpy cpu 0.195 s       -
-cases_1000_vs_42_ratio                           1.3       4.93  42-case run 6.03 s (n=2)       no
-cases_work_per_added_case_ms                     1.5       24.7  42-case run 6.03 s             no
-cases_1000_vs_42_cpu_ratio                         -       4.42  42-case run cpu 7.62 s         -
-stl_4M_run_no_render_s                             5       15.9  absolute, at load 3-5 (10.9 s CPU)  no
-stl_4M_run_peak_rss_MB                           700        526  absolute; file 200 MB          yes
-stl_4M_read_cut_vs_fromfile_ratio                 10       14.6  fromfile 0.095 s, at load 3-5  no
-import_2M_total_s                                  2       0.81  absolute; fromfile 0.039 s     yes
-import_vs_fromfile_ratio (2M, page-cached)        10       20.6  fromfile 0.039 s               no
-lattice_120x25_run_vs_floor_ratio                1.6       4.47  round 3 (paired CPU -30 %, docs)  no
-help_wall_s                                     0.15      0.103  python -c pass 0.035 s         yes
-batch_12_variants_2_workers_vs_one_run_ratio       8       7.03  one run 4.45 s (median wall; CPU 10.96)  yes
-unsymmetric_vs_symmetric_run_ratio               1.5       1.28  symmetric run 4.16 s           yes
-fe_decks_and_sizing_fraction_of_sample_run      0.15     0.0662  sample run (earlier round)     yes
-vlm_2000_panels_assembly_lu_20rhs_s              0.6       2.52  absolute (earlier round)       no
-ratio_to_bare_lu                                   4       2.37  LU 2000 1.065 s                yes
-peak_memory_4000_panels_MB                      1500        294  absolute (earlier round)       yes
-
-Paired before/after this round (same minutes, medians of the pairs, CPU, at load 2-7): the
-sample with pictures 14.06 -> 11.81 s (-15 %), --no-render 11.28 -> 8.58 s (-23 %),
-1000 cases 43.6 -> 39.1 s (-10 %), the 120 x 25 lattice 72.8 -> 51.0 s (-30 %, with
-ControlModel.build).
+sample_run_vs_numpy_import_ratio                   8       37.6  import numpy 0.123 s           no
+sample_no_render_vs_numpy_import_ratio             5       26.2  import numpy 0.123 s           no
+sample_run_vs_numpy_import_cpu_ratio               -       34.2  import numpy cpu 0.212 s       -
+sample_no_render_vs_numpy_import_cpu_ratio         -       23.3  import numpy cpu 0.212 s       -
+cases_1000_vs_42_ratio                           1.3       2.25  42-case run 5.11 s             no
+cases_work_per_added_case_ms                     1.5       6.67  42-case run 5.11 s             no
+cases_1000_vs_42_cpu_ratio                         -       2.71  42-case run cpu 5.81 s         -
+stl_4M_run_no_render_s                             5       6.27  absolute (paired median 5.09)  no
+stl_4M_run_peak_rss_MB                           700        588  absolute; file 200 MB          yes
+stl_4M_read_cut_vs_fromfile_ratio                 10       13.9  fromfile 0.061 s               no
+import_2M_total_s                                  2      0.673  absolute; fromfile 0.030 s     yes
+import_vs_fromfile_ratio (2M, page-cached)        10       22.5  fromfile 0.030 s               no
+lattice_120x25_run_vs_floor_ratio                1.6       2.91  40x10 run 4.46 s + LU 0.373 s  no
+help_wall_s                                     0.15      0.114  python -c pass 0.038 s         yes
+batch_12_variants_2_workers_vs_one_run_ratio       8       5.27  one run (median wall)          yes
+unsymmetric_vs_symmetric_run_ratio               1.5       1.12  symmetric run 3.30 s           yes
+error_estimate_fraction_of_sample_run            0.4      0.156  -                              yes
+fe_decks_and_sizing_fraction_of_sample_run      0.15     0.0893  sample run                     yes
+vlm_2000_panels_assembly_lu_20rhs_s              0.6      0.405  absolute                       yes
+ratio_to_bare_lu                                   4       2.18  LU 2000 0.186 s                yes
+peak_memory_4000_panels_MB                      1500       1000  absolute                       yes
 """
 
 from __future__ import annotations
