@@ -165,6 +165,25 @@ def _couple(dy, pitch):
     return couple
 
 
+def _stacked_lines(y, dy, lift, drag, side, load_x, load_z, inertia, inertia_x, inertia_z,
+                   alpha_deg, inertia_alpha_deg) -> tuple:
+    """The aero (0) and inertia (1) load lines and their loads stacked, each operation once for
+    both: (R (2, n, 3) the lines' points, L (2, n, 3) their loads per metre in the wing frame,
+    l_ab = L[:, :-1] + L[:, 1:], seg_f (n - 1, 3) the force of each segment, both lines)."""
+    n = y.size
+    ca, sa = np.cos(np.radians(alpha_deg)), np.sin(np.radians(alpha_deg))
+    fx_aero, fz_aero = drag * ca - lift * sa, lift * ca + drag * sa
+    bi = np.radians(inertia_alpha_deg)
+    R, L = np.empty((2, n, 3)), np.empty((2, n, 3))
+    R[0, :, 0], R[0, :, 1], R[0, :, 2] = load_x, y, load_z
+    R[1, :, 0], R[1, :, 1], R[1, :, 2] = inertia_x, y, inertia_z
+    L[0, :, 0], L[0, :, 1], L[0, :, 2] = fx_aero, side, fz_aero
+    L[1, :, 0], L[1, :, 1], L[1, :, 2] = inertia * np.sin(bi), 0.0, -inertia * np.cos(bi)
+    l_ab = L[:, :-1] + L[:, 1:]
+    f_seg = 0.5 * dy[:, None] * l_ab
+    return R, L, l_ab, f_seg[0] + f_seg[1]
+
+
 def _reverse_cumsum(a):
     """out[i] = sum of a[i:] along axis 0, with one zero row appended (the tip)."""
     out = np.empty((a.shape[0] + 1,) + a.shape[1:])
@@ -198,21 +217,11 @@ def integrate(y, spar_x, spar_z, applied: AppliedLoads, *, case: str = "",
     ax, az, ix, iz = a.load_x_m, a.load_z_m, a.inertia_x_m, a.inertia_z_m
     s, b, nrm, p, rel, dy = _shared_spar_frame(y, sx, sz)
 
-    ca, sa = np.cos(np.radians(a.alpha_deg)), np.sin(np.radians(a.alpha_deg))
-    fx_aero, fz_aero = drag * ca - lift * sa, lift * ca + drag * sa
+    R, L, l_ab, seg_f = _stacked_lines(y, dy, lift, drag, side, ax, az, q, ix, iz,
+                                       a.alpha_deg, a.inertia_alpha_deg)
     h = dy[:, None]
-    bi = np.radians(a.inertia_alpha_deg)
-    # the aero (0) and inertia (1) lines and loads stacked: each operation once for both
-    R, L = np.empty((2, n, 3)), np.empty((2, n, 3))
-    R[0, :, 0], R[0, :, 1], R[0, :, 2] = ax, y, az
-    R[1, :, 0], R[1, :, 1], R[1, :, 2] = ix, y, iz
-    L[0, :, 0], L[0, :, 1], L[0, :, 2] = fx_aero, side, fz_aero
-    L[1, :, 0], L[1, :, 1], L[1, :, 2] = q * np.sin(bi), 0.0, -q * np.cos(bi)
     # the forces first (no cross product), then every cross product of the case in one call
     # (elementwise: the same bits as one call per product)
-    l_ab = L[:, :-1] + L[:, 1:]
-    f_seg = 0.5 * h * l_ab
-    seg_f = f_seg[0] + f_seg[1]
     force = _reverse_cumsum(seg_f)
     tol = 1e-12 * max(1.0, float(y[-1] - y[0]))
     # y increases: y <= r_y + tol is the first k stations (one search for every point load)
@@ -249,7 +258,7 @@ def integrate(y, spar_x, spar_z, applied: AppliedLoads, *, case: str = "",
         o += k
 
     dot = lambda u, e: np.einsum("ij,ij->i", u, e)  # noqa: E731
-    pitch_spar = pitch + (az - sz) * fx_aero - (ax - sx) * fz_aero
+    pitch_spar = pitch + (az - sz) * L[0, :, 0] - (ax - sx) * L[0, :, 2]
     eq = (_equilibrium(case, y, applied, p, force, moment,
                        ((R[0], L[0]), (R[1], L[1]), dy)) if check_equilibrium else None)
     return SpanLoads(

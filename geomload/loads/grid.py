@@ -111,7 +111,13 @@ def _to_grid(y_edges, h, y_strip, values, width, total=None, tip_zero=True):
 def _to_grid_rows(y_edges, h, y_strip, series, width) -> list:
     """_to_grid (tip zero, the strip total) of several strip series on one grid: the same
     arithmetic per series with the sums taken as the rows of one array (a row's sum is the
-    sum of that series alone)."""
+    sum of that series alone). A list of the rows of `_to_grid_array`."""
+    return list(_to_grid_array(y_edges, h, y_strip, series, width))
+
+
+def _to_grid_array(y_edges, h, y_strip, series, width) -> np.ndarray:
+    """`_to_grid_rows` as one (k, n) array, for k strip series (a sequence of k arrays or a
+    (k, strips) array): each row the same arithmetic as `_to_grid` of that series alone."""
     k, n = len(series), y_edges.size
     v = np.empty((k, n))
     extrapolate = y_strip.size >= 2 and y_edges[0] < y_strip[0]
@@ -125,8 +131,8 @@ def _to_grid_rows(y_edges, h, y_strip, series, width) -> list:
     grid_total = (0.5 * (v[:, 1:] + v[:, :-1]) * h).sum(axis=1)
     a = np.abs(v)
     a_total = (0.5 * (a[:, 1:] + a[:, :-1]) * h).sum(axis=1)
-    out = []
-    for i in range(k):
-        st, gt, at = float(strip_total[i]), float(grid_total[i]), float(a_total[i])
-        out.append(v[i] + (st - gt) * a[i] / at if at > 0.0 else v[i].copy())
+    pos = a_total > 0.0  # a row with no magnitude keeps its interpolated values
+    out = v.copy()
+    excess = (strip_total[pos] - grid_total[pos])[:, None]
+    out[pos] = v[pos] + excess * a[pos] / a_total[pos][:, None]
     return out

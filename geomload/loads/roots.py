@@ -22,9 +22,10 @@ from geomload.aero.vortex import cross as _cross
 from geomload.errors import InputError
 from geomload.units import G0
 
-from .beam import _couple, _shared_spar_frame
+from .beam import _couple, _shared_spar_frame, _stacked_lines
 from .case_records import CaseRoots, RootLoads
 from .flight_case import _slope, _starboard_strips, point_forces
+from .grid import _to_grid_array
 
 
 BATCH_CASES = 256  # cases integrated together: the arrays of a batch stay a few MB (about
@@ -50,18 +51,9 @@ def root_resultants(y, spar_x, spar_z, lift, drag, side, pitch, load_x, load_z, 
     n = y.size
     sx, sz = np.asarray(spar_x, float), np.asarray(spar_z, float)
     s, b, nrm, p, rel, dy = _shared_spar_frame(y, sx, sz)
-    ca, sa = np.cos(np.radians(alpha_deg)), np.sin(np.radians(alpha_deg))
-    fx_aero, fz_aero = drag * ca - lift * sa, lift * ca + drag * sa
+    R, L, l_ab, seg_f = _stacked_lines(y, dy, lift, drag, side, load_x, load_z, inertia,
+                                       inertia_x, inertia_z, alpha_deg, inertia_alpha_deg)
     h = dy[:, None]
-    bi = np.radians(inertia_alpha_deg)
-    R, L = np.empty((2, n, 3)), np.empty((2, n, 3))
-    R[0, :, 0], R[0, :, 1], R[0, :, 2] = load_x, y, load_z
-    R[1, :, 0], R[1, :, 1], R[1, :, 2] = inertia_x, y, inertia_z
-    L[0, :, 0], L[0, :, 1], L[0, :, 2] = fx_aero, side, fz_aero
-    L[1, :, 0], L[1, :, 1], L[1, :, 2] = inertia * np.sin(bi), 0.0, -inertia * np.cos(bi)
-    l_ab = L[:, :-1] + L[:, 1:]
-    f_seg = 0.5 * h * l_ab
-    seg_f = f_seg[0] + f_seg[1]
     force = _tip_to_root_sum(seg_f)
     tol = 1e-12 * max(1.0, float(y[-1] - y[0]))
     # a point load counts at the root when the root station lies at or inboard of it
@@ -196,22 +188,7 @@ def _grid_loads_many(grid, lat, lift_pq, drag_pq, mom_pq, q, cd0, load_factor, k
     series[:, 1] = drag_pq[:, idx] * qc + cd0c * qc * np.asarray(lat.strip_chord)[idx]
     series[:, 2] = mom_pq[:, idx] * qc
     series = series.reshape(3 * k, idx.size)
-    v = np.empty((3 * k, n))
-    extrapolate = ys.size >= 2 and y[0] < ys[0]
-    for i, values in enumerate(series):
-        v[i] = np.interp(y, ys, values)
-        if extrapolate:
-            slope = (values[1] - values[0]) / (ys[1] - ys[0])
-            v[i, 0] = values[0] + slope * (y[0] - ys[0])
-    v[:, -1] = 0.0
-    strip_total = (series * ws).sum(axis=1)
-    grid_total = (0.5 * (v[:, 1:] + v[:, :-1]) * h).sum(axis=1)
-    a = np.abs(v)
-    a_total = (0.5 * (a[:, 1:] + a[:, :-1]) * h).sum(axis=1)
-    pos = a_total > 0.0
-    out = v.copy()
-    excess = (strip_total[pos] - grid_total[pos])[:, None]
-    out[pos] = v[pos] + excess * a[pos] / a_total[pos][:, None]
+    out = _to_grid_array(y, h, ys, series, ws)
     out = out.reshape(k, 3, n)
     lift, drag, pitch = out[:, 0], out[:, 1], out[:, 2]
     inertia = (load_factor * G0)[:, None] * kg_per_m
