@@ -184,6 +184,30 @@ def _stacked_lines(y, dy, lift, drag, side, load_x, load_z, inertia, inertia_x, 
     return R, L, l_ab, f_seg[0] + f_seg[1]
 
 
+def _fill_segment_rows(arms, loads, R, L, l_ab, p, rel, seg_f, m) -> None:
+    """The first 7 m rows of the integration's cross products: per line (Simpson) the arms
+    r_a, r_a + r_b, r_b about p[j] and the loads f_a, f_a + f_b, f_b of each of the m segments
+    (6 m rows), then each segment's force about the next station inboard (m rows)."""
+    va, vl = arms[:6 * m].reshape(2, 3, m, 3), loads[:6 * m].reshape(2, 3, m, 3)
+    va[:, 0] = R[:, :-1] - p[:-1]
+    va[:, 2] = R[:, 1:] - p[:-1]
+    va[:, 1] = va[:, 0] + va[:, 2]
+    vl[:, 0], vl[:, 1], vl[:, 2] = L[:, :-1], l_ab, L[:, 1:]
+    arms[6 * m:7 * m], loads[6 * m:7 * m] = rel[:-1], seg_f
+
+
+def _segment_moment_rows(c, dy, pitch, m) -> np.ndarray:
+    """(m, 6): per segment its moment about its inboard station from both lines (Simpson of the
+    cross products c of `_fill_segment_rows`) plus the pitch couple, in the first three
+    columns; the last three are the caller's."""
+    vc = c[:6 * m].reshape(2, 3, m, 3)
+    m_seg = dy[:, None] / 6.0 * (vc[:, 0] + vc[:, 1] + vc[:, 2])
+    seg_m = np.empty((m, 6))
+    seg_m[:, :3] = m_seg[0] + m_seg[1]
+    seg_m[:, :3] += _couple(dy, pitch)
+    return seg_m
+
+
 def _reverse_cumsum(a):
     """out[i] = sum of a[i:] along axis 0, with one zero row appended (the tip)."""
     out = np.empty((a.shape[0] + 1,) + a.shape[1:])
@@ -219,7 +243,6 @@ def integrate(y, spar_x, spar_z, applied: AppliedLoads, *, case: str = "",
 
     R, L, l_ab, seg_f = _stacked_lines(y, dy, lift, drag, side, ax, az, q, ix, iz,
                                        a.alpha_deg, a.inertia_alpha_deg)
-    h = dy[:, None]
     # the forces first (no cross product), then every cross product of the case in one call
     # (elementwise: the same bits as one call per product)
     force = _reverse_cumsum(seg_f)
@@ -230,24 +253,14 @@ def integrate(y, spar_x, spar_z, applied: AppliedLoads, *, case: str = "",
     m = n - 1
     rows = 8 * m + 1 + sum(ks)
     arms, loads = np.empty((rows, 3)), np.empty((rows, 3))
-    # per line (Simpson): arms r_a, r_a + r_b, r_b about p[j] and loads f_a, f_a + f_b, f_b
-    va, vl = arms[:6 * m].reshape(2, 3, m, 3), loads[:6 * m].reshape(2, 3, m, 3)
-    va[:, 0] = R[:, :-1] - p[:-1]
-    va[:, 2] = R[:, 1:] - p[:-1]
-    va[:, 1] = va[:, 0] + va[:, 2]
-    vl[:, 0], vl[:, 1], vl[:, 2] = L[:, :-1], l_ab, L[:, 1:]
-    arms[6 * m:7 * m], loads[6 * m:7 * m] = rel[:-1], seg_f
+    _fill_segment_rows(arms, loads, R, L, l_ab, p, rel, seg_f, m)
     arms[7 * m:8 * m + 1], loads[7 * m:8 * m + 1] = rel, force
     o = 8 * m + 1
     for pl, k in zip(a.point_loads, ks):
         arms[o:o + k], loads[o:o + k] = pl.position[None, :] - p[:k], pl.force[None, :]
         o += k
     c = _cross(arms, loads)
-    vc = c[:6 * m].reshape(2, 3, m, 3)
-    m_seg = h / 6.0 * (vc[:, 0] + vc[:, 1] + vc[:, 2])
-    seg_m = np.empty((m, 6))
-    seg_m[:, :3] = m_seg[0] + m_seg[1]
-    seg_m[:, :3] += _couple(dy, pitch)
+    seg_m = _segment_moment_rows(c, dy, pitch, m)
     seg_m[:, 3:] = c[6 * m:7 * m]
     sums = _reverse_cumsum(seg_m)
     moment = (sums[:, :3] + sums[:, 3:]) - c[7 * m:8 * m + 1]

@@ -22,7 +22,8 @@ from geomload.aero.vortex import cross as _cross
 from geomload.errors import InputError
 from geomload.units import G0
 
-from .beam import _couple, _shared_spar_frame, _stacked_lines
+from .beam import (_fill_segment_rows, _segment_moment_rows, _shared_spar_frame,
+                   _stacked_lines)
 from .case_records import CaseRoots, RootLoads
 from .flight_case import _slope, _starboard_strips, point_forces
 from .grid import _to_grid_array
@@ -53,7 +54,6 @@ def root_resultants(y, spar_x, spar_z, lift, drag, side, pitch, load_x, load_z, 
     s, b, nrm, p, rel, dy = _shared_spar_frame(y, sx, sz)
     R, L, l_ab, seg_f = _stacked_lines(y, dy, lift, drag, side, load_x, load_z, inertia,
                                        inertia_x, inertia_z, alpha_deg, inertia_alpha_deg)
-    h = dy[:, None]
     force = _tip_to_root_sum(seg_f)
     tol = 1e-12 * max(1.0, float(y[-1] - y[0]))
     # a point load counts at the root when the root station lies at or inboard of it
@@ -62,21 +62,12 @@ def root_resultants(y, spar_x, spar_z, lift, drag, side, pitch, load_x, load_z, 
     m = n - 1
     rows = 7 * m + 1 + len(at_root)
     arms, loads = np.empty((rows, 3)), np.empty((rows, 3))
-    va, vl = arms[:6 * m].reshape(2, 3, m, 3), loads[:6 * m].reshape(2, 3, m, 3)
-    va[:, 0] = R[:, :-1] - p[:-1]
-    va[:, 2] = R[:, 1:] - p[:-1]
-    va[:, 1] = va[:, 0] + va[:, 2]
-    vl[:, 0], vl[:, 1], vl[:, 2] = L[:, :-1], l_ab, L[:, 1:]
-    arms[6 * m:7 * m], loads[6 * m:7 * m] = rel[:-1], seg_f
+    _fill_segment_rows(arms, loads, R, L, l_ab, p, rel, seg_f, m)
     arms[7 * m], loads[7 * m] = rel[0], force
     for j, (pos, f) in enumerate(at_root):
         arms[7 * m + 1 + j], loads[7 * m + 1 + j] = pos - p[0], f
     c = _cross(arms, loads)
-    vc = c[:6 * m].reshape(2, 3, m, 3)
-    m_seg = h / 6.0 * (vc[:, 0] + vc[:, 1] + vc[:, 2])
-    seg_m = np.empty((m, 6))
-    seg_m[:, :3] = m_seg[0] + m_seg[1]
-    seg_m[:, :3] += _couple(dy, pitch)
+    seg_m = _segment_moment_rows(c, dy, pitch, m)
     seg_m[:, 3:] = c[6 * m:7 * m]
     sums = _tip_to_root_sum(seg_m)
     moment = (sums[:3] + sums[3:]) - c[7 * m]
